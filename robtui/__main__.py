@@ -1,0 +1,5 @@
+import sys
+
+from robtui.cli import main
+
+sys.exit(main())

@@ -1,0 +1,59 @@
+"""Command-line entry point: argument parsing only; every command calls the library.
+
+Command modules live in ``robtui.commands`` and are discovered, so adding a command means
+adding a module there (see robtui/commands/__init__.py).
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import pkgutil
+import sys
+from collections.abc import Sequence
+
+from robtui import __version__
+from robtui.errors import RobtuiError
+
+EXIT_USAGE = 2
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="robtui",
+        description=(
+            "Risk-of-bias assessment of randomised trials (RoB 2) in the terminal. "
+            "Suggestions are candidates: the reviewers decide, following their own handbook."
+        ),
+    )
+    parser.add_argument("--version", action="version", version=f"robtui {__version__}")
+    subparsers = parser.add_subparsers(dest="command", metavar="COMMAND")
+    import robtui.commands as commands_pkg
+
+    for info in sorted(pkgutil.iter_modules(commands_pkg.__path__), key=lambda m: m.name):
+        if info.name.startswith("_"):
+            continue
+        module = importlib.import_module(f"robtui.commands.{info.name}")
+        module.register(subparsers)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "func", None):
+        parser.print_help()
+        return EXIT_USAGE
+    try:
+        return int(args.func(args) or 0)
+    except RobtuiError as error:
+        print(f"robtui: {error}", file=sys.stderr)
+        return EXIT_USAGE
+    except KeyboardInterrupt:
+        return 130
+    except BrokenPipeError:
+        return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,212 @@
+"""The review's records (pydantic): what is stored on disk and passed between front ends.
+
+Judgement codes are lower-case identifiers: ``low``, ``some_concerns``, ``high``; a domain
+whose required questions are not all answered is ``incomplete``. Responses are the method's
+codes: Y, PY, PN, N, NI, and NA for questions asked "if applicable".
+"""
+
+from __future__ import annotations
+
+from datetime import datetime, timezone
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+
+SCHEMA_VERSION = 1
+
+Response = Literal["Y", "PY", "PN", "N", "NI", "NA"]
+RESPONSES: tuple[str, ...] = ("Y", "PY", "PN", "N", "NI", "NA")
+Judgement = Literal["low", "some_concerns", "high"]
+JUDGEMENTS: tuple[str, ...] = ("low", "some_concerns", "high")
+Proposal = Literal["low", "some_concerns", "high", "incomplete"]
+Effect = Literal["assignment", "adhering"]
+Status = Literal["draft", "complete"]
+OVERALL = "overall"
+
+JUDGEMENT_LABELS = {
+    "low": "Low",
+    "some_concerns": "Some concerns",
+    "high": "High",
+    "incomplete": "Incomplete",
+}
+
+_ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$"
+
+
+def utc_now() -> datetime:
+    """Current time in UTC, to the second (stable in files)."""
+    return datetime.now(timezone.utc).replace(microsecond=0)
+
+
+class Record(BaseModel):
+    """Base: unknown fields are refused, so a typo in a hand-edited file is reported."""
+
+    model_config = ConfigDict(extra="forbid", validate_assignment=True)
+
+
+class ResultSpec(Record):
+    """A result being assessed: RoB 2 judges results, not whole trials."""
+
+    id: str = Field(pattern=_ID_PATTERN)
+    outcome: str = Field(min_length=1)
+    time_point: str = ""
+    effect: Effect = "assignment"
+    outcome_type: Literal["objective", "subjective"] | None = None
+    self_reported: bool | None = None
+    # Meta-analysis weight per study id (any positive scale); empty means "count studies".
+    weights: dict[str, float] = Field(default_factory=dict)
+
+    @field_validator("weights")
+    @classmethod
+    def _positive_weights(cls, value: dict[str, float]) -> dict[str, float]:
+        bad = [k for k, w in value.items() if not w >= 0]
+        if bad:
+            raise ValueError(f"weights must be zero or positive (study {', '.join(bad)})")
+        return value
+
+
+class ReportFile(Record):
+    """One source document of a study, kept in the review's reports/ folder."""
+
+    path: str = Field(min_length=1)  # relative to the review's reports/ folder
+    sha256: str = Field(pattern=r"^[0-9a-f]{64}$")
+    kind: Literal["report", "protocol", "registry", "other"] = "report"
+
+
+class Study(Record):
+    id: str = Field(pattern=_ID_PATTERN)
+    label: str = Field(min_length=1)
+    reports: list[ReportFile] = Field(default_factory=list)
+
+
+class Review(Record):
+    """The review as described by review.toml."""
+
+    schema_version: int = SCHEMA_VERSION
+    title: str = Field(min_length=1)
+    question_set: str = "rob2-parallel"
+    question_set_version: str = "1"
+    lead: str | None = None
+    reviewers: list[str] = Field(default_factory=list)
+    results: list[ResultSpec] = Field(default_factory=list)
+    studies: list[Study] = Field(default_factory=list)
+    calibration_studies: list[str] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _unique_ids(self) -> "Review":
+        for name, ids in (
+            ("result", [r.id for r in self.results]),
+            ("study", [s.id for s in self.studies]),
+        ):
+            dupes = sorted({i for i in ids if ids.count(i) > 1})
+            if dupes:
+                raise ValueError(f"{name} id used twice: {', '.join(dupes)}")
+        known = {s.id for s in self.studies}
+        unknown = [s for s in self.calibration_studies if s not in known]
+        if unknown:
+            raise ValueError(f"calibration_studies names unknown studies: {', '.join(unknown)}")
+        return self
+
+    def study(self, study_id: str) -> Study | None:
+        return next((s for s in self.studies if s.id == study_id), None)
+
+    def result(self, result_id: str) -> ResultSpec | None:
+        return next((r for r in self.results if r.id == result_id), None)
+
+
+class Quote(Record):
+    """A passage of a source document that supports an answer."""
+
+    document_sha256: str = Field(pattern=r"^[0-9a-f]{64}$")
+    start: int = Field(ge=0)
+    end: int = Field(ge=0)
+    page: int | None = Field(default=None, ge=1)
+    text: str = Field(min_length=1)
+
+    @model_validator(mode="after")
+    def _ordered(self) -> "Quote":
+        if self.end <= self.start:
+            raise ValueError(f"quote end ({self.end}) must be after its start ({self.start})")
+        return self
+
+
+class Answer(Record):
+    response: Response | None = None
+    justification: str = ""
+    quotes: list[Quote] = Field(default_factory=list)
+
+
+class Override(Record):
+    """A reviewer's judgement that replaces the algorithm's proposal, with the reason."""
+
+    judgement: Judgement
+    reason: str = Field(min_length=1)
+    proposed: Proposal  # the algorithm's proposal when the override was made
+
+    @field_validator("reason")
+    @classmethod
+    def _reason_not_blank(cls, value: str) -> str:
+        if not value.strip():
+            raise ValueError("an override needs a reason")
+        return value
+
+
+class DismissedSuggestion(Record):
+    """A suggested sentence the reviewer marked as not answering a question."""
+
+    question_id: str
+    document_sha256: str = Field(pattern=r"^[0-9a-f]{64}$")
+    start: int = Field(ge=0)
+    end: int = Field(ge=0)
+
+
+class Assessment(Record):
+    """One reviewer's assessment of one result of one study."""
+
+    schema_version: int = SCHEMA_VERSION
+    reviewer: str = Field(pattern=_ID_PATTERN)
+    study_id: str = Field(pattern=_ID_PATTERN)
+    result_id: str = Field(pattern=_ID_PATTERN)
+    question_set: str = "rob2-parallel"
+    question_set_version: str = "1"
+    effect: Effect = "assignment"
+    answers: dict[str, Answer] = Field(default_factory=dict)
+    # keys: domain ids ("1".."5") and "overall"
+    proposed: dict[str, Proposal] = Field(default_factory=dict)
+    overrides: dict[str, Override] = Field(default_factory=dict)
+    final: dict[str, Proposal] = Field(default_factory=dict)
+    status: Status = "draft"
+    rules_version: int | None = None
+    dismissed: list[DismissedSuggestion] = Field(default_factory=list)
+    last_question: str | None = None  # where the reviewer left off
+    created: datetime = Field(default_factory=utc_now)
+    updated: datetime = Field(default_factory=utc_now)
+
+
+class Decision(Record):
+    """How the lead settled one signalling question for a consensus record."""
+
+    question_id: str
+    source: Literal["a", "b", "new", "agreed"]
+    response: Response | None
+    note: str = ""
+
+
+class Consensus(Record):
+    """The agreed assessment of one result of one study, kept apart from both reviewers'."""
+
+    schema_version: int = SCHEMA_VERSION
+    study_id: str = Field(pattern=_ID_PATTERN)
+    result_id: str = Field(pattern=_ID_PATTERN)
+    reviewers: tuple[str, str]
+    lead: str = Field(pattern=_ID_PATTERN)
+    question_set: str = "rob2-parallel"
+    question_set_version: str = "1"
+    effect: Effect = "assignment"
+    answers: dict[str, Answer] = Field(default_factory=dict)
+    decisions: dict[str, Decision] = Field(default_factory=dict)
+    proposed: dict[str, Proposal] = Field(default_factory=dict)
+    overrides: dict[str, Override] = Field(default_factory=dict)
+    final: dict[str, Proposal] = Field(default_factory=dict)
+    status: Status = "draft"
+    updated: datetime = Field(default_factory=utc_now)

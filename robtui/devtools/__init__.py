@@ -1,0 +1,1 @@
+"""Development helpers (rendering test PDFs); they need the ``dev`` extra."""

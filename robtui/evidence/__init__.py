@@ -1,0 +1,1 @@
+"""The evidence ranker: for each signalling question, the report's sentences best first."""

@@ -1,0 +1,1 @@
+"""Exports of a review: traffic-light table, summary plot, supporting table."""

@@ -1,0 +1,1 @@
+"""Readers: report files (PDF, text, Markdown, HTML) into a Document with provenance."""

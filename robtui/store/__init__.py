@@ -1,0 +1,1 @@
+"""A review folder on disk: review.toml, reports, assessments per reviewer, consensus, exports."""
