@@ -128,9 +128,13 @@ def _kappa_and_se(p: list[list[float]], n: int) -> tuple[float | None, float | N
     p_o = sum(p[i][i] for i in range(k))
     p_e = sum(rows[i] * cols[i] for i in range(k))
     if 1.0 - p_e <= 1e-12:
-        return None, None, (
-            "kappa undefined: both reviewers gave one same answer throughout, so chance "
-            "agreement is 1 (percent agreement and PABAK still apply)"
+        return (
+            None,
+            None,
+            (
+                "kappa undefined: both reviewers gave one same answer throughout, so chance "
+                "agreement is 1 (percent agreement and PABAK still apply)"
+            ),
         )
     kappa = (p_o - p_e) / (1.0 - p_e)
     # Fleiss, Cohen & Everitt (1969) large-sample variance of kappa.

@@ -143,9 +143,20 @@ def test_interval_is_clipped():
 
 @pytest.mark.parametrize(
     "kappa, band",
-    [(-0.1, "poor"), (0.0, "slight"), (0.2, "slight"), (0.21, "fair"), (0.4, "fair"),
-     (0.41, "moderate"), (0.6, "moderate"), (0.61, "substantial"), (0.8, "substantial"),
-     (0.81, "almost perfect"), (1.0, "almost perfect"), (None, "undefined")],
+    [
+        (-0.1, "poor"),
+        (0.0, "slight"),
+        (0.2, "slight"),
+        (0.21, "fair"),
+        (0.4, "fair"),
+        (0.41, "moderate"),
+        (0.6, "moderate"),
+        (0.61, "substantial"),
+        (0.8, "substantial"),
+        (0.81, "almost perfect"),
+        (1.0, "almost perfect"),
+        (None, "undefined"),
+    ],
 )
 def test_landis_koch_bands(kappa, band):
     # Landis & Koch (1977), Biometrics 33:159-174: <0 poor, 0-.20 slight, .21-.40 fair,
@@ -155,7 +166,15 @@ def test_landis_koch_bands(kappa, band):
 
 def test_to_dict_has_the_agreed_keys():
     d = agreement([("low", "high"), ("low", "low")], ordered=True).to_dict()
-    for key in ("n", "pairs", "percent_agreement", "kappa", "kappa_ci", "weighted_kappa",
-                "pabak", "band"):
+    for key in (
+        "n",
+        "pairs",
+        "percent_agreement",
+        "kappa",
+        "kappa_ci",
+        "weighted_kappa",
+        "pabak",
+        "band",
+    ):
         assert key in d
     assert d["pairs"] == [["low", "high"], ["low", "low"]]
