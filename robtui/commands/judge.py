@@ -1,0 +1,167 @@
+"""robtui judge: proposed RoB 2 judgements from signalling-question answers.
+
+Single use:  robtui judge --domain 4 4.1=N 4.2=N 4.3=Y 4.4=N   (prints judgement and path)
+Batch:       robtui judge --batch < lines.jsonl                 (one JSON line out per line in)
+
+Only the standard library and the pydantic-free core are imported, so the command starts fast.
+"""
+
+from __future__ import annotations
+
+import argparse
+
+TOOLS = {"rob2": "rob2-parallel"}  # batch "tool" value -> bundled question set id
+
+_LABELS = {"low": "Low", "some_concerns": "Some concerns", "high": "High",
+           "incomplete": "Incomplete"}
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "judge",
+        help="propose a domain or overall judgement from answers",
+        description=(
+            "Propose a RoB 2 judgement from signalling-question answers. The proposal follows "
+            "the published algorithm; reviewers decide. Single use: --domain N ID=CODE ... "
+            "Batch: --batch reads JSON Lines on stdin and writes one JSON line per input line."
+        ),
+    )
+    parser.add_argument("answers", nargs="*", metavar="ID=CODE",
+                        help="answers such as 4.1=N (codes Y, PY, PN, N, NI, NA)")
+    parser.add_argument("--domain", help="domain to judge (1 to 5)")
+    parser.add_argument("--effect", default="assignment", choices=("assignment", "adhering"),
+                        help="effect of interest; matters for domain 2 (default: assignment)")
+    parser.add_argument("--question-set", default="rob2-parallel", metavar="ID",
+                        help="bundled question set (default: rob2-parallel)")
+    parser.add_argument("--batch", action="store_true",
+                        help='read JSON Lines on stdin: {"tool": "rob2", "domain": 1, '
+                        '"effect": "assignment", "answers": {...}} or {"tool": "rob2", '
+                        '"overall": [...]}; write {"judgement": ...} or {"error": ...} per line')
+    parser.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    from robtui.errors import InputError
+
+    if args.batch:
+        if args.domain or args.answers:
+            raise InputError("--batch reads its input from stdin: leave out --domain and answers")
+        import sys
+
+        return run_batch(sys.stdin, sys.stdout)
+    if not args.domain:
+        raise InputError("say what to judge: --domain N ID=CODE ... (or --batch for JSON Lines)")
+    return run_single(args)
+
+
+def _parse_pairs(pairs: list[str]) -> dict[str, str]:
+    from robtui.errors import InputError
+
+    answers: dict[str, str] = {}
+    for pair in pairs:
+        qid, sep, code = pair.partition("=")
+        if not sep or not qid or not code:
+            raise InputError(f"answers are written ID=CODE, such as 4.1=N; got {pair!r}")
+        if qid in answers:
+            raise InputError(f"question {qid} is answered twice")
+        answers[qid] = code.strip().upper()
+    return answers
+
+
+def run_single(args: argparse.Namespace) -> int:
+    from robtui.core.algorithm import explain_domain, validate_answers
+    from robtui.core.questions import builtin_question_set
+    from robtui.errors import InputError
+
+    qset = builtin_question_set(args.question_set)
+    domain = qset.domain(str(args.domain), args.effect)
+    answers = _parse_pairs(args.answers)
+    problems = validate_answers(domain, answers)
+    if problems:
+        raise InputError("; ".join(problems))
+    result = explain_domain(domain, answers)
+    variant = f", effect of {domain.effect}" if domain.effect else ""
+    print(f"Domain {domain.id} ({domain.name}{variant}): {_LABELS[result.judgement]}")
+    print("path: " + " ".join(result.path()))
+    if result.missing:
+        still = ", ".join(f"{q.id} ({q.short})" for q in result.missing)
+        print(f"still to answer: {still}")
+    for part in result.parts:
+        if part.rule is not None:
+            row = part.table.rows.index(part.rule) + 1
+            print(f"rule: {part.table.name}, row {row}: {_LABELS[part.rule.judgement]}, "
+                  f"{part.rule.because}")
+    return 0
+
+
+def judge_line(line: str) -> dict[str, str]:
+    """The output object for one batch input line."""
+    import json
+
+    from robtui.errors import RobtuiError
+
+    try:
+        request = json.loads(line)
+    except ValueError as error:
+        return {"error": f"not valid JSON ({error})"}
+    if not isinstance(request, dict):
+        return {"error": "each line must be a JSON object"}
+    try:
+        return {"judgement": _judge_request(request)}
+    except RobtuiError as error:
+        return {"error": str(error)}
+
+
+def _judge_request(request: dict) -> str:
+    from robtui.core.algorithm import judge_domain, judge_overall, validate_answers
+    from robtui.core.questions import builtin_question_set
+    from robtui.errors import InputError
+
+    tool = request.get("tool")
+    if tool not in TOOLS:
+        raise InputError(f"unknown tool {tool!r} (use {', '.join(TOOLS)})")
+    qset = builtin_question_set(TOOLS[tool])
+    if "overall" in request:
+        extra = sorted(set(request) - {"tool", "overall"})
+        if extra:
+            raise InputError(f"unexpected key {extra[0]!r} beside 'overall'")
+        judgements = request["overall"]
+        n = len(qset.domain_ids())
+        if not isinstance(judgements, list) or len(judgements) != n:
+            raise InputError(f"'overall' must be a list of {n} domain judgements")
+        if not all(isinstance(j, str) for j in judgements):
+            raise InputError("'overall' must hold judgement codes as strings")
+        return judge_overall(judgements)
+    extra = sorted(set(request) - {"tool", "domain", "effect", "answers"})
+    if extra:
+        raise InputError(f"unexpected key {extra[0]!r} (use tool, domain, effect, answers)")
+    domain_id = request.get("domain")
+    if isinstance(domain_id, bool) or not isinstance(domain_id, (int, str)):
+        raise InputError("give 'domain' (1 to 5) or 'overall'")
+    effect = request.get("effect", "assignment")
+    if effect not in ("assignment", "adhering"):
+        raise InputError(f"unknown effect {effect!r} (use assignment or adhering)")
+    domain = qset.domain(str(domain_id), effect)
+    answers = request.get("answers", {})
+    if not isinstance(answers, dict) or not all(
+        isinstance(k, str) and isinstance(v, str) for k, v in answers.items()
+    ):
+        raise InputError("'answers' must be an object of question id to answer code")
+    problems = validate_answers(domain, answers)
+    if problems:
+        raise InputError("; ".join(problems))
+    return judge_domain(domain, answers)
+
+
+def run_batch(stdin, stdout) -> int:
+    """Answer each input line in order; a bad line gets an error object and the rest go on."""
+    import json
+
+    for line in stdin:
+        if not line.strip():
+            out = {"error": "empty line: each line must be a JSON object"}
+        else:
+            out = judge_line(line)
+        stdout.write(json.dumps(out) + "\n")
+        stdout.flush()
+    return 0
