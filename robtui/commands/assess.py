@@ -1,0 +1,212 @@
+"""robtui assess DIR --reviewer R --study S --result T [Q=CODE ...]: answer from the shell.
+
+Applies the given answers, justifications, quotes and overrides to the reviewer's assessment,
+saves it once (atomically) and prints the proposed and final judgements and what is missing.
+Any bad input stops the command before anything is written.
+"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+
+class _IntermixedParser(argparse.ArgumentParser):
+    """Lets answers (Q=CODE) come before, between or after the options."""
+
+    _inside = False
+
+    def parse_known_args(self, args=None, namespace=None):
+        if self._inside:  # parse_known_intermixed_args calls back into this method
+            return super().parse_known_args(args, namespace)
+        self._inside = True
+        try:
+            return self.parse_known_intermixed_args(args, namespace)
+        finally:
+            self._inside = False
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "assess",
+        help="answer signalling questions, override, mark complete (one reviewer's assessment)",
+        description=(
+            "Answer signalling questions of one result of one study as one reviewer, e.g. "
+            "`robtui assess DIR --reviewer ana --study Lind2021 --result pain12 1.1=Y 1.2=PY "
+            "--why 1.1='computer list'`. Without answers it shows the assessment as it stands."
+        ),
+    )
+    parser.add_argument("folder", type=Path, metavar="DIR")
+    parser.add_argument("--reviewer", required=True, metavar="NAME")
+    parser.add_argument("--study", required=True, metavar="STUDY")
+    parser.add_argument("--result", required=True, metavar="RESULT")
+    parser.add_argument(
+        "answers", nargs="*", metavar="Q=CODE", help="e.g. 1.1=Y 2.3=NA; Q= clears an answer"
+    )
+    parser.add_argument(
+        "--why", action="append", default=[], metavar="Q=TEXT", help="justification of an answer"
+    )
+    parser.add_argument(
+        "--quote",
+        action="append",
+        default=[],
+        metavar="Q=TEXT",
+        help="attach a passage of the study's report (copied exactly) to an answer",
+    )
+    parser.add_argument(
+        "--remove-quote",
+        action="append",
+        default=[],
+        metavar="Q=N",
+        help="remove quote N (1-based)",
+    )
+    parser.add_argument("--effect", choices=("assignment", "adhering"), help="switch domain 2")
+    parser.add_argument(
+        "--override",
+        action="append",
+        default=[],
+        metavar="KEY=JUDGEMENT",
+        help="override a domain (1..5) or overall: low, some_concerns or high; needs --reason",
+    )
+    parser.add_argument(
+        "--reason", action="append", default=[], help="reason for each --override, in order"
+    )
+    parser.add_argument("--clear-override", action="append", default=[], metavar="KEY")
+    state = parser.add_mutually_exclusive_group()
+    state.add_argument("--complete", action="store_true", help="mark complete (checks first)")
+    state.add_argument("--reopen", action="store_true", help="back to draft, to change it")
+    parser.add_argument(
+        "--add-reviewer",
+        action="store_true",
+        help="list the reviewer in review.toml if not yet there",
+    )
+    parser.add_argument("--json", action="store_true", help="print the assessment as JSON")
+    parser.set_defaults(func=run)
+    parser.__class__ = _IntermixedParser
+
+
+def split_pairs(items: list[str], option: str, example: str) -> list[tuple[str, str]]:
+    """'KEY=VALUE' items as pairs; InputError for an item without '='."""
+    from robtui.errors import InputError
+
+    pairs = []
+    for item in items:
+        key, sep, value = item.partition("=")
+        if not sep or not key.strip():
+            raise InputError(f"{option} {item!r}: write it as {example}")
+        pairs.append((key.strip(), value))
+    return pairs
+
+
+def apply_changes(a, qset, folder, args):
+    """The assessment after every change asked for on the command line (nothing saved)."""
+    from robtui.core import assessing
+    from robtui.errors import InputError
+    from robtui.store.quotes import find_quote
+
+    if args.reopen:
+        a = assessing.reopen(a)
+    if args.effect:
+        a = assessing.set_effect(a, qset, args.effect)
+    order = {q.id: i for i, q in enumerate(qset.questions(a.effect))}
+    answers = split_pairs(args.answers, "answer", "Q=CODE, e.g. 1.1=Y")
+    # Question order, so a condition's earlier answers are in place before it is checked.
+    for qid, code in sorted(answers, key=lambda p: order.get(p[0], -1)):
+        code = code.strip().upper() or None
+        a = assessing.set_response(a, qset, qid, code)
+    for qid, text in split_pairs(args.why, "--why", "Q=TEXT, e.g. --why 1.1='computer list'"):
+        a = assessing.set_justification(a, qset, qid, text.strip())
+    for qid, text in split_pairs(args.quote, "--quote", "Q=TEXT (the passage, exactly)"):
+        a = assessing.add_quote(a, qset, qid, find_quote(folder, a.study_id, text))
+    for qid, number in split_pairs(args.remove_quote, "--remove-quote", "Q=N, e.g. 1.1=1"):
+        if not number.strip().isdigit():
+            raise InputError(f"--remove-quote {qid}={number}: N is the quote's number, from 1")
+        a = assessing.remove_quote(a, qset, qid, int(number) - 1)
+    for key in args.clear_override:
+        a = assessing.clear_override(a, qset, key)
+    overrides = split_pairs(args.override, "--override", "KEY=JUDGEMENT, e.g. overall=high")
+    if len(args.reason) != len(overrides):
+        raise InputError(
+            f"{len(overrides)} --override but {len(args.reason)} --reason: "
+            "every override needs its own reason"
+        )
+    for (key, judgement), reason in zip(overrides, args.reason):
+        a = assessing.set_override(a, qset, key, judgement.strip().lower(), reason)
+    if args.complete:
+        a = assessing.mark_complete(a, qset)
+    return a
+
+
+def describe(a, qset) -> list[str]:
+    """Lines showing the judgements per domain and overall, and what is still missing."""
+    from robtui.core import assessing
+    from robtui.core.model import JUDGEMENT_LABELS, OVERALL
+
+    lines = [
+        f"{a.study_id} / {a.result_id} by {a.reviewer}: {a.status}, effect of {a.effect}",
+    ]
+    keys = [*qset.domain_ids(), OVERALL]
+    for key in keys:
+        if key == OVERALL:
+            name = "Overall"
+        else:
+            name = f"D{key} {assessing.domain_of(a, qset, key).name}"
+        proposed = JUDGEMENT_LABELS[a.proposed[key]]
+        final = JUDGEMENT_LABELS[a.final[key]]
+        line = f"  {name:<58} proposed {proposed:<14} final {final}"
+        override = a.overrides.get(key)
+        if override is not None:
+            line += f"  (override: {override.reason})"
+        lines.append(line)
+    unused = assessing.unused_answers(a, qset)
+    if unused:
+        lines.append(f"  kept but not used on the current path: {', '.join(unused)}")
+    problems = assessing.completion_problems(a, qset)
+    if problems and a.status != "complete":
+        lines.append("  still missing:")
+        lines.extend(f"    - {p}" for p in problems)
+    elif not problems and a.status != "complete":
+        lines.append("  nothing missing: mark it complete with --complete")
+    return lines
+
+
+def run(args: argparse.Namespace) -> int:
+    from robtui.core import assessing
+    from robtui.core.questions import builtin_question_set
+    from robtui.errors import InputError
+    from robtui.store.records import record_to_json
+    from robtui.store.review_folder import ReviewFolder, check_id
+
+    folder = ReviewFolder.open(args.folder)
+    check_id(args.reviewer, "reviewer")
+    folder.study_or_error(args.study)
+    folder.result_or_error(args.result)
+    known = [*folder.review.reviewers, *([folder.review.lead] if folder.review.lead else [])]
+    add_reviewer = args.reviewer not in known
+    # A review that names its reviewers refuses a misspelt one; an open review takes anyone.
+    if add_reviewer and known and not args.add_reviewer:
+        raise InputError(
+            f"reviewer {args.reviewer!r} is not on this review (reviewers: "
+            f"{', '.join(folder.review.reviewers) or 'none'}): check the spelling, or add "
+            "--add-reviewer to list them"
+        )
+    qset = builtin_question_set(folder.review.question_set)
+    stored = folder.load_assessment(args.reviewer, args.study, args.result)
+    a = stored or assessing.new_assessment(
+        folder.review, args.study, args.result, args.reviewer, qset
+    )
+    a = assessing.recompute(a, qset)
+    changed = apply_changes(a, qset, folder, args)
+    if changed.model_dump(exclude={"updated"}) != a.model_dump(exclude={"updated"}):
+        if add_reviewer:
+            folder.add_reviewer(args.reviewer)
+        path = folder.save_assessment(changed)
+        saved = f"saved {path}"
+    else:
+        saved = "nothing changed" if stored else "nothing saved yet (no answers given)"
+    if args.json:
+        print(record_to_json(changed), end="")
+    else:
+        print("\n".join(describe(changed, qset)))
+        print(saved)
+    return 0

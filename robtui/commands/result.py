@@ -1,0 +1,104 @@
+"""robtui result add|list DIR: the results being assessed (RoB 2 judges results, not trials)."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "result", help="add and list results to assess", description="Results being assessed."
+    )
+    actions = parser.add_subparsers(dest="result_action", metavar="ACTION", required=True)
+
+    add = actions.add_parser("add", help="add a result (outcome, time point, effect of interest)")
+    add.add_argument("folder", type=Path, metavar="DIR")
+    add.add_argument("--id", required=True, dest="result_id", help="short result id, e.g. pain12")
+    add.add_argument("--outcome", required=True, help="the outcome, e.g. 'Pain score (0-10)'")
+    add.add_argument("--time-point", default="", help="e.g. '12 weeks'")
+    add.add_argument(
+        "--effect",
+        choices=("assignment", "adhering"),
+        default="assignment",
+        help="effect of interest: of assignment to (default) or of adhering to the intervention",
+    )
+    add.add_argument("--outcome-type", choices=("objective", "subjective"))
+    add.add_argument(
+        "--self-reported", choices=("yes", "no"), help="is the outcome reported by participants"
+    )
+    add.add_argument(
+        "--weight",
+        action="append",
+        default=[],
+        metavar="STUDY=W",
+        help="meta-analysis weight of a study for this result (repeat)",
+    )
+    add.set_defaults(func=run_add)
+
+    listing = actions.add_parser("list", help="list the results")
+    listing.add_argument("folder", type=Path, metavar="DIR")
+    listing.set_defaults(func=run_list)
+
+
+def _weights(items: list[str]) -> dict[str, float]:
+    from robtui.errors import InputError
+
+    weights: dict[str, float] = {}
+    for item in items:
+        study, sep, value = item.partition("=")
+        try:
+            weights[study] = float(value)
+        except ValueError:
+            sep = ""
+        if not sep or not study:
+            raise InputError(f"--weight {item!r}: write STUDY=NUMBER, e.g. --weight Lind2021=12.5")
+    return weights
+
+
+def run_add(args: argparse.Namespace) -> int:
+    from pydantic import ValidationError
+
+    from robtui.core.model import ResultSpec
+    from robtui.errors import InputError
+    from robtui.store.records import describe_validation
+    from robtui.store.review_folder import ReviewFolder
+
+    folder = ReviewFolder.open(args.folder)
+    fields = {
+        "id": args.result_id,
+        "outcome": args.outcome,
+        "time_point": args.time_point,
+        "effect": args.effect,
+        "outcome_type": args.outcome_type,
+        "weights": _weights(args.weight),
+    }
+    if args.self_reported is not None:
+        fields["self_reported"] = args.self_reported == "yes"
+    try:
+        spec = ResultSpec.model_validate(fields)
+    except ValidationError as error:
+        raise InputError(f"result {args.result_id}: {describe_validation(error)}") from None
+    folder.add_result(spec)
+    print(f"added result {spec.id}: {_describe(spec)}")
+    return 0
+
+
+def _describe(spec) -> str:
+    parts = [spec.outcome]
+    if spec.time_point:
+        parts.append(f"at {spec.time_point}")
+    parts.append(f"(effect of {spec.effect})")
+    return " ".join(parts)
+
+
+def run_list(args: argparse.Namespace) -> int:
+    from robtui.store.review_folder import ReviewFolder
+
+    folder = ReviewFolder.open(args.folder)
+    for spec in folder.review.results:
+        extra = f", {spec.outcome_type}" if spec.outcome_type else ""
+        print(f"{spec.id}  {_describe(spec)}{extra}")
+    if not folder.review.results:
+        print("no results yet: add one with `robtui result add`")
+    return 0

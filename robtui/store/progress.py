@@ -1,0 +1,74 @@
+"""Progress of a review: per study × result × reviewer, how far the assessment has got."""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+from robtui.core import assessing
+from robtui.core.model import OVERALL, Assessment
+from robtui.core.questions import QuestionSet, builtin_question_set
+from robtui.store.review_folder import ReviewFolder
+
+
+@dataclass(frozen=True)
+class ProgressRow:
+    study: str
+    result: str
+    reviewer: str
+    status: str  # "not started" | "draft" | "complete"
+    answered: int
+    asked: int
+    overall: str | None  # final overall judgement, None when not started
+
+
+def assessment_progress(a: Assessment, qset: QuestionSet) -> tuple[int, int]:
+    """(answered, asked) signalling questions on the current path of every domain."""
+    answered = asked = 0
+    for domain_id in qset.domain_ids():
+        answered += len(assessing.effective_answers(a, qset, domain_id))
+        asked += len(assessing.asked_questions(a, qset, domain_id))
+    return answered, asked
+
+
+def review_progress(
+    folder: ReviewFolder, reviewer: str | None = None, qset: QuestionSet | None = None
+) -> tuple[list[ProgressRow], list[str]]:
+    """One row per study × result × reviewer (the review's reviewers and those on disk)."""
+    qset = qset or builtin_question_set(folder.review.question_set)
+    found, problems = folder.assessments(reviewer)
+    by_key = {(a.reviewer, a.study_id, a.result_id): a for a in found}
+    if reviewer is not None:
+        reviewers = [reviewer]
+    else:
+        reviewers = list(folder.review.reviewers)
+        reviewers += [r for r in folder.reviewers_on_disk() if r not in reviewers]
+    rows = []
+    for study in folder.review.studies:
+        for report in study.reports:
+            problem = folder.check_report(report)
+            if problem:
+                problems.append(problem)
+        for result in folder.review.results:
+            for name in reviewers:
+                a = by_key.get((name, study.id, result.id))
+                if a is None:
+                    rows.append(ProgressRow(study.id, result.id, name, "not started", 0, 0, None))
+                    continue
+                a = assessing.recompute(a, qset)
+                answered, asked = assessment_progress(a, qset)
+                rows.append(
+                    ProgressRow(
+                        study.id, result.id, name, a.status, answered, asked, a.final[OVERALL]
+                    )
+                )
+    return rows, problems
+
+
+def progress_json(folder: ReviewFolder, rows: list[ProgressRow], problems: list[str]) -> dict:
+    """The `robtui status --json` shape."""
+    return {
+        "review": folder.review.title,
+        "folder": str(folder.root),
+        "rows": [asdict(r) for r in rows],
+        "problems": problems,
+    }
