@@ -15,25 +15,16 @@ J Clin Epidemiol 2022;141:99-105).
 
 from __future__ import annotations
 
-from collections.abc import Callable, Iterable, Mapping, Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from datetime import datetime
 from typing import Any
 
 from robtui.core.agreement import AgreementStats, agreement
+from robtui.core.comparison import AssessmentPair, pair_assessments, path_answers
 from robtui.core.model import JUDGEMENTS, OVERALL, RESPONSES, Answer, Assessment, Review
 
 NOT_ASKED = "not asked"  # category for a question one reviewer's path did not ask
-
-
-@dataclass(frozen=True)
-class AssessedPair:
-    """Both reviewers' completed assessments of one result of one study."""
-
-    study_id: str
-    result_id: str
-    a: Assessment
-    b: Assessment
 
 
 @dataclass(frozen=True)
@@ -42,8 +33,7 @@ class MissingAssessment:
 
     study_id: str
     result_id: str | None  # None: no result of the study was assessed by anyone
-    reviewer: str | None  # None: neither reviewer
-    problem: str
+    problem: str  # names the reviewer(s) concerned
 
 
 @dataclass(frozen=True)
@@ -55,7 +45,7 @@ class CalibrationRound:
     rules_version: int
     question_set: str
     question_set_version: str
-    pairs: tuple[AssessedPair, ...]
+    pairs: tuple[AssessmentPair, ...]
     missing: tuple[MissingAssessment, ...]
 
 
@@ -114,50 +104,39 @@ def pair_complete(
     reviewers: tuple[str, str],
     review: Review,
     study_ids: Sequence[str] | None = None,
-) -> tuple[list[AssessedPair], list[MissingAssessment]]:
-    """Pair the two reviewers' complete assessments; list every one that is absent or draft.
+) -> tuple[list[AssessmentPair], list[MissingAssessment]]:
+    """Pair the two reviewers' complete assessments; list every pair that cannot be compared.
 
-    A (study, result) is expected when either reviewer has an assessment of it. A study of
+    A (study, result) is expected when either reviewer has an assessment of it; a study of
     ``study_ids`` that nobody has assessed at all is listed too.
     """
     ra, rb = reviewers
-    by_key: dict[tuple[str, str, str], Assessment] = {}
-    for a in assessments:
-        if a.reviewer in reviewers:
-            by_key[(a.reviewer, a.study_id, a.result_id)] = a
-    wanted = (
-        list(dict.fromkeys(study_ids)) if study_ids is not None else [s.id for s in review.studies]
+    wanted = list(dict.fromkeys(study_ids)) if study_ids is not None else None
+    chosen = [
+        x
+        for x in assessments
+        if x.reviewer in reviewers and (wanted is None or x.study_id in wanted)
+    ]
+    order = {s.id: i for i, s in enumerate(review.studies)}
+    results = {r.id: i for i, r in enumerate(review.results)}
+    keys = sorted(
+        {(x.study_id, x.result_id) for x in chosen},
+        key=lambda k: (order.get(k[0], len(order)), k[0], results.get(k[1], len(results)), k[1]),
     )
-    result_order = {r.id: i for i, r in enumerate(review.results)}
-    pairs: list[AssessedPair] = []
-    missing: list[MissingAssessment] = []
-    for study_id in wanted:
-        results = sorted(
-            {k[2] for k in by_key if k[1] == study_id},
-            key=lambda r: (result_order.get(r, len(result_order)), r),
-        )
-        if not results:
-            if study_ids is not None:
-                missing.append(
-                    MissingAssessment(study_id, None, None, "not assessed by either reviewer")
-                )
-            continue
-        for result_id in results:
-            got = {r: by_key.get((r, study_id, result_id)) for r in reviewers}
-            problems = False
-            for reviewer, record in got.items():
-                if record is None:
-                    missing.append(MissingAssessment(study_id, result_id, reviewer, "not started"))
-                    problems = True
-                elif record.status != "complete":
-                    missing.append(
-                        MissingAssessment(
-                            study_id, result_id, reviewer, "draft: not marked complete"
-                        )
-                    )
-                    problems = True
-            if not problems:
-                pairs.append(AssessedPair(study_id, result_id, got[ra], got[rb]))
+    all_pairs = pair_assessments(
+        [x for x in chosen if x.reviewer == ra],
+        [x for x in chosen if x.reviewer == rb],
+        reviewer_a=ra,
+        reviewer_b=rb,
+        expected=keys,
+    )
+    pairs = [p for p in all_pairs if p.comparable]
+    missing = [
+        MissingAssessment(p.study_id, p.result_id, p.problem) for p in all_pairs if p.problem
+    ]
+    for study_id in wanted or ():
+        if not any(k[0] == study_id for k in keys):
+            missing.append(MissingAssessment(study_id, None, "not assessed by either reviewer"))
     return pairs, missing
 
 
@@ -193,27 +172,8 @@ def build_round(
 
 # --- agreement ---------------------------------------------------------------------------------
 
-EffectiveAnswers = Callable[[Assessment, Any, str], Mapping[str, str]]
 
-
-def _default_effective(assessment: Assessment, qset: Any, domain_id: str) -> Mapping[str, str]:
-    from robtui.core.assessing import effective_answers
-
-    return effective_answers(assessment, qset, domain_id)
-
-
-def effective_responses(
-    assessment: Assessment, qset: Any, effective: EffectiveAnswers | None = None
-) -> dict[str, str]:
-    """Responses to the questions asked on the assessment's path, all domains."""
-    effective = effective or _default_effective
-    out: dict[str, str] = {}
-    for domain_id in qset.domain_ids():
-        out.update({q: r for q, r in effective(assessment, qset, domain_id).items() if r})
-    return out
-
-
-def domain_agreement(pairs: Sequence[AssessedPair], domain_ids: Sequence[str]):
+def domain_agreement(pairs: Sequence[AssessmentPair], domain_ids: Sequence[str]):
     """Agreement on the final judgement per domain and overall (ordered low < some < high)."""
     stats: dict[str, AgreementStats] = {}
     skipped: list[str] = []
@@ -232,53 +192,73 @@ def domain_agreement(pairs: Sequence[AssessedPair], domain_ids: Sequence[str]):
     return stats, skipped
 
 
-def round_agreement(
-    pairs: Sequence[AssessedPair], qset: Any, effective: EffectiveAnswers | None = None
-) -> RoundAgreement:
+def question_key(question_id: str, domain_id: str, effect: str) -> str:
+    """Key of a question in agreement tables: domain 2 questions of the effect of adhering are
+    ``"2.x@adhering"`` (they differ from the effect of assignment ones), as in
+    robtui.core.comparison.review_agreement."""
+    return f"{question_id}@{effect}" if effect != "assignment" and domain_id == "2" else question_id
+
+
+def round_agreement(pairs: Sequence[AssessmentPair], qset: Any) -> RoundAgreement:
     """Agreement per domain and per signalling question, questions ranked by disagreement.
 
-    A question counts for a pair when at least one reviewer's path asked it; the side whose
-    path did not ask it is recorded as "not asked" (a disagreement, usually from an earlier one).
+    Kappa for a question counts the pairs where both reviewers' paths asked it (as in
+    robtui.core.comparison.review_agreement); a question asked of one reviewer only is still
+    shown among the disagreements, with the other side "not asked".
     """
     domains, skipped = domain_agreement(pairs, qset.domain_ids())
-    responses = [
-        (p, effective_responses(p.a, qset, effective), effective_responses(p.b, qset, effective))
-        for p in pairs
-    ]
+    values: dict[str, list[tuple[str, str]]] = {}
+    cases: dict[str, list[DisagreementCase]] = {}
     info: dict[str, Any] = {}
-    for effect in ("assignment", "adhering"):
+    for p in pairs:
+        effect = p.a.effect
+        ra = path_answers(qset, effect, p.a.answers)
+        rb = path_answers(qset, effect, p.b.answers)
         for q in qset.questions(effect):
-            info.setdefault(q.id, q)
-    questions: dict[str, AgreementStats] = {}
-    ranked: list[QuestionDisagreement] = []
-    for qid, question in info.items():
-        values, cases = [], []
-        for p, ra, rb in responses:
-            xa, xb = ra.get(qid, NOT_ASKED), rb.get(qid, NOT_ASKED)
-            if xa == NOT_ASKED and xb == NOT_ASKED:
+            xa, xb = ra.get(q.id), rb.get(q.id)
+            if xa is None and xb is None:
                 continue
-            values.append((xa, xb))
+            key = question_key(q.id, q.domain, effect)
+            info.setdefault(key, q)
+            if xa is not None and xb is not None:
+                values.setdefault(key, []).append((xa, xb))
             if xa != xb:
-                cases.append(
+                cases.setdefault(key, []).append(
                     DisagreementCase(
-                        p.study_id, p.result_id, xa, xb, p.a.answers.get(qid), p.b.answers.get(qid)
+                        p.study_id,
+                        p.result_id,
+                        xa or NOT_ASKED,
+                        xb or NOT_ASKED,
+                        p.a.answers.get(q.id),
+                        p.b.answers.get(q.id),
                     )
                 )
-        if not values:
-            continue
-        options = list(getattr(question, "options", None) or RESPONSES)
-        cats = [*options, *sorted({v for pair in values for v in pair} - set(options))]
-        stats = agreement(values, cats)
-        questions[qid] = stats
-        if cases:
-            ranked.append(
-                QuestionDisagreement(qid, str(question.domain), question.text, stats, tuple(cases))
-            )
-    order = {qid: i for i, qid in enumerate(info)}
+    questions: dict[str, AgreementStats] = {}
+    for key, q in info.items():
+        pairs_q = values.get(key, [])
+        seen = {v for pair in pairs_q for v in pair}
+        cats = list(dict.fromkeys([*q.options, *[c for c in RESPONSES if c in seen]]))
+        questions[key] = agreement(pairs_q, cats)
+    order = {key: i for i, key in enumerate(_question_order(qset))}
+    ranked = [
+        QuestionDisagreement(key, str(info[key].domain), info[key].text, questions[key], tuple(c))
+        for key, c in cases.items()
+    ]
     ranked.sort(
-        key=lambda d: (-len(d.cases), d.stats.percent_agreement or 0.0, order[d.question_id])
+        key=lambda d: (
+            -len(d.cases),
+            d.stats.percent_agreement if d.stats.percent_agreement is not None else 0.0,
+            order.get(d.question_id, len(order)),
+        )
     )
+    questions = dict(sorted(questions.items(), key=lambda kv: order.get(kv[0], len(order))))
     return RoundAgreement(domains, questions, tuple(ranked), tuple(skipped))
+
+
+def _question_order(qset: Any) -> list[str]:
+    keys = [question_key(q.id, q.domain, "assignment") for q in qset.questions("assignment")]
+    keys += [question_key(q.id, q.domain, "adhering") for q in qset.questions("adhering")]
+    return list(dict.fromkeys(keys))
 
 
 def compare_agreement(before: RoundAgreement, after: RoundAgreement) -> list[AgreementChange]:
@@ -301,7 +281,7 @@ def _created(a: Assessment) -> datetime:
     return a.created
 
 
-def assessment_order(pairs: Sequence[AssessedPair]) -> list[str]:
+def assessment_order(pairs: Sequence[AssessmentPair]) -> list[str]:
     """Study ids in the order they were taken up: the earliest start (Assessment.created) of any
     of the study's assessments, ties by study id."""
     first: dict[str, datetime] = {}
@@ -313,7 +293,7 @@ def assessment_order(pairs: Sequence[AssessedPair]) -> list[str]:
 
 
 def agreement_by_batch(
-    pairs: Sequence[AssessedPair], domain_ids: Sequence[str], batch_size: int
+    pairs: Sequence[AssessmentPair], domain_ids: Sequence[str], batch_size: int
 ) -> list[BatchAgreement]:
     """Kappa per domain and overall for consecutive batches of ``batch_size`` studies."""
     if batch_size < 1:

@@ -10,12 +10,14 @@ from __future__ import annotations
 
 import json
 import re
+from collections.abc import Sequence
 from pathlib import Path
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
-from robtui.core.calibration import AssessedPair, CalibrationRound, MissingAssessment
-from robtui.core.model import SCHEMA_VERSION, Assessment
+from robtui.core.calibration import CalibrationRound, MissingAssessment
+from robtui.core.comparison import AssessmentPair
+from robtui.core.model import SCHEMA_VERSION, Assessment, Review
 from robtui.errors import DataFileError, InputError
 from robtui.store.atomic import write_text_atomic
 from robtui.store.records import check_schema, describe_validation, record_to_json
@@ -36,7 +38,6 @@ class _Missing(BaseModel):
     model_config = ConfigDict(extra="forbid")
     study_id: str
     result_id: str | None = None
-    reviewer: str | None = None
     problem: str
 
 
@@ -75,9 +76,7 @@ def _to_record(r: CalibrationRound) -> RoundRecord:
         question_set_version=r.question_set_version,
         pairs=[_Pair(study_id=p.study_id, result_id=p.result_id, a=p.a, b=p.b) for p in r.pairs],
         missing=[
-            _Missing(
-                study_id=m.study_id, result_id=m.result_id, reviewer=m.reviewer, problem=m.problem
-            )
+            _Missing(study_id=m.study_id, result_id=m.result_id, problem=m.problem)
             for m in r.missing
         ],
     )
@@ -92,10 +91,11 @@ def _from_record(rec: RoundRecord) -> CalibrationRound:
         rules_version=rec.rules_version,
         question_set=rec.question_set,
         question_set_version=rec.question_set_version,
-        pairs=tuple(AssessedPair(p.study_id, p.result_id, p.a, p.b) for p in rec.pairs),
-        missing=tuple(
-            MissingAssessment(m.study_id, m.result_id, m.reviewer, m.problem) for m in rec.missing
+        pairs=tuple(
+            AssessmentPair(p.study_id, p.result_id, rec.reviewers[0], rec.reviewers[1], p.a, p.b)
+            for p in rec.pairs
         ),
+        missing=tuple(MissingAssessment(m.study_id, m.result_id, m.problem) for m in rec.missing),
     )
 
 
@@ -163,3 +163,28 @@ def save_round(root: Path, r: CalibrationRound) -> Path:
 
 def next_round_number(root: Path) -> int:
     return max(round_numbers(root), default=0) + 1
+
+
+def set_calibration_set(folder, study_ids: Sequence[str]) -> list[str]:
+    """Record the calibration set in review.toml (InputError naming unknown studies)."""
+    chosen = [s.strip() for s in study_ids if s.strip()]
+    if not chosen:
+        raise InputError("name at least one study for the calibration set, e.g. --studies S1,S2")
+    unknown = [s for s in chosen if folder.review.study(s) is None]
+    if unknown:
+        known = ", ".join(s.id for s in folder.review.studies) or "none yet"
+        raise InputError(
+            f"not studies of this review: {', '.join(unknown)} (studies: {known}); "
+            "nothing was changed"
+        )
+    chosen = list(dict.fromkeys(chosen))
+    data = folder.review.model_dump()
+    data["calibration_studies"] = chosen
+    previous = folder.review
+    folder.review = Review.model_validate(data)
+    try:
+        folder.save_review()
+    except BaseException:
+        folder.review = previous
+        raise
+    return chosen
