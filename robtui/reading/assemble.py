@@ -1,0 +1,170 @@
+"""Turn blocks of a document's text (paragraphs, headings, captions, tables) into sentences.
+
+Every reader finds blocks its own way (lines of a text file, lines on a PDF page) and then
+hands them here, so sentence splitting and section tracking are the same for all inputs.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+from robtui.reading.document import BlockKind, Sentence
+from robtui.reading.sections import SectionTracker, bare_run_in, run_in_heading
+from robtui.reading.sentences import split_sentences
+
+Box = tuple[float, float, float, float]
+
+_CAPTION = re.compile(
+    r"^(?:(?:supplementary|extended data|online)\s+)?(?:table|fig\.?|figure|chart)\s*[A-Z]?\d+[A-Za-z]?\b",
+    re.IGNORECASE,
+)
+_HEADING_END_OK = re.compile(r"[\w)\]?:’'\"]$")
+
+
+@dataclass
+class Block:
+    """A run of ``text[start:end]`` of one kind; PDF blocks carry word boxes per character run."""
+
+    start: int
+    end: int
+    kind: BlockKind = "body"
+    page: int | None = None
+    # (char_start, char_end, page, box) of each word, offsets into the document text.
+    words: list[tuple[int, int, int, Box]] = field(default_factory=list)
+
+
+def looks_like_heading(line: str) -> bool:
+    """A short line with no closing full stop that reads as a title, not as a sentence."""
+    stripped = line.strip()
+    if not stripped or len(stripped) > 120:
+        return False
+    words = stripped.split()
+    if len(words) > 14:
+        return False
+    if stripped.endswith(".") and not re.match(r"^\d+(\.\d+)*\.?\s", stripped):
+        # "Study sample." is a heading only when it stands alone on a very short line.
+        return len(words) <= 5 and stripped[0].isupper() and not re.search(r"\d", stripped)
+    if not _HEADING_END_OK.search(stripped):
+        return False
+    first = stripped.lstrip("0123456789.) ")[:1]
+    return first.isupper() or first.isdigit()
+
+
+def is_caption(text: str) -> bool:
+    """True when a block opens like a table or figure caption ("Table 2", "Fig. 1")."""
+    return bool(_CAPTION.match(text.lstrip()))
+
+
+def build_sentences(text: str, blocks: list[Block]) -> list[Sentence]:
+    """Sentences of ``blocks`` (in reading order) with their section, kind, page and box."""
+    tracker = SectionTracker()
+    sentences: list[Sentence] = []
+    for block in blocks:
+        if block.end <= block.start:
+            continue
+        body = text[block.start : block.end]
+        if block.kind == "heading":
+            section = tracker.heading(body)
+            _append(sentences, text, block, [(block.start, block.end)], section)
+            continue
+        if block.kind == "caption":
+            spans = split_sentences(text, block.start, block.end)
+            _append(sentences, text, block, spans, tracker.current)
+            continue
+        if block.kind == "table":
+            _append(sentences, text, block, _row_spans(text, block), tracker.current)
+            continue
+        if not sentences and block.kind in ("body", "heading") and len(body.split()) <= 40:
+            # The first line of a report is its title (or a heading naming the title).
+            section = tracker.heading(body) if block.kind == "heading" else "front"
+            _append(
+                sentences,
+                text,
+                block,
+                [(block.start, block.end)],
+                "title" if section == "front" else section,
+            )
+            continue
+        bare = bare_run_in(body.lstrip())
+        if bare is not None:
+            tracker.run_in(bare)
+        spans = split_sentences(text, block.start, block.end)
+        for i, (a, b) in enumerate(spans):
+            piece = text[a:b]
+            if i == 0 and len(spans) > 1:
+                label = run_in_heading(piece, tracker.current)
+                if label is not None:
+                    tracker.run_in(label)
+                    _append(sentences, text, block, [(a, b)], tracker.current, kind="heading")
+                    continue
+            section = tracker.text(len(piece.split()))
+            _append(sentences, text, block, [(a, b)], section)
+    return sentences
+
+
+def _row_spans(text: str, block: Block) -> list[tuple[int, int]]:
+    """One span per line of a table block."""
+    spans = []
+    pos = block.start
+    for row in text[block.start : block.end].split("\n"):
+        spans.append((pos, pos + len(row)))
+        pos += len(row) + 1
+    return spans
+
+
+def _trimmed(text: str, spans: list[tuple[int, int]]) -> list[tuple[int, int]]:
+    out = []
+    for a, b in spans:
+        while a < b and text[a].isspace():
+            a += 1
+        while b > a and text[b - 1].isspace():
+            b -= 1
+        if b > a:
+            out.append((a, b))
+    return out
+
+
+def _append(
+    sentences: list[Sentence],
+    text: str,
+    block: Block,
+    spans: list[tuple[int, int]],
+    section: str,
+    kind: BlockKind | None = None,
+) -> None:
+    for a, b in _trimmed(text, spans):
+        page, box = _locate(block, a, b)
+        sentences.append(
+            Sentence(
+                index=len(sentences),
+                start=a,
+                end=b,
+                text=text[a:b],
+                section=section,
+                block=kind or block.kind,
+                page=page,
+                bbox=box,
+            )
+        )
+
+
+def _locate(block: Block, a: int, b: int) -> tuple[int | None, Box | None]:
+    """Page of the sentence's first word and the union of its word boxes on that page."""
+    if not block.words:
+        return block.page, None
+    page = None
+    x0 = top = float("inf")
+    x1 = bottom = float("-inf")
+    for ws, we, wpage, (bx0, btop, bx1, bbottom) in block.words:
+        if we <= a or ws >= b:
+            continue
+        if page is None:
+            page = wpage
+        if wpage != page:
+            continue
+        x0, top = min(x0, bx0), min(top, btop)
+        x1, bottom = max(x1, bx1), max(bottom, bbottom)
+    if page is None:
+        return block.page, None
+    return page, (round(x0, 2), round(top, 2), round(x1, 2), round(bottom, 2))

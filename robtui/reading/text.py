@@ -1,0 +1,144 @@
+"""Plain text into a Document whose offsets are offsets into the text itself.
+
+A block is a line, or several lines when a paragraph was hard-wrapped (the line before does not
+end a sentence and the next line carries on in lower case). Blank lines always end a block.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import re
+from pathlib import Path
+
+from robtui.errors import ReadingError
+from robtui.reading.assemble import Block, build_sentences, is_caption, looks_like_heading
+from robtui.reading.document import Document
+
+_TABLE_ROW = re.compile(r"\t|\s\|\s|\S {3,}\S.* {3,}\S")
+
+
+def _lines(text: str) -> list[tuple[int, int]]:
+    """(start, end) of each line, end before the line break."""
+    spans = []
+    pos = 0
+    for line in text.splitlines(keepends=True):
+        body = line.rstrip("\r\n")
+        spans.append((pos, pos + len(body)))
+        pos += len(line)
+    return spans
+
+
+def _wraps(text: str, prev: tuple[int, int], nxt: tuple[int, int]) -> bool:
+    """True when line ``nxt`` continues the paragraph of line ``prev`` (a hard wrap)."""
+    before = text[prev[0] : prev[1]].rstrip()
+    after = text[nxt[0] : nxt[1]].lstrip()
+    if len(before) < 40 or not after or before[-1] in ".?!:":
+        return False
+    return after[0].islower() or after[0].isdigit() or after[0] in "(,;–-"
+
+
+def blocks_from_text(text: str) -> list[Block]:
+    """Blocks of ``text`` with their kind: heading, caption, table or body."""
+    groups: list[list[tuple[int, int]]] = []
+    for span in _lines(text):
+        a, b = span
+        while a < b and text[a].isspace():
+            a += 1
+        while b > a and text[b - 1].isspace():
+            b -= 1
+        if a == b:
+            groups.append([])
+            continue
+        if groups and groups[-1] and _wraps(text, groups[-1][-1], (a, b)):
+            groups[-1].append((a, b))
+        else:
+            groups.append([(a, b)])
+    blocks: list[Block] = []
+    groups = [g for g in groups if g]
+    for i, group in enumerate(groups):
+        start, end = group[0][0], group[-1][1]
+        body = text[start:end]
+        if is_caption(body):
+            kind = "caption"
+        elif _TABLE_ROW.search(body) and len(group) == 1 and not body.rstrip().endswith("."):
+            kind = "table"
+        elif len(group) == 1 and i + 1 < len(groups) and looks_like_heading(body):
+            kind = "heading"
+        else:
+            kind = "body"
+        blocks.append(Block(start, end, kind))
+    return _merge_table_rows(blocks)
+
+
+def _merge_table_rows(blocks: list[Block]) -> list[Block]:
+    """Consecutive table rows form one table block."""
+    merged: list[Block] = []
+    for block in blocks:
+        if block.kind == "table" and merged and merged[-1].kind == "table":
+            merged[-1].end = block.end
+        else:
+            merged.append(block)
+    return merged
+
+
+def document_from_text(
+    text: str, *, path: str = "<text>", kind: str = "txt", sha256: str | None = None
+) -> Document:
+    """A Document of ``text``: sentences and sections, offsets into ``text`` itself."""
+    digest = sha256 or hashlib.sha256(text.encode("utf-8")).hexdigest()
+    sentences = build_sentences(text, blocks_from_text(text))
+    return Document(path=path, sha256=digest, kind=kind, text=text, sentences=sentences)
+
+
+# Bytes that never occur in text files; a handful of them means the file is binary.
+_BINARY_BYTES = set(range(9)) | {11} | set(range(14, 32)) - {27}
+
+
+def decode_text_file(path: Path, data: bytes) -> tuple[str, list[str]]:
+    """The characters of a text file and any warnings; ReadingError for binary data."""
+    if not data.strip():
+        raise ReadingError(f"{path}: the file is empty; nothing to read")
+    if data.startswith(b"%PDF"):
+        raise ReadingError(f"{path}: this is a PDF with a text-file name; rename it to .pdf")
+    sample = data[:8192]
+    if b"\x00" in sample and not (sample.startswith((b"\xff\xfe", b"\xfe\xff"))):
+        raise ReadingError(
+            f"{path}: binary data, not text (it holds NUL bytes); open the original report instead"
+        )
+    odd = sum(1 for byte in sample if byte in _BINARY_BYTES)
+    if odd > max(4, len(sample) // 100):
+        raise ReadingError(f"{path}: binary data, not text; open the original report instead")
+    if data.startswith(b"\xef\xbb\xbf"):
+        return data[3:].decode("utf-8", errors="strict"), [
+            "a UTF-8 byte-order mark was dropped; offsets count from the character after it"
+        ]
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
+        try:
+            return data.decode("utf-16"), ["the file is UTF-16; offsets count its characters"]
+        except UnicodeDecodeError as error:
+            raise ReadingError(f"{path}: UTF-16 text that does not decode ({error})") from error
+    try:
+        return data.decode("utf-8"), []
+    except UnicodeDecodeError as error:
+        utf8_error = error
+    try:
+        text = data.decode("cp1252")
+        encoding = "cp1252 (Windows Western)"
+    except UnicodeDecodeError:
+        text = data.decode("latin-1")
+        encoding = "latin-1"
+    warning = (
+        f"not UTF-8 (byte {utf8_error.start}); read as {encoding}. Save the file as UTF-8 so "
+        "quotes match exactly"
+    )
+    return text, [warning]
+
+
+def read_text_file(path: Path, data: bytes, digest: str) -> Document:
+    """A .txt file as a Document (offsets into the file's decoded characters)."""
+    text, warnings = decode_text_file(path, data)
+    document = document_from_text(text, path=str(path), kind="txt", sha256=digest)
+    if not document.sentences:
+        raise ReadingError(f"{path}: no text found in the file")
+    document.warnings.extend(warnings)
+    return document
