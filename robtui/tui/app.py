@@ -1,0 +1,167 @@
+"""The workbench app: one reviewer's sessions on a review folder.
+
+``run_workbench(folder, reviewer)`` is the entry point used by ``robtui open`` and
+``robtui demo``.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from functools import partial
+from pathlib import Path
+from typing import Any, ClassVar
+
+from textual.app import App, SystemCommand
+from textual.binding import Binding, BindingType
+from textual.screen import Screen
+
+from robtui.errors import RobtuiError
+from robtui.store.review_folder import ReviewFolder
+from robtui.tui.report_loading import shared_ranker
+from robtui.tui.screens.assessment import AssessmentScreen
+from robtui.tui.screens.dialogs import EffectDialog, ListDialog
+from robtui.tui.screens.help import HelpScreen
+from robtui.tui.screens.overview import OverviewScreen
+from robtui.tui.screens.start import ProblemScreen, ReviewerScreen
+from robtui.tui.session import ReviewSession
+
+
+class Workbench(App[int]):
+    """robtui's assessment workbench."""
+
+    CSS_PATH = "workbench.tcss"
+    TITLE = "robtui workbench"
+    ENABLE_COMMAND_PALETTE = True
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("ctrl+q", "quit", "Quit", priority=True),
+        Binding("f1", "help", "Help", show=False),
+    ]
+
+    def __init__(
+        self,
+        folder: Path | ReviewFolder,
+        reviewer: str | None = None,
+        *,
+        ranker_factory: Callable[[], Any] = shared_ranker,
+    ) -> None:
+        super().__init__()
+        self.folder_arg = folder
+        self.reviewer = reviewer
+        self.ranker_factory = ranker_factory
+        self.folder: ReviewFolder | None = folder if isinstance(folder, ReviewFolder) else None
+        self.session: ReviewSession | None = None
+
+    def on_mount(self) -> None:
+        self.theme = "textual-dark"
+        if self.folder is None:
+            try:
+                self.folder = ReviewFolder.open(Path(self.folder_arg))
+            except RobtuiError as error:
+                self.push_screen(ProblemScreen(str(error)))
+                return
+        if self.reviewer:
+            self._start(self.reviewer)
+        else:
+            listed = list(self.folder.review.reviewers)
+            self.push_screen(ReviewerScreen(self.folder.review.title, listed), self._start)
+
+    def _start(self, reviewer: str | None) -> None:
+        if not reviewer or self.folder is None:
+            return
+        try:
+            self.session = ReviewSession(self.folder, reviewer)
+        except RobtuiError as error:
+            self.push_screen(ProblemScreen(str(error)))
+            return
+        self.reviewer = self.session.reviewer
+        self.sub_title = f"{self.folder.review.title} · {self.session.reviewer}"
+        self.push_screen(OverviewScreen(self.session))
+
+    # -- navigation used by the screens ----------------------------------------------
+    def open_result(self, study_id: str, result_id: str) -> None:
+        """Open this reviewer's assessment of a result (asking the effect when new)."""
+        session = self.session
+        assert session is not None
+        try:
+            existing = session.load(study_id, result_id)
+        except RobtuiError as error:
+            self.push_screen(
+                ListDialog(
+                    "This assessment cannot be opened",
+                    [str(error)],
+                    "The file was left exactly as it is. Repair or move it aside, then reopen "
+                    "the result; the rest of the review is usable.",
+                )
+            )
+            return
+        if existing is not None:
+            self.push_screen(AssessmentScreen(existing))
+            return
+        result = session.review.result(result_id)
+        label = result.outcome if result else result_id
+
+        def chosen(effect: str | None) -> None:
+            if not effect:
+                return
+            try:
+                started = session.start(study_id, result_id, effect)
+            except RobtuiError as error:
+                self.notify(str(error), severity="error")
+                return
+            self.push_screen(AssessmentScreen(started))
+
+        self.push_screen(EffectDialog(label, result.effect if result else "assignment"), chosen)
+
+    def open_comparison(self) -> None:
+        session = self.session
+        if session is None:
+            return
+        if not session.is_lead:
+            self.notify(
+                "Only the review's lead sees the comparison of reviewers.", severity="warning"
+            )
+            return
+        try:
+            from robtui.tui.screens.compare import CompareScreen
+        except ImportError:
+            self.notify("The comparison screen is not available yet.", severity="warning")
+            return
+        self.push_screen(CompareScreen(session))
+
+    def action_help(self) -> None:
+        if not isinstance(self.screen, HelpScreen):
+            self.push_screen(HelpScreen())
+
+    # -- command palette ---------------------------------------------------------------
+    def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        yield from super().get_system_commands(screen)
+        yield SystemCommand("Help: workbench keys", "All keys of the workbench", self.action_help)
+        if isinstance(screen, OverviewScreen):
+            yield SystemCommand(
+                "Assess the selected result", "Open it", screen.action_open_selected
+            )
+            yield SystemCommand(
+                "Filter by status", "Next status filter", screen.action_cycle_filter
+            )
+            if self.session and self.session.is_lead:
+                yield SystemCommand(
+                    "Compare reviewers", "The lead's side-by-side comparison", self.open_comparison
+                )
+        if isinstance(screen, AssessmentScreen):
+            for title, help_text, action in screen.palette_commands():
+                yield SystemCommand(title, help_text, partial(screen.run_action, action))
+
+
+def run_workbench(folder: Path, reviewer: str | None = None) -> int:
+    """Run the workbench on a review folder; returns the exit code.
+
+    Raises the folder's RobtuiError (not a review, unreadable review.toml) before the
+    terminal is taken over, so the CLI can print it.
+    """
+    opened = ReviewFolder.open(Path(folder))
+    if reviewer is not None:
+        from robtui.tui.session import check_reviewer_name
+
+        reviewer = check_reviewer_name(reviewer)
+    result = Workbench(opened, reviewer).run()
+    return int(result or 0)

@@ -1,0 +1,65 @@
+"""The workbench's key map: one table feeds the bindings, the help screen and the README.
+
+Response keys (our own scheme): y Y, p PY ("probably yes"), m PN ("maybe not"), n N,
+i NI ("no information"), a NA ("not applicable", only for questions asked if applicable).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+RESPONSE_KEYS: dict[str, str] = {"y": "Y", "p": "PY", "m": "PN", "n": "N", "i": "NI", "a": "NA"}
+
+RESPONSE_NAMES: dict[str, str] = {
+    "Y": "Yes",
+    "PY": "Probably yes",
+    "PN": "Probably no",
+    "N": "No",
+    "NI": "No information",
+    "NA": "Not applicable",
+}
+
+
+@dataclass(frozen=True)
+class KeyHelp:
+    screen: str
+    keys: str
+    what: str
+
+
+KEY_MAP: tuple[KeyHelp, ...] = (
+    KeyHelp("everywhere", "?  F1", "this help"),
+    KeyHelp("everywhere", "ctrl+p", "command palette (all main actions by name)"),
+    KeyHelp("everywhere", "ctrl+q", "quit (all work is already saved)"),
+    KeyHelp("overview", "up/down  enter", "choose a result / open it to assess"),
+    KeyHelp("overview", "f", "filter by status: all, not started, draft, complete, problems"),
+    KeyHelp("overview", "v", "the lead's comparison of two reviewers (lead only)"),
+    KeyHelp("assessment", "y p m n i a", "answer Y, PY, PN, N, NI, NA to the focused question"),
+    KeyHelp("assessment", "backspace", "clear the focused question's response"),
+    KeyHelp("assessment", "j / k", "next / previous question"),
+    KeyHelp("assessment", "1 … 5", "go to domain 1 … 5"),
+    KeyHelp("assessment", "tab", "move between the report and the questions"),
+    KeyHelp("assessment", "] / [", "next / previous suggested sentence for the focused question"),
+    KeyHelp(
+        "assessment", "q", "attach the report's highlighted sentence as a quote (again: detach)"
+    ),
+    KeyHelp(
+        "assessment", "x", "dismiss the highlighted suggestion (it does not answer the question)"
+    ),
+    KeyHelp("assessment", "e", "write the justification of the focused answer (enter: done)"),
+    KeyHelp("assessment", "/", "search the report (enter: next match, escape: close)"),
+    KeyHelp(
+        "assessment", "o / O", "override the domain / overall judgement (a reason is required)"
+    ),
+    KeyHelp("assessment", "s", "domain summary: answers, quotes, judgement"),
+    KeyHelp("assessment", "t", "effect of interest (assignment or adhering)"),
+    KeyHelp("assessment", "c", "mark complete (lists what is missing) / reopen"),
+    KeyHelp("assessment", "escape", "back to the overview"),
+)
+
+
+def key_map_markdown() -> str:
+    """The key map as a Markdown table (for the README)."""
+    lines = ["| Where | Keys | What |", "| --- | --- | --- |"]
+    lines += [f"| {k.screen} | `{k.keys}` | {k.what} |" for k in KEY_MAP]
+    return "\n".join(lines) + "\n"

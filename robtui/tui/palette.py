@@ -1,0 +1,34 @@
+"""Judgement colours and labels in the workbench: the same swatches as the exports.
+
+The colours, ink and letters come from robtui.export.palette (checked there for
+distinguishability under simulated colour-vision deficiency and for WCAG 2.1 contrast), so a
+judgement looks the same on screen and in a published table. A colour never stands alone:
+every badge carries the letter and the text label.
+"""
+
+from __future__ import annotations
+
+from rich.text import Text
+
+from robtui.export.palette import swatch
+
+SHORT_LABELS = {"low": "Low", "some_concerns": "Some", "high": "High", "incomplete": "—"}
+LABELS = {
+    "low": "Low",
+    "some_concerns": "Some concerns",
+    "high": "High",
+    "incomplete": "Not judged",
+}
+
+
+def label(code: str | None) -> str:
+    """The text label of a judgement code ("Not judged" for incomplete or missing)."""
+    return LABELS.get(code or "incomplete", LABELS["incomplete"])
+
+
+def badge(code: str | None, *, short: bool = False) -> Text:
+    """A coloured badge with letter and text label, e.g. ' S Some concerns '."""
+    key = code if code in LABELS else "incomplete"
+    sw = swatch(key)
+    words = SHORT_LABELS[key] if short else LABELS[key]
+    return Text(f" {sw.letter} {words} ", style=f"{sw.ink} on {sw.fill}")

@@ -1,0 +1,109 @@
+"""Reading a study's report and ranking its sentences, for the workbench's worker thread.
+
+Nothing here touches the screen: ``load_report`` reports its stage through a callback and
+returns what the assessment screen shows. Problems (a missing or changed file, an unreadable
+PDF, missing ranker weights) come back as text, so the rest of the assessment stays usable.
+"""
+
+from __future__ import annotations
+
+import threading
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from typing import Any
+
+from robtui.core.model import ReportFile
+from robtui.errors import RobtuiError
+from robtui.reading.document import Document
+from robtui.store.review_folder import ReviewFolder
+
+SUGGESTIONS_PER_QUESTION = 5
+
+_ranker_lock = threading.Lock()
+_ranker: Any = None
+
+
+def shared_ranker():
+    """The shipped evidence ranker, loaded once per process (raises ModelFileError)."""
+    global _ranker
+    with _ranker_lock:
+        if _ranker is None:
+            from robtui.evidence.ranker import load_ranker
+
+            _ranker = load_ranker()
+        return _ranker
+
+
+@dataclass
+class LoadedReport:
+    report: ReportFile
+    document: Document | None = None
+    suggestions: dict[str, list[Any]] = field(default_factory=dict)
+    problem: str | None = None  # the report cannot be shown (missing, changed, unreadable)
+    notes: list[str] = field(default_factory=list)  # shown, but the report is usable
+
+
+def load_report(
+    folder: ReviewFolder,
+    report: ReportFile,
+    effect: str,
+    *,
+    stage: Callable[[str], None] = lambda _text: None,
+    ranker_factory: Callable[[], Any] = shared_ranker,
+) -> LoadedReport:
+    """Read ``report`` from the review folder and rank its sentences for every question."""
+    loaded = LoadedReport(report)
+    problem = folder.check_report(report)
+    if problem:
+        loaded.problem = (
+            f"{problem}. The answers can still be given; quotes need the report: put the "
+            f"original file back in the review's reports/ folder and reopen this result."
+        )
+        return loaded
+    stage(f"Reading {report.path} …")
+    from robtui.reading.reader import read_document
+
+    try:
+        loaded.document = read_document(folder.report_path(report))
+    except RobtuiError as error:
+        loaded.problem = str(error)
+        return loaded
+    loaded.notes.extend(loaded.document.warnings)
+    loaded.suggestions = rank_document(
+        folder, loaded.document, effect, stage, ranker_factory, loaded.notes
+    )
+    return loaded
+
+
+def rank_document(
+    folder: ReviewFolder,
+    document: Document,
+    effect: str,
+    stage: Callable[[str], None] = lambda _text: None,
+    ranker_factory: Callable[[], Any] = shared_ranker,
+    notes: list[str] | None = None,
+) -> dict[str, list[Any]]:
+    """Suggestions per question id for ``document`` (empty, with a note, if ranking fails)."""
+    notes = notes if notes is not None else []
+    stage("Ranking sentences for each signalling question …")
+    try:
+        ranker = ranker_factory()
+    except RobtuiError as error:
+        notes.append(f"no suggestions: {error}")
+        return {}
+    review_model = None
+    try:
+        from robtui.evidence.review_model import load_review_model
+
+        review_model = load_review_model(folder.learned_dir)
+    except ImportError:
+        review_model = None
+    except RobtuiError as error:
+        notes.append(f"the review's learned model was not used: {error}")
+    try:
+        return ranker.rank(
+            document, effect=effect, top=SUGGESTIONS_PER_QUESTION, review_model=review_model
+        )
+    except RobtuiError as error:
+        notes.append(f"no suggestions: {error}")
+        return {}

@@ -1,0 +1,620 @@
+"""The assessment screen: the report beside the signalling questions of one domain.
+
+Left: the report by section with page numbers; the focused question's suggested sentences
+carry rank and score. Right: the domain's asked questions, the answer keys, the
+justification of the focused answer, and the proposed and final judgements, which update as
+answers change. Every change is saved at once through the AssessmentSession.
+"""
+
+from __future__ import annotations
+
+import time
+from typing import ClassVar
+
+from rich.text import Text
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical
+from textual.screen import Screen
+from textual.widgets import Footer, Input, Label, ProgressBar, Static
+from textual.worker import get_current_worker
+
+from robtui.core.model import OVERALL, Quote
+from robtui.errors import RobtuiError
+from robtui.tui.keys import RESPONSE_KEYS
+from robtui.tui.palette import badge
+from robtui.tui.report_loading import LoadedReport, load_report, rank_document
+from robtui.tui.screens.dialogs import (
+    EffectDialog,
+    ListDialog,
+    OverrideChoice,
+    OverrideDialog,
+    TextDialog,
+)
+from robtui.tui.session import AssessmentSession
+from robtui.tui.widgets.judgement_strip import DomainTab, JudgementStrip
+from robtui.tui.widgets.question_list import QuestionList, line_for
+from robtui.tui.widgets.report_view import ReportView
+from robtui.tui.widgets.response_bar import ResponseBar
+
+CANDIDATE_NOTE = "Suggestions are candidates ranked by a classifier; you decide."
+JUSTIFICATION_SAVE_DELAY = 0.4  # seconds of quiet typing before the justification is saved
+
+
+def _answer_bindings() -> list[Binding]:
+    return [
+        Binding(key, f"answer('{code}')", code, show=False) for key, code in RESPONSE_KEYS.items()
+    ]
+
+
+class AssessmentScreen(Screen[None]):
+    BINDINGS: ClassVar[list[BindingType]] = [
+        *_answer_bindings(),
+        Binding("backspace", "answer(None)", "Clear", show=False),
+        Binding("j", "next_question", "Next Q", show=False),
+        Binding("k", "previous_question", "Prev Q", show=False),
+        *[Binding(str(n), f"domain('{n}')", f"Domain {n}", show=False) for n in range(1, 6)],
+        Binding("right_square_bracket", "suggestion(1)", "Next sugg."),
+        Binding("left_square_bracket", "suggestion(-1)", "Prev sugg.", show=False),
+        Binding("q", "quote", "Quote"),
+        Binding("x", "dismiss_suggestion", "Dismiss"),
+        Binding("e", "justify", "Justify"),
+        Binding("slash", "search", "Search"),
+        Binding("o", "override('domain')", "Override"),
+        Binding("O", "override('overall')", "Override overall", show=False),
+        Binding("s", "summary", "Summary"),
+        Binding("t", "effect", "Effect"),
+        Binding("c", "complete", "Complete"),
+        Binding("d", "next_document", "Next document", show=False),
+        Binding("tab", "switch_pane", "Report/questions", show=False, priority=True),
+        Binding("escape", "back", "Overview"),
+        Binding("question_mark,f1", "app.help", "Help"),
+    ]
+
+    def __init__(self, session: AssessmentSession) -> None:
+        super().__init__()
+        self.session = session
+        self.domain_id = session.domain_ids()[0]
+        self.loaded: list[LoadedReport] = []
+        self.document_index = 0
+        self._justify_timer = None
+        self._justify_for: str | None = None
+        self.last_update_seconds: float | None = None  # keystroke -> judgement shown (bench)
+
+    # -- layout ------------------------------------------------------------------------
+    def compose(self) -> ComposeResult:
+        s = self.session
+        heading = Text(f"{s.study.label if s.study else s.assessment.study_id}", style="bold")
+        result = s.result
+        heading.append(f"  ·  {result.outcome if result else s.assessment.result_id}")
+        if result and result.time_point:
+            heading.append(f" ({result.time_point})")
+        heading.append(f"  ·  reviewer {s.review_session.reviewer}", style="dim")
+        yield Static(heading, id="assessment-title")
+        with Horizontal(id="assessment-body"):
+            with Vertical(id="report-panel"):
+                yield Static("", id="report-heading")
+                with Horizontal(id="report-progress"):
+                    yield Label("Opening the report …", id="progress-label")
+                    yield ProgressBar(
+                        total=None, show_eta=False, show_percentage=False, id="progress-bar"
+                    )
+                yield ReportView(id="report")
+                yield Input(
+                    placeholder="Search the report (enter: next match, escape: close)", id="search"
+                )
+                yield Static(Text(CANDIDATE_NOTE, style="italic"), id="candidate-note")
+            with Vertical(id="form-panel"):
+                yield JudgementStrip([*s.domain_ids(), OVERALL], id="strip")
+                yield Static("", id="domain-heading")
+                yield QuestionList(id="questions")
+                yield ResponseBar(id="responses")
+                yield Input(
+                    placeholder="Justification (e to write, enter when done)", id="justification"
+                )
+                yield Static("", id="judgement")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.query_one("#search", Input).display = False
+        start = self.session.assessment.last_question
+        if start:
+            try:
+                self.domain_id = self.session.domain_of(start)
+            except (KeyError, RobtuiError):
+                start = None
+        self.refresh_form(keep=start)
+        self.query_one("#questions", QuestionList).focus()
+        self.load_reports()
+
+    # -- reading the report (worker) -------------------------------------------------
+    @work(thread=True, exclusive=True, group="report")
+    def load_reports(self) -> None:
+        worker = get_current_worker()
+        reports = self.session.reports()
+        if not reports:
+            self.app.call_from_thread(self._reports_loaded, [])
+            return
+        loaded = []
+        for report, _problem in reports:
+            if worker.is_cancelled:
+                return
+            loaded.append(
+                load_report(
+                    self.session.folder,
+                    report,
+                    self.session.effect,
+                    stage=lambda text: self.app.call_from_thread(self._stage, text),
+                    ranker_factory=self.app.ranker_factory,
+                )
+            )
+        if not worker.is_cancelled:
+            self.app.call_from_thread(self._reports_loaded, loaded)
+
+    @work(thread=True, exclusive=True, group="report")
+    def rerank(self) -> None:
+        self.app.call_from_thread(self._stage, "Ranking sentences for the new effect …")
+        for loaded in self.loaded:
+            if loaded.document is not None:
+                loaded.suggestions = rank_document(
+                    self.session.folder,
+                    loaded.document,
+                    self.session.effect,
+                    ranker_factory=self.app.ranker_factory,
+                    notes=loaded.notes,
+                )
+        self.app.call_from_thread(self._reports_loaded, self.loaded)
+
+    def _stage(self, text: str) -> None:
+        self.query_one("#report-progress").display = True
+        self.query_one("#progress-label", Label).update(text)
+
+    def _reports_loaded(self, loaded: list[LoadedReport]) -> None:
+        self.loaded = loaded
+        self.query_one("#report-progress").display = False
+        self.document_index = min(self.document_index, max(len(loaded) - 1, 0))
+        self._show_current_document()
+
+    def _show_current_document(self) -> None:
+        view = self.query_one("#report", ReportView)
+        heading = self.query_one("#report-heading", Static)
+        if not self.loaded:
+            heading.update(Text("No report", style="bold"))
+            view.show_message(
+                "This study has no report file in the review. Answers can still be given."
+            )
+            return
+        loaded = self.loaded[self.document_index]
+        title = Text(loaded.report.path, style="bold")
+        if len(self.loaded) > 1:
+            title.append(
+                f"  (document {self.document_index + 1} of {len(self.loaded)}, d: next)",
+                style="dim",
+            )
+        for note in loaded.notes:
+            title.append(f"\n⚠ {note}")
+        heading.update(title)
+        if loaded.document is None:
+            view.show_message(f"⚠ {loaded.problem}")
+        else:
+            view.show_document(loaded.document)
+        self._mark_report()
+
+    # -- the current state -------------------------------------------------------------
+    @property
+    def question_id(self) -> str | None:
+        return self.query_one("#questions", QuestionList).focused_question
+
+    @property
+    def current(self) -> LoadedReport | None:
+        return self.loaded[self.document_index] if self.loaded else None
+
+    def suggestions_for(self, question_id: str | None) -> list:
+        loaded = self.current
+        if loaded is None or loaded.document is None or question_id is None:
+            return []
+        sha = loaded.document.sha256
+        return [
+            s
+            for s in loaded.suggestions.get(question_id, [])
+            if not self.session.is_dismissed(question_id, sha, s.start, s.end)
+        ]
+
+    def refresh_form(self, keep: str | None = None) -> None:
+        """Redraw the domain's questions, the focused answer and the judgements."""
+        s = self.session
+        domain = s.domain(self.domain_id)
+        asked = s.asked(self.domain_id)
+        answers = s.assessment.answers
+        lines = [line_for(q, answers, len(self.suggestions_for(q.id))) for q in asked]
+        questions = self.query_one("#questions", QuestionList)
+        questions.show(lines, keep=keep)
+        effect = f"  ·  effect of {s.effect}" if domain.effect else ""
+        heading = Text(f"Domain {domain.id}: {domain.name}", style="bold")
+        heading.append(effect, style="dim")
+        hidden = len(domain.questions) - len(asked)
+        if hidden:
+            heading.append(
+                f"\n{hidden} question{'s' if hidden != 1 else ''} not asked on this path",
+                style="dim",
+            )
+        if s.is_complete:
+            heading.append("\n✓ marked complete — c reopens it for changes", style="bold")
+        self.query_one("#domain-heading", Static).update(heading)
+        self._refresh_judgements()
+        self._refresh_justification()
+        self._mark_report()
+
+    def _refresh_judgements(self) -> None:
+        s = self.session
+        keys = [*s.domain_ids(), OVERALL]
+        finals = {k: s.final(k) for k in keys}
+        overridden = set(s.assessment.overrides)
+        self.query_one("#strip", JudgementStrip).show(finals, self.domain_id, overridden)
+        text = Text()
+        for key, name in ((self.domain_id, f"Domain {self.domain_id}"), (OVERALL, "Overall")):
+            text.append(f"{name}: proposed ", style="bold")
+            text.append_text(badge(s.proposed(key)))
+            override = s.override(key)
+            if override:
+                text.append("  your judgement ")
+                text.append_text(badge(override.judgement))
+                text.append(f"\n  reason: {override.reason}", style="italic")
+            text.append("\n")
+        if s.may_raise_overall() and not s.override(OVERALL):
+            text.append(
+                "Several domains have some concerns: you may raise the overall to High (O).",
+                style="dim",
+            )
+        self.query_one("#judgement", Static).update(text)
+
+    def _refresh_justification(self) -> None:
+        field = self.query_one("#justification", Input)
+        qid = self.question_id
+        answer = self.session.answer(qid) if qid else None
+        self._justify_for = qid
+        with field.prevent(Input.Changed):
+            field.value = answer.justification if answer else ""
+        field.placeholder = f"Justification for {qid} (e to write, enter when done)" if qid else ""
+        field.disabled = self.session.is_complete or qid is None
+
+    def _mark_report(self) -> None:
+        view = self.query_one("#report", ReportView)
+        loaded = self.current
+        if loaded is None or loaded.document is None:
+            return
+        qid = self.question_id
+        quoted = set()
+        answer = self.session.answer(qid) if qid else None
+        if answer:
+            sha = loaded.document.sha256
+            for quote in answer.quotes:
+                if quote.document_sha256 == sha:
+                    sentence = loaded.document.sentence_at(quote.start)
+                    if sentence is not None:
+                        quoted.add(sentence.index)
+        view.mark(self.suggestions_for(qid), quoted)
+
+    # -- events ------------------------------------------------------------------------
+    @on(QuestionList.OptionHighlighted, "#questions")
+    def _question_moved(self) -> None:
+        self._flush_justification()
+        self._refresh_justification()
+        self._mark_report()
+        qid = self.question_id
+        if qid:
+            try:
+                self.session.remember_position(qid)
+            except RobtuiError as error:
+                self.notify(str(error), severity="error")
+
+    @on(DomainTab.Chosen)
+    def _tab_clicked(self, event: DomainTab.Chosen) -> None:
+        if event.key == OVERALL:
+            self.action_override("overall")
+        else:
+            self.action_domain(event.key)
+
+    @on(ResponseBar.Picked)
+    def _response_clicked(self, event: ResponseBar.Picked) -> None:
+        self.action_answer(event.response)
+
+    @on(Input.Changed, "#justification")
+    def _justification_typed(self) -> None:
+        if self._justify_timer is not None:
+            self._justify_timer.stop()
+        self._justify_timer = self.set_timer(JUSTIFICATION_SAVE_DELAY, self._flush_justification)
+
+    @on(Input.Submitted, "#justification")
+    def _justification_done(self) -> None:
+        self._flush_justification()
+        self.query_one("#questions", QuestionList).focus()
+
+    def on_descendant_blur(self, event) -> None:
+        if getattr(event.widget, "id", None) == "justification":
+            self._flush_justification()
+
+    def _flush_justification(self) -> None:
+        if self._justify_timer is not None:
+            self._justify_timer.stop()
+            self._justify_timer = None
+        qid = self._justify_for
+        if qid is None or self.session.is_complete:
+            return
+        text = self.query_one("#justification", Input).value
+        try:
+            before = self.session.answer(qid)
+            if (before.justification if before else "") != text:
+                self.session.set_justification(qid, text)
+                self._refresh_question_lines()
+        except RobtuiError as error:
+            self.notify(str(error), severity="error")
+
+    def _refresh_question_lines(self) -> None:
+        questions = self.query_one("#questions", QuestionList)
+        keep = questions.focused_question
+        answers = self.session.assessment.answers
+        asked = self.session.asked(self.domain_id)
+        lines = [line_for(q, answers, len(self.suggestions_for(q.id))) for q in asked]
+        with questions.prevent(QuestionList.OptionHighlighted):
+            questions.show(lines, keep=keep)
+
+    @on(Input.Submitted, "#search")
+    def _search_next(self, event: Input.Submitted) -> None:
+        found = self.query_one("#report", ReportView).find(event.value)
+        if found is None:
+            self.notify(f"no sentence contains {event.value!r}", severity="warning")
+        else:
+            self.notify(f"match {found[0]} of {found[1]}", timeout=2)
+
+    # -- actions -----------------------------------------------------------------------
+    def _guard(self, action) -> bool:
+        try:
+            action()
+        except RobtuiError as error:
+            self.notify(str(error), severity="warning")
+            return False
+        return True
+
+    def action_answer(self, response: str | None) -> None:
+        qid = self.question_id
+        if qid is None:
+            return
+        started = time.perf_counter()
+        self._flush_justification()
+        if self._guard(lambda: self.session.set_response(qid, response)):
+            self._refresh_question_lines()
+            self._refresh_judgements()
+            self.last_update_seconds = time.perf_counter() - started
+
+    def action_next_question(self) -> None:
+        self.query_one("#questions", QuestionList).action_cursor_down()
+
+    def action_previous_question(self) -> None:
+        self.query_one("#questions", QuestionList).action_cursor_up()
+
+    def action_domain(self, domain_id: str) -> None:
+        if domain_id not in self.session.domain_ids():
+            return
+        self._flush_justification()
+        self.domain_id = domain_id
+        self.refresh_form()
+        first = self.question_id
+        if first:
+            self._guard(lambda: self.session.remember_position(first))
+
+    def action_suggestion(self, step: int) -> None:
+        suggestions = self.suggestions_for(self.question_id)
+        view = self.query_one("#report", ReportView)
+        if not suggestions:
+            self.notify("no suggested sentences for this question", timeout=2)
+            return
+        order = [s.sentence_index for s in suggestions]
+        here = view.highlighted_sentence
+        if here is not None and here.index in order:
+            position = (order.index(here.index) + step) % len(order)
+        else:
+            position = 0 if step > 0 else len(order) - 1
+        view.go_to_sentence(order[position])
+        s = suggestions[position]
+        self.notify(
+            f"suggestion #{position + 1} of {len(order)} (score {s.score:.2f}) — a candidate; you decide",
+            timeout=2,
+        )
+
+    def action_quote(self) -> None:
+        qid = self.question_id
+        loaded = self.current
+        sentence = self.query_one("#report", ReportView).highlighted_sentence
+        if qid is None or loaded is None or loaded.document is None or sentence is None:
+            self.notify(
+                "highlight a sentence of the report first (tab moves to the report)",
+                severity="warning",
+            )
+            return
+        quote = Quote(
+            document_sha256=loaded.document.sha256,
+            start=sentence.start,
+            end=sentence.end,
+            page=sentence.page,
+            text=sentence.text,
+        )
+        added: list[bool] = []
+        if self._guard(lambda: added.append(self.session.toggle_quote(qid, quote))):
+            self._refresh_question_lines()
+            self._mark_report()
+            where = f" (p.{sentence.page})" if sentence.page else ""
+            self.notify(
+                f"quote {'attached to' if added[0] else 'removed from'} {qid}{where}", timeout=2
+            )
+
+    def action_dismiss_suggestion(self) -> None:
+        qid = self.question_id
+        sentence = self.query_one("#report", ReportView).highlighted_sentence
+        suggestions = self.suggestions_for(qid)
+        match = next(
+            (s for s in suggestions if sentence and s.sentence_index == sentence.index), None
+        )
+        if match is None or self.current is None or self.current.document is None:
+            self.notify(
+                "the highlighted sentence is not a suggestion for this question (] jumps to one)",
+                severity="warning",
+            )
+            return
+        sha = self.current.document.sha256
+        if self._guard(lambda: self.session.dismiss(qid, sha, match.start, match.end)):
+            self._refresh_question_lines()
+            self._mark_report()
+            self.notify("dismissed: recorded for the review's learned model", timeout=2)
+
+    def action_justify(self) -> None:
+        if self.session.is_complete:
+            self.notify("this assessment is marked complete: c reopens it", severity="warning")
+            return
+        self.query_one("#justification", Input).focus()
+
+    def action_switch_pane(self) -> None:
+        """Tab: between the report and the questions (leaving a text field first)."""
+        report = self.query_one("#report", ReportView)
+        if self.focused is report:
+            self.query_one("#questions", QuestionList).focus()
+        else:
+            self._flush_justification()
+            report.focus()
+
+    def action_search(self) -> None:
+        field = self.query_one("#search", Input)
+        field.display = True
+        field.focus()
+
+    def action_back(self) -> None:
+        focused = self.focused
+        if isinstance(focused, Input):
+            if focused.id == "search":
+                focused.display = False
+                self.query_one("#report", ReportView).focus()
+            else:
+                self._flush_justification()
+                self.query_one("#questions", QuestionList).focus()
+            return
+        self._flush_justification()
+        self.dismiss(None)
+
+    def action_override(self, which: str) -> None:
+        key = OVERALL if which == "overall" else self.domain_id
+        s = self.session
+        if s.is_complete:
+            self.notify("this assessment is marked complete: c reopens it", severity="warning")
+            return
+        title = "overall judgement" if key == OVERALL else f"domain {key}: {s.domain(key).name}"
+        note = ""
+        if key == OVERALL and s.may_raise_overall():
+            note = "Several domains have some concerns and none is high: the overall may be raised to High."
+
+        def done(choice: OverrideChoice | None) -> None:
+            if choice is None:
+                return
+            if choice.judgement is None:
+                ok = self._guard(lambda: s.clear_override(key))
+            else:
+                ok = self._guard(lambda: s.set_override(key, choice.judgement, choice.reason))
+            if ok:
+                self._refresh_judgements()
+
+        self.app.push_screen(OverrideDialog(title, s.proposed(key), s.override(key), note), done)
+
+    def action_summary(self) -> None:
+        self.app.push_screen(TextDialog(f"Domain {self.domain_id} summary", self.domain_summary()))
+
+    def domain_summary(self) -> Text:
+        s = self.session
+        domain = s.domain(self.domain_id)
+        text = Text(f"{domain.name}\n", style="bold")
+        for question in s.asked(self.domain_id):
+            answer = s.answer(question.id)
+            text.append(f"\n{question.id} ", style="bold")
+            text.append(
+                f"{answer.response if answer and answer.response else 'not answered'}", style="bold"
+            )
+            text.append(f"  {question.text}\n")
+            if answer and answer.justification:
+                text.append(f"   ✎ {answer.justification}\n")
+            for quote in answer.quotes if answer else []:
+                page = f"p.{quote.page}" if quote.page else "no page"
+                text.append(f"   ❝ {quote.text}", style="italic")
+                text.append(f" ({page})\n", style="dim")
+        text.append("\nProposed: ")
+        text.append_text(badge(s.proposed(self.domain_id)))
+        override = s.override(self.domain_id)
+        if override:
+            text.append("   your judgement: ")
+            text.append_text(badge(override.judgement))
+            text.append(f"\nReason: {override.reason}")
+        return text
+
+    def action_effect(self) -> None:
+        s = self.session
+        if s.is_complete:
+            self.notify("this assessment is marked complete: c reopens it", severity="warning")
+            return
+
+        def done(effect: str | None) -> None:
+            if effect and effect != s.effect and self._guard(lambda: s.set_effect(effect)):
+                self.refresh_form()
+                if self.loaded:
+                    self.rerank()
+
+        label = s.result.outcome if s.result else s.assessment.result_id
+        self.app.push_screen(EffectDialog(label, s.effect), done)
+
+    def action_complete(self) -> None:
+        s = self.session
+        self._flush_justification()
+        if s.is_complete:
+            if self._guard(s.reopen):
+                self.notify("reopened: you can change the answers again")
+                self.refresh_form(keep=self.question_id)
+            return
+        missing = s.completion_problems()
+        if missing:
+            self.app.push_screen(
+                ListDialog("Not complete yet", missing, "Before marking complete, please see to:")
+            )
+            return
+        if self._guard(s.mark_complete):
+            self.notify("marked complete")
+            self.refresh_form(keep=self.question_id)
+
+    def action_next_document(self) -> None:
+        if len(self.loaded) > 1:
+            self.document_index = (self.document_index + 1) % len(self.loaded)
+            self._show_current_document()
+
+    def palette_commands(self) -> list[tuple[str, str, str]]:
+        return [
+            (
+                "Mark complete / reopen",
+                "Check what is missing, then mark this assessment complete",
+                "complete",
+            ),
+            (
+                "Override domain judgement",
+                "Replace the proposed judgement of this domain (reason required)",
+                "override('domain')",
+            ),
+            (
+                "Override overall judgement",
+                "Replace the proposed overall judgement (reason required)",
+                "override('overall')",
+            ),
+            ("Domain summary", "Answers, quotes and judgement of this domain", "summary"),
+            ("Search the report", "Find text in the report", "search"),
+            (
+                "Effect of interest",
+                "Assignment or adhering: switches domain 2's questions",
+                "effect",
+            ),
+            ("Attach quote", "Attach the highlighted sentence to the focused question", "quote"),
+            ("Back to the overview", "All work is saved", "back"),
+        ]

@@ -1,0 +1,182 @@
+"""Small dialogs: effect of interest, override with reason, what is missing, a message."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import ClassVar
+
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+from robtui.tui.palette import badge
+
+EFFECTS = {
+    "assignment": "effect of assignment to intervention (the intention-to-treat effect)",
+    "adhering": "effect of adhering to intervention (the per-protocol effect)",
+}
+
+
+class EffectDialog(ModalScreen[str | None]):
+    """Choose the effect of interest; domain 2's questions depend on it."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, result_label: str, current: str) -> None:
+        super().__init__()
+        self.result_label = result_label
+        self.current = current
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(f"Effect of interest — {self.result_label}", style="bold"))
+            yield Static(
+                "Domain 2 asks different questions for each effect. Choose the effect the "
+                "review is interested in for this result (enter to choose, escape to cancel).",
+                classes="dialog-note",
+            )
+            options = OptionList(
+                *[Option(f"{code}: {text}", id=code) for code, text in EFFECTS.items()],
+                id="effect-options",
+            )
+            yield options
+
+    def on_mount(self) -> None:
+        options = self.query_one("#effect-options", OptionList)
+        options.highlighted = list(EFFECTS).index(self.current) if self.current in EFFECTS else 0
+        options.focus()
+
+    @on(OptionList.OptionSelected, "#effect-options")
+    def _chosen(self, event: OptionList.OptionSelected) -> None:
+        self.dismiss(event.option.id)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+@dataclass(frozen=True)
+class OverrideChoice:
+    judgement: str | None  # None: remove the override
+    reason: str = ""
+
+
+class OverrideDialog(ModalScreen[OverrideChoice | None]):
+    """Replace the proposed judgement; the reason is required."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
+    CHOICES = ("low", "some_concerns", "high")
+
+    def __init__(self, title: str, proposed: str, current, note: str = "") -> None:
+        super().__init__()
+        self.title_text = title
+        self.proposed = proposed
+        self.current = current  # Override | None
+        self.note = note
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(f"Override — {self.title_text}", style="bold"))
+            proposed = Text("The algorithm proposes ")
+            proposed.append_text(badge(self.proposed))
+            yield Static(proposed)
+            if self.note:
+                yield Static(self.note, classes="dialog-note")
+            yield OptionList(
+                *[Option(badge(code), id=code) for code in self.CHOICES], id="override-options"
+            )
+            yield Input(
+                value=self.current.reason if self.current else "",
+                placeholder="Reason for the override (required)",
+                id="override-reason",
+            )
+            yield Static("", id="override-error", classes="error-text")
+            with Horizontal(classes="dialog-buttons"):
+                yield Button("Save override", id="override-save", variant="primary")
+                if self.current is not None:
+                    yield Button("Remove override", id="override-remove")
+                yield Button("Cancel", id="override-cancel")
+
+    def on_mount(self) -> None:
+        options = self.query_one("#override-options", OptionList)
+        start = self.current.judgement if self.current else self.proposed
+        options.highlighted = self.CHOICES.index(start) if start in self.CHOICES else 0
+        options.focus()
+
+    @on(OptionList.OptionSelected, "#override-options")
+    def _judgement_chosen(self) -> None:
+        self.query_one("#override-reason", Input).focus()
+
+    @on(Input.Submitted, "#override-reason")
+    @on(Button.Pressed, "#override-save")
+    def _save(self) -> None:
+        options = self.query_one("#override-options", OptionList)
+        reason = self.query_one("#override-reason", Input).value.strip()
+        if not reason:
+            self.query_one("#override-error", Static).update(
+                "An override needs a reason: say why your judgement differs from the proposal."
+            )
+            self.query_one("#override-reason", Input).focus()
+            return
+        judgement = self.CHOICES[options.highlighted or 0]
+        self.dismiss(OverrideChoice(judgement, reason))
+
+    @on(Button.Pressed, "#override-remove")
+    def _remove(self) -> None:
+        self.dismiss(OverrideChoice(None))
+
+    @on(Button.Pressed, "#override-cancel")
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class ListDialog(ModalScreen[None]):
+    """A titled list of lines (what is missing, problems); any of enter/escape closes it."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape,enter", "close", "Close")]
+
+    def __init__(self, title: str, lines: list[str], intro: str = "") -> None:
+        super().__init__()
+        self.title_text = title
+        self.lines = lines
+        self.intro = intro
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(self.title_text, style="bold"))
+            if self.intro:
+                yield Static(self.intro, classes="dialog-note")
+            with VerticalScroll(classes="dialog-list"):
+                for line in self.lines:
+                    yield Static(Text(f"• {line}"))
+            yield Button("Close", id="list-close")
+
+    @on(Button.Pressed, "#list-close")
+    def action_close(self) -> None:
+        self.dismiss(None)
+
+
+class TextDialog(ModalScreen[None]):
+    """A titled block of rich text in a scroll area (domain summary)."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape,enter,s", "close", "Close")]
+
+    def __init__(self, title: str, body: Text) -> None:
+        super().__init__()
+        self.title_text = title
+        self.body = body
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog wide"):
+            yield Label(Text(self.title_text, style="bold"))
+            with VerticalScroll(classes="dialog-list"):
+                yield Static(self.body)
+            yield Button("Close", id="text-close")
+
+    @on(Button.Pressed, "#text-close")
+    def action_close(self) -> None:
+        self.dismiss(None)

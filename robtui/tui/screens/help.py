@@ -1,0 +1,59 @@
+"""The help screen: the key map, and what the suggestions are (and are not)."""
+
+from __future__ import annotations
+
+from typing import ClassVar
+
+from rich.table import Table
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Label, Static
+
+from robtui.tui.keys import KEY_MAP, RESPONSE_KEYS, RESPONSE_NAMES
+
+ABOUT_SUGGESTIONS = (
+    "Suggested sentences are candidates found by a lexical classifier, ranked with a score "
+    "between 0 and 1. They can be wrong or incomplete: read the report, and answer as your "
+    "review's handbook says. The proposed judgements follow the published RoB 2 algorithm; "
+    "you may override any of them with a reason."
+)
+
+
+def key_table() -> Table:
+    table = Table(box=None, show_header=True, header_style="bold", expand=True)
+    table.add_column("Where", no_wrap=True)
+    table.add_column("Keys", no_wrap=True, style="bold")
+    table.add_column("What")
+    for item in KEY_MAP:
+        table.add_row(item.screen, item.keys, item.what)
+    return table
+
+
+class HelpScreen(ModalScreen[None]):
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape,question_mark,f1,enter", "close", "Close help")
+    ]
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog wide", id="help"):
+            yield Label(Text("Workbench keys", style="bold"))
+            with VerticalScroll(classes="dialog-list"):
+                yield Static(key_table())
+                answers = Text("\nAnswer keys: ", style="bold")
+                answers.append(
+                    ", ".join(f"{k} = {c} ({RESPONSE_NAMES[c]})" for k, c in RESPONSE_KEYS.items()),
+                    style="",
+                )
+                yield Static(answers)
+                yield Static(Text("\n" + ABOUT_SUGGESTIONS, style="italic"))
+                yield Static(
+                    "\nEvery change is saved at once; quitting never loses work. Another "
+                    "reviewer's answers are never shown here: only the review's lead sees the "
+                    "comparison."
+                )
+
+    def action_close(self) -> None:
+        self.dismiss(None)

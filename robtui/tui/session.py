@@ -1,0 +1,379 @@
+"""The workbench's working state, without any Textual: what the screens show and change.
+
+A ``ReviewSession`` is one reviewer's view of a review folder. Blinding lives here: it only
+ever loads this reviewer's own assessment files (``ReviewFolder.load_assessment`` with the
+reviewer's name); another reviewer's answers reach the screen only through the lead's
+comparison (``ReviewSession.comparison_pairs``), which refuses anyone but the review's lead.
+
+An ``AssessmentSession`` wraps one assessment: every change goes through
+robtui.core.assessing and is saved at once (``ReviewFolder.save_assessment`` is atomic).
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from robtui.core import algorithm, assessing
+from robtui.core.model import OVERALL, Assessment, DismissedSuggestion, Quote, ReportFile
+from robtui.core.questions import Domain, Question, QuestionSet, builtin_question_set
+from robtui.errors import DataFileError, InputError, RobtuiError
+from robtui.store.progress import assessment_progress
+from robtui.store.review_folder import ReviewFolder
+
+REVIEWER_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
+
+STATUS_NOT_STARTED = "not started"
+STATUS_DRAFT = "draft"
+STATUS_COMPLETE = "complete"
+STATUS_UNREADABLE = "unreadable"
+STATUS_FILTERS: tuple[str, ...] = (
+    "all",
+    STATUS_NOT_STARTED,
+    STATUS_DRAFT,
+    STATUS_COMPLETE,
+    "problems",
+)
+
+
+def check_reviewer_name(name: str) -> str:
+    """The reviewer name, stripped; InputError when it cannot name an assessment folder."""
+    name = name.strip()
+    if not REVIEWER_PATTERN.match(name):
+        raise InputError(
+            f"reviewer name {name!r} is not usable: use 1-64 letters, digits, '.', '_' or '-', "
+            "starting with a letter or digit (e.g. --reviewer maria)"
+        )
+    return name
+
+
+@dataclass(frozen=True)
+class ResultRow:
+    """One line of the overview: a study's result and this reviewer's work on it."""
+
+    study_id: str
+    study_label: str
+    result_id: str
+    result_label: str
+    status: str
+    effect: str
+    final: Mapping[str, str]
+    answered: int
+    asked: int
+    problems: tuple[str, ...] = ()
+
+    @property
+    def key(self) -> str:
+        return f"{self.study_id}--{self.result_id}"
+
+
+class ReviewSession:
+    """One reviewer's session on a review folder."""
+
+    def __init__(self, folder: ReviewFolder, reviewer: str) -> None:
+        self.folder = folder
+        self.reviewer = check_reviewer_name(reviewer)
+        self.qset: QuestionSet = builtin_question_set(folder.review.question_set)
+
+    @property
+    def review(self):
+        return self.folder.review
+
+    @property
+    def is_lead(self) -> bool:
+        return bool(self.review.lead) and self.review.lead == self.reviewer
+
+    def report_problems(self, study_id: str) -> list[str]:
+        """Problems with a study's report files (missing, changed), as sentences."""
+        study = self.review.study(study_id)
+        if study is None:
+            return [f"study {study_id} is not in review.toml"]
+        problems = []
+        if not study.reports:
+            problems.append("no report file recorded for this study")
+        for report in study.reports:
+            problem = self.folder.check_report(report)
+            if problem:
+                problems.append(problem)
+        return problems
+
+    def rows(self) -> list[ResultRow]:
+        """Every study × result with this reviewer's progress (never another reviewer's)."""
+        rows = []
+        for study in self.review.studies:
+            report_problems = tuple(self.report_problems(study.id))
+            for result in self.review.results:
+                rows.append(self._row(study, result, report_problems))
+        return rows
+
+    def _row(self, study, result, report_problems: tuple[str, ...]) -> ResultRow:
+        label = result.outcome + (f" ({result.time_point})" if result.time_point else "")
+        status, effect, final, answered, asked = STATUS_NOT_STARTED, result.effect, {}, 0, 0
+        problems = report_problems
+        try:
+            assessment = self.folder.load_assessment(self.reviewer, study.id, result.id)
+        except RobtuiError as error:
+            assessment = None
+            status, problems = STATUS_UNREADABLE, (str(error), *report_problems)
+        if assessment is not None:
+            status, effect, final = assessment.status, assessment.effect, dict(assessment.final)
+            answered, asked = assessment_progress(assessment, self.qset)
+        return ResultRow(
+            study_id=study.id,
+            study_label=study.label,
+            result_id=result.id,
+            result_label=label,
+            status=status,
+            effect=effect,
+            final=final,
+            answered=answered,
+            asked=asked,
+            problems=problems,
+        )
+
+    def load(self, study_id: str, result_id: str) -> AssessmentSession | None:
+        """This reviewer's assessment of the result, or None when not started.
+
+        Raises DataFileError when the file is unreadable (it is left untouched).
+        """
+        assessment = self.folder.load_assessment(self.reviewer, study_id, result_id)
+        if assessment is None:
+            return None
+        return AssessmentSession(self, assessment)
+
+    def start(self, study_id: str, result_id: str, effect: str) -> AssessmentSession:
+        """Begin a new assessment with the chosen effect of interest, and save it."""
+        if self.folder.load_assessment(self.reviewer, study_id, result_id) is not None:
+            raise InputError(f"{self.reviewer} has already started {study_id} / {result_id}")
+        assessment = assessing.new_assessment(
+            self.review, study_id, result_id, self.reviewer, self.qset
+        )
+        if assessment.effect != effect:
+            assessment = assessing.set_effect(assessment, self.qset, effect)
+        session = AssessmentSession(self, assessment)
+        session.save()
+        return session
+
+    def comparison_pairs(self, reviewer_a: str, reviewer_b: str):
+        """Pairs of two reviewers' complete assessments: the lead's view only."""
+        if not self.is_lead:
+            raise InputError(
+                f"only the review's lead ({self.review.lead or 'none named'}) may compare "
+                "reviewers' assessments; open the review as the lead"
+            )
+        from robtui.core.comparison import pair_assessments
+
+        lists = []
+        problems: list[str] = []
+        for name in (reviewer_a, reviewer_b):
+            found, trouble = self.folder.assessments(name)
+            problems += trouble
+            lists.append([a for a in found if a.status == "complete"])
+        return pair_assessments(lists[0], lists[1]), problems
+
+
+@dataclass
+class AssessmentSession:
+    """One assessment being worked on; every change is saved at once."""
+
+    review_session: ReviewSession
+    assessment: Assessment
+    on_saved: Callable[[Path], None] | None = None
+    unsaved_error: str | None = field(default=None)
+
+    @property
+    def folder(self) -> ReviewFolder:
+        return self.review_session.folder
+
+    @property
+    def qset(self) -> QuestionSet:
+        return self.review_session.qset
+
+    @property
+    def study(self):
+        return self.review_session.review.study(self.assessment.study_id)
+
+    @property
+    def result(self):
+        return self.review_session.review.result(self.assessment.result_id)
+
+    @property
+    def effect(self) -> str:
+        return self.assessment.effect
+
+    @property
+    def is_complete(self) -> bool:
+        return self.assessment.status == "complete"
+
+    # -- reading the state -------------------------------------------------------------
+    def domain_ids(self) -> list[str]:
+        return self.qset.domain_ids()
+
+    def domain(self, domain_id: str) -> Domain:
+        return self.qset.domain(domain_id, self.effect)
+
+    def domain_of(self, question_id: str) -> str:
+        return self.question(question_id).domain
+
+    def question(self, question_id: str) -> Question:
+        return self.qset.question(question_id, self.effect)
+
+    def asked(self, domain_id: str) -> list[Question]:
+        answers = assessing.effective_answers(self.assessment, self.qset, domain_id)
+        return algorithm.asked_questions(self.domain(domain_id), answers)
+
+    def response(self, question_id: str) -> str | None:
+        answer = self.assessment.answers.get(question_id)
+        return answer.response if answer else None
+
+    def answer(self, question_id: str):
+        return self.assessment.answers.get(question_id)
+
+    def proposed(self, key: str) -> str:
+        return self.assessment.proposed.get(key, "incomplete")
+
+    def final(self, key: str) -> str:
+        return self.assessment.final.get(key, self.proposed(key))
+
+    def override(self, key: str):
+        return self.assessment.overrides.get(key)
+
+    def may_raise_overall(self) -> bool:
+        judgements = [self.final(d) for d in self.domain_ids()]
+        return algorithm.may_raise_overall(judgements)
+
+    def completion_problems(self) -> list[str]:
+        return assessing.completion_problems(self.assessment, self.qset)
+
+    def reports(self) -> list[tuple[ReportFile, str | None]]:
+        """The study's report files with their problem (None when the file is sound)."""
+        study = self.study
+        if study is None:
+            return []
+        return [(report, self.folder.check_report(report)) for report in study.reports]
+
+    def is_dismissed(self, question_id: str, sha256: str, start: int, end: int) -> bool:
+        return any(
+            d.question_id == question_id
+            and d.document_sha256 == sha256
+            and d.start == start
+            and d.end == end
+            for d in self.assessment.dismissed
+        )
+
+    # -- changing it (each saves) ------------------------------------------------------
+    def save(self) -> Path:
+        """Write the assessment now (atomic); keeps it in memory if the write fails."""
+        try:
+            path = self.folder.save_assessment(self.assessment)
+        except (RobtuiError, OSError) as error:
+            self.unsaved_error = str(error)
+            raise DataFileError(f"could not save the assessment: {error}") from error
+        self.unsaved_error = None
+        if self.on_saved:
+            self.on_saved(path)
+        return path
+
+    def _commit(self, assessment: Assessment) -> None:
+        self.assessment = assessment
+        self.save()
+
+    def _editable(self) -> None:
+        if self.is_complete:
+            raise InputError("this assessment is marked complete: reopen it (c) to change it")
+
+    def set_response(self, question_id: str, response: str | None) -> None:
+        self._editable()
+        question = self.question(question_id)
+        if response == "NA" and not question.if_applicable:
+            raise InputError(
+                f"NA is only for questions asked 'if applicable'; {question_id} is not"
+            )
+        if response is not None and response not in question.options:
+            allowed = ", ".join(question.options)
+            raise InputError(f"{response} is not an option for {question_id} (choose {allowed})")
+        self._commit(
+            assessing.set_response(self._at(question_id), self.qset, question_id, response)
+        )
+
+    def set_justification(self, question_id: str, text: str) -> None:
+        self._editable()
+        answer = self.answer(question_id)
+        if (answer.justification if answer else "") == text:
+            return
+        self._commit(
+            assessing.set_justification(self._at(question_id), self.qset, question_id, text)
+        )
+
+    def toggle_quote(self, question_id: str, quote: Quote) -> bool:
+        """Attach ``quote`` to the question, or detach it when already there; True if added."""
+        self._editable()
+        answer = self.answer(question_id)
+        quotes = answer.quotes if answer else []
+        for index, existing in enumerate(quotes):
+            if (existing.document_sha256, existing.start, existing.end) == (
+                quote.document_sha256,
+                quote.start,
+                quote.end,
+            ):
+                self._commit(
+                    assessing.remove_quote(self._at(question_id), self.qset, question_id, index)
+                )
+                return False
+        self._commit(assessing.add_quote(self._at(question_id), self.qset, question_id, quote))
+        return True
+
+    def dismiss(self, question_id: str, sha256: str, start: int, end: int) -> None:
+        """Record that a suggested sentence does not answer the question."""
+        self._editable()
+        if self.is_dismissed(question_id, sha256, start, end):
+            return
+        record = DismissedSuggestion(
+            question_id=question_id, document_sha256=sha256, start=start, end=end
+        )
+        updated = self._at(question_id).model_copy(
+            update={"dismissed": [*self.assessment.dismissed, record]}
+        )
+        self._commit(updated)
+
+    def set_effect(self, effect: str) -> None:
+        self._editable()
+        if effect == self.effect:
+            return
+        self._commit(assessing.set_effect(self.assessment, self.qset, effect))
+
+    def set_override(self, key: str, judgement: str, reason: str) -> None:
+        self._editable()
+        if not reason.strip():
+            raise InputError("an override needs a reason: say why the judgement differs")
+        self._commit(assessing.set_override(self.assessment, self.qset, key, judgement, reason))
+
+    def clear_override(self, key: str) -> None:
+        self._editable()
+        if key in self.assessment.overrides:
+            self._commit(assessing.clear_override(self.assessment, self.qset, key))
+
+    def remember_position(self, question_id: str) -> None:
+        """Record where the reviewer is, so reopening resumes there (saved)."""
+        if self.assessment.last_question == question_id:
+            return
+        self._commit(self._at(question_id))
+
+    def mark_complete(self) -> None:
+        """Mark complete; InputError listing what is missing when it cannot be."""
+        self._commit(assessing.mark_complete(self.assessment, self.qset))
+
+    def reopen(self) -> None:
+        self._commit(assessing.reopen(self.assessment))
+
+    def _at(self, question_id: str) -> Assessment:
+        if self.assessment.last_question == question_id:
+            return self.assessment
+        return self.assessment.model_copy(update={"last_question": question_id})
+
+
+def judgement_keys(qset: QuestionSet) -> Sequence[str]:
+    """Domain ids then "overall"."""
+    return [*qset.domain_ids(), OVERALL]
