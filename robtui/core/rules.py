@@ -97,7 +97,7 @@ class RuleProblem:
     message: str
 
     def __str__(self) -> str:
-        return f"{self.entry}: {self.message}"
+        return self.message if self.entry == "file" else f"{self.entry}: {self.message}"
 
 
 @dataclass(frozen=True)

@@ -159,7 +159,9 @@ def check_rulebook(book: RuleBook, qset: QuestionSetLike, path: Path) -> None:
     problems = validate_rulebook(book, qset)
     if problems:
         listed = "; ".join(str(p) for p in problems)
-        raise DataFileError(f"{path}: {listed}: fix the file by hand or with `robtui rules`")
+        raise DataFileError(
+            f"{path}: {listed}: fix the file by hand (`robtui rules check` lists every problem)"
+        )
 
 
 def load_rulebook(path: Path, qset: QuestionSetLike | None = None) -> RuleBook:
