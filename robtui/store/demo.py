@@ -1,0 +1,143 @@
+"""The bundled demo review, built through the store API from sample_reports/.
+
+sample_reports/demo/demo_review.toml describes the review: title, lead, reviewers, studies
+(which sample report files), results to assess, and the answers of both reviewers. Answers
+are layered so the file stays short: each ``[[assessment]]`` block gives answers for one
+study (and the results it names, default all), ``[assessment.reviewer.NAME]`` changes
+answers for one reviewer only (where the two reviewers disagree; ``code = ""`` takes a
+shared answer away), and
+``[[assessment.override]]`` records a reviewer's override with its reason. Quotes are given
+as text; their offsets are found by searching the report. Proposed judgements are always
+computed by the algorithm.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from collections.abc import Mapping
+from pathlib import Path
+
+from robtui.core import assessing
+from robtui.core.model import ResultSpec
+from robtui.core.questions import QuestionSet, builtin_question_set
+from robtui.errors import DataFileError, InputError, RobtuiError
+from robtui.paths import bundled_dir
+from robtui.store.quotes import find_quote
+from robtui.store.review_folder import ReviewFolder
+
+DEMO_FILE = Path("demo") / "demo_review.toml"
+DEMO_SCHEMA = 1
+_TOP_KEYS = {"schema_version", "title", "lead", "reviewers", "study", "result", "assessment"}
+_BLOCK_KEYS = {"study", "results", "answers", "reviewer", "override"}
+_ANSWER_KEYS = {"code", "why", "quote", "quotes"}
+_OVERRIDE_KEYS = {"reviewer", "key", "judgement", "reason"}
+
+
+def demo_source_dir() -> Path:
+    """The bundled sample_reports folder (holds demo/demo_review.toml and the reports)."""
+    return bundled_dir("sample_reports")
+
+
+def build_demo_review(dest: Path, *, source: Path | None = None) -> ReviewFolder:
+    """Build the demo review in ``dest`` (new or empty folder) and return it."""
+    source = Path(source) if source is not None else demo_source_dir()
+    dest = Path(dest)
+    if dest.exists() and (not dest.is_dir() or any(dest.iterdir())):
+        raise InputError(f"{dest} is not empty: give a new or empty folder for the demo")
+    spec_path = source / DEMO_FILE
+    data = _read_spec(spec_path)
+    try:
+        return _build(dest, source, data, spec_path)
+    except RobtuiError as error:
+        if isinstance(error, DataFileError):
+            raise
+        raise DataFileError(f"{spec_path}: {error}") from None
+
+
+def _read_spec(path: Path) -> dict:
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise DataFileError(
+            f"demo description not found: {path}: reinstall robtui (the demo is bundled)"
+        ) from None
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as error:
+        raise DataFileError(f"{path}: not valid TOML ({error})") from None
+    _keys(data, _TOP_KEYS, path, "top level")
+    if data.get("schema_version") != DEMO_SCHEMA:
+        raise DataFileError(f"{path}: schema_version must be {DEMO_SCHEMA}")
+    return data
+
+
+def _keys(table: Mapping, allowed: set[str], path: Path, entry: str) -> None:
+    unknown = sorted(set(table) - allowed)
+    if unknown:
+        raise DataFileError(f"{path}: {entry}: unknown key {unknown[0]!r}")
+
+
+def _build(dest: Path, source: Path, data: dict, path: Path) -> ReviewFolder:
+    qset = builtin_question_set()
+    folder = ReviewFolder.create(
+        dest, data["title"], lead=data.get("lead"), reviewers=data.get("reviewers", [])
+    )
+    for study in data.get("study", []):
+        files = [source / name for name in study.get("files", [])]
+        folder.add_study(study["id"], study["label"], files)
+    for result in data.get("result", []):
+        folder.add_result(ResultSpec.model_validate(result))
+    for reviewer in folder.review.reviewers:
+        for study in folder.review.studies:
+            for result in folder.review.results:
+                layers = _layers(data.get("assessment", []), study.id, result.id, reviewer, path)
+                a = _assess(folder, qset, reviewer, study.id, result.id, layers)
+                folder.save_assessment(a)
+    return folder
+
+
+def _layers(blocks: list, study_id: str, result_id: str, reviewer: str, path: Path):
+    """Answers and overrides for one reviewer's assessment, later blocks winning."""
+    answers: dict[str, dict] = {}
+    overrides: list[dict] = []
+    for index, block in enumerate(blocks, start=1):
+        entry = f"assessment {index} ({block.get('study')})"
+        _keys(block, _BLOCK_KEYS, path, entry)
+        if block.get("study") != study_id:
+            continue
+        if result_id not in block.get("results", [result_id]):
+            continue
+        answers.update(block.get("answers", {}))
+        answers.update(block.get("reviewer", {}).get(reviewer, {}))
+        overrides += [o for o in block.get("override", []) if o.get("reviewer") == reviewer]
+    for qid, answer in answers.items():
+        _keys(answer, _ANSWER_KEYS, path, f"study {study_id}, answer {qid}")
+        if "code" not in answer:
+            raise DataFileError(f"{path}: study {study_id}, answer {qid}: no code given")
+    for o in overrides:
+        _keys(o, _OVERRIDE_KEYS, path, f"study {study_id}, override")
+    # code = "" in a reviewer's layer takes a shared answer away (a question that reviewer's
+    # path does not ask).
+    return {q: a for q, a in answers.items() if a["code"]}, overrides
+
+
+def _assess(folder, qset: QuestionSet, reviewer, study_id, result_id, layers):
+    answers, overrides = layers
+    where = f"{reviewer}, {study_id} / {result_id}"
+    a = assessing.new_assessment(folder.review, study_id, result_id, reviewer, qset)
+    order = {q.id: i for i, q in enumerate(qset.questions(a.effect))}
+    unknown = [qid for qid in answers if qid not in order]
+    if unknown:
+        raise InputError(f"{where}: unknown question {unknown[0]}")
+    try:
+        for qid in sorted(answers, key=order.__getitem__):
+            answer = answers[qid]
+            a = assessing.set_response(a, qset, qid, answer["code"])
+            a = assessing.set_justification(a, qset, qid, answer.get("why", ""))
+            texts = answer.get("quotes", []) + ([answer["quote"]] if "quote" in answer else [])
+            for text in texts:
+                a = assessing.add_quote(a, qset, qid, find_quote(folder, study_id, text))
+        for o in overrides:
+            a = assessing.set_override(a, qset, o["key"], o["judgement"], o["reason"])
+        a = assessing.mark_complete(a, qset)
+    except InputError as error:
+        raise InputError(f"{where}: {error}") from None
+    return a.model_copy(update={"last_question": None})
