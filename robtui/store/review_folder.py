@@ -182,6 +182,11 @@ class ReviewFolder:
                 "--title TITLE` to make one, or give the folder that holds review.toml"
             )
         review = read_toml_record(Review, root / REVIEW_FILE)
+        for name in [*review.reviewers, *([review.lead] if review.lead else [])]:
+            try:
+                check_id(name, "reviewer")
+            except InputError as error:
+                raise DataFileError(f"{root / REVIEW_FILE}: {error}") from None
         return cls(root, review)
 
     @classmethod

@@ -194,6 +194,9 @@ def test_newer_or_broken_review_toml(folder: ReviewFolder):
     toml.write_text(original.replace("schema_version = 1", "schema_version = 7"), encoding="utf-8")
     with pytest.raises(NewerSchemaError, match="schema 7"):
         ReviewFolder.open(folder.root)
+    toml.write_text(original.replace('"ben"', '"b en"'), encoding="utf-8")
+    with pytest.raises(DataFileError, match="reviewer id 'b en' is not allowed"):
+        ReviewFolder.open(folder.root)
     toml.write_text("title = [unclosed", encoding="utf-8")
     with pytest.raises(DataFileError, match="not valid TOML"):
         ReviewFolder.open(folder.root)
