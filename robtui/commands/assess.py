@@ -80,6 +80,11 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         action="store_true",
         help="list the reviewer in review.toml if not yet there",
     )
+    parser.add_argument(
+        "--questions",
+        action="store_true",
+        help="list the questions asked on the current path, with their text and answers",
+    )
     parser.add_argument("--json", action="store_true", help="print the assessment as JSON")
     parser.set_defaults(func=run)
     parser.__class__ = _IntermixedParser
@@ -170,6 +175,21 @@ def describe(a, qset) -> list[str]:
     return lines
 
 
+def question_lines(a, qset) -> list[str]:
+    """The questions asked on the current path, each with its answer (or '--')."""
+    from robtui.core import assessing
+
+    lines = []
+    for domain_id in qset.domain_ids():
+        domain = assessing.domain_of(a, qset, domain_id)
+        lines.append(f"D{domain_id} {domain.name}")
+        answers = assessing.effective_answers(a, qset, domain_id)
+        for q in assessing.asked_questions(a, qset, domain_id):
+            code = answers.get(q.id, "--")
+            lines.append(f"  {q.id:<5} {code:<3} {q.text}  [{'/'.join(q.options)}]")
+    return lines
+
+
 def run(args: argparse.Namespace) -> int:
     from robtui.core import assessing
     from robtui.core.questions import builtin_question_set
@@ -207,6 +227,8 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         print(record_to_json(changed), end="")
     else:
+        if args.questions:
+            print("\n".join(question_lines(changed, qset)))
         print("\n".join(describe(changed, qset)))
         print(saved)
     return 0

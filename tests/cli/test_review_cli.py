@@ -75,6 +75,12 @@ def test_full_flow(review: Path, capsys):
     quote = data["answers"]["1.1"]["quotes"][0]
     assert REPORT[quote["start"] : quote["end"]] == quote["text"]
     assert data["answers"]["1.1"]["justification"] == "computer list"
+    before = snapshot(review)
+    code, out, _ = assess(capsys, review, "--questions")
+    assert code == 0 and "nothing changed" in out
+    assert "  1.1   Y   Was the allocation sequence random?" in out
+    assert "  2.1   --  " in out and "2.3" not in out  # 2.3 is not asked yet
+    assert snapshot(review) == before
 
     code, out, _ = assess(capsys, review, *LOW[3:])
     assert code == 0 and "nothing missing" in out
