@@ -82,15 +82,8 @@ def validate_answers(domain: Domain, answers: Mapping[str, str]) -> list[str]:
                 f"unknown question {qid!r} for domain {domain.id}"
                 f" (questions: {', '.join(known)})"
             )
-        elif code not in RESPONSE_CODES:
-            problems.append(
-                f"{qid}: unknown answer code {code!r} (use {', '.join(RESPONSE_CODES)})"
-            )
-        elif code not in known[qid].options:
-            problems.append(
-                f"{qid}: {code} is not an option for this question"
-                f" (options: {', '.join(known[qid].options)})"
-            )
+        elif problem := _code_problem(qid, code, known[qid].options):
+            problems.append(problem)
     if problems:
         return problems
     asked = {q.id for q in asked_questions(domain, answers)}
@@ -104,15 +97,19 @@ def validate_answers(domain: Domain, answers: Mapping[str, str]) -> list[str]:
 
 
 def _check_codes(domain: Domain, answers: Mapping[str, str]) -> None:
+    options = {q.id: q.options for q in domain.questions}
     for qid, code in answers.items():
-        if code not in RESPONSE_CODES:
-            raise InputError(f"{qid}: unknown answer code {code!r} (use {', '.join(RESPONSE_CODES)})")
-        q = next((q for q in domain.questions if q.id == qid), None)
-        if q is not None and code not in q.options:
-            raise InputError(
-                f"{qid}: {code} is not an option for this question"
-                f" (options: {', '.join(q.options)})"
-            )
+        problem = _code_problem(qid, code, options.get(qid, RESPONSE_CODES))
+        if problem:
+            raise InputError(problem)
+
+
+def _code_problem(qid: str, code: object, options: tuple[str, ...]) -> str | None:
+    if code not in RESPONSE_CODES:
+        return f"{qid}: unknown answer code {code!r} (use {', '.join(RESPONSE_CODES)})"
+    if code not in options:
+        return f"{qid}: {code} is not an option for this question (options: {', '.join(options)})"
+    return None
 
 
 def explain_domain(domain: Domain, answers: Mapping[str, str]) -> DomainResult:

@@ -278,7 +278,9 @@ def _table_list(raw: Mapping, key: str, entry: str) -> list[Mapping]:
     return value
 
 
-def _condition(raw: object, entry: str, earlier: Mapping[str, Question]) -> Condition:
+def _condition(
+    raw: object, entry: str, earlier: Mapping[str, Question], which: str = "an earlier question"
+) -> Condition:
     """Parse a condition; it may mention only questions in ``earlier``, with their options."""
     if not isinstance(raw, dict):
         raise _Problem(entry, "a condition must be a table: { q = ..., is = [...] }, { all = [...] }"
@@ -286,8 +288,7 @@ def _condition(raw: object, entry: str, earlier: Mapping[str, Question]) -> Cond
     if set(raw) == {"q", "is"}:
         qid, codes = raw["q"], raw["is"]
         if qid not in earlier:
-            raise _Problem(entry, f"refers to question {qid!r}, which is not an earlier question of"
-                           " this domain")
+            raise _Problem(entry, f"refers to question {qid!r}, which is not {which} of this domain")
         if not isinstance(codes, list) or not codes:
             raise _Problem(entry, f"'is' for {qid} must be a non-empty list of response codes")
         for code in codes:
@@ -299,7 +300,7 @@ def _condition(raw: object, entry: str, earlier: Mapping[str, Question]) -> Cond
         kind, items = next(iter(raw.items()))
         if not isinstance(items, list) or not items:
             raise _Problem(entry, f"'{kind}' must be a non-empty list of conditions")
-        parsed = tuple(_condition(item, entry, earlier) for item in items)
+        parsed = tuple(_condition(item, entry, earlier, which) for item in items)
         return Group(kind, parsed)
     raise _Problem(entry, f"a condition needs keys q and is, or one key all/any; got "
                    f"{', '.join(sorted(map(str, raw))) or 'nothing'}")
@@ -362,7 +363,7 @@ def _tables(raw_tables: list[Mapping], entry: str, questions: Mapping[str, Quest
             _check_keys(raw_row, _ROW_KEYS, r_entry)
             if "when" not in raw_row:
                 raise _Problem(r_entry, "has no 'when' condition")
-            when = _condition(raw_row["when"], f"{r_entry}, when", questions)
+            when = _condition(raw_row["when"], f"{r_entry}, when", questions, "a question")
             then = raw_row.get("then")
             if then not in JUDGEMENT_CODES:
                 raise _Problem(f"{r_entry}, then",
