@@ -1,6 +1,7 @@
 """robtui judge: proposed RoB 2 judgements from signalling-question answers.
 
 Single use:  robtui judge --domain 4 4.1=N 4.2=N 4.3=Y 4.4=N   (prints judgement and path)
+             robtui judge --overall low,some_concerns,some_concerns,low,low
 Batch:       robtui judge --batch < lines.jsonl                 (one JSON line out per line in)
 
 Only the standard library and the pydantic-free core are imported, so the command starts fast.
@@ -29,6 +30,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("answers", nargs="*", metavar="ID=CODE",
                         help="answers such as 4.1=N (codes Y, PY, PN, N, NI, NA)")
     parser.add_argument("--domain", help="domain to judge (1 to 5)")
+    parser.add_argument("--overall", metavar="J,J,J,J,J",
+                        help="overall judgement from domain judgements in domain order, such as "
+                        "low,some_concerns,high,low,low")
     parser.add_argument("--effect", default="assignment", choices=("assignment", "adhering"),
                         help="effect of interest; matters for domain 2 (default: assignment)")
     parser.add_argument("--question-set", default="rob2-parallel", metavar="ID",
@@ -44,14 +48,39 @@ def run(args: argparse.Namespace) -> int:
     from robtui.errors import InputError
 
     if args.batch:
-        if args.domain or args.answers:
+        if args.domain or args.answers or args.overall:
             raise InputError("--batch reads its input from stdin: leave out --domain and answers")
         import sys
 
         return run_batch(sys.stdin, sys.stdout)
+    if args.overall:
+        if args.domain or args.answers:
+            raise InputError("--overall takes domain judgements only: leave out --domain and answers")
+        return run_overall(args)
     if not args.domain:
-        raise InputError("say what to judge: --domain N ID=CODE ... (or --batch for JSON Lines)")
+        raise InputError(
+            "say what to judge: --domain N ID=CODE ..., --overall J,J,J,J,J, or --batch"
+        )
     return run_single(args)
+
+
+def run_overall(args: argparse.Namespace) -> int:
+    from robtui.core.algorithm import judge_overall, may_raise_overall
+    from robtui.core.questions import builtin_question_set
+    from robtui.errors import InputError
+
+    qset = builtin_question_set(args.question_set)
+    judgements = [j.strip().lower() for j in args.overall.split(",")]
+    n = len(qset.domain_ids())
+    if len(judgements) != n:
+        raise InputError(f"--overall needs {n} domain judgements separated by commas, "
+                         f"got {len(judgements)}")
+    print(f"Overall: {_LABELS[judge_overall(judgements)]}")
+    if may_raise_overall(judgements):
+        print("note: several domains have some concerns; reviewers may judge the overall High "
+              "if together they substantially lower confidence (record it as an override with "
+              "a reason)")
+    return 0
 
 
 def _parse_pairs(pairs: list[str]) -> dict[str, str]:
@@ -118,6 +147,8 @@ def _judge_request(request: dict) -> str:
     from robtui.errors import InputError
 
     tool = request.get("tool")
+    if tool is None:
+        raise InputError(f"missing 'tool' (use {', '.join(TOOLS)})")
     if tool not in TOOLS:
         raise InputError(f"unknown tool {tool!r} (use {', '.join(TOOLS)})")
     qset = builtin_question_set(TOOLS[tool])

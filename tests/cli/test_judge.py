@@ -152,3 +152,27 @@ def test_judge_imports_no_heavy_modules():
                          check=False, timeout=60)
     assert "): Low" in run.stdout, run.stdout + run.stderr
     assert "HEAVY []" in run.stdout, run.stdout + run.stderr
+
+
+def test_single_use_overall_and_may_raise_note(capsys):
+    # Overall = least favourable domain; with several some-concerns domains the guidance lets
+    # reviewers judge High (template, overall criteria): the command only points this out.
+    assert main(["judge", "--overall", "low,some_concerns,some_concerns,low,low"]) == 0
+    out = capsys.readouterr().out.splitlines()
+    assert out[0] == "Overall: Some concerns"
+    assert out[1].startswith("note: several domains have some concerns")
+    assert main(["judge", "--overall", "low,some_concerns,high,low,low"]) == 0
+    assert capsys.readouterr().out == "Overall: High\n"
+
+
+def test_overall_bad_input_exit_2(capsys):
+    assert main(["judge", "--overall", "low,high"]) == 2
+    assert "needs 5 domain judgements" in capsys.readouterr().err
+    assert main(["judge", "--overall", "low,low,low,low,fine"]) == 2
+    assert "unknown judgement 'fine'" in capsys.readouterr().err
+
+
+def test_batch_line_without_tool_is_an_error(monkeypatch, capsys):
+    monkeypatch.setattr("sys.stdin", io.StringIO('{"domain": 1, "answers": {}}\n'))
+    assert main(["judge", "--batch"]) == 0
+    assert "missing 'tool'" in json.loads(capsys.readouterr().out)["error"]
