@@ -1,0 +1,506 @@
+"""Comparing two reviewers' assessments and settling them into a consensus (pure).
+
+Only assessments marked complete are compared; a pair where one side is missing or still a
+draft is kept in the list with the reason (``AssessmentPair.problem``), never dropped.
+A consensus record starts from the answers both reviewers gave alike; the lead settles every
+other question (take A, take B, or a new answer, always with a note); the domain and overall
+judgements are recomputed by the algorithm from the agreed answers.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+
+from robtui.core.agreement import agreement
+from robtui.core.algorithm import asked_questions, propose_all
+from robtui.core.model import (
+    JUDGEMENT_LABELS,
+    JUDGEMENTS,
+    OVERALL,
+    RESPONSES,
+    Answer,
+    Assessment,
+    Consensus,
+    Decision,
+    Override,
+    Quote,
+    utc_now,
+)
+from robtui.errors import InputError
+
+SOURCES = ("a", "b", "new")
+
+
+@dataclass(frozen=True)
+class AssessmentPair:
+    """Reviewer A's and B's assessments of one result of one study (either may be None)."""
+
+    study_id: str
+    result_id: str
+    reviewer_a: str
+    reviewer_b: str
+    a: Assessment | None
+    b: Assessment | None
+
+    @property
+    def problem(self) -> str | None:
+        """Why this pair cannot be compared, or None when both sides are complete."""
+        issues = []
+        for name, side in ((self.reviewer_a, self.a), (self.reviewer_b, self.b)):
+            if side is None:
+                issues.append(f"{name}: no assessment")
+            elif side.status != "complete":
+                issues.append(f"{name}: draft, not marked complete")
+        if not issues and self.a.effect != self.b.effect:
+            issues.append(
+                f"effects differ ({self.reviewer_a}: {self.a.effect}, "
+                f"{self.reviewer_b}: {self.b.effect}): agree the effect of interest first"
+            )
+        return "; ".join(issues) or None
+
+    @property
+    def comparable(self) -> bool:
+        return self.problem is None
+
+    @property
+    def key(self) -> tuple[str, str]:
+        return (self.study_id, self.result_id)
+
+
+@dataclass(frozen=True)
+class QuestionDifference:
+    """One signalling question, both sides: response (None = not answered / not asked)."""
+
+    question_id: str
+    domain_id: str
+    text: str
+    short: str
+    response_a: str | None
+    response_b: str | None
+    justification_a: str
+    justification_b: str
+    quotes_a: tuple[Quote, ...]
+    quotes_b: tuple[Quote, ...]
+
+    @property
+    def differs(self) -> bool:
+        return self.response_a != self.response_b
+
+
+@dataclass(frozen=True)
+class JudgementRow:
+    """A domain (or overall) judgement, both sides: proposal, final, override reason."""
+
+    key: str
+    label: str
+    proposed_a: str | None
+    final_a: str | None
+    override_a: str | None
+    proposed_b: str | None
+    final_b: str | None
+    override_b: str | None
+
+    @property
+    def differs(self) -> bool:
+        return self.final_a != self.final_b
+
+
+@dataclass(frozen=True)
+class PairComparison:
+    pair: AssessmentPair
+    questions: list[QuestionDifference]  # differences first, then agreements, question order
+    judgements: list[JudgementRow]  # domains in order, then overall
+
+    @property
+    def n_differences(self) -> int:
+        return sum(q.differs for q in self.questions)
+
+    def to_dict(self) -> dict:
+        return {
+            "study": self.pair.study_id,
+            "result": self.pair.result_id,
+            "reviewers": [self.pair.reviewer_a, self.pair.reviewer_b],
+            "effect": self.pair.a.effect,
+            "differences": self.n_differences,
+            "judgements": [
+                {
+                    "key": j.key,
+                    "label": j.label,
+                    "a": {"proposed": j.proposed_a, "final": j.final_a, "override": j.override_a},
+                    "b": {"proposed": j.proposed_b, "final": j.final_b, "override": j.override_b},
+                    "differs": j.differs,
+                }
+                for j in self.judgements
+            ],
+            "questions": [
+                {
+                    "id": q.question_id,
+                    "domain": q.domain_id,
+                    "text": q.text,
+                    "differs": q.differs,
+                    "a": _side(q.response_a, q.justification_a, q.quotes_a),
+                    "b": _side(q.response_b, q.justification_b, q.quotes_b),
+                }
+                for q in self.questions
+            ],
+        }
+
+
+def _side(response: str | None, justification: str, quotes: Sequence[Quote]) -> dict:
+    return {
+        "response": response,
+        "justification": justification,
+        "quotes": [{"text": q.text, "page": q.page} for q in quotes],
+    }
+
+
+# -- pairing -------------------------------------------------------------------------------------
+def pair_assessments(
+    a: list[Assessment],
+    b: list[Assessment],
+    *,
+    reviewer_a: str | None = None,
+    reviewer_b: str | None = None,
+    expected: Sequence[tuple[str, str]] = (),
+) -> list[AssessmentPair]:
+    """Pair A's and B's assessments by (study, result).
+
+    ``expected`` lists the (study, result) keys the review asks for, so that a result neither
+    reviewer has started shows up too. Order: ``expected`` first, then any other keys sorted.
+    """
+    name_a = reviewer_a or (a[0].reviewer if a else "A")
+    name_b = reviewer_b or (b[0].reviewer if b else "B")
+    by_a = {(x.study_id, x.result_id): x for x in a}
+    by_b = {(x.study_id, x.result_id): x for x in b}
+    keys = list(dict.fromkeys(expected))
+    keys += sorted((set(by_a) | set(by_b)) - set(keys))
+    return [
+        AssessmentPair(s, r, name_a, name_b, by_a.get((s, r)), by_b.get((s, r))) for s, r in keys
+    ]
+
+
+# -- answers on the current path -------------------------------------------------------------------
+def path_answers(qset, effect: str, answers: Mapping[str, Answer]) -> dict[str, str]:
+    """Responses to the questions asked on the current path (answers off the path ignored)."""
+    responses = {qid: a.response for qid, a in answers.items() if a.response is not None}
+    result: dict[str, str] = {}
+    for domain_id in qset.domain_ids():
+        domain = qset.domain(domain_id, effect)
+        own = {q.id: responses[q.id] for q in domain.questions if q.id in responses}
+        for question in asked_questions(domain, own):
+            if question.id in own:
+                result[question.id] = own[question.id]
+    return result
+
+
+def _answer(record, qid: str) -> Answer:
+    return record.answers.get(qid) or Answer()
+
+
+def differences(pair: AssessmentPair, qset) -> list[QuestionDifference]:
+    """Every signalling question of the pair, both sides; differences first."""
+    _require_comparable(pair)
+    effect = pair.a.effect
+    eff_a = path_answers(qset, effect, pair.a.answers)
+    eff_b = path_answers(qset, effect, pair.b.answers)
+    rows = []
+    for question in qset.questions(effect):
+        ans_a, ans_b = _answer(pair.a, question.id), _answer(pair.b, question.id)
+        on_a, on_b = question.id in eff_a, question.id in eff_b
+        rows.append(
+            QuestionDifference(
+                question_id=question.id,
+                domain_id=question.domain,
+                text=question.text,
+                short=question.short,
+                response_a=eff_a.get(question.id),
+                response_b=eff_b.get(question.id),
+                justification_a=ans_a.justification if on_a else "",
+                justification_b=ans_b.justification if on_b else "",
+                quotes_a=tuple(ans_a.quotes) if on_a else (),
+                quotes_b=tuple(ans_b.quotes) if on_b else (),
+            )
+        )
+    return [r for r in rows if r.differs] + [r for r in rows if not r.differs]
+
+
+def _judgement_keys(qset) -> list[tuple[str, str]]:
+    keys = []
+    for domain_id in qset.domain_ids():
+        domain = qset.domain(domain_id)
+        keys.append((domain_id, f"D{domain_id} {domain.short_name}"))
+    keys.append((OVERALL, "Overall"))
+    return keys
+
+
+def judgement_rows(pair: AssessmentPair, qset) -> list[JudgementRow]:
+    """Domain and overall judgements of both sides, in order."""
+    _require_comparable(pair)
+    rows = []
+    for key, label in _judgement_keys(qset):
+        over_a, over_b = pair.a.overrides.get(key), pair.b.overrides.get(key)
+        rows.append(
+            JudgementRow(
+                key=key,
+                label=label,
+                proposed_a=pair.a.proposed.get(key),
+                final_a=pair.a.final.get(key),
+                override_a=over_a.reason if over_a else None,
+                proposed_b=pair.b.proposed.get(key),
+                final_b=pair.b.final.get(key),
+                override_b=over_b.reason if over_b else None,
+            )
+        )
+    return rows
+
+
+def compare_pair(pair: AssessmentPair, qset) -> PairComparison:
+    """Everything a comparison screen shows for one pair (both sides complete)."""
+    return PairComparison(pair, differences(pair, qset), judgement_rows(pair, qset))
+
+
+def _require_comparable(pair: AssessmentPair) -> None:
+    if pair.problem:
+        raise InputError(
+            f"{pair.study_id} / {pair.result_id} cannot be compared: {pair.problem}; "
+            "both reviewers must mark their assessments complete first"
+        )
+
+
+# -- agreement over the review ---------------------------------------------------------------------
+def review_agreement(pairs: Sequence[AssessmentPair], qset) -> dict:
+    """Agreement per domain, overall and per signalling question (the agreement JSON shape).
+
+    Only comparable pairs count; the others are listed under "not_compared".
+    """
+    usable = [p for p in pairs if p.comparable]
+    reviewers = [pairs[0].reviewer_a, pairs[0].reviewer_b] if pairs else []
+    domains: dict[str, dict] = {}
+    for key, _label in _judgement_keys(qset):
+        judged = [
+            (p.a.final.get(key), p.b.final.get(key))
+            for p in usable
+            if p.a.final.get(key) in JUDGEMENTS and p.b.final.get(key) in JUDGEMENTS
+        ]
+        domains[key] = agreement(judged, JUDGEMENTS, ordered=True).to_dict()
+    question_pairs: dict[str, list[tuple[str, str]]] = {}
+    question_cats: dict[str, list[str]] = {}
+    for p in usable:
+        effect = p.a.effect
+        eff_a = path_answers(qset, effect, p.a.answers)
+        eff_b = path_answers(qset, effect, p.b.answers)
+        for question in qset.questions(effect):
+            if question.id not in eff_a or question.id not in eff_b:
+                continue  # asked of one reviewer only: shows in the comparison, not in kappa
+            key = (
+                question.id
+                if effect == "assignment" or question.domain != "2"
+                else (f"{question.id}@{effect}")
+            )
+            question_pairs.setdefault(key, []).append((eff_a[question.id], eff_b[question.id]))
+            question_cats.setdefault(key, list(question.options))
+    order = [q.id for q in qset.questions("assignment")]
+    order += [k for k in question_pairs if k not in order]
+    questions = {}
+    for key in [k for k in order if k in question_pairs]:
+        qpairs = question_pairs[key]
+        seen = [v for pair in qpairs for v in pair]
+        cats = list(dict.fromkeys([*question_cats[key], *[c for c in RESPONSES if c in seen]]))
+        questions[key] = agreement(qpairs, cats).to_dict()
+    return {
+        "reviewers": reviewers,
+        "compared": len(usable),
+        "not_compared": [
+            {"study": p.study_id, "result": p.result_id, "problem": p.problem}
+            for p in pairs
+            if not p.comparable
+        ],
+        "domains": domains,
+        "questions": questions,
+    }
+
+
+# -- consensus ---------------------------------------------------------------------------------
+def start_consensus(pair: AssessmentPair, lead: str, qset) -> Consensus:
+    """A new consensus record: questions answered alike are agreed; the rest await the lead."""
+    _require_comparable(pair)
+    effect = pair.a.effect
+    eff_a = path_answers(qset, effect, pair.a.answers)
+    eff_b = path_answers(qset, effect, pair.b.answers)
+    answers: dict[str, Answer] = {}
+    decisions: dict[str, Decision] = {}
+    for question in qset.questions(effect):
+        qid = question.id
+        if qid in eff_a and eff_a.get(qid) == eff_b.get(qid):
+            ans_a, ans_b = _answer(pair.a, qid), _answer(pair.b, qid)
+            answers[qid] = Answer(
+                response=eff_a[qid],
+                justification=_joined(pair, ans_a.justification, ans_b.justification),
+                quotes=_merged_quotes(ans_a.quotes, ans_b.quotes),
+            )
+            decisions[qid] = Decision(question_id=qid, source="agreed", response=eff_a[qid])
+    consensus = Consensus(
+        study_id=pair.study_id,
+        result_id=pair.result_id,
+        reviewers=(pair.reviewer_a, pair.reviewer_b),
+        lead=lead,
+        question_set=pair.a.question_set,
+        question_set_version=pair.a.question_set_version,
+        effect=effect,
+        answers=answers,
+        decisions=decisions,
+    )
+    return recompute_consensus(consensus, qset)
+
+
+def _joined(pair: AssessmentPair, text_a: str, text_b: str) -> str:
+    if text_a.strip() == text_b.strip():
+        return text_a
+    parts = [
+        f"{name}: {t.strip()}"
+        for name, t in ((pair.reviewer_a, text_a), (pair.reviewer_b, text_b))
+        if t.strip()
+    ]
+    return "\n".join(parts)
+
+
+def _merged_quotes(first: Sequence[Quote], second: Sequence[Quote]) -> list[Quote]:
+    seen, merged = set(), []
+    for q in [*first, *second]:
+        key = (q.document_sha256, q.start, q.end)
+        if key not in seen:
+            seen.add(key)
+            merged.append(q)
+    return merged
+
+
+def settle(
+    consensus: Consensus,
+    qset,
+    question_id: str,
+    source: str,
+    response: str | None = None,
+    note: str = "",
+    *,
+    pair: AssessmentPair | None = None,
+) -> Consensus:
+    """Settle one question: take A's answer, B's answer, or a new ``response``; with a note.
+
+    Taking a side copies that side's response, justification and quotes (``pair`` needed);
+    a side that was not asked the question gives "not asked" (response None).
+    """
+    if consensus.status == "complete":
+        raise InputError(
+            f"consensus for {consensus.study_id} / {consensus.result_id} is complete: "
+            "reopen it before changing an answer"
+        )
+    question = _question(qset, consensus.effect, question_id)
+    if source not in SOURCES:
+        raise InputError(f"source must be one of {', '.join(SOURCES)} (take A, take B, new)")
+    if not note.strip():
+        raise InputError(f"settling {question_id} needs a note saying why: add one")
+    if source in ("a", "b"):
+        if response is not None:
+            raise InputError("give a response only with source 'new'")
+        if pair is None or pair.key != (consensus.study_id, consensus.result_id):
+            raise InputError(f"taking a side needs the two assessments of {consensus.study_id}")
+        side = pair.a if source == "a" else pair.b
+        effective = path_answers(qset, consensus.effect, side.answers)
+        taken = _answer(side, question_id)
+        answer = (
+            Answer(
+                response=effective[question_id],
+                justification=taken.justification,
+                quotes=list(taken.quotes),
+            )
+            if question_id in effective
+            else Answer()
+        )
+    else:
+        if response is None or response not in question.options:
+            raise InputError(
+                f"a new answer to {question_id} must be one of {', '.join(question.options)}"
+            )
+        old = consensus.answers.get(question_id) or Answer()
+        answer = Answer(response=response, justification=old.justification, quotes=old.quotes)
+    answers = dict(consensus.answers)
+    answers[question_id] = answer
+    decisions = dict(consensus.decisions)
+    decisions[question_id] = Decision(
+        question_id=question_id, source=source, response=answer.response, note=note.strip()
+    )
+    changed = consensus.model_copy(update={"answers": answers, "decisions": decisions})
+    return recompute_consensus(changed, qset)
+
+
+def _question(qset, effect: str, question_id: str):
+    for question in qset.questions(effect):
+        if question.id == question_id:
+            return question
+    known = ", ".join(q.id for q in qset.questions(effect))
+    raise InputError(f"no signalling question {question_id!r} (questions: {known})")
+
+
+def set_consensus_override(
+    consensus: Consensus, qset, key: str, judgement: str, reason: str
+) -> Consensus:
+    """The lead overrides a recomputed judgement (domain id or "overall") with a reason."""
+    keys = [k for k, _ in _judgement_keys(qset)]
+    if key not in keys:
+        raise InputError(f"override key must be one of {', '.join(keys)}")
+    if judgement not in JUDGEMENTS:
+        raise InputError(f"judgement must be one of {', '.join(JUDGEMENTS)}")
+    if not reason.strip():
+        raise InputError("an override needs a reason: add one")
+    current = recompute_consensus(consensus, qset)
+    overrides = dict(current.overrides)
+    overrides[key] = Override(
+        judgement=judgement, reason=reason.strip(), proposed=current.proposed.get(key, "incomplete")
+    )
+    return recompute_consensus(current.model_copy(update={"overrides": overrides}), qset)
+
+
+def recompute_consensus(consensus: Consensus, qset) -> Consensus:
+    """Proposals from the agreed answers by the algorithm; final = proposal unless overridden."""
+    effective = path_answers(qset, consensus.effect, consensus.answers)
+    proposed = dict(propose_all(qset, consensus.effect, effective))
+    final = dict(proposed)
+    for key, override in consensus.overrides.items():
+        final[key] = override.judgement
+    return Consensus.model_validate(
+        {**consensus.model_dump(), "proposed": proposed, "final": final, "updated": utc_now()}
+    )
+
+
+def pending_questions(consensus: Consensus, qset) -> list[str]:
+    """Questions asked on the consensus's current path that have no agreed response yet."""
+    effective = path_answers(qset, consensus.effect, consensus.answers)
+    pending = []
+    for domain_id in qset.domain_ids():
+        domain = qset.domain(domain_id, consensus.effect)
+        own = {q.id: effective[q.id] for q in domain.questions if q.id in effective}
+        pending += [q.id for q in asked_questions(domain, own) if q.id not in own]
+    return pending
+
+
+def complete_consensus(consensus: Consensus, qset) -> Consensus:
+    """Mark complete; InputError lists the questions still to settle."""
+    current = recompute_consensus(consensus, qset)
+    pending = pending_questions(current, qset)
+    incomplete = [k for k, v in current.final.items() if v == "incomplete"]
+    if pending or incomplete:
+        raise InputError(
+            f"consensus for {consensus.study_id} / {consensus.result_id} is not finished: "
+            f"settle {', '.join(pending) or 'the open questions'}"
+            + (f" (domains still incomplete: {', '.join(incomplete)})" if incomplete else "")
+        )
+    return current.model_copy(update={"status": "complete"})
+
+
+def reopen_consensus(consensus: Consensus) -> Consensus:
+    return consensus.model_copy(update={"status": "draft", "updated": utc_now()})
+
+
+def judgement_label(code: str | None) -> str:
+    return JUDGEMENT_LABELS.get(code or "incomplete", "Incomplete")

@@ -1,0 +1,76 @@
+"""Keeping exports safe: spreadsheet formula injection, markup escaping, paths inside exports/."""
+
+from __future__ import annotations
+
+import html
+import os
+from pathlib import Path, PurePath
+
+from robtui.errors import InputError
+
+# A spreadsheet reads a cell starting with one of these as a formula (OWASP, "CSV Injection").
+_FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
+def csv_cell(value: object) -> str:
+    """Text for a CSV cell; a leading formula character gets an apostrophe in front."""
+    text = "" if value is None else str(value)
+    if text.startswith(_FORMULA_STARTS):
+        return "'" + text
+    return text
+
+
+def markup(text: object) -> str:
+    """Escape user-written text for HTML and SVG (quotes included, for attributes)."""
+    return html.escape("" if text is None else str(text), quote=True)
+
+
+_TEX_SPECIALS = {
+    "\\": r"\textbackslash{}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "{": r"\{",
+    "}": r"\}",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
+}
+
+
+def tex(text: object) -> str:
+    """Escape text for LaTeX."""
+    return "".join(_TEX_SPECIALS.get(ch, ch) for ch in ("" if text is None else str(text)))
+
+
+def md(text: object) -> str:
+    """Text for a Markdown table cell: pipes escaped, line breaks as <br>, HTML escaped."""
+    value = markup(text).replace("|", r"\|")
+    return value.replace("\r\n", "\n").replace("\n", "<br>")
+
+
+def export_path(exports_dir: Path, name: str) -> Path:
+    """The path of export file ``name`` inside ``exports_dir``; refuses anything outside it.
+
+    Rejects absolute paths, ``..`` parts, and paths that resolve (through symlinks) outside
+    the exports folder.
+    """
+    if not name or not name.strip():
+        raise InputError("export name is empty: give a file name such as 'primary-outcome'")
+    pure = PurePath(name)
+    if pure.is_absolute() or os.path.isabs(name) or name.startswith("~"):
+        raise InputError(
+            f"export name {name!r} is an absolute path: exports are written inside the "
+            "review's exports/ folder; give a plain name"
+        )
+    if ".." in pure.parts:
+        raise InputError(f"export name {name!r} contains '..': give a name inside exports/")
+    base = Path(exports_dir).resolve()
+    target = (base / pure).resolve()
+    if target != base and base not in target.parents:
+        raise InputError(
+            f"export name {name!r} leads outside the review's exports/ folder "
+            "(through a symbolic link): give another name"
+        )
+    return base / pure

@@ -1,0 +1,180 @@
+"""What an export holds, per result: judgement rows, summary shares, supporting answers (pure).
+
+Which judgements a study's row uses (its ``source``):
+- "consensus": a consensus record marked complete (the final judgement of the result);
+- "agreed by A, B": no complete consensus, but every complete assessment has the same
+  domain and overall judgements;
+- "A only": exactly one reviewer's assessment is complete;
+- otherwise the row is not judged, and the reason is listed in ``problems`` (drafts,
+  missing assessments, reviewers who differ without a complete consensus) - never skipped.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+
+from robtui.core.comparison import path_answers
+from robtui.core.grade import GradeSuggestion, suggest_rob_rating
+from robtui.core.model import JUDGEMENTS, OVERALL, Assessment, Consensus, Quote, Review
+
+
+@dataclass(frozen=True)
+class JudgementRow:
+    study_id: str
+    study_label: str
+    judgements: dict[str, str | None]  # domain ids and "overall" -> code, None = not judged
+    source: str  # "consensus", "agreed by a, b", "a only", "not judged"
+    weight: float | None
+
+
+@dataclass(frozen=True)
+class SupportingRow:
+    study_id: str
+    source: str
+    domain_id: str
+    question_id: str
+    question: str
+    response: str | None
+    justification: str
+    quotes: tuple[Quote, ...]
+
+
+@dataclass(frozen=True)
+class OutcomeExport:
+    review_title: str
+    result_id: str
+    outcome: str
+    time_point: str
+    effect: str
+    columns: list[tuple[str, str]]  # (key, header) for domains then overall
+    rows: list[JudgementRow]
+    shares: dict[str, dict[str, float]]  # key -> judgement code (and "incomplete") -> share
+    basis: str  # "studies" or "weight"
+    supporting: list[SupportingRow]
+    grade: GradeSuggestion
+    problems: list[str] = field(default_factory=list)
+
+
+def _columns(qset) -> list[tuple[str, str]]:
+    cols = [(d, f"D{d}") for d in qset.domain_ids()]
+    return cols + [(OVERALL, "Overall")]
+
+
+def column_titles(qset) -> dict[str, str]:
+    """Domain key -> "D1 Randomisation" style title (our short names)."""
+    titles = {d: f"D{d} {qset.domain(d).short_name}" for d in qset.domain_ids()}
+    titles[OVERALL] = "Overall"
+    return titles
+
+
+def build_outcome_export(
+    review: Review,
+    result_id: str,
+    qset,
+    assessments: Sequence[Assessment],
+    consensus: Sequence[Consensus],
+) -> OutcomeExport:
+    """Assemble every table of one result's export from the stored records."""
+    spec = review.result(result_id)
+    columns = _columns(qset)
+    keys = [k for k, _ in columns]
+    rows: list[JudgementRow] = []
+    supporting: list[SupportingRow] = []
+    problems: list[str] = []
+    by_study: dict[str, list[Assessment]] = {}
+    for a in assessments:
+        if a.result_id == result_id:
+            by_study.setdefault(a.study_id, []).append(a)
+    agreed = {c.study_id: c for c in consensus if c.result_id == result_id}
+    for study in review.studies:
+        own = sorted(by_study.get(study.id, []), key=lambda a: a.reviewer)
+        record, source, problem = _choose(study.id, own, agreed.get(study.id), review, keys)
+        if problem:
+            problems.append(f"{study.id}: {problem}")
+        judgements = {k: (record.final.get(k) if record else None) for k in keys}
+        judgements = {k: (v if v in JUDGEMENTS else None) for k, v in judgements.items()}
+        weight = spec.weights.get(study.id) if spec and spec.weights else None
+        rows.append(JudgementRow(study.id, study.label, judgements, source, weight))
+        if record is not None:
+            supporting += _supporting(study.id, source, record, qset)
+    shares, basis = _shares(rows, keys, spec.weights if spec else {})
+    overall = {r.study_id: r.judgements[OVERALL] for r in rows}
+    grade = suggest_rob_rating(overall, spec.weights if spec and spec.weights else None)
+    return OutcomeExport(
+        review_title=review.title,
+        result_id=result_id,
+        outcome=spec.outcome if spec else result_id,
+        time_point=spec.time_point if spec else "",
+        effect=spec.effect if spec else "assignment",
+        columns=columns,
+        rows=rows,
+        shares=shares,
+        basis=basis,
+        supporting=supporting,
+        grade=grade,
+        problems=problems,
+    )
+
+
+def _choose(study_id, own: list[Assessment], cons: Consensus | None, review: Review, keys):
+    """(record, source, problem): the record whose judgements the row shows."""
+    if cons is not None and cons.status == "complete":
+        return cons, "consensus", None
+    complete = [a for a in own if a.status == "complete"]
+    notes = []
+    if cons is not None:
+        notes.append("consensus started but not complete")
+    drafts = [a.reviewer for a in own if a.status != "complete"]
+    if drafts:
+        notes.append(f"draft by {', '.join(drafts)}")
+    missing = [r for r in review.reviewers if r not in {a.reviewer for a in own}]
+    if missing:
+        notes.append(f"no assessment by {', '.join(missing)}")
+    if not complete:
+        return None, "not judged", "; ".join(notes) or "no assessment"
+    finals = {tuple(a.final.get(k) for k in keys) for a in complete}
+    if len(finals) > 1:
+        names = ", ".join(a.reviewer for a in complete)
+        notes.insert(0, f"reviewers {names} differ and no consensus is complete")
+        return None, "not judged", "; ".join(notes)
+    names = ", ".join(a.reviewer for a in complete)
+    source = f"agreed by {names}" if len(complete) > 1 else f"{names} only"
+    return complete[0], source, ("; ".join(notes) if notes else None)
+
+
+def _supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]:
+    effective = path_answers(qset, record.effect, record.answers)
+    rows = []
+    for question in qset.questions(record.effect):
+        if question.id not in effective:
+            continue
+        answer = record.answers[question.id]
+        rows.append(
+            SupportingRow(
+                study_id=study_id,
+                source=source,
+                domain_id=question.domain,
+                question_id=question.id,
+                question=question.text,
+                response=effective[question.id],
+                justification=answer.justification,
+                quotes=tuple(answer.quotes),
+            )
+        )
+    return rows
+
+
+def _shares(rows: list[JudgementRow], keys: list[str], weights: dict[str, float]):
+    """Per key, the share of studies (or of weight) at each judgement, incomplete included."""
+    use_weight = bool(weights) and all(r.study_id in weights for r in rows)
+    basis = "weight" if use_weight else "studies"
+    shares: dict[str, dict[str, float]] = {}
+    for key in keys:
+        counts = {code: 0.0 for code in (*JUDGEMENTS, "incomplete")}
+        for row in rows:
+            w = weights[row.study_id] if use_weight else 1.0
+            counts[row.judgements[key] or "incomplete"] += w
+        total = sum(counts.values())
+        shares[key] = {c: (v / total if total else 0.0) for c, v in counts.items()}
+    return shares, basis

@@ -1,0 +1,390 @@
+"""Writing one result's export in a format: csv, md, html, tex (text) or svg, png, pdf (plots).
+
+Each export holds the traffic-light table, the summary of judgements per domain, the
+supporting table (every answer with its justification and quotes with page numbers), the
+GRADE suggestion, and the list of studies not judged (drafts, missing assessments), so that
+nothing is left out silently. Files go to the review's exports/ folder, atomically.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+from collections.abc import Sequence
+from pathlib import Path
+
+from robtui.core.model import JUDGEMENTS, Assessment, Consensus
+from robtui.export.palette import OUTLINE, SWATCHES, swatch
+from robtui.export.safety import csv_cell, export_path, markup, md, tex
+from robtui.export.tables import OutcomeExport, build_outcome_export, column_titles
+from robtui.store.atomic import write_bytes_atomic, write_text_atomic
+
+TEXT_FORMATS = ("csv", "md", "html", "tex")
+PLOT_FORMATS = ("svg", "png", "pdf")
+FORMATS = TEXT_FORMATS + PLOT_FORMATS
+SHARE_CODES = (*JUDGEMENTS, "incomplete")
+
+
+def _quotes_text(quotes) -> str:
+    return " | ".join(
+        f"\u201c{q.text}\u201d" + (f" (p. {q.page})" if q.page else " (page not known)")
+        for q in quotes
+    )
+
+
+def _heading(ex: OutcomeExport) -> str:
+    when = f", {ex.time_point}" if ex.time_point else ""
+    return f"{ex.outcome}{when} (result {ex.result_id}; effect of {ex.effect})"
+
+
+def _basis_words(ex: OutcomeExport) -> str:
+    return "meta-analysis weight" if ex.basis == "weight" else "studies"
+
+
+# -- csv ---------------------------------------------------------------------------------------
+def to_csv(ex: OutcomeExport) -> dict[str, str]:
+    """Two CSV files: the judgements (one row per study) and the supporting answers."""
+    out = io.StringIO()
+    w = csv.writer(out, lineterminator="\n")
+    w.writerow(["study", "label", *[h for _, h in ex.columns], "source", "weight", "note"])
+    notes = _notes_by_study(ex)
+    for row in ex.rows:
+        w.writerow(
+            [
+                csv_cell(v)
+                for v in (
+                    row.study_id,
+                    row.study_label,
+                    *[row.judgements[k] or "not judged" for k, _ in ex.columns],
+                    row.source,
+                    "" if row.weight is None else f"{row.weight:g}",
+                    notes.get(row.study_id, ""),
+                )
+            ]
+        )
+    answers = io.StringIO()
+    w = csv.writer(answers, lineterminator="\n")
+    w.writerow(
+        [
+            "study",
+            "source",
+            "domain",
+            "question",
+            "question_text",
+            "response",
+            "justification",
+            "quotes",
+        ]
+    )
+    for s in ex.supporting:
+        w.writerow(
+            [
+                csv_cell(v)
+                for v in (
+                    s.study_id,
+                    s.source,
+                    s.domain_id,
+                    s.question_id,
+                    s.question,
+                    s.response,
+                    s.justification,
+                    _quotes_text(s.quotes),
+                )
+            ]
+        )
+    return {"judgements.csv": out.getvalue(), "answers.csv": answers.getvalue()}
+
+
+def _notes_by_study(ex: OutcomeExport) -> dict[str, str]:
+    notes = {}
+    for problem in ex.problems:
+        study, _, text = problem.partition(": ")
+        notes[study] = text
+    return notes
+
+
+# -- markdown ----------------------------------------------------------------------------------
+def to_markdown(ex: OutcomeExport, qset) -> str:
+    titles = column_titles(qset)
+    lines = [f"# Risk of bias: {md(_heading(ex))}", "", f"Review: {md(ex.review_title)}", ""]
+    lines += [
+        "## Judgements",
+        "",
+        "| Study | " + " | ".join(md(titles[k]) for k, _ in ex.columns) + " | Source |",
+        "|---" * (len(ex.columns) + 2) + "|",
+    ]
+    for row in ex.rows:
+        cells = [_md_mark(row.judgements[k]) for k, _ in ex.columns]
+        lines.append(f"| {md(row.study_label)} | " + " | ".join(cells) + f" | {md(row.source)} |")
+    lines += ["", "Key: " + "; ".join(f"[{s.letter}] {s.label}" for s in SWATCHES.values()), ""]
+    lines += _md_summary(ex, titles) + _md_grade(ex) + _md_not_judged(ex)
+    lines += [
+        "## Supporting table",
+        "",
+        "| Study | Source | Question | Answer | Justification | Quotes |",
+        "|---|---|---|---|---|---|",
+    ]
+    for s in ex.supporting:
+        lines.append(
+            f"| {md(s.study_id)} | {md(s.source)} | {md(s.question_id)} {md(s.question)} | "
+            f"{md(s.response)} | {md(s.justification)} | {md(_quotes_text(s.quotes))} |"
+        )
+    return "\n".join(lines) + "\n"
+
+
+def _md_mark(code: str | None) -> str:
+    sw = swatch(code)
+    return f"[{sw.letter}] {sw.label}"
+
+
+def _md_summary(ex: OutcomeExport, titles) -> list[str]:
+    lines = [
+        f"## Summary (share of {_basis_words(ex)})",
+        "",
+        "| Domain | " + " | ".join(swatch(c).label for c in SHARE_CODES) + " |",
+        "|---" * (len(SHARE_CODES) + 1) + "|",
+    ]
+    for key, _ in ex.columns:
+        shares = ex.shares[key]
+        lines.append(
+            f"| {md(titles[key])} | " + " | ".join(f"{shares[c]:.0%}" for c in SHARE_CODES) + " |"
+        )
+    return lines + [""]
+
+
+def _md_grade(ex: OutcomeExport) -> list[str]:
+    g = ex.grade
+    rating = g.rating or "no suggestion"
+    lines = [
+        "## GRADE: risk of bias (suggestion)",
+        "",
+        f"**Suggested rating: {rating}.** {md(g.rationale)}",
+        "",
+        f"_{md(g.label)}_ {md(g.rule_of_thumb)}",
+    ]
+    lines += [f"- {md(n)}" for n in g.notes]
+    return lines + [""]
+
+
+def _md_not_judged(ex: OutcomeExport) -> list[str]:
+    if not ex.problems:
+        return ["All studies judged.", ""]
+    return ["## Not judged or not final", ""] + [f"- {md(p)}" for p in ex.problems] + [""]
+
+
+# -- html --------------------------------------------------------------------------------------
+_CSS = """
+body{font-family:system-ui,sans-serif;color:#1a1a1a;max-width:72rem;margin:2rem auto;padding:0 1rem}
+table{border-collapse:separate;border-spacing:3px}
+th{font-weight:600;text-align:left;padding:.2rem .5rem}
+td.j{width:7.5rem;text-align:center;font-weight:600;padding:.3rem .2rem;border-radius:4px}
+td.overall{outline:2px solid #1a1a1a}
+td.none{border:1px dashed %(outline)s}
+.bar{display:flex;width:28rem;height:1.5rem;border:1px solid #1a1a1a}
+.bar span{display:flex;align-items:center;justify-content:center;font-size:.8rem;overflow:hidden}
+table.support td{vertical-align:top;border-bottom:1px solid #ddd;padding:.3rem .5rem}
+.grade{border-left:6px solid #3D1A4F;padding:.5rem 1rem;background:#f6f4f8}
+.note{color:#444;font-size:.9rem}
+"""
+
+
+def to_html(ex: OutcomeExport, qset) -> str:
+    titles = column_titles(qset)
+    css = _CSS % {"outline": OUTLINE}
+    styles = "".join(
+        f".k-{code}{{background:{sw.fill};color:{sw.ink}}}" for code, sw in SWATCHES.items()
+    )
+    parts = [
+        '<!DOCTYPE html><html lang="en"><head><meta charset="utf-8">',
+        f"<title>Risk of bias: {markup(_heading(ex))}</title><style>{css}{styles}</style></head>",
+        f"<body><h1>Risk of bias: {markup(_heading(ex))}</h1>",
+        f'<p class="note">Review: {markup(ex.review_title)}</p>',
+        "<h2>Judgements</h2><table><tr><th>Study</th>",
+    ]
+    parts += [f"<th>{markup(titles[k])}</th>" for k, _ in ex.columns] + ["<th>Source</th></tr>"]
+    for row in ex.rows:
+        parts.append(f"<tr><th>{markup(row.study_label)}</th>")
+        for key, _ in ex.columns:
+            code = row.judgements[key] or "incomplete"
+            sw = swatch(code)
+            extra = (" overall" if key == "overall" else "") + (
+                " none" if code == "incomplete" else ""
+            )
+            parts.append(
+                f'<td class="j k-{code}{extra}" title="{markup(sw.label)}">'
+                f"{markup(sw.letter)} {markup(sw.label)}</td>"
+            )
+        parts.append(f'<td class="note">{markup(row.source)}</td></tr>')
+    parts.append("</table>")
+    parts.append(f"<h2>Summary: share of {_basis_words(ex)} at each judgement</h2><table>")
+    for key, _ in ex.columns:
+        parts.append(f'<tr><th>{markup(titles[key])}</th><td><div class="bar">')
+        for code in SHARE_CODES:
+            share = ex.shares[key][code]
+            if share <= 0:
+                continue
+            sw = swatch(code)
+            label = f"{sw.letter} {share:.0%}" if share >= 0.08 else ""
+            parts.append(
+                f'<span class="k-{code}" style="width:{share * 100:.2f}%" '
+                f'title="{markup(sw.label)} {share:.0%}">{label}</span>'
+            )
+        parts.append("</div></td></tr>")
+    parts.append(
+        '</table><p class="note">Key: '
+        + "; ".join(f"{markup(s.letter)} = {markup(s.label)}" for s in SWATCHES.values())
+        + "</p>"
+    )
+    g = ex.grade
+    parts.append(
+        f'<h2>GRADE: risk of bias</h2><div class="grade"><p><strong>Suggested rating: '
+        f"{markup(g.rating or 'no suggestion')}</strong>. {markup(g.rationale)}</p>"
+        f'<p class="note">{markup(g.label)} {markup(g.rule_of_thumb)}</p>'
+        + "".join(f'<p class="note">{markup(n)}</p>' for n in g.notes)
+        + "</div>"
+    )
+    if ex.problems:
+        parts.append(
+            "<h2>Not judged or not final</h2><ul>"
+            + "".join(f"<li>{markup(p)}</li>" for p in ex.problems)
+            + "</ul>"
+        )
+    parts.append(
+        '<h2>Supporting table</h2><table class="support"><tr><th>Study</th>'
+        "<th>Question</th><th>Answer</th><th>Justification</th><th>Quotes</th></tr>"
+    )
+    for s in ex.supporting:
+        quotes = "".join(
+            f'<blockquote>{markup(q.text)} <span class="note">'
+            f"({'p. ' + str(q.page) if q.page else 'page not known'})</span></blockquote>"
+            for q in s.quotes
+        )
+        parts.append(
+            f'<tr><td>{markup(s.study_id)}<br><span class="note">{markup(s.source)}</span></td>'
+            f"<td>{markup(s.question_id)} {markup(s.question)}</td><td>{markup(s.response)}</td>"
+            f"<td>{markup(s.justification)}</td><td>{quotes}</td></tr>"
+        )
+    parts.append("</table></body></html>\n")
+    return "".join(parts)
+
+
+# -- tex ---------------------------------------------------------------------------------------
+def to_tex(ex: OutcomeExport, qset) -> str:
+    titles = column_titles(qset)
+    colours = "\n".join(
+        f"\\definecolor{{rt{code.replace('_', '')}}}{{HTML}}{{{sw.fill[1:]}}}"
+        f"\\definecolor{{rt{code.replace('_', '')}ink}}{{HTML}}{{{sw.ink[1:]}}}"
+        for code, sw in SWATCHES.items()
+    )
+    lines = [
+        r"\documentclass{article}",
+        r"\usepackage[utf8]{inputenc}",
+        r"\usepackage[T1]{fontenc}",
+        r"\usepackage[table]{xcolor}",
+        r"\usepackage{longtable}",
+        r"\usepackage[margin=2cm]{geometry}",
+        colours,
+        r"\begin{document}",
+        f"\\section*{{Risk of bias: {tex(_heading(ex))}}}",
+        f"Review: {tex(ex.review_title)}",
+        r"\subsection*{Judgements}",
+        r"\begin{longtable}{l" + "c" * len(ex.columns) + "l}",
+        "Study & " + " & ".join(tex(titles[k]) for k, _ in ex.columns) + r" & Source \\ \hline",
+    ]
+    for row in ex.rows:
+        cells = []
+        for key, _ in ex.columns:
+            code = (row.judgements[key] or "incomplete").replace("_", "")
+            sw = swatch(row.judgements[key])
+            cells.append(f"\\cellcolor{{rt{code}}}\\textcolor{{rt{code}ink}}{{{tex(sw.letter)}}}")
+        lines.append(
+            f"{tex(row.study_label)} & " + " & ".join(cells) + f" & {tex(row.source)} \\\\"
+        )
+    lines += [
+        r"\end{longtable}",
+        "Key: " + "; ".join(f"{tex(s.letter)} = {tex(s.label)}" for s in SWATCHES.values()),
+        f"\\subsection*{{Summary: share of {_basis_words(ex)}}}",
+        r"\begin{tabular}{l" + "r" * len(SHARE_CODES) + "}",
+        "Domain & " + " & ".join(tex(swatch(c).label) for c in SHARE_CODES) + r" \\ \hline",
+    ]
+    for key, _ in ex.columns:
+        lines.append(
+            tex(titles[key])
+            + " & "
+            + " & ".join(tex(f"{ex.shares[key][c]:.0%}") for c in SHARE_CODES)
+            + r" \\"
+        )
+    g = ex.grade
+    lines += [
+        r"\end{tabular}",
+        r"\subsection*{GRADE: risk of bias (suggestion)}",
+        f"\\textbf{{Suggested rating: {tex(g.rating or 'no suggestion')}.}} "
+        f"{tex(g.rationale)}\\par {tex(g.label)} {tex(g.rule_of_thumb)}",
+    ]
+    lines += [f"\\par {tex(n)}" for n in g.notes]
+    if ex.problems:
+        lines += [r"\subsection*{Not judged or not final}", r"\begin{itemize}"]
+        lines += [f"\\item {tex(p)}" for p in ex.problems] + [r"\end{itemize}"]
+    lines += [
+        r"\subsection*{Supporting table}",
+        r"\begin{longtable}{p{2cm}p{4cm}p{1cm}p{4cm}p{4cm}}",
+        r"Study & Question & Answer & Justification & Quotes \\ \hline",
+    ]
+    for s in ex.supporting:
+        lines.append(
+            f"{tex(s.study_id)} & {tex(s.question_id)} {tex(s.question)} & "
+            f"{tex(s.response)} & {tex(s.justification)} & "
+            f"{tex(_quotes_text(s.quotes))} \\\\"
+        )
+    lines += [r"\end{longtable}", r"\end{document}"]
+    return "\n".join(lines) + "\n"
+
+
+# -- writing -----------------------------------------------------------------------------------
+def export_outcome(
+    folder,
+    qset,
+    result_id: str,
+    fmt: str,
+    *,
+    name: str | None = None,
+    assessments: Sequence[Assessment] | None = None,
+    consensus: Sequence[Consensus] | None = None,
+) -> tuple[list[Path], OutcomeExport]:
+    """Write one result's export in ``fmt`` under exports/; returns the paths and the data."""
+    from robtui.errors import InputError
+
+    if fmt not in FORMATS:
+        raise InputError(f"unknown export format {fmt!r}: choose one of {', '.join(FORMATS)}")
+    folder.result_or_error(result_id)
+    if assessments is None:
+        assessments, _ = folder.assessments()
+    if consensus is None:
+        consensus, _ = folder.consensus_records()
+    ex = build_outcome_export(folder.review, result_id, qset, assessments, consensus)
+    stem = name or result_id
+    written: list[Path] = []
+
+    def put(suffix: str, data: str | bytes) -> None:
+        path = export_path(folder.exports_dir, f"{stem}{suffix}")
+        if isinstance(data, bytes):
+            write_bytes_atomic(path, data)
+        else:
+            write_text_atomic(path, data)
+        written.append(path)
+
+    if fmt == "csv":
+        for suffix, text in to_csv(ex).items():
+            put(f"-{suffix}", text)
+    elif fmt == "md":
+        put(".md", to_markdown(ex, qset))
+    elif fmt == "html":
+        put(".html", to_html(ex, qset))
+    elif fmt == "tex":
+        put(".tex", to_tex(ex, qset))
+    else:
+        from robtui.export.plot import render_lights, render_summary
+
+        put(f"-lights.{fmt}", render_lights(ex, qset, fmt))
+        put(f"-summary.{fmt}", render_summary(ex, qset, fmt))
+    return written, ex
