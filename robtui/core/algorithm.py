@@ -91,7 +91,8 @@ def validate_answers(domain: Domain, answers: Mapping[str, str]) -> list[str]:
         if qid not in asked:
             q = known[qid]
             problems.append(
-                f"{qid} is answered but not asked: its condition ({q.condition_text}) is not met"
+                f"{qid} is answered but not asked: its condition ({q.condition_text}) is not"
+                " met; leave it out or change the earlier answer"
             )
     return problems
 
