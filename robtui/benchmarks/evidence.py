@@ -1,0 +1,344 @@
+"""robtui bench evidence: how well the ranker finds each question's evidence on unseen articles.
+
+Grouped cross-validation only: for each fold the ranker is trained (settings as shipped, see
+the weights' provenance) on the other folds' articles and evaluated on the held-out ones, as
+text read by robtui's text reader and as two-column PDFs rendered from the same text and read
+by robtui's PDF reader. Beside it, in the same run, a baseline: TF-IDF cosine between the
+question's wording and each sentence (the fold's vocabulary). Per mapped question and
+macro-averaged: recall@1/3/5, MRR, sentences read before the first hit, AUROC of "evidence
+present" from the top score. Then calibration, the no-evidence threshold, the transfer model
+(for questions without training data, leave-one-question-out) and speed.
+Corpus: Kilicoglu et al., J Biomed Inform 2021;116:103717 (CONSORT-TM development split).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import subprocess
+import sys
+import tempfile
+import time
+from dataclasses import asdict, fields
+from pathlib import Path
+
+import numpy as np
+
+TARGETS = "recall@1 >= 0.85, recall@3 >= 0.95 (macro); PDF within 0.03; AUROC >= 0.85 (1.2, 2.1, 5.1)"
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="robtui bench evidence", description=__doc__.split("\n\n")[0])
+    p.add_argument("--corpus", type=Path, default=None, help="corpus folder (default ../shared/corpus)")
+    p.add_argument("--folds", type=int, default=5, help="grouped CV folds (default 5)")
+    p.add_argument("--articles", type=int, default=None, help="first N articles only (quick runs)")
+    p.add_argument("--no-pdf", action="store_true", help="skip the PDF route")
+    p.add_argument("--no-speed", action="store_true", help="skip the timings")
+    p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
+    return p
+
+
+def _settings_from_shipped():
+    from robtui.errors import ModelFileError
+    from robtui.evidence.model import load_weights
+    from robtui.evidence.train import Settings
+
+    try:
+        shipped = load_weights().provenance.get("settings", {})
+    except ModelFileError:
+        shipped = {}
+    known = {f.name for f in fields(Settings)}
+    values = {k: (tuple(v) if isinstance(v, list) else v) for k, v in shipped.items() if k in known}
+    return Settings(**values)
+
+
+def _scores_for(ranker, doc, keys, texts):
+    from robtui.evidence.ranker import sigmoid
+
+    feats = ranker.features(doc.document)
+    logits = ranker.logits(feats, keys, [texts.get(k, "") for k in keys])
+    qvec = ranker._question_vectors([texts.get(k, "") for k in keys])
+    baseline = feats.word.dot(qvec) if feats.n else np.zeros((0, len(keys)))
+    return {k: sigmoid(logits[k]) for k in keys}, {k: baseline[:, j] for j, k in enumerate(keys)}
+
+
+class Tally:
+    """Ranks, lengths, top scores and presence per question, to turn into figures."""
+
+    def __init__(self):
+        self.rows: dict[str, list[tuple]] = {}
+
+    def add(self, key, scores, labels, present):
+        from robtui.evidence.metrics import first_hit_rank
+
+        rank = first_hit_rank(scores, labels) if present else None
+        top = float(scores.max()) if len(scores) else 0.0
+        self.rows.setdefault(key, []).append((rank, len(scores), top, present))
+
+    def figures(self):
+        from robtui.evidence.metrics import QuestionFigures
+
+        return {
+            k: QuestionFigures.from_ranks([r[0] for r in v], [r[1] for r in v],
+                                          [r[2] for r in v], [r[3] for r in v])
+            for k, v in self.rows.items()
+        }
+
+
+def _fmt(x) -> str:
+    return "   -" if x is None or (isinstance(x, float) and np.isnan(x)) else f"{x:.2f}"
+
+
+def _print_table(title: str, columns: dict[str, dict], keys: list[str]) -> None:
+    from robtui.evidence.metrics import macro
+
+    print(f"\n{title}")
+    names = list(columns)
+    head = "question   n  " + "  ".join(f"{n:^38}" for n in names)
+    print(head)
+    print("              " + "  ".join("  R@1   R@3   R@5   MRR  read  AUROC " for _ in names))
+    for key in keys + ["macro"]:
+        parts = []
+        n = None
+        for name in names:
+            figs = columns[name]
+            if key == "macro":
+                vals = [macro(figs, a) for a in ("recall1", "recall3", "recall5", "mrr",
+                                                  "read_before", "auroc")]
+            else:
+                f = figs.get(key)
+                if f is None:
+                    vals = [None] * 6
+                else:
+                    n = f.n
+                    vals = [f.recall1, f.recall3, f.recall5, f.mrr, f.read_before, f.auroc]
+            parts.append(" ".join(f"{_fmt(v):>5}" for v in vals[:4]) + f" {_fmt(vals[4]):>5}"
+                         + f" {_fmt(vals[5]):>6} ")
+        label = f"{key:<8} {n if n is not None else '':>3}  "
+        print(label + "  ".join(parts))
+
+
+def _calibration(pairs: list[tuple[float, bool]]) -> dict:
+    s = np.array([p for p, _ in pairs])
+    y = np.array([t for _, t in pairs], dtype=float)
+    bins = np.minimum((s * 10).astype(int), 9)
+    ece = 0.0
+    table = []
+    for b in range(10):
+        m = bins == b
+        if m.any():
+            ece += m.mean() * abs(s[m].mean() - y[m].mean())
+            table.append((b / 10, int(m.sum()), float(s[m].mean()), float(y[m].mean())))
+    return {"ece": float(ece), "brier": float(np.mean((s - y) ** 2)), "bins": table}
+
+
+def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool) -> dict:
+    from sklearn.model_selection import GroupKFold
+
+    from robtui.benchmarks.corpus import load_corpus, load_mapping
+    from robtui.evidence.corpus_docs import labelled_documents
+    from robtui.evidence.ranker import Ranker, generic_block, sigmoid
+    from robtui.evidence.train import fit_weights, prepare, question_texts
+
+    mapping = load_mapping(corpus_dir)
+    corpus = load_corpus(corpus_dir)
+    corpus = corpus[:articles] if articles else corpus
+    keys = list(mapping.questions)
+    texts = question_texts()
+    settings = _settings_from_shipped()
+    t0 = time.perf_counter()
+    txt_docs = labelled_documents(corpus, mapping, "txt")
+    print(f"read {len(txt_docs)} articles as text in {time.perf_counter() - t0:.1f} s")
+    pdf_docs = None
+    if pdf:
+        t0 = time.perf_counter()
+        with tempfile.TemporaryDirectory() as tmp:
+            pdf_docs = labelled_documents(corpus, mapping, "pdf", pdf_folder=Path(tmp))
+        lost = sum(s is None for d in pdf_docs for s in d.spans)
+        total = sum(len(d.spans) for d in pdf_docs)
+        print(f"rendered and read {len(pdf_docs)} two-column PDFs in "
+              f"{time.perf_counter() - t0:.1f} s ({lost} of {total} PDF sentences not aligned "
+              "to the source text; they count as non-hits)")
+    tallies = {name: Tally() for name in ("model txt", "model pdf", "baseline txt", "baseline pdf",
+                                          "transfer txt")}
+    calib: list[tuple[float, bool]] = []
+    thresholds = []
+    flagged = {"with": [0, 0], "without": [0, 0]}  # [flagged as no evidence, total]
+    groups = np.arange(len(txt_docs))
+    for fold, (train, test) in enumerate(GroupKFold(n_splits=folds).split(txt_docs, groups=groups)):
+        t0 = time.perf_counter()
+        train_docs = [txt_docs[i] for i in train]
+        prep = prepare(train_docs, keys, settings, texts)
+        weights = fit_weights(train_docs, keys, settings, texts, prepared=prep)
+        ranker = Ranker(weights)
+        thresholds.append(weights.no_evidence_threshold)
+        # transfer model, leave one question (and those sharing its items) out
+        from sklearn.linear_model import LogisticRegression
+
+        transfer = {}
+        for key in keys:
+            others = [k for k in keys if set(mapping.questions[k]) != set(mapping.questions[key])]
+            gx = np.vstack([prep.generic_X[k] for k in others])
+            gy = np.concatenate([prep.y[k] for k in others])
+            transfer[key] = LogisticRegression(C=1.0, solver="liblinear",
+                                               random_state=settings.seed).fit(gx, gy)
+        for i in test:
+            for route, docs in (("txt", txt_docs), ("pdf", pdf_docs)):
+                if docs is None:
+                    continue
+                doc = docs[i]
+                scores, base = _scores_for(ranker, doc, keys, texts)
+                for key in keys:
+                    tallies[f"model {route}"].add(key, scores[key], doc.labels[key], doc.present[key])
+                    tallies[f"baseline {route}"].add(key, base[key], doc.labels[key],
+                                                     doc.present[key])
+                    if route == "txt":
+                        calib.extend(zip(scores[key].tolist(), doc.labels[key].tolist()))
+                        top = float(scores[key].max()) if len(scores[key]) else 0.0
+                        side = "with" if doc.present[key] else "without"
+                        flagged[side][0] += top < weights.no_evidence_threshold
+                        flagged[side][1] += 1
+                if route == "txt":
+                    feats = ranker.features(doc.document)
+                    blocks = ranker.question_blocks(feats, keys, [texts.get(k, "") for k in keys])
+                    for key in keys:
+                        gx = generic_block(blocks[key], feats.shared)
+                        z = transfer[key].decision_function(gx) if len(gx) else np.zeros(0)
+                        tallies["transfer txt"].add(key, sigmoid(z), doc.labels[key],
+                                                    doc.present[key])
+        print(f"fold {fold + 1}/{folds}: trained on {len(train)} articles, evaluated on "
+              f"{len(test)} ({time.perf_counter() - t0:.1f} s)")
+    return {
+        "keys": keys,
+        "figures": {name: t.figures() for name, t in tallies.items() if t.rows},
+        "calibration": _calibration(calib),
+        "thresholds": thresholds,
+        "flagged": flagged,
+        "settings": asdict(settings),
+    }
+
+
+def _speed(corpus_dir: Path | None) -> dict:
+    """Model load, ranking a 400-sentence document, and a cold whole-process suggest on a PDF."""
+    from robtui.benchmarks.corpus import load_corpus
+    from robtui.devtools.pdf_writer import render_text_as_pdf
+    from robtui.reading.text import document_from_text
+
+    out: dict[str, float] = {}
+    code = ("import time; t=time.perf_counter(); from robtui.evidence.ranker import load_ranker; "
+            "load_ranker(); print(time.perf_counter()-t)")
+    runs = [float(subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                                 check=True).stdout) for _ in range(3)]
+    out["load_s_median_of_3"] = float(np.median(runs))
+
+    from robtui.evidence.ranker import load_ranker
+
+    corpus = load_corpus(corpus_dir) if corpus_dir else []
+    if corpus:
+        text = "\n".join(a.text for a in corpus[:3])
+    else:
+        text = "\n".join(f"Sentence {i} about allocation and follow-up of participants." for i in range(400))
+    doc = document_from_text(text)
+    doc = doc.model_copy(update={"sentences": doc.sentences[:400]})
+    ranker = load_ranker()
+    t = time.perf_counter()
+    ranker.rank(doc)
+    out["rank_400_first_call_s"] = time.perf_counter() - t
+    times = []
+    for _ in range(5):
+        t = time.perf_counter()
+        ranker.rank(doc)
+        times.append(time.perf_counter() - t)
+    out["rank_400_median_of_5_s"] = float(np.median(times))
+    out["rank_400_sentences"] = len(doc.sentences)
+    # A 15-page PDF: article texts joined until the rendering reaches 15 pages.
+    with tempfile.TemporaryDirectory() as tmp:
+        pdf = Path(tmp) / "long.pdf"
+        parts = [a.text for a in corpus] or [text]
+        from robtui.reading.reader import read_document
+
+        pages = 0
+        for n in range(1, len(parts) + 1):
+            render_text_as_pdf("\n".join(parts[:n]), pdf, full_width_lines=3)
+            pages = read_document(pdf, use_cache=False).pages or 0
+            if pages >= 15:
+                break
+        env = dict(os.environ, ROBTUI_CACHE_DIR=str(Path(tmp) / "cache"))
+        cold = []
+        for run in range(3):
+            env["ROBTUI_CACHE_DIR"] = str(Path(tmp) / f"cache{run}")  # empty cache: cold read
+            t = time.perf_counter()
+            subprocess.run([sys.executable, "-m", "robtui", "suggest", str(pdf), "--json"],
+                           capture_output=True, check=True, env=env)
+            cold.append(time.perf_counter() - t)
+        out["suggest_pdf_pages"] = pages
+        out["suggest_pdf_cold_s_median_of_3"] = float(np.median(cold))
+    return out
+
+
+def main(argv: list[str] | None = None) -> int:
+    from robtui.benchmarks.corpus import default_corpus_dir
+    from robtui.errors import InputError
+
+    args = _parser().parse_args(argv)
+    corpus = args.corpus or default_corpus_dir()
+    if corpus is None:
+        raise InputError("no corpus found: pass --corpus PATH (the folder holding consort-tm/)")
+    if args.folds < 2:
+        raise InputError("--folds must be at least 2")
+    print("Evidence ranking on unseen articles (grouped cross-validation by article)")
+    print("Corpus: CONSORT-TM development split; Kilicoglu et al., J Biomed Inform 2021;116:103717")
+    result = cross_validate(Path(corpus), args.folds, args.articles, not args.no_pdf)
+    figs = result["figures"]
+    keys = result["keys"]
+    cols = {n: figs[n] for n in ("model txt", "model pdf") if n in figs}
+    _print_table("Ranker (trained on the other folds)", cols, keys)
+    cols = {n: figs[n] for n in ("baseline txt", "baseline pdf") if n in figs}
+    _print_table("Baseline: TF-IDF cosine of question wording and sentence (same run)", cols, keys)
+    _print_table("Transfer model (used for questions without training data), leave-one-question-out",
+                 {"transfer txt": figs["transfer txt"]}, keys)
+    print("  read = mean sentences read before the first hit; AUROC = evidence present vs absent "
+          "from the top score")
+    c = result["calibration"]
+    print(f"\nCalibration of held-out sentence scores (txt): ECE {c['ece']:.3f}, Brier {c['brier']:.4f}")
+    for lo, n, mean_p, rate in c["bins"]:
+        print(f"  score {lo:.1f}-{lo + 0.1:.1f}: {n:5d} sentences, mean score {mean_p:.3f}, "
+              f"observed evidence rate {rate:.3f}")
+    f = result["flagged"]
+    print(f"No-evidence threshold per fold: {', '.join(f'{t:.3f}' for t in result['thresholds'])}; "
+          f"flagged 'no sentence found' for {f['without'][0]}/{f['without'][1]} (article, question) "
+          f"pairs without gold evidence and {f['with'][0]}/{f['with'][1]} with it")
+    from robtui.evidence.metrics import macro
+
+    m = {n: {a: macro(figs[n], a) for a in ("recall1", "recall3")} for n in figs}
+    print(f"\nTargets: {TARGETS}")
+    for name in ("model txt", "model pdf"):
+        if name in m:
+            print(f"  {name}: macro recall@1 {m[name]['recall1']:.3f}, recall@3 {m[name]['recall3']:.3f}")
+    if "model pdf" in m:
+        print(f"  PDF - txt: recall@1 {m['model pdf']['recall1'] - m['model txt']['recall1']:+.3f}, "
+              f"recall@3 {m['model pdf']['recall3'] - m['model txt']['recall3']:+.3f}")
+    for key in ("1.2", "2.1", "5.1"):
+        if key in figs["model txt"]:
+            print(f"  AUROC {key}: txt {_fmt(figs['model txt'][key].auroc)}"
+                  + (f", pdf {_fmt(figs['model pdf'][key].auroc)}" if "model pdf" in figs else ""))
+    speed = {}
+    if not args.no_speed:
+        speed = _speed(Path(corpus))
+        print("\nSpeed (targets: load <= 0.3 s; rank 400 sentences <= 0.05 s; cold suggest on a "
+              "15-page PDF <= 2.5 s)")
+        print(f"  model load (fresh process, incl. imports): {speed['load_s_median_of_3']:.3f} s")
+        print(f"  rank every question, {speed['rank_400_sentences']} sentences: first call "
+              f"{speed['rank_400_first_call_s'] * 1000:.1f} ms, then median "
+              f"{speed['rank_400_median_of_5_s'] * 1000:.1f} ms")
+        print(f"  `robtui suggest --json` on a {speed['suggest_pdf_pages']}-page PDF, cold "
+              f"(new process, empty reader cache): {speed['suggest_pdf_cold_s_median_of_3']:.2f} s")
+    if args.json:
+        from robtui.store.atomic import write_text_atomic
+
+        payload = {"figures": {n: {k: asdict(v) for k, v in f.items()} for n, f in figs.items()},
+                   "calibration": result["calibration"], "speed": speed,
+                   "settings": result["settings"]}
+        write_text_atomic(args.json, json.dumps(payload, indent=2) + "\n")
+    return 0

@@ -1,0 +1,100 @@
+"""robtui suggest FILE: candidate sentences per signalling question, best first.
+
+Suggestions are candidates for the reviewer to read, never answers: the reviewer decides.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "suggest",
+        help="rank a report's sentences for every signalling question",
+        description=(
+            "Read a trial report (PDF, text, Markdown, HTML) and print, for each signalling "
+            "question, the sentences most likely to answer it, best first, with a calibrated "
+            "score (0..1). A best score below the ranker's no-evidence threshold is flagged "
+            "'no sentence found'."
+        ),
+    )
+    parser.add_argument("file", type=Path, metavar="FILE")
+    parser.add_argument("--json", action="store_true", help="print exactly one JSON object")
+    parser.add_argument("--top", type=int, default=5, metavar="K", help="suggestions per question (5)")
+    parser.add_argument("--questions", default=None, metavar="IDS",
+                        help="comma-separated question ids, e.g. 1.1,1.2 (default: all)")
+    parser.add_argument("--threshold", type=float, default=None, metavar="T",
+                        help="drop suggestions scoring below T (0..1); lists may then be empty")
+    parser.add_argument("--effect", choices=("assignment", "adhering"), default="assignment",
+                        help="domain 2 variant (default: effect of assignment)")
+    parser.add_argument("--model", type=Path, default=None, help=argparse.SUPPRESS)
+    parser.set_defaults(func=run)
+
+
+def _parse_questions(raw: str | None) -> list[str] | None:
+    from robtui.errors import InputError
+
+    if raw is None:
+        return None
+    ids = [part.strip() for part in raw.split(",") if part.strip()]
+    if not ids:
+        raise InputError("--questions is empty: give ids such as 1.1,1.2")
+    return ids
+
+
+def run(args: argparse.Namespace) -> int:
+    import json
+
+    from robtui.errors import InputError
+    from robtui.evidence.ranker import load_ranker
+    from robtui.reading.reader import read_document
+
+    if args.top < 1:
+        raise InputError(f"--top must be at least 1 (got {args.top})")
+    if args.threshold is not None and not 0.0 <= args.threshold <= 1.0:
+        raise InputError(f"--threshold must be between 0 and 1 (got {args.threshold})")
+    questions = _parse_questions(args.questions)
+    ranker = load_ranker(args.model)
+    document = read_document(args.file)
+    ranking = ranker.rank(document, questions, effect=args.effect, top=args.top,
+                          threshold=args.threshold)
+    if not document.sentences:
+        why = "; ".join(document.warnings) or "the reader found no text"
+        print(f"robtui: {args.file}: no sentences to rank ({why})", file=sys.stderr)
+    if args.json:
+        payload = {
+            "document": {"path": document.path, "sha256": document.sha256},
+            "questions": {
+                qid: [
+                    {"start": s.start, "end": s.end, "page": s.page, "section": s.section,
+                     "score": s.score, "text": s.text}
+                    for s in items
+                ]
+                for qid, items in ranking.items()
+            },
+        }
+        print(json.dumps(payload, ensure_ascii=False))
+        return 0
+    print(_render(ranking, ranker.no_evidence_threshold, document.path))
+    return 0
+
+
+def _render(ranking: dict, no_evidence: float, path: str) -> str:
+    lines = [f"{path}: suggested sentences (candidates to read; the reviewer decides)"]
+    for qid, items in ranking.items():
+        lines.append("")
+        if not items:
+            lines.append(f"{qid}  nothing above the threshold")
+            continue
+        flag = f"  [no sentence found: best score below {no_evidence:.2f}]"
+        lines.append(f"{qid}{flag if items[0].score < no_evidence else ''}")
+        for rank, s in enumerate(items, 1):
+            where = f"p{s.page} " if s.page else ""
+            text = " ".join(s.text.split())
+            if len(text) > 160:
+                text = text[:157] + "..."
+            lines.append(f"  {rank}. {s.score:.2f}  {where}{s.section}  [{s.start}-{s.end}]  {text}")
+    return "\n".join(lines)

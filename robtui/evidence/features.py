@@ -1,0 +1,146 @@
+"""Sentence features of the evidence ranker, computed with numpy (no scikit-learn).
+
+Blocks, in the order the weights are stored:
+- word TF-IDF (uni- and bigrams) and character TF-IDF (char_wb 3-5 grams) of the sentence;
+- shared layout features: canonical section (full label and top level), block kind, position;
+- per-question features: cue-lexicon coverage of the sentence and of its neighbours, TF-IDF
+  cosine between the question's wording and the sentence (and its neighbours), and whether the
+  sentence sits in a section where the question's evidence usually sits.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from robtui.evidence.cues import CueEntry, CueMatcher, tokens
+from robtui.evidence.tfidf import SparseRows, TfidfTable
+from robtui.reading.document import SECTION_LABELS, Sentence, top_section
+
+BLOCKS = ("body", "heading", "caption", "table")
+TOP_SECTIONS = tuple(dict.fromkeys(top_section(label) for label in SECTION_LABELS))
+POSITION_BINS = 10
+NEIGHBOUR_WINDOW = 2
+
+SHARED_NAMES: tuple[str, ...] = (
+    tuple(f"section={label}" for label in SECTION_LABELS)
+    + tuple(f"top={label}" for label in TOP_SECTIONS)
+    + tuple(f"block={b}" for b in BLOCKS)
+    + tuple(f"position_bin={i}" for i in range(POSITION_BINS))
+    + ("relative_position", "log_length", "short_sentence")
+)
+QUESTION_NAMES: tuple[str, ...] = (
+    "cue_best",
+    "cue_full",
+    "cue_previous",
+    "cue_next",
+    "cue_window",
+    "question_similarity",
+    "question_similarity_window",
+    "in_expected_section",
+    "in_expected_top_section",
+)
+
+
+@dataclass
+class DocumentFeatures:
+    """Everything about a document's sentences that does not depend on the question."""
+
+    word: SparseRows
+    char: SparseRows
+    shared: np.ndarray  # (n, len(SHARED_NAMES))
+    coverage: np.ndarray  # (n, n_cues) cue coverage
+    sections: list[str]
+
+    @property
+    def n(self) -> int:
+        return self.shared.shape[0]
+
+
+def shared_features(sentences: Sequence[Sentence]) -> np.ndarray:
+    """Layout features: section one-hots, block kind, position bins, length."""
+    n = len(sentences)
+    out = np.zeros((n, len(SHARED_NAMES)), dtype=np.float64)
+    section_col = {label: i for i, label in enumerate(SECTION_LABELS)}
+    base = len(SECTION_LABELS)
+    top_col = {label: base + i for i, label in enumerate(TOP_SECTIONS)}
+    base += len(TOP_SECTIONS)
+    block_col = {b: base + i for i, b in enumerate(BLOCKS)}
+    base += len(BLOCKS)
+    for row, sentence in enumerate(sentences):
+        label = sentence.section if sentence.section in section_col else "other"
+        out[row, section_col[label]] = 1.0
+        out[row, top_col[top_section(label)]] = 1.0
+        out[row, block_col.get(sentence.block, block_col["body"])] = 1.0
+        relative = row / max(n - 1, 1)
+        out[row, base + min(int(relative * POSITION_BINS), POSITION_BINS - 1)] = 1.0
+        count = len(tokens(sentence.text))
+        out[row, base + POSITION_BINS] = relative
+        out[row, base + POSITION_BINS + 1] = np.log1p(count) / 5.0
+        out[row, base + POSITION_BINS + 2] = 1.0 if count < 5 else 0.0
+    return out
+
+
+def document_features(
+    sentences: Sequence[Sentence], word: TfidfTable, char: TfidfTable, matcher: CueMatcher
+) -> DocumentFeatures:
+    texts = [s.text for s in sentences]
+    return DocumentFeatures(
+        word=word.transform(texts),
+        char=char.transform(texts),
+        shared=shared_features(sentences),
+        coverage=matcher.coverage([tokens(t) for t in texts]),
+        sections=[s.section for s in sentences],
+    )
+
+
+def _shift(values: np.ndarray, by: int) -> np.ndarray:
+    out = np.zeros_like(values)
+    if by > 0:
+        out[by:] = values[:-by]
+    elif by < 0:
+        out[:by] = values[-by:]
+    return out
+
+
+def _window_max(values: np.ndarray, width: int) -> np.ndarray:
+    out = values.copy()
+    for by in range(1, width + 1):
+        out = np.maximum(out, np.maximum(_shift(values, by), _shift(values, -by)))
+    return out
+
+
+def _in_sections(sections: list[str], expected: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
+    wanted_tops = {top_section(e) for e in expected}
+    exact = np.array(
+        [any(s == e or s.startswith(e + ".") for e in expected) for s in sections], dtype=float
+    )
+    top = np.array([top_section(s) in wanted_tops for s in sections], dtype=float)
+    return exact, top
+
+
+def question_features(
+    doc: DocumentFeatures, key: str, entry: CueEntry | None, matcher: CueMatcher,
+    similarity: np.ndarray,
+) -> np.ndarray:
+    """(n, len(QUESTION_NAMES)) features of every sentence for one question.
+
+    ``similarity`` is the cosine of each sentence with the question's wording.
+    """
+    best, full = matcher.key_features(doc.coverage, key)
+    expected = entry.sections if entry else ()
+    in_exact, in_top = _in_sections(doc.sections, expected)
+    columns = [
+        best,
+        full,
+        _shift(best, 1),
+        _shift(best, -1),
+        _window_max(best, NEIGHBOUR_WINDOW),
+        similarity,
+        _window_max(similarity, NEIGHBOUR_WINDOW),
+        in_exact,
+        in_top,
+    ]
+    return np.column_stack(columns) if doc.n else np.zeros((0, len(QUESTION_NAMES)))

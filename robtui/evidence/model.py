@@ -1,0 +1,159 @@
+"""The ranker's weights as plain arrays, and their NPZ file (no pickle) with a provenance file.
+
+``weights/ranker.npz`` holds vocabularies (UTF-8 bytes), idf vectors and coefficients;
+``weights/ranker-provenance.json`` says what they were trained on and how. Loading checks every
+array's presence and shape and raises ModelFileError naming the file and how to retrain.
+"""
+
+from __future__ import annotations
+
+import io
+import json
+import zipfile
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from robtui.errors import ModelFileError
+from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
+from robtui.evidence.tfidf import TfidfTable, vocabulary_from_bytes, vocabulary_to_bytes
+
+WEIGHTS_DIR = Path(__file__).with_name("weights")
+DEFAULT_WEIGHTS = WEIGHTS_DIR / "ranker.npz"
+FORMAT_VERSION = 1
+RETRAIN_HINT = "retrain it with `robtui train-ranker` (needs ../shared/corpus) or reinstall robtui"
+GENERIC_NAMES: tuple[str, ...] = QUESTION_NAMES + ("block=heading", "log_length")
+
+
+@dataclass
+class RankerWeights:
+    """Everything needed to score sentences; arrays only, so the file is plain data."""
+
+    word: TfidfTable
+    char: TfidfTable
+    keys: list[str]  # question keys with a trained model, row order of the matrices
+    lexical: np.ndarray  # (len(keys), n_word + n_char)
+    shared: np.ndarray  # (len(keys), len(SHARED_NAMES))
+    question: np.ndarray  # (len(keys), len(QUESTION_NAMES))
+    intercept: np.ndarray  # (len(keys),)
+    platt: np.ndarray  # (len(keys), 2): calibrated = sigmoid(a * z + b)
+    generic: np.ndarray  # (len(GENERIC_NAMES),) transfer model for questions without training data
+    generic_intercept: float
+    generic_platt: np.ndarray  # (2,)
+    no_evidence_threshold: float
+    question_texts: dict[str, str] = field(default_factory=dict)
+    provenance: dict = field(default_factory=dict)
+
+
+def save_weights(weights: RankerWeights, path: Path) -> None:
+    """Write the NPZ and its provenance JSON beside it, both atomically."""
+    from robtui.store.atomic import write_bytes_atomic, write_text_atomic
+
+    arrays = {
+        "format_version": np.array([FORMAT_VERSION]),
+        "word_vocabulary": vocabulary_to_bytes(weights.word.vocabulary),
+        "word_idf": weights.word.idf.astype(np.float64),
+        "word_ngram_range": np.array(weights.word.ngram_range),
+        "char_vocabulary": vocabulary_to_bytes(weights.char.vocabulary),
+        "char_idf": weights.char.idf.astype(np.float64),
+        "char_ngram_range": np.array(weights.char.ngram_range),
+        "keys": np.frombuffer("\n".join(weights.keys).encode(), dtype=np.uint8),
+        "lexical": weights.lexical.astype(np.float32),
+        "shared": weights.shared.astype(np.float64),
+        "question": weights.question.astype(np.float64),
+        "intercept": weights.intercept.astype(np.float64),
+        "platt": weights.platt.astype(np.float64),
+        "generic": weights.generic.astype(np.float64),
+        "generic_intercept": np.array([weights.generic_intercept]),
+        "generic_platt": weights.generic_platt.astype(np.float64),
+        "no_evidence_threshold": np.array([weights.no_evidence_threshold]),
+        "question_texts": np.frombuffer(
+            json.dumps(weights.question_texts, sort_keys=True).encode(), dtype=np.uint8
+        ),
+    }
+    buffer = io.BytesIO()
+    np.savez_compressed(buffer, **arrays)
+    write_bytes_atomic(path, buffer.getvalue())
+    provenance = dict(weights.provenance)
+    provenance["weights_file"] = path.name
+    write_text_atomic(
+        provenance_path(path), json.dumps(provenance, indent=2, sort_keys=True) + "\n"
+    )
+
+
+def provenance_path(path: Path) -> Path:
+    return path.with_name(path.stem + "-provenance.json")
+
+
+def load_weights(path: Path | None = None) -> RankerWeights:
+    """Read weights; ModelFileError naming the file (and how to retrain) on any problem."""
+    path = Path(path) if path else DEFAULT_WEIGHTS
+    try:
+        with np.load(path, allow_pickle=False) as npz:
+            data = {name: npz[name] for name in npz.files}
+    except FileNotFoundError as error:
+        raise ModelFileError(f"{path}: the ranker's weights file is missing; {RETRAIN_HINT}") from error
+    except (OSError, ValueError, EOFError, zipfile.BadZipFile, KeyError) as error:
+        raise ModelFileError(
+            f"{path}: the ranker's weights file is damaged ({error}); {RETRAIN_HINT}"
+        ) from error
+    try:
+        return _from_arrays(data, path)
+    except (KeyError, ValueError, IndexError, UnicodeDecodeError, TypeError) as error:
+        raise ModelFileError(
+            f"{path}: the ranker's weights file is incomplete or inconsistent ({error}); "
+            f"{RETRAIN_HINT}"
+        ) from error
+
+
+def _check(condition: bool, what: str) -> None:
+    if not condition:
+        raise ValueError(what)
+
+
+def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
+    _check(int(data["format_version"][0]) == FORMAT_VERSION, "unknown format version")
+    word_vocab = vocabulary_from_bytes(data["word_vocabulary"])
+    char_vocab = vocabulary_from_bytes(data["char_vocabulary"])
+    word = TfidfTable("word", tuple(int(x) for x in data["word_ngram_range"]), word_vocab,
+                      data["word_idf"])
+    char = TfidfTable("char_wb", tuple(int(x) for x in data["char_ngram_range"]), char_vocab,
+                      data["char_idf"])
+    _check(len(word_vocab) == len(word.idf), "word vocabulary and idf differ in length")
+    _check(len(char_vocab) == len(char.idf), "char vocabulary and idf differ in length")
+    keys_text = data["keys"].tobytes().decode()
+    keys = keys_text.split("\n") if keys_text else []
+    n = len(keys)
+    lexical = data["lexical"].astype(np.float64)
+    _check(lexical.shape == (n, len(word_vocab) + len(char_vocab)), "lexical weights shape")
+    shared, question = data["shared"], data["question"]
+    _check(shared.shape == (n, len(SHARED_NAMES)), "shared weights shape")
+    _check(question.shape == (n, len(QUESTION_NAMES)), "question weights shape")
+    _check(data["intercept"].shape == (n,) and data["platt"].shape == (n, 2), "intercepts")
+    _check(data["generic"].shape == (len(GENERIC_NAMES),), "generic weights shape")
+    for name in ("lexical", "shared", "question", "generic", "platt"):
+        _check(bool(np.all(np.isfinite(data[name]))), f"{name} holds non-finite values")
+    provenance = {}
+    prov_file = provenance_path(path)
+    if prov_file.is_file():
+        try:
+            provenance = json.loads(prov_file.read_text(encoding="utf-8"))
+        except (OSError, json.JSONDecodeError):
+            provenance = {"problem": f"{prov_file.name} unreadable"}
+    return RankerWeights(
+        word=word,
+        char=char,
+        keys=keys,
+        lexical=lexical,
+        shared=shared,
+        question=question,
+        intercept=data["intercept"],
+        platt=data["platt"],
+        generic=data["generic"],
+        generic_intercept=float(data["generic_intercept"][0]),
+        generic_platt=data["generic_platt"],
+        no_evidence_threshold=float(data["no_evidence_threshold"][0]),
+        question_texts=json.loads(data["question_texts"].tobytes().decode() or "{}"),
+        provenance=provenance,
+    )

@@ -1,0 +1,213 @@
+"""Rank a document's sentences for every signalling question with the shipped linear models.
+
+Questions with a trained model (those the corpus mapping covers) use their own weights over
+word and character TF-IDF, layout and question features. Questions without training data use
+one transfer model, trained on the mapped questions, over question-relative features only (cue
+lexicon coverage, similarity to the question's wording, expected section): its scores are
+calibrated on the mapped questions, not on the question itself.
+Scores are calibrated (Platt scaling on grouped out-of-fold scores), so a best score below
+``no_evidence_threshold`` is read as "no sentence found for this question".
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from robtui.errors import InputError
+from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key
+from robtui.evidence.features import (
+    QUESTION_NAMES,
+    SHARED_NAMES,
+    DocumentFeatures,
+    document_features,
+    question_features,
+)
+from robtui.evidence.model import RankerWeights, load_weights
+from robtui.reading.document import Document
+
+
+@dataclass(frozen=True)
+class Suggestion:
+    question_id: str
+    sentence_index: int
+    start: int
+    end: int
+    page: int | None
+    section: str
+    score: float  # calibrated, 0..1
+    text: str
+
+
+def sigmoid(z: np.ndarray) -> np.ndarray:
+    return 1.0 / (1.0 + np.exp(-np.clip(z, -40, 40)))
+
+
+def generic_block(question_block: np.ndarray, shared: np.ndarray) -> np.ndarray:
+    """Features of the transfer model (see model.GENERIC_NAMES)."""
+    heading = shared[:, SHARED_NAMES.index("block=heading")]
+    log_length = shared[:, SHARED_NAMES.index("log_length")]
+    return np.column_stack([question_block, heading, log_length])
+
+
+def active_questions(effect: str = "assignment", question_set=None) -> list[tuple[str, str]]:
+    """(id, wording) of every question of the active set; the cue lexicon's keys as fallback."""
+    if effect not in ("assignment", "adhering"):
+        raise InputError(f"unknown effect {effect!r}: use assignment or adhering")
+    if question_set is None:
+        try:
+            from robtui.core.questions import builtin_question_set
+
+            question_set = builtin_question_set()
+        except ImportError:
+            question_set = None
+    if question_set is not None:
+        return [(q.id, q.text) for q in question_set.questions(effect)]
+    keys = load_cues()
+    ids = []
+    for key in keys:
+        if key.startswith("adhering:"):
+            if effect == "adhering":
+                ids.append(key.split(":", 1)[1])
+        elif not (effect == "adhering" and key.startswith("2.")):
+            ids.append(key)
+    return [(qid, "") for qid in sorted(ids, key=lambda q: tuple(int(p) for p in q.split(".")))]
+
+
+class Ranker:
+    """Scores sentences per question; build with :func:`load_ranker`."""
+
+    def __init__(self, weights: RankerWeights, cues: dict[str, CueEntry] | None = None):
+        self.weights = weights
+        self.cues = cues if cues is not None else load_cues()
+        self.matcher = CueMatcher(self.cues)
+        self.no_evidence_threshold = weights.no_evidence_threshold
+        self._row = {key: i for i, key in enumerate(weights.keys)}
+        self._n_word = len(weights.word.idf)
+
+    @property
+    def provenance(self) -> dict:
+        return self.weights.provenance
+
+    def trained_key(self, key: str) -> str | None:
+        """The key whose trained model serves ``key`` (itself or its same_as), if any."""
+        if key in self._row:
+            return key
+        entry = self.cues.get(key)
+        if entry and entry.same_as in self._row:
+            return entry.same_as
+        return None
+
+    def features(self, document: Document) -> DocumentFeatures:
+        w = self.weights
+        return document_features(document.sentences, w.word, w.char, self.matcher)
+
+    def _question_vectors(self, texts: list[str]) -> np.ndarray:
+        rows = self.weights.word.transform(texts)
+        dense = np.zeros((rows.n_rows, rows.n_cols))
+        for r in range(rows.n_rows):
+            sl = slice(rows.indptr[r], rows.indptr[r + 1])
+            dense[r, rows.indices[sl]] = rows.data[sl]
+        return dense
+
+    def question_blocks(
+        self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]
+    ) -> dict[str, np.ndarray]:
+        """Per key, the (n, len(QUESTION_NAMES)) question features of every sentence."""
+        if doc.n == 0:
+            return {key: np.zeros((0, len(QUESTION_NAMES))) for key in keys}
+        similarity = doc.word.dot(self._question_vectors(list(texts)))  # (n, len(keys))
+        return {
+            key: question_features(doc, key, self.cues.get(key), self.matcher, similarity[:, j])
+            for j, key in enumerate(keys)
+        }
+
+    def logits(
+        self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]
+    ) -> dict[str, np.ndarray]:
+        """Calibrated log-odds of every sentence for each key (before any review model)."""
+        w = self.weights
+        if doc.n == 0:
+            return {key: np.zeros(0) for key in keys}
+        blocks = self.question_blocks(doc, keys, texts)
+        trained = {key: self.trained_key(key) for key in keys}
+        rows = sorted({self._row[t] for t in trained.values() if t is not None})
+        lexical = {}
+        if rows:
+            word_part = doc.word.dot(w.lexical[rows, : self._n_word])
+            char_part = doc.char.dot(w.lexical[rows, self._n_word :])
+            base = word_part + char_part + doc.shared @ w.shared[rows].T
+            lexical = {row: base[:, i] for i, row in enumerate(rows)}
+        out = {}
+        for key in keys:
+            qf = blocks[key]
+            source = trained[key]
+            if source is not None:
+                row = self._row[source]
+                z = lexical[row] + qf @ w.question[row] + w.intercept[row]
+                a, b = w.platt[row]
+            else:
+                z = generic_block(qf, doc.shared) @ w.generic + w.generic_intercept
+                a, b = w.generic_platt
+            out[key] = a * z + b
+        return out
+
+    def rank(
+        self,
+        document: Document,
+        questions: Sequence[str] | None = None,
+        *,
+        effect: str = "assignment",
+        top: int | None = 5,
+        threshold: float | None = None,
+        review_model=None,
+        question_set=None,
+    ) -> dict[str, list[Suggestion]]:
+        """Suggested sentences per question id, best first (every requested question present)."""
+        active = active_questions(effect, question_set)
+        wording = dict(active)
+        if questions is None:
+            wanted = [qid for qid, _ in active]
+        else:
+            unknown = [q for q in questions if q not in wording]
+            if unknown:
+                raise InputError(
+                    f"unknown question id(s) for the {effect} effect: {', '.join(unknown)}; "
+                    f"known: {', '.join(wording)}"
+                )
+            wanted = list(dict.fromkeys(questions))
+        if top is not None and top < 1:
+            raise InputError(f"top must be at least 1 (got {top})")
+        keys = [model_key(q, effect) for q in wanted]
+        texts = [self.weights.question_texts.get(k) or wording[q] for k, q in zip(keys, wanted)]
+        doc = self.features(document)
+        logits = self.logits(doc, keys, texts)
+        if review_model is not None and doc.n:
+            sentence_texts = [s.text for s in document.sentences]
+            for key in keys:
+                logits[key] = logits[key] + review_model.logit(key, sentence_texts)
+        result: dict[str, list[Suggestion]] = {}
+        for qid, key in zip(wanted, keys):
+            scores = sigmoid(logits[key])
+            order = np.argsort(-scores, kind="stable")
+            picked = []
+            for i in order:
+                if threshold is not None and scores[i] < threshold:
+                    break
+                s = document.sentences[int(i)]
+                picked.append(
+                    Suggestion(qid, s.index, s.start, s.end, s.page, s.section,
+                               round(float(scores[i]), 4), s.text)
+                )
+                if top is not None and len(picked) >= top:
+                    break
+            result[qid] = picked
+        return result
+
+
+def load_ranker(path: Path | None = None) -> Ranker:
+    """The ranker with the shipped weights (or those at ``path``); ModelFileError if unusable."""
+    return Ranker(load_weights(path))

@@ -1,0 +1,146 @@
+"""TF-IDF applied with numpy alone, reproducing scikit-learn's TfidfVectorizer transform.
+
+Training fits scikit-learn's ``TfidfVectorizer`` (lowercase, default token pattern, smooth idf,
+sublinear tf, l2 norm) and ships its vocabulary and idf; at suggest time this module turns
+text into the same vectors without importing scikit-learn (whose import alone costs over a
+second). ``tests/evidence/test_tfidf.py`` checks equality with scikit-learn on sample text.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections import Counter
+from dataclasses import dataclass, field
+
+import numpy as np
+
+# scikit-learn's default token_pattern for the "word" analyzer.
+WORD_TOKEN = re.compile(r"(?u)\b\w\w+\b")
+
+
+@dataclass(frozen=True)
+class SparseRows:
+    """A CSR-like matrix: row i holds ``indices[indptr[i]:indptr[i+1]]`` with ``data``."""
+
+    indptr: np.ndarray
+    indices: np.ndarray
+    data: np.ndarray
+    n_cols: int
+
+    @property
+    def n_rows(self) -> int:
+        return len(self.indptr) - 1
+
+    def dot(self, weights: np.ndarray) -> np.ndarray:
+        """``self @ weights.T`` for a dense (n_models, n_cols) weight matrix -> (n_rows, n_models)."""
+        out = np.zeros((self.n_rows, weights.shape[0]), dtype=np.float64)
+        if len(self.indices) == 0:
+            return out
+        products = weights[:, self.indices] * self.data  # (n_models, nnz)
+        rows = np.repeat(np.arange(self.n_rows), np.diff(self.indptr))
+        for m in range(weights.shape[0]):
+            out[:, m] = np.bincount(rows, weights=products[m], minlength=self.n_rows)
+        return out
+
+    def to_scipy(self):
+        """The same matrix as scipy CSR (training and tests only)."""
+        from scipy.sparse import csr_matrix
+
+        return csr_matrix((self.data, self.indices, self.indptr), shape=(self.n_rows, self.n_cols))
+
+
+def word_ngrams(text: str, ngram_range: tuple[int, int]) -> list[str]:
+    """scikit-learn's word analyzer: lowercase, default token pattern, space-joined n-grams."""
+    tokens = WORD_TOKEN.findall(text.lower())
+    low, high = ngram_range
+    grams: list[str] = list(tokens) if low == 1 else []
+    for n in range(max(low, 2), min(high, len(tokens)) + 1):
+        grams.extend(" ".join(tokens[i : i + n]) for i in range(len(tokens) - n + 1))
+    return grams
+
+
+def char_wb_ngrams_of_word(word: str, ngram_range: tuple[int, int]) -> list[str]:
+    """scikit-learn's char_wb n-grams of one whitespace-free word (padded with spaces)."""
+    padded = f" {word} "
+    length = len(padded)
+    grams = []
+    for n in range(ngram_range[0], ngram_range[1] + 1):
+        offset = 0
+        grams.append(padded[offset : offset + n])
+        while offset + n < length:
+            offset += 1
+            grams.append(padded[offset : offset + n])
+        if offset == 0:  # a short word is counted once, as scikit-learn does
+            break
+    return grams
+
+
+@dataclass
+class TfidfTable:
+    """A fitted vocabulary and idf, applied as scikit-learn's transform would be."""
+
+    analyzer: str  # "word" or "char_wb"
+    ngram_range: tuple[int, int]
+    vocabulary: dict[str, int]
+    idf: np.ndarray
+    sublinear_tf: bool = True
+    _word_cache: dict[str, list[int]] = field(default_factory=dict, repr=False)
+
+    def _indices(self, text: str) -> list[int]:
+        vocab = self.vocabulary
+        if self.analyzer == "word":
+            return [vocab[g] for g in word_ngrams(text, self.ngram_range) if g in vocab]
+        cache = self._word_cache
+        found: list[int] = []
+        for word in text.lower().split():
+            hit = cache.get(word)
+            if hit is None:
+                grams = char_wb_ngrams_of_word(word, self.ngram_range)
+                hit = [vocab[g] for g in grams if g in vocab]
+                if len(cache) < 200_000:
+                    cache[word] = hit
+            found.extend(hit)
+        return found
+
+    def transform(self, texts: list[str]) -> SparseRows:
+        """TF-IDF rows (sublinear tf, idf, l2-normalised) for ``texts``."""
+        indptr = [0]
+        all_idx: list[int] = []
+        all_val: list[float] = []
+        idf = self.idf
+        for text in texts:
+            counts = Counter(self._indices(text))
+            if counts:
+                idx = sorted(counts)
+                tf = np.array([counts[i] for i in idx], dtype=np.float64)
+                if self.sublinear_tf:
+                    tf = np.log(tf) + 1.0
+                val = tf * idf[idx]
+                norm = math.sqrt(float(val @ val))
+                if norm > 0:
+                    val = val / norm
+                all_idx.extend(idx)
+                all_val.extend(val.tolist())
+            indptr.append(len(all_idx))
+        return SparseRows(
+            np.asarray(indptr, dtype=np.int64),
+            np.asarray(all_idx, dtype=np.int64),
+            np.asarray(all_val, dtype=np.float64),
+            len(self.idf),
+        )
+
+
+def vocabulary_to_bytes(vocabulary: dict[str, int]) -> np.ndarray:
+    """The vocabulary in index order as UTF-8 bytes joined by newlines (plain data for NPZ)."""
+    terms = sorted(vocabulary, key=vocabulary.__getitem__)
+    if any("\n" in t for t in terms):
+        raise ValueError("a vocabulary term contains a newline")
+    return np.frombuffer("\n".join(terms).encode("utf-8"), dtype=np.uint8)
+
+
+def vocabulary_from_bytes(raw: np.ndarray) -> dict[str, int]:
+    """Inverse of :func:`vocabulary_to_bytes`."""
+    text = raw.tobytes().decode("utf-8")
+    terms = text.split("\n") if text else []
+    return {term: i for i, term in enumerate(terms)}

@@ -1,0 +1,369 @@
+"""Train the shipped evidence ranker from the development corpus (scikit-learn, fixed seeds).
+
+    python -m robtui.evidence.train [--corpus PATH] [--out FILE] [--folds 5] [--articles N]
+    robtui train-ranker ...   (the same)
+
+Articles are read with robtui's own text reader (what the ranker sees in use) and labelled by
+the question-to-item mapping. Settings (regularisation C, class weighting) are chosen by
+cross-validation grouped by article (GroupKFold; macro recall@1, then MRR). Scores are
+calibrated by Platt scaling fitted on out-of-fold scores (grouped too), and the
+"no evidence" threshold is the top-score cut that best separates articles with and without
+gold evidence out of fold (Youden's J). Everything is deterministic: liblinear with a fixed
+random_state, GroupKFold over articles sorted by id; rerunning gives identical weights.
+Corpus: Kilicoglu H, Rosemblat G, Hoang L, et al. Toward assessing clinical trial publications
+for reporting transparency. J Biomed Inform 2021;116:103717.
+"""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+import platform
+import sys
+from collections.abc import Sequence
+from dataclasses import asdict, dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from robtui.evidence.corpus_docs import LabelledDocument
+from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
+from robtui.evidence.metrics import QuestionFigures, first_hit_rank, macro
+from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
+from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid
+from robtui.evidence.tfidf import TfidfTable
+
+CITATION = (
+    "Kilicoglu H, Rosemblat G, Hoang L, Wadhwa S, Peng Z, Malicki M, Schneider J, ter Riet G. "
+    "Toward assessing clinical trial publications for reporting transparency. "
+    "J Biomed Inform 2021;116:103717."
+)
+SEED = 20210401
+
+
+@dataclass(frozen=True)
+class Settings:
+    C: float = 1.0
+    class_weight: str | None = "balanced"
+    word_ngrams: tuple[int, int] = (1, 2)
+    char_ngrams: tuple[int, int] = (3, 5)
+    word_max_features: int = 20000
+    char_max_features: int = 30000
+    word_min_df: int = 2
+    char_min_df: int = 3
+    calibration_folds: int = 3
+    seed: int = SEED
+
+
+GRID: tuple[dict, ...] = tuple(
+    {"C": c, "class_weight": cw} for cw in ("balanced", None) for c in (0.3, 1.0, 3.0, 10.0)
+)
+
+
+@dataclass
+class Prepared:
+    """Feature matrices of a set of documents under one fitted vocabulary."""
+
+    space: Ranker
+    keys: list[str]
+    X: dict[str, object]  # key -> scipy CSR over all sentences of all documents
+    y: dict[str, np.ndarray]
+    generic_X: dict[str, np.ndarray]
+    groups: np.ndarray  # document number of each row
+    docs: list[LabelledDocument] = field(default_factory=list)
+
+
+def fit_tables(texts: list[str], settings: Settings) -> tuple[TfidfTable, TfidfTable]:
+    """Fit word and char_wb TF-IDF vocabularies with scikit-learn."""
+    from sklearn.feature_extraction.text import TfidfVectorizer
+
+    tables = []
+    for analyzer, ngrams, max_features, min_df in (
+        ("word", settings.word_ngrams, settings.word_max_features, settings.word_min_df),
+        ("char_wb", settings.char_ngrams, settings.char_max_features, settings.char_min_df),
+    ):
+        vec = TfidfVectorizer(analyzer=analyzer, ngram_range=ngrams, max_features=max_features,
+                              min_df=min_df, sublinear_tf=True, dtype=np.float64)
+        vec.fit(texts)
+        vocab = {term: int(i) for term, i in vec.vocabulary_.items()}
+        tables.append(TfidfTable(analyzer, ngrams, vocab, vec.idf_.astype(np.float64)))
+    return tables[0], tables[1]
+
+
+def question_texts() -> dict[str, str]:
+    """Wording of every question of both effects, keyed like the cue lexicon."""
+    from robtui.evidence.cues import model_key
+
+    texts = {}
+    for effect in ("assignment", "adhering"):
+        for qid, text in active_questions(effect):
+            texts.setdefault(model_key(qid, effect), text)
+    return texts
+
+
+def empty_space(word: TfidfTable, char: TfidfTable, texts: dict[str, str]) -> Ranker:
+    """A ranker with fitted vocabularies and no coefficients: the feature extractor."""
+    n_lex = len(word.idf) + len(char.idf)
+    weights = RankerWeights(
+        word=word, char=char, keys=[], lexical=np.zeros((0, n_lex)),
+        shared=np.zeros((0, len(SHARED_NAMES))), question=np.zeros((0, len(QUESTION_NAMES))),
+        intercept=np.zeros(0), platt=np.zeros((0, 2)), generic=np.zeros(len(GENERIC_NAMES)),
+        generic_intercept=0.0, generic_platt=np.array([1.0, 0.0]), no_evidence_threshold=0.5,
+        question_texts=texts,
+    )
+    return Ranker(weights)
+
+
+def prepare(
+    docs: list[LabelledDocument], keys: list[str], settings: Settings, texts: dict[str, str],
+    space: Ranker | None = None,
+) -> Prepared:
+    """Fit vocabularies on ``docs`` (unless ``space`` is given) and build the design matrices."""
+    from scipy.sparse import csr_matrix, hstack
+
+    if space is None:
+        word, char = fit_tables([s.text for d in docs for s in d.document.sentences], settings)
+        space = empty_space(word, char, texts)
+    parts: dict[str, list] = {k: [] for k in keys}
+    generic_parts: dict[str, list] = {k: [] for k in keys}
+    groups = []
+    for number, doc in enumerate(docs):
+        feats = space.features(doc.document)
+        blocks = space.question_blocks(feats, keys, [texts.get(k, "") for k in keys])
+        lexical = hstack([feats.word.to_scipy(), feats.char.to_scipy()]).tocsr()
+        for key in keys:
+            parts[key].append(hstack([lexical, csr_matrix(feats.shared),
+                                      csr_matrix(blocks[key])]).tocsr())
+            generic_parts[key].append(generic_block(blocks[key], feats.shared))
+        groups.extend([number] * feats.n)
+    from scipy.sparse import vstack
+
+    X = {k: vstack(parts[k]).tocsr() for k in keys}
+    y = {k: np.concatenate([d.labels[k] for d in docs]).astype(int) for k in keys}
+    generic_X = {k: np.vstack(generic_parts[k]) for k in keys}
+    return Prepared(space, keys, X, y, generic_X, np.asarray(groups), docs)
+
+
+def fit_key(X, y: np.ndarray, settings: Settings) -> tuple[np.ndarray, float]:
+    """One question's logistic regression (liblinear, fixed random_state)."""
+    from sklearn.linear_model import LogisticRegression
+
+    model = LogisticRegression(C=settings.C, class_weight=settings.class_weight,
+                               solver="liblinear", max_iter=2000, random_state=settings.seed)
+    model.fit(X, y)
+    return model.coef_[0].astype(np.float64), float(model.intercept_[0])
+
+
+def _fit_platt(z: np.ndarray, y: np.ndarray, seed: int) -> tuple[float, float]:
+    from sklearn.linear_model import LogisticRegression
+
+    model = LogisticRegression(C=1e4, solver="lbfgs", max_iter=1000, random_state=seed)
+    model.fit(z.reshape(-1, 1), y)
+    return float(model.coef_[0, 0]), float(model.intercept_[0])
+
+
+def _out_of_fold(prep: Prepared, key: str, settings: Settings, folds: int) -> np.ndarray:
+    """Out-of-fold decision values, folds grouped by document (vocabulary shared; see notes)."""
+    from sklearn.model_selection import GroupKFold
+
+    z = np.zeros(len(prep.y[key]))
+    n_groups = len(set(prep.groups.tolist()))
+    for train, test in GroupKFold(n_splits=min(folds, n_groups)).split(
+        prep.y[key], groups=prep.groups
+    ):
+        if prep.y[key][train].sum() == 0:
+            continue
+        coef, intercept = fit_key(prep.X[key][train], prep.y[key][train], settings)
+        z[test] = prep.X[key][test] @ coef + intercept
+    return z
+
+
+def _youden_threshold(top_scores: list[float], present: list[bool]) -> float:
+    """The top-score cut with the best sensitivity + specificity - 1 (ties: the lower cut)."""
+    s = np.asarray(top_scores)
+    y = np.asarray(present, dtype=bool)
+    if y.all() or (~y).all():
+        return 0.5
+    best, best_cut = -1.0, 0.5
+    for cut in np.unique(s):
+        j = (s[y] >= cut).mean() + (s[~y] < cut).mean() - 1
+        if j > best:
+            best, best_cut = j, float(cut)
+    return best_cut
+
+
+def fit_weights(
+    docs: list[LabelledDocument], keys: list[str], settings: Settings, texts: dict[str, str],
+    *, calibrate: bool = True, prepared: Prepared | None = None, provenance: dict | None = None,
+) -> RankerWeights:
+    """Train every mapped question's model (and the transfer model) on ``docs``."""
+    prep = prepared or prepare(docs, keys, settings, texts)
+    space = prep.space.weights
+    n_lex = len(space.word.idf) + len(space.char.idf)
+    n_sh = len(SHARED_NAMES)
+    trained = [k for k in keys if prep.y[k].sum() > 0]
+    lexical = np.zeros((len(trained), n_lex))
+    shared = np.zeros((len(trained), n_sh))
+    question = np.zeros((len(trained), len(QUESTION_NAMES)))
+    intercept = np.zeros(len(trained))
+    platt = np.tile([1.0, 0.0], (len(trained), 1))
+    tops: list[float] = []
+    present: list[bool] = []
+    for r, key in enumerate(trained):
+        coef, b = fit_key(prep.X[key], prep.y[key], settings)
+        lexical[r], shared[r] = coef[:n_lex], coef[n_lex : n_lex + n_sh]
+        question[r], intercept[r] = coef[n_lex + n_sh :], b
+        if calibrate:
+            z = _out_of_fold(prep, key, settings, settings.calibration_folds)
+            platt[r] = _fit_platt(z, prep.y[key], settings.seed)
+            p = sigmoid(platt[r, 0] * z + platt[r, 1])
+            for number, doc in enumerate(prep.docs):
+                rows = prep.groups == number
+                if rows.any():
+                    tops.append(float(p[rows].max()))
+                    present.append(doc.present[key])
+    from sklearn.linear_model import LogisticRegression
+
+    gx = np.vstack([prep.generic_X[k] for k in trained])
+    gy = np.concatenate([prep.y[k] for k in trained])
+    generic = LogisticRegression(C=1.0, solver="liblinear", max_iter=2000,
+                                 random_state=settings.seed).fit(gx, gy)
+    return RankerWeights(
+        word=space.word, char=space.char, keys=trained, lexical=lexical, shared=shared,
+        question=question, intercept=intercept, platt=platt,
+        generic=generic.coef_[0].astype(np.float64),
+        generic_intercept=float(generic.intercept_[0]), generic_platt=np.array([1.0, 0.0]),
+        no_evidence_threshold=_youden_threshold(tops, present) if tops else 0.5,
+        question_texts=dict(texts), provenance=provenance or {},
+    )
+
+
+def _fold_ranks(prep_test: Prepared, coefs: dict[str, tuple[np.ndarray, float]]) -> dict:
+    ranks: dict[str, list] = {}
+    for key, (coef, b) in coefs.items():
+        z = prep_test.X[key] @ coef + b
+        for number, doc in enumerate(prep_test.docs):
+            if doc.present[key]:
+                rows = prep_test.groups == number
+                ranks.setdefault(key, []).append(first_hit_rank(z[rows], doc.labels[key]))
+    return ranks
+
+
+def select_settings(
+    docs: list[LabelledDocument], keys: list[str], base: Settings, texts: dict[str, str],
+    folds: int, grid: Sequence[dict] = GRID, log=print,
+) -> tuple[Settings, list[dict]]:
+    """Pick C and class weighting by GroupKFold over articles: macro recall@1, then MRR."""
+    from sklearn.model_selection import GroupKFold
+
+    groups = np.arange(len(docs))
+    results = {i: {} for i in range(len(grid))}
+    for fold, (train, test) in enumerate(GroupKFold(n_splits=folds).split(docs, groups=groups)):
+        train_docs = [docs[i] for i in train]
+        prep_train = prepare(train_docs, keys, base, texts)
+        prep_test = prepare([docs[i] for i in test], keys, base, texts, space=prep_train.space)
+        for g, params in enumerate(grid):
+            settings = Settings(**{**asdict(base), **params})
+            coefs = {k: fit_key(prep_train.X[k], prep_train.y[k], settings)
+                     for k in keys if prep_train.y[k].sum() > 0}
+            for key, ranks in _fold_ranks(prep_test, coefs).items():
+                results[g].setdefault(key, []).extend(ranks)
+        log(f"  fold {fold + 1}/{folds} done")
+    table = []
+    for g, params in enumerate(grid):
+        figures = {k: QuestionFigures.from_ranks(r, [0] * len(r), [], [True] * len(r))
+                   for k, r in results[g].items()}
+        table.append({**params, "recall1": round(macro(figures, "recall1"), 4),
+                      "mrr": round(macro(figures, "mrr"), 4)})
+    best = max(range(len(grid)), key=lambda g: (table[g]["recall1"], table[g]["mrr"], -g))
+    return Settings(**{**asdict(base), **grid[best]}), table
+
+
+def _versions() -> dict[str, str]:
+    import rapidfuzz
+    import scipy
+    import sklearn
+
+    return {"python": platform.python_version(), "numpy": np.__version__,
+            "scikit-learn": sklearn.__version__, "scipy": scipy.__version__,
+            "rapidfuzz": rapidfuzz.__version__}
+
+
+def train(
+    corpus_dir: Path, out: Path, *, folds: int = 5, articles: int | None = None,
+    grid: Sequence[dict] = GRID, log=print,
+) -> RankerWeights:
+    """Train on the corpus (optionally its first ``articles`` articles) and save to ``out``."""
+    from robtui.benchmarks.corpus import load_corpus, load_mapping
+    from robtui.evidence.corpus_docs import labelled_documents
+
+    mapping = load_mapping(corpus_dir)
+    corpus = load_corpus(corpus_dir)[:articles] if articles else load_corpus(corpus_dir)
+    keys = list(mapping.questions)
+    texts = question_texts()
+    log(f"reading {len(corpus)} articles with robtui's text reader ...")
+    docs = labelled_documents(corpus, mapping, "txt")
+    base = Settings()
+    log(f"choosing settings by {folds}-fold cross-validation grouped by article ...")
+    settings, table = select_settings(docs, keys, base, texts, folds, grid, log)
+    for row in table:
+        log(f"  C={row['C']:<5} class_weight={row['class_weight']!s:<8} "
+            f"macro recall@1={row['recall1']:.3f} MRR={row['mrr']:.3f}")
+    log(f"chosen: C={settings.C} class_weight={settings.class_weight}; fitting on all articles")
+    provenance = {
+        "trained_on": {
+            "corpus": "CONSORT-TM development split (../shared/corpus/consort-tm)",
+            "citation": CITATION,
+            "articles": [d.article_id for d in docs],
+            "reader": "robtui.reading.text.document_from_text",
+        },
+        "item_mapping": {"file": "rob2-consort-map.json", "questions": mapping.questions},
+        "settings": asdict(settings),
+        "cross_validation": {"method": "GroupKFold by article", "folds": folds,
+                             "selection": "macro recall@1, then MRR", "grid": table},
+        "calibration": f"Platt scaling on {settings.calibration_folds}-fold grouped "
+                       "out-of-fold scores (vocabulary of the full training set)",
+        "untrained_questions": "transfer model over question-relative features "
+                               "(cue lexicon, question wording similarity, expected section)",
+        "libraries": _versions(),
+        "date": dt.date.today().isoformat(),
+        "seed": settings.seed,
+    }
+    weights = fit_weights(docs, keys, settings, texts, provenance=provenance)
+    save_weights(weights, out)
+    log(f"wrote {out} (no-evidence threshold {weights.no_evidence_threshold:.3f})")
+    return weights
+
+
+def build_parser() -> argparse.ArgumentParser:
+    from robtui.evidence.train_cli import add_arguments
+
+    return add_arguments(argparse.ArgumentParser(
+        prog="python -m robtui.evidence.train", description=__doc__.split("\n\n")[0]))
+
+
+def run_from_args(args: argparse.Namespace) -> int:
+    from robtui.benchmarks.corpus import default_corpus_dir
+    from robtui.errors import InputError
+
+    corpus = args.corpus or default_corpus_dir()
+    if corpus is None:
+        raise InputError("no corpus found: pass --corpus PATH (the folder holding consort-tm/)")
+    if args.folds < 2:
+        raise InputError("--folds must be at least 2")
+    train(Path(corpus), args.out or DEFAULT_WEIGHTS, folds=args.folds, articles=args.articles)
+    return 0
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    from robtui.errors import RobtuiError
+
+    try:
+        return run_from_args(build_parser().parse_args(argv))
+    except RobtuiError as error:
+        print(f"robtui: {error}", file=sys.stderr)
+        return 2
+
+
+if __name__ == "__main__":
+    sys.exit(main())

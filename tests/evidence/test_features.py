@@ -1,0 +1,82 @@
+"""Cue lexicon matching, layout and question features."""
+
+import numpy as np
+
+from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key, tokens
+from robtui.evidence.features import (
+    QUESTION_NAMES,
+    SHARED_NAMES,
+    _shift,
+    _window_max,
+    shared_features,
+)
+from robtui.reading.document import Sentence
+
+
+def test_cue_lexicon_covers_every_question_of_both_effects():
+    from robtui.evidence.ranker import active_questions
+
+    cues = load_cues()
+    for effect in ("assignment", "adhering"):
+        for qid, _ in active_questions(effect):
+            entry = cues[model_key(qid, effect)]
+            assert entry.cues and entry.sections, (effect, qid)
+
+
+def test_model_key_prefixes_domain_two_when_adhering():
+    assert model_key("2.3", "adhering") == "adhering:2.3"
+    assert model_key("2.3", "assignment") == "2.3"
+    assert model_key("3.1", "adhering") == "3.1"
+
+
+def test_fuzzy_cue_matching_tolerates_spelling_variants():
+    matcher = CueMatcher({"1.2": CueEntry("1.2", ("sealed opaque envelopes",), ())})
+    sentences = [
+        tokens("Allocation used sealed, opaque envelopes."),
+        tokens("Allocation used seald opaque envelops."),  # misspelt: fuzzy match
+        tokens("Envelopes were sealed."),  # two of three words
+        tokens("The weather was fine."),
+    ]
+    best, full = matcher.key_features(matcher.coverage(sentences), "1.2")
+    assert best[0] == 1.0 and full[0] > 0
+    assert 0.8 < best[1] < 1.0
+    assert abs(best[2] - 2 / 3) < 1e-9
+    assert best[3] == 0.0
+
+
+def test_shared_features_one_hot_section_block_position():
+    sentences = [
+        Sentence(index=0, start=0, end=7, text="Methods", section="methods", block="heading"),
+        Sentence(index=1, start=8, end=40, text="Envelopes were sealed and opaque.",
+                 section="methods.randomisation"),
+    ]
+    X = shared_features(sentences)
+    assert X.shape == (2, len(SHARED_NAMES))
+    assert X[0, SHARED_NAMES.index("section=methods")] == 1
+    assert X[1, SHARED_NAMES.index("section=methods.randomisation")] == 1
+    assert X[1, SHARED_NAMES.index("top=methods")] == 1
+    assert X[0, SHARED_NAMES.index("block=heading")] == 1
+    assert X[0, SHARED_NAMES.index("relative_position")] == 0.0
+    assert X[1, SHARED_NAMES.index("relative_position")] == 1.0
+    assert X[0, SHARED_NAMES.index("short_sentence")] == 1.0
+
+
+def test_neighbour_shifts_and_window():
+    v = np.array([0.0, 1.0, 0.0, 0.0, 0.5])
+    assert _shift(v, 1).tolist() == [0.0, 0.0, 1.0, 0.0, 0.0]  # previous sentence's value
+    assert _shift(v, -1).tolist() == [1.0, 0.0, 0.0, 0.5, 0.0]  # next sentence's value
+    assert _window_max(v, 2).tolist() == [1.0, 1.0, 1.0, 1.0, 0.5]
+
+
+def test_question_features_of_a_document(ranker, report_text):
+    from robtui.reading.text import document_from_text
+
+    doc = document_from_text(report_text)
+    feats = ranker.features(doc)
+    blocks = ranker.question_blocks(feats, ["1.2"], ["Was the allocation sequence concealed?"])
+    qf = blocks["1.2"]
+    assert qf.shape == (len(doc.sentences), len(QUESTION_NAMES))
+    envelope = next(i for i, s in enumerate(doc.sentences) if "envelopes" in s.text)
+    cue = QUESTION_NAMES.index("cue_best")
+    assert qf[envelope, cue] == qf[:, cue].max() > 0.9
+    assert qf[envelope + 1, QUESTION_NAMES.index("cue_previous")] == qf[envelope, cue]

@@ -1,0 +1,80 @@
+"""Ranking returns every question, best first, offsets into the text; threshold behaviour."""
+
+import numpy as np
+import pytest
+
+from robtui.errors import InputError
+from robtui.evidence.ranker import active_questions
+from robtui.reading.text import document_from_text
+
+
+@pytest.mark.parametrize("effect", ["assignment", "adhering"])
+def test_every_question_ranked_best_first_offsets_point_at_text(ranker, report_text, effect):
+    doc = document_from_text(report_text)
+    ranking = ranker.rank(doc, effect=effect, top=3)
+    expected = [qid for qid, _ in active_questions(effect)]
+    assert list(ranking) == expected
+    assert len(expected) >= 21
+    for qid, items in ranking.items():
+        assert len(items) == 3, qid
+        scores = [s.score for s in items]
+        assert scores == sorted(scores, reverse=True)
+        for s in items:
+            assert 0.0 <= s.score <= 1.0
+            assert report_text[s.start : s.end] == s.text
+            assert s.question_id == qid
+
+
+def test_the_answering_sentence_comes_first_for_clear_cases(ranker, report_text):
+    doc = document_from_text(report_text)
+    ranking = ranker.rank(doc, ["1.1", "1.2", "5.1"], top=1)
+    assert "random number generator" in ranking["1.1"][0].text
+    assert "sealed, opaque envelopes" in ranking["1.2"][0].text
+    assert "registered" in ranking["5.1"][0].text
+
+
+def test_threshold_separates_evidence_from_unrelated_text(ranker, report_text):
+    # A report with evidence for allocation concealment scores above the no-evidence threshold;
+    # unrelated prose (invented) scores below it, so "no sentence found" can be said.
+    doc = document_from_text(report_text)
+    best = ranker.rank(doc, ["1.2"], top=1)["1.2"][0]
+    assert best.score >= ranker.no_evidence_threshold
+    unrelated = document_from_text(
+        "The bakery opens at seven.\nBread is baked in a wood oven.\n"
+        "Customers may order cakes a week ahead.\nThe shop closes on Sundays.\n"
+    )
+    top = ranker.rank(unrelated, ["1.2"], top=1)["1.2"][0]
+    assert top.score < ranker.no_evidence_threshold
+    assert ranker.rank(unrelated, ["1.2"], threshold=ranker.no_evidence_threshold)["1.2"] == []
+    kept = ranker.rank(doc, threshold=0.3, top=None)
+    assert all(s.score >= 0.3 for items in kept.values() for s in items)
+
+
+def test_document_without_sentences_gives_empty_rankings(ranker):
+    doc = document_from_text("")
+    ranking = ranker.rank(doc)
+    assert set(ranking) == {q for q, _ in active_questions("assignment")}
+    assert all(items == [] for items in ranking.values())
+
+
+def test_unknown_question_and_bad_top_are_input_errors(ranker, report_text):
+    doc = document_from_text(report_text)
+    with pytest.raises(InputError, match="9.9"):
+        ranker.rank(doc, ["1.1", "9.9"])
+    with pytest.raises(InputError, match="2.7"):
+        ranker.rank(doc, ["2.7"], effect="adhering")  # 2.7 exists only for assignment
+    with pytest.raises(InputError):
+        ranker.rank(doc, top=0)
+
+
+def test_scores_are_platt_calibrated_logits(ranker, report_text):
+    # The calibrated score is sigmoid(a*z+b) of the linear score: check against the arrays.
+    from robtui.evidence.ranker import sigmoid
+
+    doc = document_from_text(report_text)
+    feats = ranker.features(doc)
+    logits = ranker.logits(feats, ["1.2"], [ranker.weights.question_texts["1.2"]])["1.2"]
+    ranking = ranker.rank(doc, ["1.2"], top=None)["1.2"]
+    by_index = {s.sentence_index: s.score for s in ranking}
+    expected = np.round(sigmoid(logits), 4)
+    assert [by_index[i] for i in range(len(doc.sentences))] == expected.tolist()

@@ -1,0 +1,50 @@
+"""The numpy TF-IDF transform equals scikit-learn's TfidfVectorizer on sample text."""
+
+import numpy as np
+import pytest
+
+from robtui.evidence.tfidf import TfidfTable, vocabulary_from_bytes, vocabulary_to_bytes
+
+# Invented sentences in the style of trial reports (no corpus text).
+SAMPLE = [
+    "Participants were randomly assigned (1:1) by a computer-generated list to Velorin or placebo.",
+    "Allocation was concealed with sequentially numbered, sealed, opaque envelopes.",
+    "Outcome assessors were masked to group; the analysis followed intention-to-treat.",
+    "Twelve patients were lost to follow-up — randomized, randomised: café naïve résumé.",
+    "The trial was registered at an invented registry (XR-2031-0042).",
+    "",
+    "a b c",
+]
+UNSEEN = ["Envelopes were opened by a nurse not involved in recruitment.", "ÉTUDE — double-blind"]
+
+
+@pytest.mark.parametrize(
+    "analyzer, ngrams", [("word", (1, 2)), ("char_wb", (3, 5)), ("word", (1, 1))]
+)
+def test_transform_equals_sklearn(analyzer, ngrams):
+    from sklearn.feature_extraction.text import TfidfVectorizer
+
+    vec = TfidfVectorizer(analyzer=analyzer, ngram_range=ngrams, sublinear_tf=True)
+    vec.fit(SAMPLE)
+    table = TfidfTable(analyzer, ngrams, dict(vec.vocabulary_), vec.idf_)
+    texts = SAMPLE + UNSEEN
+    ours = table.transform(texts).to_scipy().toarray()
+    theirs = vec.transform(texts).toarray()
+    assert ours.shape == theirs.shape
+    np.testing.assert_allclose(ours, theirs, atol=1e-12)
+    assert ours[:5].sum() > 0  # not an all-zero comparison
+
+
+def test_vocabulary_round_trip_through_bytes():
+    vocab = {"sealed": 0, "opaque envelopes": 1, " ra": 2, "naïve": 3}
+    assert vocabulary_from_bytes(vocabulary_to_bytes(vocab)) == vocab
+
+
+def test_sparse_dot_matches_dense():
+    from sklearn.feature_extraction.text import TfidfVectorizer
+
+    vec = TfidfVectorizer(sublinear_tf=True).fit(SAMPLE)
+    table = TfidfTable("word", (1, 1), dict(vec.vocabulary_), vec.idf_)
+    rows = table.transform(SAMPLE)
+    weights = np.random.default_rng(0).normal(size=(3, rows.n_cols))
+    np.testing.assert_allclose(rows.dot(weights), rows.to_scipy().toarray() @ weights.T)
