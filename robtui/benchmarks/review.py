@@ -75,14 +75,14 @@ def build_synthetic_review(
     sha = "0" * 64
     for study in review.studies:
         for spec in review.results:
-            base = {}
+            base: dict[str, str] = {}
 
-            def pick_a(question):
-                choice = rng.choice([o for o in question.options if o != "NI"] or question.options)
-                base[question.id] = choice
-                return choice
+            def pick_a(question, base=base):
+                options = [o for o in question.options if o != "NI"] or list(question.options)
+                base[question.id] = rng.choice(options)
+                return base[question.id]
 
-            def pick_b(question):
+            def pick_b(question, base=base):
                 if question.id in base and rng.random() > disagreement:
                     return base[question.id]
                 return rng.choice(question.options)

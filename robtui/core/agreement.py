@@ -199,6 +199,11 @@ def agreement(
     pabak = (k * p_o - 1.0) / (k - 1.0) if k >= 2 else None
     if k < 2:
         notes.append("PABAK needs at least two categories")
+    if se is not None and se < 1e-9:
+        notes.append(
+            "the large-sample standard error is 0 here (perfect or degenerate agreement), so "
+            "the interval collapses to a point; it says nothing about sampling uncertainty"
+        )
     if n < 10 and kappa is not None:
         notes.append(f"only {n} pairs: the interval is a rough large-sample approximation")
     return AgreementStats(

@@ -11,7 +11,7 @@ from __future__ import annotations
 import io
 
 from robtui.core.model import OVERALL
-from robtui.export.palette import OUTLINE, SWATCHES, swatch
+from robtui.export.palette import OUTLINE, SWATCHES
 from robtui.export.tables import OutcomeExport, column_titles
 
 SHARE_CODES = ("low", "some_concerns", "high", "incomplete")

@@ -97,7 +97,8 @@ def build_outcome_export(
         weight = spec.weights.get(study.id) if spec and spec.weights else None
         rows.append(JudgementRow(study.id, study.label, judgements, source, weight))
         if record is not None:
-            supporting += _supporting(study.id, source, record, qset)
+            whose = source if source == "consensus" else f"answers of {record.reviewer}; {source}"
+            supporting += _supporting(study.id, whose, record, qset)
     shares, basis = _shares(rows, keys, spec.weights if spec else {})
     overall = {r.study_id: r.judgements[OVERALL] for r in rows}
     grade = suggest_rob_rating(overall, spec.weights if spec and spec.weights else None)

@@ -318,8 +318,10 @@ def to_tex(ex: OutcomeExport, qset) -> str:
     lines += [
         r"\end{tabular}",
         r"\subsection*{GRADE: risk of bias (suggestion)}",
-        f"\\textbf{{Suggested rating: {tex(g.rating or 'no suggestion')}.}} "
-        f"{tex(g.rationale)}\\par {tex(g.label)} {tex(g.rule_of_thumb)}",
+        (
+            f"\\textbf{{Suggested rating: {tex(g.rating or 'no suggestion')}.}} "
+            f"{tex(g.rationale)}\\par {tex(g.label)} {tex(g.rule_of_thumb)}"
+        ),
     ]
     lines += [f"\\par {tex(n)}" for n in g.notes]
     if ex.problems:

@@ -1,0 +1,245 @@
+"""robtui consensus start|settle|override|show|complete|reopen|list DIR: the lead's consensus.
+
+Consensus records live in DIR/consensus/, apart from both reviewers' files. The lead settles
+every difference by taking reviewer A's answer, B's, or a new answer, always with a note; the
+judgements are recomputed by the algorithm from the agreed answers.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+from pathlib import Path
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    from robtui.commands.compare import add_reviewer_options
+
+    parser = subparsers.add_parser(
+        "consensus",
+        help="settle two reviewers' differences into a consensus record",
+        description="Consensus records: start, settle questions, show, complete.",
+    )
+    actions = parser.add_subparsers(dest="consensus_action", metavar="ACTION", required=True)
+
+    def target(sub: argparse.ArgumentParser) -> None:
+        sub.add_argument("folder", type=Path, metavar="DIR", help="review folder")
+        sub.add_argument("--study", required=True, help="study id")
+        sub.add_argument("--result", required=True, help="result id")
+
+    start = actions.add_parser("start", help="start a consensus record from two assessments")
+    target(start)
+    add_reviewer_options(start)
+    start.add_argument("--lead", help="who settles (default: the review's lead)")
+    start.set_defaults(func=run_start)
+
+    settle = actions.add_parser("settle", help="settle one signalling question, with a note")
+    target(settle)
+    settle.add_argument("--question", required=True, help="signalling question id, e.g. 1.2")
+    how = settle.add_mutually_exclusive_group(required=True)
+    how.add_argument(
+        "--take", metavar="SIDE", help="take a reviewer's answer: a, b, or the reviewer's name"
+    )
+    how.add_argument("--answer", metavar="CODE", help="a new answer (Y, PY, PN, N, NI, NA)")
+    settle.add_argument("--note", required=True, help="why (kept in the record)")
+    settle.set_defaults(func=run_settle)
+
+    override = actions.add_parser("override", help="override a recomputed judgement, with a reason")
+    target(override)
+    override.add_argument("--domain", required=True, metavar="KEY", help="1 to 5, or overall")
+    override.add_argument("--judgement", required=True, choices=("low", "some_concerns", "high"))
+    override.add_argument("--reason", required=True)
+    override.set_defaults(func=run_override)
+
+    show = actions.add_parser("show", help="show a consensus record and what is still open")
+    target(show)
+    show.add_argument("--json", action="store_true")
+    show.set_defaults(func=run_show)
+
+    complete = actions.add_parser("complete", help="mark a consensus record complete")
+    target(complete)
+    complete.set_defaults(func=run_complete)
+
+    reopen = actions.add_parser("reopen", help="reopen a completed consensus record")
+    target(reopen)
+    reopen.set_defaults(func=run_reopen)
+
+    listing = actions.add_parser("list", help="list consensus records and their status")
+    listing.add_argument("folder", type=Path, metavar="DIR", help="review folder")
+    listing.set_defaults(func=run_list)
+
+
+def _existing(folder, args):
+    from robtui.errors import InputError
+
+    folder.study_or_error(args.study)
+    folder.result_or_error(args.result)
+    record = folder.load_consensus(args.study, args.result)
+    if record is None:
+        raise InputError(
+            f"no consensus record for {args.study} / {args.result}: start one with "
+            f"`robtui consensus start {args.folder} --study {args.study} --result {args.result}`"
+        )
+    return record
+
+
+def _pair_of(folder, record):
+    from robtui.core.comparison import pair_assessments
+
+    a_name, b_name = record.reviewers
+    a = folder.load_assessment(a_name, record.study_id, record.result_id)
+    b = folder.load_assessment(b_name, record.study_id, record.result_id)
+    [pair] = pair_assessments(
+        [a] if a else [],
+        [b] if b else [],
+        reviewer_a=a_name,
+        reviewer_b=b_name,
+        expected=[(record.study_id, record.result_id)],
+    )
+    return pair
+
+
+def _summary(record, qset) -> list[str]:
+    from robtui.core.comparison import judgement_label, pending_questions
+
+    pending = pending_questions(record, qset)
+    a, b = record.reviewers
+    lines = [
+        (
+            f"consensus {record.study_id} / {record.result_id} ({a} and {b}, lead "
+            f"{record.lead}): {record.status}"
+        )
+    ]
+    for key, value in record.final.items():
+        label = "Overall" if key == "overall" else f"D{key} {qset.domain(key).short_name}"
+        proposed = record.proposed.get(key)
+        extra = (
+            f" (override; algorithm: {judgement_label(proposed)})"
+            if key in record.overrides
+            else ""
+        )
+        lines.append(f"  {label:<34} {judgement_label(value)}{extra}")
+    for qid, decision in record.decisions.items():
+        if decision.source != "agreed":
+            who = {"a": f"took {a}", "b": f"took {b}", "new": "new answer"}[decision.source]
+            lines.append(f"  {qid}: {decision.response or 'not asked'} ({who}): {decision.note}")
+    lines.append("  to settle: " + (", ".join(pending) if pending else "nothing"))
+    return lines
+
+
+def run_start(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import choose_reviewers, load_pairs, open_review
+    from robtui.core.comparison import start_consensus
+    from robtui.errors import InputError
+
+    folder, qset = open_review(args.folder)
+    reviewers = choose_reviewers(folder, args.reviewers)
+    lead = args.lead or folder.review.lead
+    if not lead:
+        raise InputError("the review names no lead: give --lead NAME")
+    existing = folder.load_consensus(args.study, args.result)
+    if existing is not None:
+        raise InputError(
+            f"a consensus record for {args.study} / {args.result} exists already "
+            f"({existing.status}): see it with `robtui consensus show`"
+        )
+    [pair], problems = load_pairs(folder, reviewers, args.study, args.result)
+    if problems:
+        raise InputError("; ".join(problems))
+    record = start_consensus(pair, lead, qset)
+    path = folder.save_consensus(record)
+    print(f"started {path}")
+    print("\n".join(_summary(record, qset)))
+    return 0
+
+
+def run_settle(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review
+    from robtui.core.comparison import settle
+    from robtui.errors import InputError
+
+    folder, qset = open_review(args.folder)
+    record = _existing(folder, args)
+    if args.take is not None:
+        side = {"a": "a", "b": "b", record.reviewers[0]: "a", record.reviewers[1]: "b"}.get(
+            args.take if args.take in record.reviewers else args.take.lower()
+        )
+        if side is None:
+            raise InputError(
+                f"--take {args.take!r}: use a, b, {record.reviewers[0]} or {record.reviewers[1]}"
+            )
+        record = settle(
+            record, qset, args.question, side, note=args.note, pair=_pair_of(folder, record)
+        )
+    else:
+        record = settle(record, qset, args.question, "new", args.answer.upper(), args.note)
+    folder.save_consensus(record)
+    print("\n".join(_summary(record, qset)))
+    return 0
+
+
+def run_override(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review
+    from robtui.core.comparison import set_consensus_override
+
+    folder, qset = open_review(args.folder)
+    record = _existing(folder, args)
+    record = set_consensus_override(record, qset, args.domain, args.judgement, args.reason)
+    folder.save_consensus(record)
+    print("\n".join(_summary(record, qset)))
+    return 0
+
+
+def run_show(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review
+    from robtui.core.comparison import pending_questions
+
+    folder, qset = open_review(args.folder)
+    record = _existing(folder, args)
+    if args.json:
+        data = record.model_dump(mode="json")
+        data["pending"] = pending_questions(record, qset)
+        print(json.dumps(data, indent=2, ensure_ascii=False))
+    else:
+        print("\n".join(_summary(record, qset)))
+    return 0
+
+
+def run_complete(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review
+    from robtui.core.comparison import complete_consensus
+
+    folder, qset = open_review(args.folder)
+    record = complete_consensus(_existing(folder, args), qset)
+    folder.save_consensus(record)
+    print("\n".join(_summary(record, qset)))
+    return 0
+
+
+def run_reopen(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review
+    from robtui.core.comparison import reopen_consensus
+
+    folder, qset = open_review(args.folder)
+    record = reopen_consensus(_existing(folder, args))
+    folder.save_consensus(record)
+    print("\n".join(_summary(record, qset)))
+    return 0
+
+
+def run_list(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review, warn
+    from robtui.core.comparison import pending_questions
+
+    folder, qset = open_review(args.folder)
+    records, problems = folder.consensus_records()
+    for r in records:
+        pending = pending_questions(r, qset)
+        print(
+            f"{r.study_id:<20} {r.result_id:<16} {r.status:<9} "
+            f"{len(pending)} to settle  lead {r.lead}"
+        )
+    if not records:
+        print("no consensus records yet")
+    warn(problems)
+    return 0

@@ -1,0 +1,88 @@
+"""robtui export DIR --format FMT: traffic-light table, summary plot, supporting table, GRADE.
+
+One export per result (RoB 2 judges results). Files go to DIR/exports/; each row says which
+source it used (consensus, reviewers agreeing, one reviewer); studies not judged yet (drafts,
+missing assessments, unsettled differences) are listed in the export and on stderr.
+"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+FORMATS = ("html", "svg", "png", "pdf", "csv", "md", "tex")
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:
+    parser = subparsers.add_parser(
+        "export",
+        help="export the traffic-light table, summary plot and supporting table",
+        description=(
+            "Export per result: traffic-light table (studies x domains and overall), summary "
+            "of judgements per domain (share of studies, or of meta-analysis weight when the "
+            "result has weights), supporting table (answers, justifications, quotes with "
+            "pages) and a GRADE risk-of-bias suggestion for the panel. Formats html, md, tex "
+            "and csv hold the tables; svg, png and pdf hold the two figures."
+        ),
+    )
+    parser.add_argument("folder", type=Path, metavar="DIR", help="review folder")
+    parser.add_argument(
+        "--format",
+        dest="formats",
+        action="append",
+        required=True,
+        choices=(*FORMATS, "all"),
+        help="output format (repeat for several)",
+    )
+    parser.add_argument("--result", help="only this result (default: every result)")
+    parser.add_argument(
+        "--out",
+        metavar="NAME",
+        help="file name (without extension) inside DIR/exports/; default: the result id",
+    )
+    parser.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    from robtui.commands.compare import open_review, warn
+    from robtui.errors import InputError
+    from robtui.export.writers import export_outcome
+
+    folder, qset = open_review(args.folder)
+    if args.result:
+        results = [folder.result_or_error(args.result).id]
+    else:
+        results = [r.id for r in folder.review.results]
+    if not results:
+        raise InputError("the review has no results yet: add one with `robtui result add`")
+    if args.out:
+        from robtui.export.safety import export_path
+
+        export_path(folder.exports_dir, args.out)  # refuse a bad name before writing anything
+    formats = list(dict.fromkeys(FORMATS if "all" in args.formats else args.formats))
+    assessments, problems = folder.assessments()
+    consensus, consensus_problems = folder.consensus_records()
+    warn(problems + consensus_problems)
+    for result_id in results:
+        name = args.out if len(results) == 1 or not args.out else f"{args.out}-{result_id}"
+        outcome = None
+        for fmt in formats:
+            paths, outcome = export_outcome(
+                folder,
+                qset,
+                result_id,
+                fmt,
+                name=name,
+                assessments=assessments,
+                consensus=consensus,
+            )
+            for path in paths:
+                print(path)
+        if outcome is not None:
+            g = outcome.grade
+            print(
+                f"{result_id}: GRADE risk of bias, suggested {g.rating or 'no suggestion'} "
+                f"(a suggestion for the panel; our own rule of thumb)"
+            )
+            warn([f"{result_id}: not judged or not final: {p}" for p in outcome.problems])
+    return 0
