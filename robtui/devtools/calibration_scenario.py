@@ -138,3 +138,44 @@ def assess_round(
             folder.save_assessment(a)
             saved.append(a)
     return saved
+
+
+def run_scripted_calibration(root: Path):
+    """The whole scenario through the store: round 1, the rule on 4.4, second look, round 2.
+
+    Returns the ReviewFolder and the rule book as saved (version 1).
+    """
+    from robtui.core.calibration import build_round
+    from robtui.core.rules import add_rule, conditions_from_result
+    from robtui.store.calibration_rounds import save_round
+    from robtui.store.rules_file import load_folder_rules, review_question_set, save_rulebook
+
+    folder = build_calibration_review(root)
+    book = load_folder_rules(folder)
+    for number, plan in ((1, ROUND_1), (2, ROUND_2)):
+        if number == 2:
+            result = folder.review.result("mort")
+            changed = add_rule(
+                book,
+                RULE_QUESTION,
+                RULE_TEXT,
+                when=conditions_from_result(result),
+                answer="N",
+                note="calibration round 1",
+            )
+            book = save_rulebook(
+                folder.rules_path,
+                changed,
+                expected_version=book.version,
+                qset=review_question_set(folder),
+            )
+        assess_round(folder, plan, round_no=number, rulebook=book)
+        found, _ = folder.assessments()
+        created = (START + timedelta(days=number)).isoformat().replace("+00:00", "Z")
+        save_round(
+            folder.root,
+            build_round(
+                number, folder.review, REVIEWERS, found, rules_version=book.version, created=created
+            ),
+        )
+    return folder, book

@@ -21,16 +21,7 @@ from robtui.core.calibration import (
 )
 from robtui.core.comparison import review_agreement
 from robtui.core.questions import builtin_question_set
-from robtui.core.rules import add_rule, conditions_from_result
-from robtui.devtools.calibration_scenario import (
-    REVIEWERS,
-    ROUND_1,
-    ROUND_2,
-    RULE_QUESTION,
-    RULE_TEXT,
-    assess_round,
-    build_calibration_review,
-)
+from robtui.devtools.calibration_scenario import REVIEWERS, RULE_QUESTION, run_scripted_calibration
 from robtui.errors import InputError
 from robtui.store.calibration_rounds import (
     load_round,
@@ -38,7 +29,6 @@ from robtui.store.calibration_rounds import (
     save_round,
     set_calibration_set,
 )
-from robtui.store.rules_file import load_folder_rules, save_rulebook
 
 QSET = builtin_question_set()
 
@@ -64,27 +54,19 @@ def calibrated(tmp_path_factory):
 
     Built once for the module: the tests below only read it (failed writes change nothing).
     """
-    folder = build_calibration_review(tmp_path_factory.mktemp("cal") / "review")
-    book = load_folder_rules(folder)
-    assess_round(folder, ROUND_1, round_no=1, rulebook=book)
-    found, problems = folder.assessments()
-    assert problems == []
-    r1 = build_round(1, folder.review, REVIEWERS, found, rules_version=book.version, created="t1")
-    save_round(folder.root, r1)
-    result = folder.review.result("mort")
-    new = add_rule(book, RULE_QUESTION, RULE_TEXT, when=conditions_from_result(result), answer="N")
-    book = save_rulebook(folder.rules_path, new, expected_version=book.version, qset=QSET)
-    assess_round(folder, ROUND_2, round_no=2, rulebook=book)
-    found, _ = folder.assessments()
-    r2 = build_round(2, folder.review, REVIEWERS, found, rules_version=book.version, created="t2")
-    save_round(folder.root, r2)
-    return folder, book
+    return run_scripted_calibration(tmp_path_factory.mktemp("cal") / "review")
 
 
 def test_scripted_calibration_before_and_after(calibrated):
     folder, book = calibrated
     r1, r2 = load_round(folder.root, 1), load_round(folder.root, 2)
     assert (r1.rules_version, r2.rules_version) == (0, 1) and book.version == 1
+    [rule] = book.rules
+    assert rule.question_id == RULE_QUESTION and rule.answer == "N"
+    assert rule.when == (("outcome_type", "objective"), ("self_reported", "false"))
+    # every assessment in a round records the rules version it was made under
+    assert {p.a.rules_version for p in r1.pairs} | {p.b.rules_version for p in r1.pairs} == {0}
+    assert {p.a.rules_version for p in r2.pairs} | {p.b.rules_version for p in r2.pairs} == {1}
     # ben never completed S5: listed in both rounds, not dropped
     for r in (r1, r2):
         assert [(m.study_id, m.result_id) for m in r.missing] == [("S5", "mort")]
