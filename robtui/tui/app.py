@@ -33,6 +33,7 @@ class Workbench(App[int]):
     TITLE = "robtui workbench"
     ENABLE_COMMAND_PALETTE = True
     BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("ctrl+p", "command_palette", "Commands"),
         Binding("ctrl+q", "quit", "Quit", priority=True),
         Binding("f1", "help", "Help", show=False),
     ]

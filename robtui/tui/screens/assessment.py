@@ -17,7 +17,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
-from textual.widgets import Footer, Input, Label, ProgressBar, Static
+from textual.widgets import Input, Label, ProgressBar, Static
 from textual.worker import get_current_worker
 
 from robtui.core.model import OVERALL, Quote
@@ -34,6 +34,7 @@ from robtui.tui.screens.dialogs import (
 )
 from robtui.tui.session import AssessmentSession
 from robtui.tui.widgets.judgement_strip import DomainTab, JudgementStrip
+from robtui.tui.widgets.key_hints import KeyHints
 from robtui.tui.widgets.question_list import QuestionList, line_for
 from robtui.tui.widgets.report_view import ReportView
 from robtui.tui.widgets.response_bar import ResponseBar
@@ -114,7 +115,7 @@ class AssessmentScreen(Screen[None]):
                     placeholder="Justification (e to write, enter when done)", id="justification"
                 )
                 yield Static("", id="judgement")
-        yield Footer()
+        yield KeyHints()
 
     def on_mount(self) -> None:
         self.query_one("#search", Input).display = False

@@ -10,7 +10,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Static
+from textual.widgets import DataTable, Static
 from textual.widgets.data_table import CellDoesNotExist
 
 from robtui.core.model import OVERALL
@@ -23,6 +23,7 @@ from robtui.tui.session import (
     ResultRow,
     ReviewSession,
 )
+from robtui.tui.widgets.key_hints import KeyHints
 
 STATUS_TEXT = {
     STATUS_NOT_STARTED: Text("not started", style="dim"),
@@ -61,7 +62,7 @@ class OverviewScreen(Screen[None]):
             yield Static("", id="overview-filter")
             yield DataTable(id="results", cursor_type="row", zebra_stripes=True)
             yield Static("", id="overview-detail")
-        yield Footer()
+        yield KeyHints()
 
     def on_mount(self) -> None:
         table = self.query_one("#results", DataTable)

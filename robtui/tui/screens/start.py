@@ -10,11 +10,12 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.screen import Screen
-from textual.widgets import Footer, Input, Label, OptionList, Static
+from textual.widgets import Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from robtui.errors import InputError
 from robtui.tui.session import check_reviewer_name
+from robtui.tui.widgets.key_hints import KeyHints
 
 
 class ReviewerScreen(Screen[str]):
@@ -41,7 +42,7 @@ class ReviewerScreen(Screen[str]):
                 placeholder="or type your reviewer name and press enter", id="reviewer-name"
             )
             yield Static("", id="reviewer-error", classes="error-text")
-        yield Footer()
+        yield KeyHints()
 
     def on_mount(self) -> None:
         self.query_one("#reviewer-name", Input).focus()
@@ -77,4 +78,4 @@ class ProblemScreen(Screen[None]):
             yield Label(Text("This review cannot be opened", style="bold"))
             yield Static(self.message, id="problem-message", classes="error-text")
             yield Static("Nothing was changed on disk. Press q to quit.")
-        yield Footer()
+        yield KeyHints()

@@ -29,11 +29,19 @@ class QuestionLine:
     suggestions: int
 
 
+def asked_because(condition_text: str) -> str:
+    """'If Y/PY to 2.3' -> '↳ asked if Y/PY to 2.3' (the reason a conditional question shows)."""
+    text = condition_text.strip()
+    if text.startswith("If "):
+        return "↳ asked if " + text[3:]
+    return "↳ asked: " + text
+
+
 def question_prompt(line: QuestionLine) -> Table:
     q = line.question
     body = Text(q.text)
-    if q.asked_if is not None and q.condition_text:
-        body.append(f"\nasked because {q.condition_text}", style="italic dim")
+    if q.condition_text:
+        body.append(f"\n{asked_because(q.condition_text)}", style="italic dim")
     if line.justification:
         shown = line.justification
         if len(shown) > 160:
