@@ -1,0 +1,218 @@
+"""Comparison of two reviewers, agreement over a review, and consensus records."""
+
+from __future__ import annotations
+
+import pytest
+from sklearn.metrics import cohen_kappa_score
+
+from robtui.benchmarks.review import answer_everything
+from robtui.core import assessing
+from robtui.core.algorithm import propose_all
+from robtui.core.comparison import (
+    compare_pair,
+    complete_consensus,
+    differences,
+    judgement_rows,
+    pair_assessments,
+    path_answers,
+    pending_questions,
+    review_agreement,
+    set_consensus_override,
+    settle,
+    start_consensus,
+)
+from robtui.core.model import Quote, ResultSpec, Review, Study
+from robtui.core.questions import builtin_question_set
+from robtui.errors import InputError
+
+QSET = builtin_question_set()
+SHA = "a" * 64
+REVIEW = Review(
+    title="Invented review of the Larkspur breathing programme",
+    reviewers=["ana", "ben"],
+    lead="lee",
+    studies=[Study(id=f"S{i}", label=f"Study {i}") for i in range(1, 7)],
+    results=[ResultSpec(id="pain", outcome="Pain at 6 weeks")],
+)
+# Answers giving "low" in every domain for the assignment effect (common RoB 2 reading).
+LOW = {
+    "1.1": "Y",
+    "1.2": "Y",
+    "1.3": "N",
+    "2.1": "N",
+    "2.2": "N",
+    "2.6": "Y",
+    "3.1": "Y",
+    "4.1": "N",
+    "4.2": "N",
+    "4.3": "N",
+    "5.1": "Y",
+    "5.2": "N",
+    "5.3": "N",
+}
+
+
+def make(reviewer, study, answers=None, *, complete=True, note=None):
+    chosen = {**LOW, **(answers or {})}
+    a = assessing.new_assessment(REVIEW, study, "pain", reviewer, QSET)
+    a = answer_everything(a, QSET, lambda q: chosen.get(q.id, q.options[0]))
+    if note:
+        qid, text = note
+        a = assessing.set_justification(a, QSET, qid, text)
+        a = assessing.add_quote(
+            a, QSET, qid, Quote(document_sha256=SHA, start=5, end=40, page=3, text=text)
+        )
+    return assessing.mark_complete(a, QSET) if complete else a
+
+
+def test_all_low_answers_give_low():
+    a = make("ana", "S1")
+    assert a.final["overall"] == "low"
+
+
+def test_pairs_list_drafts_and_missing_instead_of_dropping_them():
+    a = [make("ana", "S1"), make("ana", "S2"), make("ana", "S3", complete=False)]
+    b = [make("ben", "S1"), make("ben", "S3")]
+    expected = [(f"S{i}", "pain") for i in range(1, 5)]
+    pairs = pair_assessments(a, b, reviewer_a="ana", reviewer_b="ben", expected=expected)
+    assert [p.key for p in pairs] == expected
+    status = {p.study_id: p.problem for p in pairs}
+    assert status["S1"] is None
+    assert "ben: no assessment" in status["S2"]
+    assert "ana: draft" in status["S3"]
+    assert "ana: no assessment" in status["S4"] and "ben: no assessment" in status["S4"]
+    with pytest.raises(InputError, match="cannot be compared"):
+        differences(pairs[1], QSET)
+
+
+def test_differences_come_first_with_each_sides_justification_and_quotes():
+    a = make("ana", "S1", {"1.2": "Y"}, note=("1.2", "central telephone allocation"))
+    b = make("ben", "S1", {"1.2": "NI", "5.2": "PN"}, note=("1.2", "not described"))
+    [pair] = pair_assessments([a], [b])
+    rows = differences(pair, QSET)
+    assert [r.question_id for r in rows[:2]] == ["1.2", "5.2"]
+    assert all(r.differs for r in rows[:2]) and not any(r.differs for r in rows[2:])
+    first = rows[0]
+    assert (first.response_a, first.response_b) == ("Y", "NI")
+    assert first.justification_a == "central telephone allocation"
+    assert first.quotes_b[0].page == 3 and first.quotes_b[0].text == "not described"
+    # every question of the set appears once
+    assert sorted(r.question_id for r in rows) == sorted(q.id for q in QSET.questions())
+
+
+def test_question_asked_of_one_side_only_is_a_difference():
+    # 2.3 is asked only when 2.1 or 2.2 is yes-ish; ana says no, ben says yes
+    a = make("ana", "S1")
+    b = make("ben", "S1", {"2.1": "Y", "2.3": "N"})
+    [pair] = pair_assessments([a], [b])
+    by_id = {r.question_id: r for r in differences(pair, QSET)}
+    assert by_id["2.3"].response_a is None and by_id["2.3"].response_b == "N"
+    assert by_id["2.3"].differs
+
+
+def test_judgement_rows_side_by_side_with_override_reason():
+    a = make("ana", "S1", {"1.2": "N"})
+    b = assessing.reopen(make("ben", "S1"))
+    b = assessing.mark_complete(
+        assessing.set_override(b, QSET, "overall", "some_concerns", "small pilot, many gaps"),
+        QSET,
+    )
+    [pair] = pair_assessments([a], [b])
+    rows = {r.key: r for r in judgement_rows(pair, QSET)}
+    assert list(rows)[-1] == "overall" and len(rows) == 6
+    assert (rows["1"].final_a, rows["1"].final_b) == ("high", "low")
+    assert rows["1"].differs
+    assert rows["overall"].final_b == "some_concerns"
+    assert rows["overall"].override_b == "small pilot, many gaps"
+    assert compare_pair(pair, QSET).n_differences == 1
+
+
+def test_review_agreement_shape_and_kappa_equal_scikit_learn():
+    variants = [{}, {"1.2": "N"}, {"1.2": "NI", "1.3": "Y"}, {"5.2": "Y"}, {"4.1": "Y"}]
+    a = [make("ana", f"S{i + 1}", v) for i, v in enumerate(variants)]
+    b_variants = [{}, {"1.2": "N"}, {}, {"5.2": "Y"}, {"1.2": "N"}]
+    b = [make("ben", f"S{i + 1}", v) for i, v in enumerate(b_variants)]
+    b.append(make("ben", "S6", complete=False))
+    pairs = pair_assessments(a, b, reviewer_a="ana", reviewer_b="ben")
+    stats = review_agreement(pairs, QSET)
+    assert stats["reviewers"] == ["ana", "ben"]
+    assert set(stats["domains"]) == {"1", "2", "3", "4", "5", "overall"}
+    assert stats["compared"] == 5
+    assert stats["not_compared"][0]["study"] == "S6"
+    for key in ("1", "overall"):
+        s = stats["domains"][key]
+        fa = [p.a.final[key] for p in pairs if p.comparable]
+        fb = [p.b.final[key] for p in pairs if p.comparable]
+        assert s["pairs"] == [list(x) for x in zip(fa, fb)]
+        labels = ["low", "some_concerns", "high"]
+        # reference: scikit-learn
+        assert s["kappa"] == pytest.approx(cohen_kappa_score(fa, fb, labels=labels), abs=1e-6)
+        assert s["weighted_kappa"] == pytest.approx(
+            cohen_kappa_score(fa, fb, labels=labels, weights="linear"), abs=1e-6
+        )
+        for field in ("n", "percent_agreement", "kappa_ci", "pabak", "band"):
+            assert field in s
+    q12 = stats["questions"]["1.2"]
+    assert q12["n"] == 5 and q12["percent_agreement"] == pytest.approx(60.0)
+    assert list(stats["questions"])[:3] == ["1.1", "1.2", "1.3"]
+
+
+def test_consensus_starts_from_agreed_answers_and_recomputes_by_the_algorithm():
+    a = make("ana", "S1", {"1.2": "N"}, note=("1.2", "sealed envelopes, not opaque"))
+    b = make("ben", "S1", {"1.2": "PY", "5.2": "PN"})
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lee", QSET)
+    assert c.reviewers == ("ana", "ben") and c.status == "draft"
+    assert c.decisions["1.1"].source == "agreed"
+    assert set(pending_questions(c, QSET)) == {"1.2", "5.2"}
+    assert c.final["1"] == "incomplete"
+    with pytest.raises(InputError, match="not finished"):
+        complete_consensus(c, QSET)
+    with pytest.raises(InputError, match="note"):
+        settle(c, QSET, "1.2", "a", pair=pair)
+    c = settle(c, QSET, "1.2", "a", note="envelopes could be read against light", pair=pair)
+    assert c.answers["1.2"].response == "N"
+    assert c.answers["1.2"].justification == "sealed envelopes, not opaque"
+    assert c.answers["1.2"].quotes[0].page == 3
+    with pytest.raises(InputError, match="one of"):
+        settle(c, QSET, "5.2", "new", "maybe", note="x")
+    c = settle(c, QSET, "5.2", "new", "N", note="only one scale was planned")
+    assert c.decisions["5.2"].source == "new" and c.decisions["5.2"].note
+    done = complete_consensus(c, QSET)
+    assert done.status == "complete"
+    # judgements recomputed by the algorithm from the agreed answers
+    expected = propose_all(QSET, "assignment", path_answers(QSET, "assignment", done.answers))
+    assert done.final == expected and done.final["1"] == "high"
+    with pytest.raises(InputError, match="reopen"):
+        settle(done, QSET, "1.1", "b", note="x", pair=pair)
+
+
+def test_taking_a_side_that_was_not_asked_clears_the_answer():
+    a = make("ana", "S1")
+    b = make("ben", "S1", {"2.1": "Y", "2.3": "N"})
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lee", QSET)
+    c = settle(c, QSET, "2.1", "a", note="blinding described", pair=pair)
+    assert "2.3" not in pending_questions(c, QSET)
+    c = settle(c, QSET, "2.3", "a", note="not asked once 2.1 is N", pair=pair)
+    assert c.answers["2.3"].response is None
+    assert complete_consensus(c, QSET).final["2"] == "low"
+
+
+def test_consensus_override_needs_a_reason():
+    a, b = make("ana", "S1"), make("ben", "S1")
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lee", QSET)
+    with pytest.raises(InputError, match="reason"):
+        set_consensus_override(c, QSET, "overall", "high", "  ")
+    c = set_consensus_override(c, QSET, "overall", "some_concerns", "funder ran the analysis")
+    assert c.final["overall"] == "some_concerns" and c.proposed["overall"] == "low"
+
+
+def test_different_effects_are_not_compared():
+    a = make("ana", "S1")
+    b = assessing.reopen(make("ben", "S1"))
+    b = assessing.set_effect(b, QSET, "adhering")
+    b = assessing.mark_complete(answer_everything(b, QSET, lambda q: q.options[0]), QSET)
+    [pair] = pair_assessments([a], [b])
+    assert "effects differ" in pair.problem
