@@ -193,9 +193,11 @@ def question_lines(a, qset) -> list[str]:
 def run(args: argparse.Namespace) -> int:
     from robtui.core import assessing
     from robtui.core.questions import builtin_question_set
+    from robtui.core.rules import stamp_rules_version
     from robtui.errors import InputError
     from robtui.store.records import record_to_json
     from robtui.store.review_folder import ReviewFolder, check_id
+    from robtui.store.rules_file import load_rules_safely
 
     folder = ReviewFolder.open(args.folder)
     check_id(args.reviewer, "reviewer")
@@ -220,6 +222,8 @@ def run(args: argparse.Namespace) -> int:
     if changed.model_dump(exclude={"updated"}) != a.model_dump(exclude={"updated"}):
         if add_reviewer:
             folder.add_reviewer(args.reviewer)
+        # Record the answering-rules version the change was made under (None: unreadable).
+        changed = stamp_rules_version(changed, load_rules_safely(folder)[0])
         path = folder.save_assessment(changed)
         saved = f"saved {path}"
     else:

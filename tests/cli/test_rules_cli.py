@@ -87,6 +87,19 @@ def test_scripted_calibration_through_the_cli(review, capsys):
     assert (review / "exports" / "agreement-trend.svg").read_text().lstrip().startswith("<?xml")
 
 
+def test_assess_records_the_rules_version(review, capsys):
+    run(capsys, "rules", "add", review, "--question", "4.4", "--text", "x")
+    assert ReviewFolder.open(review).load_assessment("ana", "S1", "mort").rules_version == 0
+    code, out, err = run(
+        capsys, "assess", review, "--reviewer", "ana", "--study", "S1", "--result", "mort",
+        "--reopen",
+    )  # fmt: skip
+    assert code == 0, err
+    assert ReviewFolder.open(review).load_assessment("ana", "S1", "mort").rules_version == 1
+    code, out, _ = run(capsys, "calibrate", "stale", review, "--reviewer", "ana")
+    assert "ana S1 / mort" not in out and "ana S2 / mort" in out
+
+
 def test_rules_list_check_retire_changes(review, capsys):
     run(capsys, "rules", "add", review, "--question", "1.1", "--text", "Bare 'randomised': NI.")
     run(capsys, "rules", "add", review, "--question", "4.4", "--when", "outcome_type=subjective",
