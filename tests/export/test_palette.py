@@ -85,3 +85,10 @@ def test_wcag_reference_values():
     # WCAG 2.1 definitions: black on white is 21:1, white has luminance 1.
     assert contrast_ratio("#000000", "#FFFFFF") == pytest.approx(21.0)
     assert relative_luminance("#FFFFFF") == pytest.approx(1.0)
+
+
+def test_fills_differ_in_lightness_for_greyscale_print():
+    # Our own threshold: CIE L* of any two fills at least 10 apart, so a greyscale print
+    # still separates them (the letters carry the meaning anyway).
+    lightness = [_lab(sw.fill, None)[0] for sw in SWATCHES.values()]
+    assert min(abs(a - b) for a, b in itertools.combinations(lightness, 2)) >= 10

@@ -1,0 +1,192 @@
+"""Exports: content, sources per row, listing of drafts/missing, safety (injection, escaping,
+paths)."""
+
+from __future__ import annotations
+
+import csv
+import io
+import os
+
+import pytest
+
+from robtui.benchmarks.review import answer_everything, build_synthetic_review
+from robtui.core import assessing
+from robtui.core.comparison import complete_consensus, pair_assessments, settle, start_consensus
+from robtui.core.questions import builtin_question_set
+from robtui.errors import InputError
+from robtui.export.safety import csv_cell, export_path, markup, tex
+from robtui.export.writers import export_outcome
+
+QSET = builtin_question_set()
+NASTY = '<script>alert("x")</script> & co'
+
+
+@pytest.fixture(scope="module")
+def folder(tmp_path_factory):
+    root = tmp_path_factory.mktemp("exports") / "review"
+    f = build_synthetic_review(root, studies=5, results=2, seed=3, disagreement=0.0)
+    review = f.review.model_copy(deep=True)
+    review.studies[0].label = NASTY  # user-written text reaches every format
+    review.results[0].outcome = f"Pain {NASTY}"
+    f.review = review
+    f.save_review()
+    # Trial-001: ben's assessment goes back to draft; Trial-002: ben's disappears
+    b1 = assessing.reopen(f.load_assessment("ben", "Trial-001", "outcome-1"))
+    f.save_assessment(b1)
+    (f.assessments_dir / "ben" / "Trial-002--outcome-1.json").unlink()
+    # Trial-003: ben differs on 1.1; the lead settles it into a complete consensus
+    b3 = assessing.reopen(f.load_assessment("ben", "Trial-003", "outcome-1"))
+    a3 = f.load_assessment("ana", "Trial-003", "outcome-1")
+    other = next(o for o in QSET.question("1.1").options if o != a3.answers["1.1"].response)
+    b3 = assessing.set_response(b3, QSET, "1.1", other)
+    b3 = assessing.mark_complete(answer_everything(b3, QSET, lambda q: q.options[0]), QSET)
+    f.save_assessment(b3)
+    [pair] = pair_assessments([a3], [b3])
+    c = start_consensus(pair, "lead", QSET)
+    for qid in ("1.1",):
+        c = settle(c, QSET, qid, "a", note="ana's reading of the methods", pair=pair)
+    from robtui.core.comparison import pending_questions
+
+    for qid in pending_questions(c, QSET):
+        c = settle(c, QSET, qid, "a", note="follows from 1.1", pair=pair)
+    f.save_consensus(complete_consensus(c, QSET))
+    return f
+
+
+def _export(folder, fmt, **kw):
+    return export_outcome(folder, QSET, "outcome-1", fmt, **kw)
+
+
+def test_rows_say_their_source_and_drafts_and_missing_are_listed(folder):
+    _, ex = _export(folder, "md")
+    source = {r.study_id: r.source for r in ex.rows}
+    assert source["Trial-000"] == "agreed by ana, ben"
+    assert source["Trial-001"] == "ana only"  # ben's is a draft
+    assert source["Trial-002"] == "ana only"  # ben's is missing
+    assert source["Trial-003"] == "consensus"
+    problems = " ".join(ex.problems)
+    assert "Trial-001: draft by ben" in problems
+    assert "Trial-002: no assessment by ben" in problems
+    assert len(ex.rows) == 5  # nobody dropped
+
+
+def test_markdown_holds_tables_grade_and_the_not_final_list(folder):
+    [path], _ = _export(folder, "md")
+    text = path.read_text(encoding="utf-8")
+    assert path.parent == folder.exports_dir.resolve()
+    for needle in (
+        "## Judgements",
+        "## Summary",
+        "## Supporting table",
+        "GRADE",
+        "Suggestion for the panel",
+        "own rule of thumb",
+        "draft by ben",
+        "(p. 2)",
+    ):
+        assert needle in text, needle
+    assert "<script>" not in text and "&lt;script&gt;" in text
+    # every judgement cell carries a letter, so the table reads without colour
+    row = next(line for line in text.splitlines() if line.startswith("| Trial 004"))
+    assert row.count("[") >= 6
+
+
+def test_csv_neutralises_formula_cells(folder):
+    paths, _ = _export(folder, "csv")
+    answers = next(p for p in paths if p.name.endswith("answers.csv"))
+    rows = list(csv.DictReader(io.StringIO(answers.read_text(encoding="utf-8"))))
+    justifications = [r["justification"] for r in rows if r["justification"]]
+    assert justifications and all(j.startswith("'=") for j in justifications)
+    assert not any(cell.startswith(("=", "+", "-", "@")) for r in rows for cell in r.values())
+    judgements = next(p for p in paths if p.name.endswith("judgements.csv"))
+    table = list(csv.DictReader(io.StringIO(judgements.read_text(encoding="utf-8"))))
+    assert {r["source"] for r in table} >= {"consensus", "ana only"}
+    assert any("draft by ben" in r["note"] for r in table)
+
+
+@pytest.mark.parametrize(
+    "value, expected",
+    [
+        ("=1+1", "'=1+1"),
+        ("+A1", "'+A1"),
+        ("-2", "'-2"),
+        ("@SUM(A1)", "'@SUM(A1)"),
+        ("\tx", "'\tx"),
+        ("\rx", "'\rx"),
+        ("plain", "plain"),
+        (None, ""),
+    ],
+)
+def test_csv_cell(value, expected):
+    # OWASP "CSV Injection": cells starting with = + - @ tab CR are read as formulas
+    assert csv_cell(value) == expected
+
+
+def test_html_escapes_user_text(folder):
+    [path], _ = _export(folder, "html")
+    text = path.read_text(encoding="utf-8")
+    assert "<script>" not in text
+    assert "&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt; &amp; co" in text
+    assert "&lt;b&gt;ana&lt;/b&gt;" in text  # justification markup shown, not run
+    assert "Not judged or not final" in text and "Suggested rating" in text
+
+
+def test_svg_escapes_user_text(folder):
+    paths, _ = _export(folder, "svg")
+    for path in paths:
+        text = path.read_text(encoding="utf-8")
+        assert text.lstrip().startswith("<?xml") and "<svg" in text
+        assert "<script>" not in text and "&lt;script&gt;" in text  # outcome in the title
+
+
+def test_png_and_pdf_figures(folder):
+    for fmt, magic in (("png", b"\x89PNG"), ("pdf", b"%PDF")):
+        paths, _ = _export(folder, fmt)
+        assert [p.name for p in paths] == [f"outcome-1-lights.{fmt}", f"outcome-1-summary.{fmt}"]
+        for p in paths:
+            assert p.read_bytes().startswith(magic)
+
+
+def test_tex_escapes_and_colours(folder):
+    [path], _ = _export(folder, "tex")
+    text = path.read_text(encoding="utf-8")
+    assert r"\definecolor{rtlow}{HTML}{6FA8DC}" in text
+    assert r"\& co" in text and "\\cellcolor" in text
+    assert tex("50% of #1_a") == r"50\% of \#1\_a"
+
+
+def test_weights_switch_the_summary_basis(folder):
+    _, by_count = export_outcome(folder, QSET, "outcome-1", "md")
+    _, by_weight = export_outcome(folder, QSET, "outcome-2", "md")
+    assert by_count.basis == "studies" and by_weight.basis == "weight"
+    shares = by_weight.shares["overall"]
+    assert sum(shares.values()) == pytest.approx(1.0)
+
+
+def test_export_paths_stay_inside_exports(folder, tmp_path):
+    base = folder.exports_dir
+    for bad in ("../escape", "/tmp/escape", "a/../../b", ""):
+        with pytest.raises(InputError):
+            export_path(base, bad)
+    outside = tmp_path / "elsewhere"
+    outside.mkdir()
+    link = base / "link-out"
+    if not link.exists():
+        os.symlink(outside, link)
+    with pytest.raises(InputError, match="symbolic link"):
+        export_path(base, "link-out/file")
+    assert export_path(base, "sub/name.md") == base.resolve() / "sub" / "name.md"
+    with pytest.raises(InputError):
+        export_outcome(folder, QSET, "outcome-1", "md", name="../../oops")
+    assert not (folder.root.parent / "oops.md").exists()
+
+
+def test_unknown_format_and_result(folder):
+    with pytest.raises(InputError, match="format"):
+        export_outcome(folder, QSET, "outcome-1", "docx")
+    with pytest.raises(InputError, match="no result"):
+        export_outcome(folder, QSET, "nope", "md")
+
+
+def test_markup_escapes_quotes():
+    assert markup('"a" <b>') == "&quot;a&quot; &lt;b&gt;"
