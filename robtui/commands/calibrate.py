@@ -295,7 +295,10 @@ def run_stale(args: argparse.Namespace) -> int:
         a = s.assessment
         made = "not recorded" if s.made_under is None else f"v{s.made_under}"
         new = ", ".join(f"{r.id} ({r.question_id})" for r in s.new_rules) or "none that apply"
-        line = f"  {a.reviewer} {a.study_id} / {a.result_id} [{a.status}] made under {made}; new rules: {new}"
+        line = (
+            f"  {a.reviewer} {a.study_id} / {a.result_id} [{a.status}] made under {made}; "
+            f"new rules: {new}"
+        )
         if s.retired_rules:
             line += "; withdrawn: " + ", ".join(
                 f"{r.id} ({r.question_id})" for r in s.retired_rules

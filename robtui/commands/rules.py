@@ -158,7 +158,8 @@ def run_add(args: argparse.Namespace) -> int:
     stale = _stale_count(folder, saved)
     if stale:
         print(
-            f"{stale} assessment(s) made under an older rules version: robtui calibrate stale {args.folder}"
+            f"{stale} assessment(s) made under an older rules version: "
+            f"robtui calibrate stale {args.folder}"
         )
     return 0
 

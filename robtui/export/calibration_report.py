@@ -357,7 +357,8 @@ def _disagreement_blocks(report: CalibrationReport) -> list[Block]:
         blocks.append(
             Para(
                 f"{len(d.cases)} result(s) answered differently; percent agreement "
-                f"{format_figure(d.stats.percent_agreement, 0)}%, kappa {format_figure(d.stats.kappa)}."
+                f"{format_figure(d.stats.percent_agreement, 0)}%, "
+                f"kappa {format_figure(d.stats.kappa)}."
             )
         )
         rows = []
