@@ -145,7 +145,7 @@ def run_set(args: argparse.Namespace) -> int:
 
 
 def run_record(args: argparse.Namespace) -> int:
-    from robtui.core.calibration import build_round
+    from robtui.core.calibration import build_round, describe_versions, rules_versions_used
     from robtui.core.model import utc_now
     from robtui.errors import InputError
     from robtui.store.calibration_rounds import next_round_number, save_round
@@ -174,7 +174,8 @@ def run_record(args: argparse.Namespace) -> int:
     path = save_round(folder.root, r)
     print(
         f"round {r.number} recorded in {path}: {len(r.pairs)} pair(s) of {reviewers[0]} and "
-        f"{reviewers[1]}, rules version {r.rules_version}"
+        f"{reviewers[1]}, rules version {r.rules_version} (assessments made under: "
+        f"{describe_versions(rules_versions_used(r))})"
     )
     for m in r.missing:
         print(f"  not compared: {_missing_line(m)}")

@@ -81,14 +81,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def describe_rule(rule) -> str:
-    """One line: id, question, conditions, answer, text, version."""
-    answer = f" -> {rule.answer}" if rule.answer else ""
-    status = f", withdrawn v{rule.retired_in}" if rule.retired_in else ""
-    note = f" [{rule.note}]" if rule.note else ""
-    return (
-        f"{rule.id:<4} {rule.question_id:<5} when {rule.condition_text()}{answer}: {rule.text} "
-        f"(v{rule.added_in}{status}){note}"
-    )
+    return rule.summary()
 
 
 def _open(folder_path: Path):

@@ -140,6 +140,23 @@ def pair_complete(
     return pairs, missing
 
 
+def rules_versions_used(r: CalibrationRound) -> dict[int | None, int]:
+    """How many of the round's paired assessments were made under each rules version."""
+    counts: dict[int | None, int] = {}
+    for p in r.pairs:
+        for a in (p.a, p.b):
+            counts[a.rules_version] = counts.get(a.rules_version, 0) + 1
+    return dict(sorted(counts.items(), key=lambda kv: -1 if kv[0] is None else kv[0]))
+
+
+def describe_versions(counts: dict[int | None, int]) -> str:
+    """E.g. "v0 x4, v1 x4" ("not recorded" for assessments without a version)."""
+    return (
+        ", ".join(f"{'not recorded' if v is None else f'v{v}'} x{n}" for v, n in counts.items())
+        or "none"
+    )
+
+
 def build_round(
     number: int,
     review: Review,

@@ -69,6 +69,16 @@ class AnsweringRule:
         """The conditions as ``attr=value`` joined by commas; "always" when there are none."""
         return ", ".join(f"{k}={v}" for k, v in self.when) or "always"
 
+    def summary(self) -> str:
+        """One line for lists and the workbench: id, question, conditions, answer, text."""
+        answer = f" -> {self.answer}" if self.answer else ""
+        status = f", withdrawn v{self.retired_in}" if self.retired_in else ""
+        note = f" [{self.note}]" if self.note else ""
+        return (
+            f"{self.id} {self.question_id} when {self.condition_text()}{answer}: {self.text} "
+            f"(v{self.added_in}{status}){note}"
+        )
+
 
 @dataclass(frozen=True)
 class RuleBook:

@@ -17,7 +17,13 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from robtui.core.agreement import AgreementStats
-from robtui.core.calibration import CalibrationRound, RoundAgreement, format_figure
+from robtui.core.calibration import (
+    CalibrationRound,
+    RoundAgreement,
+    describe_versions,
+    format_figure,
+    rules_versions_used,
+)
 from robtui.core.model import OVERALL, Quote, Review
 from robtui.core.rules import AnsweringRule, RuleBook, changes_between
 from robtui.export.safety import markup
@@ -218,6 +224,7 @@ def _round_rows(report: CalibrationReport) -> list[tuple[str, ...]]:
                 str(r.number),
                 r.created,
                 f"v{r.rules_version}",
+                describe_versions(rules_versions_used(r)),
                 str(len(r.pairs)),
                 str(len(r.missing)),
             )
@@ -254,7 +261,8 @@ def build_blocks(report: CalibrationReport) -> list[Block]:
 
     blocks.append(Heading("Rounds"))
     blocks.append(
-        Table(("Round", "Recorded", "Rules version", "Pairs compared", "Not compared"),
+        Table(("Round", "Recorded", "Rules version", "Assessments made under", "Pairs compared",
+               "Not compared"),
               tuple(_round_rows(report)))
     )  # fmt: skip
     for fig in filter(None, (before, after)):

@@ -17,6 +17,8 @@ from robtui.core.calibration import (
     assessment_order,
     build_round,
     compare_agreement,
+    describe_versions,
+    rules_versions_used,
     round_agreement,
 )
 from robtui.core.comparison import review_agreement
@@ -67,6 +69,9 @@ def test_scripted_calibration_before_and_after(calibrated):
     # every assessment in a round records the rules version it was made under
     assert {p.a.rules_version for p in r1.pairs} | {p.b.rules_version for p in r1.pairs} == {0}
     assert {p.a.rules_version for p in r2.pairs} | {p.b.rules_version for p in r2.pairs} == {1}
+    assert rules_versions_used(r1) == {0: 8} and rules_versions_used(r2) == {1: 8}
+    mixed = type(r2)(**{**r2.__dict__, "pairs": (*r1.pairs[:1], *r2.pairs[1:])})
+    assert describe_versions(rules_versions_used(mixed)) == "v0 x2, v1 x6"
     # ben never completed S5: listed in both rounds, not dropped
     for r in (r1, r2):
         assert [(m.study_id, m.result_id) for m in r.missing] == [("S5", "mort")]

@@ -71,8 +71,8 @@ def test_markdown_report_holds_set_rounds_figures_rules_and_sources(scenario):
     for study in ("S1", "S2", "S3", "S4", "S5"):
         assert f"| {study} | Corvane trial {study[1]} |" in text
     assert "S5 / mort: ben: draft, not marked complete" in text  # listed, not dropped
-    assert "| 1 | 2026-03-03T09:00:00Z | v0 | 4 | 1 |" in text
-    assert "| 2 | 2026-03-04T09:00:00Z | v1 | 4 | 1 |" in text
+    assert "| 1 | 2026-03-03T09:00:00Z | v0 | v0 x8 | 4 | 1 |" in text
+    assert "| 2 | 2026-03-04T09:00:00Z | v1 | v1 x8 | 4 | 1 |" in text
     # domain 4 row: before and after kappas equal scikit-learn's on the same pairs
     r1, r2 = load_round(folder.root, 1), load_round(folder.root, 2)
     k1 = _sk([(p.a.final["4"], p.b.final["4"]) for p in r1.pairs])
