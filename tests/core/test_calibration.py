@@ -18,8 +18,8 @@ from robtui.core.calibration import (
     build_round,
     compare_agreement,
     describe_versions,
-    rules_versions_used,
     round_agreement,
+    rules_versions_used,
 )
 from robtui.core.comparison import review_agreement
 from robtui.core.questions import builtin_question_set
