@@ -1,0 +1,93 @@
+"""robtui compare and robtui agreement on an invented two-reviewer review."""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from sklearn.metrics import cohen_kappa_score
+
+from robtui.benchmarks.review import build_synthetic_review
+from robtui.cli import main
+from robtui.core import assessing
+
+
+@pytest.fixture(scope="module")
+def review_dir(tmp_path_factory):
+    root = tmp_path_factory.mktemp("cmp") / "review"
+    folder = build_synthetic_review(root, studies=6, results=1, seed=11, disagreement=0.3)
+    draft = assessing.reopen(folder.load_assessment("ben", "Trial-005", "outcome-1"))
+    folder.save_assessment(draft)
+    return root
+
+
+def test_compare_json_lists_differences_first_and_drafts(review_dir, capsys):
+    assert main(["compare", str(review_dir), "--json"]) == 0
+    out = capsys.readouterr()
+    data = json.loads(out.out)
+    assert data["reviewers"] == ["ana", "ben"]
+    assert len(data["pairs"]) == 5
+    assert data["not_compared"] == [
+        {"study": "Trial-005", "result": "outcome-1", "problem": "ben: draft, not marked complete"}
+    ]
+    assert "not compared" in out.err
+    for pair in data["pairs"]:
+        flags = [q["differs"] for q in pair["questions"]]
+        assert flags == sorted(flags, reverse=True)  # differences first
+        assert pair["differences"] == sum(flags)
+        assert [j["key"] for j in pair["judgements"]][-1] == "overall"
+        first = pair["questions"][0]
+        assert set(first["a"]) == {"response", "justification", "quotes"}
+
+
+def test_compare_text_output(review_dir, capsys):
+    assert main(["compare", str(review_dir), "--study", "Trial-000"]) == 0
+    out = capsys.readouterr().out
+    assert "== Trial-000 / outcome-1" in out and "Overall" in out
+    assert "1 compared, 0 not compared" in out
+
+
+def test_compare_refuses_unknown_reviewer(review_dir, capsys):
+    assert main(["compare", str(review_dir), "--reviewers", "ana", "zoe"]) == 2
+    assert "robtui: reviewer zoe is not in this review" in capsys.readouterr().err
+
+
+def test_compare_refuses_unknown_study(review_dir, capsys):
+    assert main(["compare", str(review_dir), "--study", "Nope"]) == 2
+    assert "no study 'Nope'" in capsys.readouterr().err
+
+
+def test_agreement_json_shape_and_values(review_dir, capsys):
+    assert main(["agreement", str(review_dir), "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["reviewers"] == ["ana", "ben"]
+    assert list(data["domains"]) == ["1", "2", "3", "4", "5", "overall"]
+    for stats in [*data["domains"].values(), *data["questions"].values()]:
+        for key in (
+            "n",
+            "pairs",
+            "percent_agreement",
+            "kappa",
+            "kappa_ci",
+            "weighted_kappa",
+            "pabak",
+            "band",
+        ):
+            assert key in stats
+    d1 = data["domains"]["1"]
+    assert d1["n"] == 5
+    a, b = zip(*d1["pairs"])
+    labels = ["low", "some_concerns", "high"]
+    reference = cohen_kappa_score(a, b, labels=labels)  # scikit-learn as the reference
+    if d1["kappa"] is None:
+        assert math.isnan(reference)  # undefined in both
+    else:
+        assert d1["kappa"] == pytest.approx(reference, abs=1e-6)
+    assert "1.1" in data["questions"]
+
+
+def test_agreement_table(review_dir, capsys):
+    assert main(["agreement", str(review_dir)]) == 0
+    out = capsys.readouterr().out
+    assert "kappa" in out and "PABAK" in out and "Overall" in out

@@ -1,0 +1,152 @@
+"""robtui consensus and robtui export on an invented two-reviewer review."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from robtui.benchmarks.review import build_synthetic_review
+from robtui.cli import main
+
+
+@pytest.fixture()
+def review_dir(tmp_path):
+    root = tmp_path / "review"
+    build_synthetic_review(root, studies=3, results=1, seed=5, disagreement=0.5)
+    return root
+
+
+def _differing(root, capsys, study):
+    main(["compare", str(root), "--study", study, "--json"])
+    data = json.loads(capsys.readouterr().out)
+    return data["pairs"][0]
+
+
+def test_consensus_flow_keeps_reviewers_files_untouched(review_dir, capsys):
+    pair = _differing(review_dir, capsys, "Trial-000")
+    target = ["--study", "Trial-000", "--result", "outcome-1"]
+    before = {p: p.read_bytes() for p in (review_dir / "assessments").rglob("*.json")}
+    assert main(["consensus", "start", str(review_dir), *target]) == 0
+    assert (review_dir / "consensus" / "Trial-000--outcome-1.json").is_file()
+    assert main(["consensus", "start", str(review_dir), *target]) == 2
+    assert "exists already" in capsys.readouterr().err
+    # settle until nothing is pending: take ana's side each time
+    for _ in range(30):
+        capsys.readouterr()
+        main(["consensus", "show", str(review_dir), *target, "--json"])
+        shown = json.loads(capsys.readouterr().out)
+        if not shown["pending"]:
+            break
+        qid = shown["pending"][0]
+        assert (
+            main(
+                [
+                    "consensus",
+                    "settle",
+                    str(review_dir),
+                    *target,
+                    "--question",
+                    qid,
+                    "--take",
+                    "ana",
+                    "--note",
+                    "ana quoted the methods section",
+                ]
+            )
+            == 0
+        )
+    assert main(["consensus", "complete", str(review_dir), *target]) == 0
+    capsys.readouterr()
+    main(["consensus", "show", str(review_dir), *target, "--json"])
+    record = json.loads(capsys.readouterr().out)
+    assert record["status"] == "complete"
+    if pair["differences"]:
+        assert any(d["source"] == "a" for d in record["decisions"].values())
+    after = {p: p.read_bytes() for p in (review_dir / "assessments").rglob("*.json")}
+    assert before == after
+    # the export now uses the consensus for this study
+    assert main(["export", str(review_dir), "--format", "csv"]) == 0
+    text = (review_dir / "exports" / "outcome-1-judgements.csv").read_text(encoding="utf-8")
+    assert "Trial-000" in text.splitlines()[1] and ",consensus," in text.splitlines()[1]
+
+
+def test_settle_needs_a_note_and_a_valid_answer(review_dir, capsys):
+    target = ["--study", "Trial-001", "--result", "outcome-1"]
+    assert main(["consensus", "start", str(review_dir), *target]) == 0
+    capsys.readouterr()
+    with pytest.raises(SystemExit) as stop:
+        main(["consensus", "settle", str(review_dir), *target, "--question", "1.1", "--take", "a"])
+    assert stop.value.code == 2
+    assert (
+        main(
+            [
+                "consensus",
+                "settle",
+                str(review_dir),
+                *target,
+                "--question",
+                "1.1",
+                "--answer",
+                "maybe",
+                "--note",
+                "x",
+            ]
+        )
+        == 2
+    )
+    assert "must be one of" in capsys.readouterr().err
+    assert (
+        main(
+            [
+                "consensus",
+                "settle",
+                str(review_dir),
+                *target,
+                "--question",
+                "1.1",
+                "--take",
+                "carl",
+                "--note",
+                "x",
+            ]
+        )
+        == 2
+    )
+
+
+def test_consensus_show_without_record(review_dir, capsys):
+    assert (
+        main(
+            ["consensus", "show", str(review_dir), "--study", "Trial-002", "--result", "outcome-1"]
+        )
+        == 2
+    )
+    assert "consensus start" in capsys.readouterr().err
+
+
+def test_export_all_formats_and_listing(review_dir, capsys):
+    assert main(["export", str(review_dir), "--format", "all", "--out", "final"]) == 0
+    out, err = capsys.readouterr()
+    names = sorted(p.name for p in (review_dir / "exports").iterdir())
+    for expected in (
+        "final.md",
+        "final.html",
+        "final.tex",
+        "final-judgements.csv",
+        "final-answers.csv",
+        "final-lights.svg",
+        "final-summary.png",
+        "final-lights.pdf",
+    ):
+        assert expected in names
+    assert "GRADE" in out and "suggestion for the panel" in out
+    if "not judged" in (review_dir / "exports" / "final.md").read_text(encoding="utf-8"):
+        assert "not judged or not final" in err
+
+
+def test_export_refuses_paths_outside_exports(review_dir, capsys):
+    for bad in ("../outside", "/tmp/outside"):
+        assert main(["export", str(review_dir), "--format", "md", "--out", bad]) == 2
+        assert "robtui: export name" in capsys.readouterr().err
+    assert not (review_dir / "outside.md").exists()
