@@ -23,6 +23,7 @@ from robtui.core.calibration import (
 )
 from robtui.core.comparison import review_agreement
 from robtui.core.questions import builtin_question_set
+from robtui.core.rules import add_rule, conditions_from_result
 from robtui.devtools.calibration_scenario import REVIEWERS, RULE_QUESTION, run_scripted_calibration
 from robtui.errors import InputError
 from robtui.store.calibration_rounds import (
@@ -196,3 +197,65 @@ def test_batches_in_assessment_order_match_sklearn(calibrated):
             same_kappa(stats.kappa, pairs_k)
     with pytest.raises(ValueError, match="batch size"):
         agreement_by_batch(shifted, QSET.domain_ids(), 0)
+
+
+def _adopt_domain(b, a, domain_id, qset):
+    """Reviewer B's second look: B takes A's answers for one domain (a scripted discussion)."""
+    from robtui.core import assessing
+
+    b = assessing.reopen(b)
+    for key in (domain_id, "overall"):
+        if key in b.overrides:
+            b = assessing.clear_override(b, qset, key)
+    domain = assessing.domain_of(b, qset, domain_id)
+    for q in reversed(domain.questions):
+        if b.answers.get(q.id) and b.answers[q.id].response is not None:
+            b = assessing.set_response(b, qset, q.id, None)
+    wanted = assessing.effective_answers(a, qset, domain_id)
+    for q in domain.questions:
+        if q.id in wanted:
+            b = assessing.set_response(b, qset, q.id, wanted[q.id])
+    return assessing.mark_complete(b, qset)
+
+
+def test_calibration_on_the_demo_review(tmp_path):
+    from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir
+
+    if not (demo_source_dir() / DEMO_FILE).exists():
+        pytest.skip("the bundled demo description (sample_reports/demo) is not written yet")
+    from robtui.core.rules import stamp_rules_version
+    from robtui.store.rules_file import load_folder_rules, save_rulebook
+
+    folder = build_demo_review(tmp_path / "demo")
+    reviewers = tuple(folder.review.reviewers[:2])
+    set_calibration_set(folder, [s.id for s in folder.review.studies])
+    book = load_folder_rules(folder)
+    found, _ = folder.assessments()
+    r1 = build_round(1, folder.review, reviewers, found, rules_version=0, created="t1")
+    before = round_agreement(r1.pairs, QSET)
+    assert before.ranked, "the demo's reviewers disagree somewhere"
+    top = before.ranked[0]
+    qid = top.question_id.split("@")[0]
+    result = folder.review.result(top.cases[0].result_id)
+    new = add_rule(
+        book, qid, "Agreed in calibration.", when=conditions_from_result(result, question_id=qid)
+    )
+    book = save_rulebook(folder.rules_path, new, expected_version=0, qset=QSET)
+    domain_id = top.domain_id
+    for case in top.cases:
+        a = folder.load_assessment(reviewers[0], case.study_id, case.result_id)
+        b = folder.load_assessment(reviewers[1], case.study_id, case.result_id)
+        folder.save_assessment(stamp_rules_version(_adopt_domain(b, a, domain_id, QSET), book))
+    found, _ = folder.assessments()
+    r2 = build_round(2, folder.review, reviewers, found, rules_version=1, created="t2")
+    after = round_agreement(r2.pairs, QSET)
+    assert top.question_id not in [d.question_id for d in after.ranked]
+    assert after.questions[top.question_id].percent_agreement == 100.0
+    for stats in (
+        *before.domains.values(),
+        *after.domains.values(),
+        *before.questions.values(),
+        *after.questions.values(),
+    ):
+        if stats.n:
+            same_kappa(stats.kappa, stats.pairs)
