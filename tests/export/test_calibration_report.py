@@ -12,6 +12,7 @@ from robtui.core.calibration import (
     round_agreement,
 )
 from robtui.core.comparison import AssessmentPair
+from robtui.core.model import Quote
 from robtui.core.questions import builtin_question_set
 from robtui.devtools.calibration_scenario import REVIEWERS, RULE_TEXT, run_scripted_calibration
 from robtui.export.agreement_trend import render_trend_plot, trend_html, trend_markdown
@@ -38,7 +39,8 @@ def _with_evil_text(r):
     """A copy of round ``r`` whose first pair's justifications and quote text are hostile."""
     p = r.pairs[0]
     answers = dict(p.a.answers)
-    answers["4.4"] = answers["4.4"].model_copy(update={"justification": EVIL})
+    quote = Quote(document_sha256="0" * 64, start=0, end=9, page=3, text="<i>Blinded</i> assessors")
+    answers["4.4"] = answers["4.4"].model_copy(update={"justification": EVIL, "quotes": [quote]})
     a = p.a.model_copy(update={"answers": answers})
     first = AssessmentPair(p.study_id, p.result_id, p.reviewer_a, p.reviewer_b, a, p.b)
     return type(r)(**{**r.__dict__, "pairs": (first, *r.pairs[1:])})
@@ -110,6 +112,9 @@ def test_user_text_is_escaped_in_both_formats(scenario):
     text = calibration_markdown(report)
     assert "<script>" not in text
     assert "&lt;script&gt;" in text and r"\| &amp; done" in text  # the pipe cannot split a cell
+    # quotes sit beside their answer, with the page, escaped
+    assert "\u201c&lt;i&gt;Blinded&lt;/i&gt; assessors\u201d (p. 3)" in page
+    assert "\u201c&lt;i&gt;Blinded&lt;/i&gt; assessors\u201d (p. 3)" in text
     assert page.startswith("<!DOCTYPE html>") and page.rstrip().endswith("</html>")
 
 
