@@ -133,7 +133,7 @@ _CSS = (
     "color:#1d1d1d;line-height:1.4}table{border-collapse:collapse;margin:.5em 0 1.2em}"
     "th,td{border:1px solid #8a8a8a;padding:.25em .5em;vertical-align:top;text-align:left}"
     "th{background:#ececec}.note{color:#4a4a4a;font-size:.9em}"
-    "table.side td{width:25%}pre{background:#f4f4f4;padding:.5em;white-space:pre-wrap}"
+    "table.side td{max-width:22em}pre{background:#f4f4f4;padding:.5em;white-space:pre-wrap}"
 )
 
 
