@@ -7,10 +7,10 @@ carry their rank and score; sentences quoted for it carry a quote mark.
 
 from __future__ import annotations
 
+import textwrap
 from collections.abc import Iterable, Sequence
 from typing import Any
 
-from rich.table import Table
 from rich.text import Text
 from textual.widgets import OptionList
 from textual.widgets.option_list import Option
@@ -19,7 +19,8 @@ from robtui.reading.document import Document, Sentence
 
 SUGGESTION_STYLE = "bold #111111 on #f2c078"
 QUOTE_MARK = "❝"
-PAGE_WIDTH = 5
+CHUNK = 150  # sentences added per step when a long report is laid out
+GUTTER = 7  # page number column, then the sentence
 
 
 def section_title(label: str) -> str:
@@ -38,6 +39,9 @@ class ReportView(OptionList):
         self._marks: dict[int, tuple[int, float]] = {}  # sentence index -> (rank, score)
         self._quoted: set[int] = set()
         self._sentences: dict[int, Sentence] = {}
+        self._built_width = self._width = 0
+        self._generation = 0
+        self._all_options: list[Option] = []
 
     # -- content -----------------------------------------------------------------------
     def show_document(self, document: Document) -> None:
@@ -45,52 +49,85 @@ class ReportView(OptionList):
         self._marks = {}
         self._quoted = set()
         self._sentences = {s.index: s for s in document.sentences}
+        self._build()
+        first = next(iter(self._index_of.values()), None)
+        if first is not None:
+            self.highlighted = first
+
+    def _build(self) -> None:
+        """Lay the sentences out at the current width; long reports are added in chunks so
+        the interface keeps answering keys while they go in."""
+        assert self.document is not None
+        self._generation += 1
+        self._built_width = self._width = self._text_width
         options: list[Option] = []
         self._index_of = {}
         section = None
-        for sentence in document.sentences:
+        for sentence in self.document.sentences:
             if sentence.section != section:
                 section = sentence.section
                 options.append(Option(self._section_prompt(section), disabled=True))
             self._index_of[sentence.index] = len(options)
             options.append(Option(self._prompt(sentence), id=f"s{sentence.index}"))
-        self.set_options(options)
-        first = next(iter(self._index_of.values()), None)
-        if first is not None:
-            self.highlighted = first
+        self._all_options = options
+        self.set_options(options[:CHUNK])
+        if len(options) > CHUNK:
+            self.call_later(self._add_chunk, options, CHUNK, self._generation)
+
+    def _add_chunk(self, options: list[Option], start: int, generation: int) -> None:
+        if generation != self._generation:
+            return  # a newer layout replaced this one
+        self.add_options(options[start : start + CHUNK])
+        if start + CHUNK < len(options):
+            self.set_timer(0.001, lambda: self._add_chunk(options, start + CHUNK, generation))
 
     def show_message(self, text: str) -> None:
+        self._generation += 1
         self.document = None
         self._index_of = {}
         self.set_options([Option(Text(text), disabled=True)])
 
-    @staticmethod
-    def _section_prompt(label: str) -> Table:
-        grid = Table.grid(padding=(0, 1))
-        grid.add_column(width=PAGE_WIDTH)
-        grid.add_column(ratio=1)
-        grid.add_row("", Text(f"§ {section_title(label)}", style="bold #6fa8dc"))
-        return grid
+    @property
+    def _text_width(self) -> int:
+        width = self.scrollable_content_region.width or self.size.width or 80
+        return max(20, width - GUTTER - 2)
 
-    def _prompt(self, sentence: Sentence) -> Table:
-        page = f"p.{sentence.page}" if sentence.page else ""
-        text = Text()
+    def _section_prompt(self, label: str) -> Text:
+        return Text(" " * GUTTER + f"§ {section_title(label)}", style="bold #6fa8dc")
+
+    def _prompt(self, sentence: Sentence) -> Text:
+        """The sentence wrapped to the view's width under its page number (hanging indent)."""
+        marks = Text()
         mark = self._marks.get(sentence.index)
         if mark:
             rank, score = mark
-            text.append(f" #{rank} {score:.2f} ", style=SUGGESTION_STYLE)
-            text.append(" ")
+            marks.append(f" #{rank} {score:.2f} ", style=SUGGESTION_STYLE)
+            marks.append(" ")
         if sentence.index in self._quoted:
-            text.append(f"{QUOTE_MARK} ", style="bold")
+            marks.append(f"{QUOTE_MARK} ", style="bold")
         body_style = "bold" if sentence.block == "heading" else ""
         if mark:
             body_style = (body_style + " underline").strip()
-        text.append(sentence.text.replace("\n", " "), style=body_style)
-        grid = Table.grid(padding=(0, 1))
-        grid.add_column(width=PAGE_WIDTH, justify="right", style="dim")
-        grid.add_column(ratio=1)
-        grid.add_row(page, text)
-        return grid
+        lines = textwrap.wrap(
+            " ".join(sentence.text.split()),
+            width=self._width,
+            initial_indent=" " * marks.cell_len,
+            break_on_hyphens=False,
+        ) or [" " * marks.cell_len]
+        page = f"p.{sentence.page}" if sentence.page else ""
+        text = Text(f"{page:>{GUTTER - 1}} ", style="dim")
+        text.append_text(marks)
+        text.append(lines[0][marks.cell_len :], style=body_style)
+        for line in lines[1:]:
+            text.append("\n" + " " * GUTTER)
+            text.append(line, style=body_style)
+        return text
+
+    def on_resize(self) -> None:
+        if self.document is not None and self._built_width != self._text_width:
+            keep = self.highlighted
+            self._build()
+            self.highlighted = keep
 
     def mark(self, suggestions: Sequence[Any], quoted: Iterable[int]) -> None:
         """Show ``suggestions`` (rank order) and the ``quoted`` sentence indexes."""
@@ -105,8 +142,11 @@ class ReportView(OptionList):
             option_index = self._index_of.get(sentence_index)
             if option_index is None:
                 continue
-            sentence = self._sentences[sentence_index]
-            self.replace_option_prompt_at_index(option_index, self._prompt(sentence))
+            prompt = self._prompt(self._sentences[sentence_index])
+            if option_index < self.option_count:
+                self.replace_option_prompt_at_index(option_index, prompt)
+            else:  # not laid out yet: the chunk will bring the new prompt
+                self._all_options[option_index] = Option(prompt, id=f"s{sentence_index}")
 
     # -- cursor ------------------------------------------------------------------------
     @property
@@ -120,6 +160,9 @@ class ReportView(OptionList):
 
     def go_to_sentence(self, sentence_index: int) -> None:
         option_index = self._index_of.get(sentence_index)
+        if option_index is not None and option_index >= self.option_count:
+            self._generation += 1  # lay out the rest now, then move there
+            self.add_options(self._all_options[self.option_count :])
         if option_index is not None:
             self.highlighted = option_index
             self.scroll_to_highlight(top=False)

@@ -1,0 +1,100 @@
+"""Blinding: a reviewer's session reads only that reviewer's files and shows only that
+reviewer's judgements; only the review's lead reaches the comparison."""
+
+from __future__ import annotations
+
+import pytest
+
+from robtui.errors import InputError
+from robtui.store.review_folder import ReviewFolder
+from robtui.tui.app import Workbench
+from robtui.tui.screens.overview import OverviewScreen
+from robtui.tui.screens.start import ReviewerScreen
+from robtui.tui.session import ReviewSession
+
+from .conftest import SIZE
+from .helpers import settle
+
+
+@pytest.fixture
+def spy(monkeypatch):
+    """Record whose assessments are read through the review folder."""
+    read: list[str | None] = []
+    load, every = ReviewFolder.load_assessment, ReviewFolder.assessments
+
+    def load_assessment(self, reviewer, study_id, result_id):
+        read.append(reviewer)
+        return load(self, reviewer, study_id, result_id)
+
+    def assessments(self, reviewer=None):
+        read.append(reviewer)
+        return every(self, reviewer)
+
+    monkeypatch.setattr(ReviewFolder, "load_assessment", load_assessment)
+    monkeypatch.setattr(ReviewFolder, "assessments", assessments)
+    return read
+
+
+def _two_reviewers(folder: ReviewFolder) -> tuple[str, str]:
+    names = [n for n in folder.review.reviewers if n != folder.review.lead]
+    assert len(names) >= 2, "the demo review names two reviewers"
+    return names[0], names[1]
+
+
+async def test_a_reviewer_sees_only_their_own_work(demo_dir, spy):
+    folder = ReviewFolder.open(demo_dir)
+    me, other = _two_reviewers(folder)
+    mine, _ = folder.assessments(me)
+    theirs, _ = folder.assessments(other)
+    spy.clear()
+    app = Workbench(demo_dir, me)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        overview = app.screen
+        assert isinstance(overview, OverviewScreen)
+        # every row shows my final judgements, none of the other reviewer's
+        by_key = {f"{a.study_id}--{a.result_id}": a for a in mine}
+        differing = 0
+        for other_a in theirs:
+            key = f"{other_a.study_id}--{other_a.result_id}"
+            row = overview.rows[key]
+            assert dict(row.final) == dict(by_key[key].final if key in by_key else {})
+            differing += dict(other_a.final) != dict(row.final)
+        assert differing, "the demo has results where the two reviewers differ"
+        # open each result: still only my own files are read
+        for _ in range(len(overview.rows)):
+            await pilot.press("enter")
+            await settle(pilot)
+            await pilot.press("escape")
+            await pilot.pause()
+            await pilot.press("down")
+        await pilot.press("v")  # the comparison is the lead's, not mine
+        await pilot.pause()
+        assert isinstance(app.screen, OverviewScreen)
+    assert spy and set(spy) == {me}
+
+
+def test_only_the_lead_may_compare(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    me, other = _two_reviewers(folder)
+    with pytest.raises(InputError, match="only the review's lead"):
+        ReviewSession(folder, me).comparison_pairs(me, other)
+    pairs, problems = ReviewSession(folder, folder.review.lead).comparison_pairs(me, other)
+    assert pairs and not problems
+
+
+async def test_without_a_name_the_first_screen_asks_who_is_assessing(demo_dir):
+    app = Workbench(demo_dir)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert isinstance(app.screen, ReviewerScreen)
+        await pilot.press(*"bad name", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, ReviewerScreen)  # refused, with the reason shown
+        assert "not usable" in str(app.screen.query_one("#reviewer-error").render())
+        field = app.screen.query_one("#reviewer-name")
+        field.value = ""
+        await pilot.press(*"tess", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, OverviewScreen)
+        assert app.screen.session.reviewer == "tess"
