@@ -9,6 +9,7 @@ export format for every outcome. Target: all of it within 2 s on the project mac
 from __future__ import annotations
 
 import argparse
+import importlib
 import random
 import tempfile
 import time
@@ -129,6 +130,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         )
         build = time.perf_counter() - t0
         figures: dict[str, float] = {}
+        cpu_start = time.process_time()
 
         t = time.perf_counter()
         [ra, rb] = folder.review.reviewers[:2]
@@ -147,6 +149,11 @@ def main(argv: Sequence[str] | None = None) -> int:
         figures["agreement"] = time.perf_counter() - t
 
         consensus, _ = folder.consensus_records()
+        t = time.perf_counter()
+        for module in ("matplotlib.figure", "matplotlib.backends.backend_agg"):
+            importlib.import_module(module)  # once per process
+
+        figures["import matplotlib"] = time.perf_counter() - t
         for fmt in FORMATS:
             t = time.perf_counter()
             for spec in folder.review.results:
@@ -155,6 +162,7 @@ def main(argv: Sequence[str] | None = None) -> int:
                 )
             figures[f"export {fmt}"] = time.perf_counter() - t
 
+        cpu = time.process_time() - cpu_start
     total = sum(figures.values())
     print(
         f"synthetic review: {args.studies} studies x {args.results} outcomes = "
@@ -163,6 +171,10 @@ def main(argv: Sequence[str] | None = None) -> int:
     print(f"differences found: {diffs}; overall kappa: {stats['domains']['overall']['kappa']}")
     for name, seconds in figures.items():
         print(f"  {name:<18} {seconds * 1000:8.1f} ms")
+    print(
+        f"  {'cpu time (process)':<18} {cpu * 1000:8.1f} ms  (the machine is shared: wall "
+        "time includes waiting for a core)"
+    )
     print(
         f"  {'total':<18} {total * 1000:8.1f} ms  (target <= 2000 ms: "
         f"{'met' if total <= 2.0 else 'NOT met'})"

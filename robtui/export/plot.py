@@ -34,8 +34,10 @@ def _save(fig, fmt: str) -> bytes:
     import matplotlib
 
     out = io.BytesIO()
-    with matplotlib.rc_context({"svg.fonttype": "none", "svg.hashsalt": "robtui"}):
-        fig.savefig(out, format=fmt, metadata=_METADATA[fmt])
+    settings = {"svg.fonttype": "none", "svg.hashsalt": "robtui", "pdf.compression": 1}
+    with matplotlib.rc_context(settings):
+        extra = {"pil_kwargs": {"compress_level": 1}} if fmt == "png" else {}  # speed over size
+        fig.savefig(out, format=fmt, metadata=_METADATA[fmt], **extra)
     return out.getvalue()
 
 
@@ -60,6 +62,32 @@ def _glyph(char: str, size: float):
     return _GLYPHS[key]
 
 
+_LABELS: dict[tuple[str, float], tuple[object, object, float]] = {}
+
+
+def _label(text: str, size: float):
+    """(vertices in points, codes, width in points) of a one-line label, cached."""
+    key = (text, size)
+    if key not in _LABELS:
+        import numpy as np
+
+        if len(_LABELS) > 20000:  # a long session: keep the cache bounded
+            _LABELS.clear()
+
+        pen, verts, codes = 0.0, [], []
+        for char in text:
+            v, c, advance = _glyph(char, size)
+            if len(v):
+                verts.append(v + (pen, 0.0))
+                codes.append(c)
+            pen += advance
+        if verts:
+            _LABELS[key] = (np.concatenate(verts), np.concatenate(codes), pen)
+        else:
+            _LABELS[key] = (np.zeros((0, 2)), np.zeros(0, dtype=np.uint8), pen)
+    return _LABELS[key]
+
+
 def _text_paths(fig, ax, items, size: float, align: str, colour: str) -> None:
     """Many short labels drawn as one compound outline: one artist instead of one per label,
     so a review of hundreds of studies renders in a fraction of the time. Characters are
@@ -74,17 +102,13 @@ def _text_paths(fig, ax, items, size: float, align: str, colour: str) -> None:
     anchors = to_inches.transform([(x, y) for x, y, _ in items])
     all_verts, all_codes = [], []
     for (x_in, y_in), (_, _, text) in zip(anchors, items):
-        pen, pieces = 0.0, []
-        for char in text:
-            verts, codes, advance = _glyph(char, size)
-            if len(verts):
-                pieces.append((verts + (pen, 0.0), codes))
-            pen += advance
-        shift = -pen if align == "right" else 0.0
-        for verts, codes in pieces:
-            # points -> inches; centre on the row (x-height is about half the font size)
-            all_verts.append((verts + (shift, -0.3 * size)) / 72.0 + (x_in, y_in))
-            all_codes.append(codes)
+        verts, codes, width = _label(text, size)
+        if not len(verts):
+            continue
+        shift = -width if align == "right" else 0.0
+        # points -> inches; centre on the row (x-height is about half the font size)
+        all_verts.append(verts / 72.0 + (x_in + shift / 72.0, y_in - 0.3 * size / 72.0))
+        all_codes.append(codes)
     if not all_verts:
         return
     path = MPath(np.concatenate(all_verts), np.concatenate(all_codes))
@@ -102,9 +126,19 @@ def _text_paths(fig, ax, items, size: float, align: str, colour: str) -> None:
     )
 
 
+def _tile_path(fig, ax, width: float, height: float):
+    """A rounded tile of ``width`` x ``height`` data units, centred on 0, in inches."""
+    from matplotlib.patches import BoxStyle
+
+    to_inches = ax.transData + fig.dpi_scale_trans.inverted()
+    (x0, y0), (x1, y1) = to_inches.transform([(0, 0), (width, height)])
+    w, h = abs(x1 - x0), abs(y1 - y0)
+    return BoxStyle.Round(pad=0, rounding_size=0.16 * min(w, h))(-w / 2, -h / 2, w, h, 1.0)
+
+
 def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
     """The traffic-light table: studies down, domains and overall across."""
-    from matplotlib.collections import PatchCollection
+    from matplotlib.collections import PathCollection
     from matplotlib.patches import FancyBboxPatch
 
     titles = column_titles(qset)
@@ -129,7 +163,6 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
             fontsize=8,
             fontweight="bold",
         )
-    tiles = {code: [] for code in SWATCHES}
     marks = {code: [] for code in SWATCHES}  # letters drawn as markers: one artist per code
     _text_paths(
         fig,
@@ -150,30 +183,27 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
     for r, row in enumerate(ex.rows, start=1):
         for key in keys:
             code = row.judgements[key] or "incomplete"
-            tiles[code].append(
-                FancyBboxPatch(
-                    (x_of[key] + 0.08, r - 0.38),
-                    0.74,
-                    0.76,
-                    boxstyle="round,pad=0,rounding_size=0.12",
-                )
-            )
             marks[code].append((x_of[key] + 0.45, r))
-    for code, patches in tiles.items():
-        if not patches:
+    tile = _tile_path(fig, ax, 0.74, 0.76)
+    for code, centres in marks.items():
+        if not centres:
             continue
         sw = SWATCHES[code]
         dashed = code == "incomplete"
+        # one shared tile outline, placed at every centre: one artist per judgement
         ax.add_collection(
-            PatchCollection(
-                patches,
+            PathCollection(
+                [tile],
+                offsets=centres,
+                offset_transform=ax.transData,
+                transform=fig.dpi_scale_trans,
                 facecolor=sw.fill,
                 edgecolor=OUTLINE if dashed else sw.fill,
                 linewidths=0.8,
                 linestyle="--" if dashed else "-",
             )
         )
-        xs, ys = zip(*marks[code])
+        xs, ys = zip(*centres)
         ax.scatter(xs, ys, marker=_MARKERS[code], s=36, c=sw.ink, linewidths=0, zorder=3)
     ax.add_patch(
         FancyBboxPatch(
