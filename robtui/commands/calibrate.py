@@ -277,7 +277,7 @@ def run_report(args: argparse.Namespace) -> int:
 def run_stale(args: argparse.Namespace) -> int:
     from robtui.core.rules import stale_assessments
     from robtui.errors import InputError
-    from robtui.store.rules_file import load_rules_safely
+    from robtui.store.rules_file import hand_edit_warning, load_rules_safely
 
     folder, _ = _open(args.folder)
     book, message = load_rules_safely(folder)
@@ -288,6 +288,9 @@ def run_stale(args: argparse.Namespace) -> int:
     stale = stale_assessments(found, book, results)
     for problem in problems:
         print(f"unreadable, not checked: {problem}")
+    warning = hand_edit_warning(folder.rules_path, book)
+    if warning:
+        print(f"warning: {warning}")
     if not stale:
         print(f"no assessment was made under an older rules version (rules version {book.version})")
         return 0

@@ -179,9 +179,14 @@ def run_list(args: argparse.Namespace) -> int:
 
 
 def run_check(args: argparse.Namespace) -> int:
+    from robtui.store.rules_file import hand_edit_warning
+
     folder, _, book = _open(args.folder)  # raises with every problem named
     where = folder.rules_path if folder.rules_path.exists() else f"{folder.rules_path} (absent)"
     print(f"{where}: valid; version {book.version}, {len(book.active())} rule(s) in force")
+    warning = hand_edit_warning(folder.rules_path, book)
+    if warning:
+        print(f"warning: {warning}")
     return 0
 
 

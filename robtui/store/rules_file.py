@@ -20,8 +20,9 @@ File layout (TOML)::
     when = { outcome_type = "objective", self_reported = false }
 
 Withdrawn rules stay in the file, so the rules in force at any older version can be compared.
-Before a save replaces rules.toml, the text it replaces is kept in DIR/rules_history/ as
-``rules-v<N>.toml`` (nothing is lost, even a hand edit that did not raise the version).
+Every saved version is also kept in DIR/rules_history/ as ``rules-v<N>.toml``, and before a
+save replaces rules.toml the text it replaces is kept there too (nothing is lost, even a hand
+edit that did not raise the version; ``hand_edit_warning`` notices such an edit).
 """
 
 from __future__ import annotations
@@ -205,7 +206,9 @@ def rules_to_toml(book: RuleBook) -> str:
     return tomli_w.dumps(data)
 
 
-def _keep_previous(path: Path, text: str, version: int) -> None:
+def _keep_copy(path: Path, text: str, version: int) -> None:
+    """Keep ``text`` as rules_history/rules-v<version>.toml (``.1``, ``.2`` ... when a different
+    text of the same version is already kept)."""
     folder = history_dir(path)
     name = f"rules-v{version}.toml"
     candidate = folder / name
@@ -253,9 +256,31 @@ def save_rulebook(
     if not book.updated:
         book = _with_updated(book)
     if previous_text is not None:
-        _keep_previous(path, previous_text, expected_version)
-    write_text_atomic(path, rules_to_toml(book))
+        _keep_copy(path, previous_text, expected_version)
+    text = rules_to_toml(book)
+    write_text_atomic(path, text)
+    _keep_copy(path, text, book.version)  # lets a later hand edit be noticed
     return book
+
+
+def hand_edit_warning(path: Path, book: RuleBook) -> str | None:
+    """A warning when rules.toml differs from the copy robtui saved of the same version: the
+    file was edited by hand without raising ``version``, so assessments made before the edit
+    are not listed for a second look."""
+    saved = history_dir(path) / f"rules-v{book.version}.toml"
+    if not saved.is_file() or book.version == 0:
+        return None
+    try:
+        same = parse_rules_text(saved.read_text(encoding="utf-8"), saved) == book
+    except (DataFileError, OSError, UnicodeDecodeError):
+        return None
+    if same:
+        return None
+    return (
+        f"{path} was changed by hand since version {book.version} was saved, without raising "
+        f"its version: raise `version` to {book.version + 1} so that assessments made before "
+        "the change are listed for a second look"
+    )
 
 
 def _with_updated(book: RuleBook) -> RuleBook:

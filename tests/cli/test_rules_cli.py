@@ -113,7 +113,13 @@ def test_rules_list_check_retire_changes(review, capsys):
     code, out, _ = run(capsys, "rules", "changes", review, "--since", "1")
     assert "added     R2" in out and "withdrawn R1" in out
     code, out, _ = run(capsys, "rules", "check", review)
-    assert code == 0 and "valid; version 3, 1 rule(s) in force" in out
+    assert code == 0 and "valid; version 3, 1 rule(s) in force" in out and "warning" not in out
+    rules = review / "rules.toml"
+    rules.write_text(rules.read_text().replace("Self-assessed: PY.", "Self-assessed: N."))
+    code, out, _ = run(capsys, "rules", "check", review)
+    assert code == 0 and "warning:" in out and "raise `version` to 4" in out
+    code, out, _ = run(capsys, "calibrate", "stale", review)
+    assert "warning:" in out
 
 
 @pytest.mark.parametrize(

@@ -7,6 +7,7 @@ from robtui.core.rules import RuleBook, add_rule, retire_rule
 from robtui.errors import DataFileError, InputError, NewerSchemaError
 from robtui.store.review_folder import ReviewFolder
 from robtui.store.rules_file import (
+    hand_edit_warning,
     history_dir,
     load_folder_rules,
     load_rulebook,
@@ -145,5 +146,10 @@ def test_hand_edit_without_version_bump_is_kept_in_history(folder):
     edited = path.read_text().replace("second", "second, edited")
     path.write_text(edited)
     v2 = load_rulebook(path, QSET)
-    save_rulebook(path, add_rule(v2, "1.2", "third"), expected_version=2, qset=QSET)
-    assert (history_dir(path) / "rules-v2.toml").read_text() == edited
+    assert "changed by hand since version 2" in hand_edit_warning(path, v2)
+    v3 = save_rulebook(path, add_rule(v2, "1.2", "third"), expected_version=2, qset=QSET)
+    kept = history_dir(path)
+    assert (kept / "rules-v2.1.toml").read_text() == edited  # the hand edit, kept
+    assert "second, edited" not in (kept / "rules-v2.toml").read_text()  # as robtui saved it
+    assert (kept / "rules-v3.toml").read_text() == path.read_text()
+    assert hand_edit_warning(path, v3) is None
