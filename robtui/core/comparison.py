@@ -405,6 +405,11 @@ def settle(
             raise InputError("give a response only with source 'new'")
         if pair is None or pair.key != (consensus.study_id, consensus.result_id):
             raise InputError(f"taking a side needs the two assessments of {consensus.study_id}")
+        if pair.problem:
+            raise InputError(
+                f"cannot take a side for {consensus.study_id} / {consensus.result_id}: "
+                f"{pair.problem}; give a new answer instead, or have it marked complete again"
+            )
         side = pair.a if source == "a" else pair.b
         effective = path_answers(qset, consensus.effect, side.answers)
         taken = _answer(side, question_id)

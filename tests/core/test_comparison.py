@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 from sklearn.metrics import cohen_kappa_score
 
-from robtui.benchmarks.review import answer_everything
+from robtui.benchmarks.review import FAVOURABLE, answer_everything
 from robtui.core import assessing
 from robtui.core.algorithm import propose_all
 from robtui.core.comparison import (
@@ -34,22 +34,7 @@ REVIEW = Review(
     studies=[Study(id=f"S{i}", label=f"Study {i}") for i in range(1, 7)],
     results=[ResultSpec(id="pain", outcome="Pain at 6 weeks")],
 )
-# Answers giving "low" in every domain for the assignment effect (common RoB 2 reading).
-LOW = {
-    "1.1": "Y",
-    "1.2": "Y",
-    "1.3": "N",
-    "2.1": "N",
-    "2.2": "N",
-    "2.6": "Y",
-    "3.1": "Y",
-    "4.1": "N",
-    "4.2": "N",
-    "4.3": "N",
-    "5.1": "Y",
-    "5.2": "N",
-    "5.3": "N",
-}
+LOW = FAVOURABLE  # answers giving "low" in every domain (effect of assignment)
 
 
 def make(reviewer, study, answers=None, *, complete=True, note=None):
