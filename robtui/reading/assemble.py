@@ -56,58 +56,87 @@ def is_caption(text: str) -> bool:
     return bool(_CAPTION.match(text.lstrip()))
 
 
-def build_sentences(text: str, blocks: list[Block]) -> list[Sentence]:
-    """Sentences of ``blocks`` (in reading order) with their section, kind, page and box."""
-    tracker = SectionTracker()
-    sentences: list[Sentence] = []
-    for block in blocks:
-        if block.end <= block.start:
-            continue
-        body = text[block.start : block.end]
+class SentenceMaker:
+    """Turns blocks into sentences one block at a time, so a reader can drop each block's word
+    boxes as soon as the block is done (memory stays flat on long PDFs)."""
+
+    def __init__(self) -> None:
+        self.tracker = SectionTracker()
+        self.sentences: list[Sentence] = []
+
+    def add(self, block: Block, body: str) -> None:
+        """Take ``block`` whose text is ``body`` (the document's text[block.start:block.end])."""
+        if not body.strip():
+            return
+        tracker = self.tracker
+        whole = [(0, len(body))]
         if block.kind == "heading":
-            section = tracker.heading(body)
-            _append(sentences, text, block, [(block.start, block.end)], section)
-            continue
-        if block.kind == "caption":
-            spans = split_sentences(text, block.start, block.end)
-            _append(sentences, text, block, spans, tracker.current)
-            continue
-        if block.kind == "table":
-            _append(sentences, text, block, _row_spans(text, block), tracker.current)
-            continue
-        if not sentences and block.kind in ("body", "heading") and len(body.split()) <= 40:
-            # The first line of a report is its title (or a heading naming the title).
-            section = tracker.heading(body) if block.kind == "heading" else "front"
-            _append(
-                sentences,
-                text,
-                block,
-                [(block.start, block.end)],
-                "title" if section == "front" else section,
-            )
-            continue
+            self._emit(block, body, whole, tracker.heading(body))
+        elif block.kind == "caption":
+            self._emit(block, body, split_sentences(body), tracker.current)
+        elif block.kind == "table":
+            self._emit(block, body, _row_spans(body), tracker.current)
+        elif not self.sentences and len(body.split()) <= 40:
+            # The first line of a report is its title.
+            self._emit(block, body, whole, "title")
+        else:
+            self._body(block, body)
+
+    def _body(self, block: Block, body: str) -> None:
+        tracker = self.tracker
         bare = bare_run_in(body.lstrip())
         if bare is not None:
             tracker.run_in(bare)
-        spans = split_sentences(text, block.start, block.end)
+        spans = split_sentences(body)
         for i, (a, b) in enumerate(spans):
-            piece = text[a:b]
+            piece = body[a:b]
             if i == 0 and len(spans) > 1:
                 label = run_in_heading(piece, tracker.current)
                 if label is not None:
                     tracker.run_in(label)
-                    _append(sentences, text, block, [(a, b)], tracker.current, kind="heading")
+                    self._emit(block, body, [(a, b)], tracker.current, kind="heading")
                     continue
-            section = tracker.text(len(piece.split()))
-            _append(sentences, text, block, [(a, b)], section)
-    return sentences
+            self._emit(block, body, [(a, b)], tracker.text(len(piece.split())))
+
+    def _emit(
+        self,
+        block: Block,
+        body: str,
+        spans: list[tuple[int, int]],
+        section: str,
+        kind: BlockKind | None = None,
+    ) -> None:
+        for a, b in _trimmed(body, spans):
+            start, end = block.start + a, block.start + b
+            page, box = _locate(block, start, end)
+            self.sentences.append(
+                Sentence(
+                    index=len(self.sentences),
+                    start=start,
+                    end=end,
+                    text=body[a:b],
+                    section=section,
+                    block=kind or block.kind,
+                    page=page,
+                    bbox=box,
+                )
+            )
 
 
-def _row_spans(text: str, block: Block) -> list[tuple[int, int]]:
+def build_sentences(text: str, blocks: list[Block]) -> list[Sentence]:
+    """Sentences of ``blocks`` (in reading order) with their section, kind, page and box."""
+    maker = SentenceMaker()
+    for block in blocks:
+        if block.end > block.start:
+            maker.add(block, text[block.start : block.end])
+    return maker.sentences
+
+
+def _row_spans(body: str) -> list[tuple[int, int]]:
     """One span per line of a table block."""
     spans = []
-    pos = block.start
-    for row in text[block.start : block.end].split("\n"):
+    pos = 0
+    for row in body.split("\n"):
         spans.append((pos, pos + len(row)))
         pos += len(row) + 1
     return spans
@@ -123,30 +152,6 @@ def _trimmed(text: str, spans: list[tuple[int, int]]) -> list[tuple[int, int]]:
         if b > a:
             out.append((a, b))
     return out
-
-
-def _append(
-    sentences: list[Sentence],
-    text: str,
-    block: Block,
-    spans: list[tuple[int, int]],
-    section: str,
-    kind: BlockKind | None = None,
-) -> None:
-    for a, b in _trimmed(text, spans):
-        page, box = _locate(block, a, b)
-        sentences.append(
-            Sentence(
-                index=len(sentences),
-                start=a,
-                end=b,
-                text=text[a:b],
-                section=section,
-                block=kind or block.kind,
-                page=page,
-                bbox=box,
-            )
-        )
 
 
 def _locate(block: Block, a: int, b: int) -> tuple[int | None, Box | None]:

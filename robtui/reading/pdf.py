@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from robtui.errors import ReadingError
-from robtui.reading.assemble import Block, Box, build_sentences, is_caption, looks_like_heading
+from robtui.reading.assemble import Block, Box, SentenceMaker, is_caption, looks_like_heading
 from robtui.reading.document import Document
 from robtui.reading.normalise import normalise_chars
 
@@ -83,34 +83,64 @@ class PBlock:
 # -- page to lines -----------------------------------------------------------------------------
 
 
-def _page_objects(page) -> tuple[list[Word], list[tuple[float, float, float]], int]:
-    """Words, horizontal rules and the image count of a page, straight from pdfminer's layout.
+def _char_device(rsrcmgr):
+    """A pdfminer device that keeps characters as plain tuples (no layout objects for them).
 
-    Going to pdfminer's objects directly (rather than pdfplumber's per-character dicts) is
-    about three times faster, which the 15-page speed target needs.
+    Building pdfminer's per-character objects (and pdfplumber's dicts of them) is most of the
+    cost of reading a page; the speed target needs the plain tuples instead. The character box
+    follows pdfminer's own LTChar computation for horizontal fonts.
     """
-    from pdfminer.layout import LTChar, LTFigure, LTImage, LTLine, LTRect
+    from pdfminer.converter import PDFLayoutAnalyzer
+    from pdfminer.pdffont import PDFUnicodeNotDefined
 
+    class CharDevice(PDFLayoutAnalyzer):
+        def __init__(self) -> None:
+            super().__init__(rsrcmgr, pageno=1, laparams=None)
+            self.chars: list[tuple[float, float, float, float, str, str, float]] = []
+            self.page_height = 0.0
+
+        def render_char(self, matrix, font, fontsize, scaling, rise, cid, ncs, graphicstate):
+            try:
+                text = font.to_unichr(cid)
+            except PDFUnicodeNotDefined:
+                text = "\ufffd"
+            adv = font.char_width(cid) * fontsize * scaling
+            a, b, c, d, e, f = matrix
+            low = font.get_descent() * fontsize + rise
+            high = low + fontsize
+            x0, y0 = c * low + e, d * low + f
+            x1, y1 = a * adv + c * high + e, b * adv + d * high + f
+            if x1 < x0:
+                x0, x1 = x1, x0
+            if y1 < y0:
+                y0, y1 = y1, y0
+            self.chars.append((x0, y0, x1, y1, text, font.fontname, y1 - y0))
+            return adv
+
+        def receive_layout(self, ltpage) -> None:
+            self.result = ltpage
+
+    return CharDevice()
+
+
+def _page_objects(pdf, page) -> tuple[list[Word], list[tuple[float, float, float]], int]:
+    """Words, horizontal rules and the image count of a page."""
+    from pdfminer.layout import LTFigure, LTImage, LTLine, LTRect
+    from pdfminer.pdfinterp import PDFPageInterpreter
+
+    device = _char_device(pdf.rsrcmgr)
+    PDFPageInterpreter(pdf.rsrcmgr, device).process_page(page.page_obj)
     x_off, y_top = float(page.mediabox[0]), float(page.mediabox[3])
-    chars: list[tuple[float, float, float, float, str, str, float]] = []
+    chars = [
+        (x0 - x_off, y_top - y1, x1 - x_off, y_top - y0, text, font, size)
+        for x0, y0, x1, y1, text, font, size in device.chars
+    ]
     rules: list[tuple[float, float, float]] = []
     images = 0
-    stack = list(page.layout)
+    stack = list(device.result)
     while stack:
         obj = stack.pop()
-        if isinstance(obj, LTChar):
-            chars.append(
-                (
-                    obj.x0 - x_off,
-                    y_top - obj.y1,
-                    obj.x1 - x_off,
-                    y_top - obj.y0,
-                    obj.get_text(),
-                    obj.fontname,
-                    obj.size,
-                )
-            )
-        elif isinstance(obj, (LTLine, LTRect)):
+        if isinstance(obj, (LTLine, LTRect)):
             if abs(obj.y1 - obj.y0) <= 2.0 and obj.x1 - obj.x0 > 60:
                 rules.append((obj.x0 - x_off, obj.x1 - x_off, y_top - obj.y1))
         elif isinstance(obj, LTImage):
@@ -230,9 +260,9 @@ class PageLines:
     tables: list[tuple[Box, list[Line]]]
 
 
-def extract_page(page, number: int) -> tuple[PageLines, int]:
+def extract_page(pdf, page, number: int) -> tuple[PageLines, int]:
     """Lines and ruled tables of one pdfplumber page, and how many images it holds."""
-    words, rules, images = _page_objects(page)
+    words, rules, images = _page_objects(pdf, page)
     lines = _lines(words)
     regions = _table_regions(rules, float(page.height))
     tables = []
@@ -401,7 +431,8 @@ class TextBuilder:
     def __init__(self) -> None:
         self.parts: list[str] = []
         self.length = 0
-        self.blocks: list[Block] = []
+        self.blocks = 0
+        self.maker = SentenceMaker()
         self.plain_words: set[str] = set()
         self.hyphen_words: set[str] = set()
 
@@ -415,6 +446,7 @@ class TextBuilder:
         if self.blocks:
             self._put("\n\n")
         block_start = self.length
+        first_part = len(self.parts)
         words: list[tuple[int, int, int, Box]] = []
         if kind == "table":
             for r, row in enumerate(block.rows):
@@ -427,7 +459,11 @@ class TextBuilder:
         else:
             for i, line in enumerate(block.lines):
                 self._line_words(line, getattr(line, "page", block.page), words, first=i == 0)
-        self.blocks.append(Block(block_start, self.length, kind, block.page, words))
+        self.blocks += 1
+        # Sentences are made now and the word boxes dropped with the block.
+        body = "".join(self.parts[first_part:])
+        self.parts[first_part:] = [body]
+        self.maker.add(Block(block_start, self.length, kind, block.page, words), body)
 
     def _line_words(self, line: Line, page: int, words: list, first: bool) -> None:
         for j, word in enumerate(line.words):
@@ -557,7 +593,7 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     try:
         with pdfplumber.open(path) as pdf:
             for number, page in enumerate(pdf.pages, start=1):
-                lines, page_images = extract_page(page, number)
+                lines, page_images = extract_page(pdf, page, number)
                 images += page_images
                 page.close()
                 count = number
@@ -590,8 +626,7 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
             _flow_page(flow, held, running)
     flow.close()
     text = builder.text
-    blocks = builder.blocks
-    sentences = build_sentences(text, blocks)
+    sentences = builder.maker.sentences
     return Document(
         path=str(path), sha256=digest, kind="pdf", text=text, sentences=sentences, pages=count
     )
