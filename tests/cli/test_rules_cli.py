@@ -197,3 +197,19 @@ def test_record_refuses_when_no_pair_is_complete(tmp_path, capsys):
     code, _, err = run(capsys, "calibrate", "record", folder.root)
     assert code == 2 and "nothing to record" in err and "not assessed by either reviewer" in err
     assert not (folder.root / "calibration").exists()
+
+
+def test_corrupt_round_file_is_reported_and_kept(review, capsys):
+    run(capsys, "calibrate", "record", review)
+    path = review / "calibration" / "round-1.json"
+    path.write_text(path.read_text()[:200], encoding="utf-8")
+    broken = path.read_bytes()
+    code, _, err = run(capsys, "calibrate", "discuss", review)
+    assert code == 2 and str(path) in err and "not valid JSON" in err
+    code, out, _ = run(capsys, "calibrate", "record", review)  # a new round, never over round 1
+    assert code == 0 and "round 2 recorded" in out
+    assert path.read_bytes() == broken
+    code, _, err = run(capsys, "calibrate", "report", review)  # round 2 against broken round 1
+    assert code == 2 and "not valid JSON" in err
+    code, _, _ = run(capsys, "calibrate", "report", review, "--round", "2", "--before", "2")
+    assert code == 2
