@@ -236,6 +236,24 @@ def rules_for(
     return [r for r in pool if r.question_id == question_id and rule_applies(r, result, effect)]
 
 
+def rules_beside_question(
+    rules: RuleBook | None,
+    unavailable: str | None,
+    question_id: str,
+    result: ResultSpec,
+    effect: str | None = None,
+) -> list[str]:
+    """Lines for the workbench's panel beside a question, from ``load_rules_safely``'s pair:
+    the applying rules (answer first, then text), or the reason the rules are unavailable."""
+    if rules is None:
+        return [unavailable or "answering rules unavailable"]
+    lines = []
+    for r in rules_for(rules, question_id, result, effect):
+        answer = f"{r.answer}: " if r.answer else ""
+        lines.append(f"{r.id} (rules v{rules.version}, when {r.condition_text()}) {answer}{r.text}")
+    return lines
+
+
 # --- validation -------------------------------------------------------------------------------
 
 

@@ -13,6 +13,7 @@ from robtui.core.rules import (
     parse_condition,
     retire_rule,
     rule_applies,
+    rules_beside_question,
     rules_for,
     stale_assessments,
     stamp_rules_version,
@@ -93,6 +94,16 @@ def test_rules_for_follows_result_attributes():
     # unconditioned rule applies everywhere
     assert [r.id for r in rules_for(book, "1.1", UNKNOWN)] == ["R3"]
     assert rules_for(None, "1.1", UNKNOWN) == []
+
+
+def test_lines_beside_the_question():
+    book = _book_with_rules()
+    assert rules_beside_question(book, None, "4.4", MORTALITY) == [
+        "R1 (rules v3, when outcome_type=objective) N: Objective counts: answer N."
+    ]
+    assert rules_beside_question(book, None, "4.5", MORTALITY) == []
+    why = "answering rules unavailable: rules.toml: not valid TOML"
+    assert rules_beside_question(None, why, "4.4", MORTALITY) == [why]
 
 
 def test_free_text_attributes_compare_case_and_space_insensitively():
