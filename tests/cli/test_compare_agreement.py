@@ -91,3 +91,33 @@ def test_agreement_table(review_dir, capsys):
     assert main(["agreement", str(review_dir)]) == 0
     out = capsys.readouterr().out
     assert "kappa" in out and "PABAK" in out and "Overall" in out
+
+
+def test_on_the_demo_review(tmp_path, capsys):
+    from robtui.errors import DataFileError
+    from robtui.store.demo import build_demo_review
+
+    try:
+        folder = build_demo_review(tmp_path / "demo")
+    except DataFileError as error:
+        pytest.skip(f"demo review not bundled yet: {error}")
+    if len(folder.review.reviewers) < 2:
+        pytest.skip("demo review names fewer than two reviewers")
+    root = str(folder.root)
+    assert main(["compare", root, "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert len(data["pairs"]) + len(data["not_compared"]) == len(folder.review.studies) * len(
+        folder.review.results
+    )
+    assert main(["agreement", root, "--json"]) == 0
+    assert "overall" in json.loads(capsys.readouterr().out)["domains"]
+    assert main(["export", root, "--format", "md"]) == 0
+
+
+def test_review_benchmark_prints_figures(capsys):
+    from robtui.benchmarks.review import main as bench
+
+    assert bench(["--studies", "3", "--results", "1"]) == 0
+    out = capsys.readouterr().out
+    for name in ("compare", "agreement", "export csv", "export png", "total"):
+        assert name in out
