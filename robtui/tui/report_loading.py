@@ -41,6 +41,8 @@ class LoadedReport:
     suggestions: dict[str, list[Any]] = field(default_factory=dict)
     problem: str | None = None  # the report cannot be shown (missing, changed, unreadable)
     notes: list[str] = field(default_factory=list)  # shown, but the report is usable
+    # scores below this read as "no sentence found for this question" (the ranker's own)
+    no_evidence_threshold: float | None = None
 
 
 def load_report(
@@ -72,6 +74,10 @@ def load_report(
     loaded.suggestions = rank_document(
         folder, loaded.document, effect, stage, ranker_factory, loaded.notes
     )
+    try:
+        loaded.no_evidence_threshold = float(ranker_factory().no_evidence_threshold)
+    except (RobtuiError, AttributeError, TypeError, ValueError):
+        loaded.no_evidence_threshold = None
     return loaded
 
 

@@ -157,7 +157,11 @@ class ReviewSession:
         return session
 
     def comparison_pairs(self, reviewer_a: str, reviewer_b: str):
-        """Pairs of two reviewers' complete assessments: the lead's view only."""
+        """Both reviewers' assessments paired per study × result: the lead's view only.
+
+        Pairs where a side is missing or still a draft are kept, with the reason
+        (``AssessmentPair.problem``); only complete pairs are compared.
+        """
         if not self.is_lead:
             raise InputError(
                 f"only the review's lead ({self.review.lead or 'none named'}) may compare "
@@ -170,8 +174,18 @@ class ReviewSession:
         for name in (reviewer_a, reviewer_b):
             found, trouble = self.folder.assessments(name)
             problems += trouble
-            lists.append([a for a in found if a.status == "complete"])
-        return pair_assessments(lists[0], lists[1]), problems
+            lists.append(found)
+        expected = [(s.id, r.id) for s in self.review.studies for r in self.review.results]
+        pairs = pair_assessments(
+            lists[0], lists[1], reviewer_a=reviewer_a, reviewer_b=reviewer_b, expected=expected
+        )
+        return pairs, problems
+
+    def comparable_reviewers(self) -> list[str]:
+        """Reviewers who could be compared: named in the review or with files on disk."""
+        names = [n for n in self.review.reviewers if n != self.review.lead]
+        names += [n for n in self.folder.reviewers_on_disk() if n not in names]
+        return names
 
 
 @dataclass

@@ -4,13 +4,23 @@ from __future__ import annotations
 
 from robtui.tui.screens.assessment import AssessmentScreen
 from robtui.tui.widgets.question_list import QuestionList
+from robtui.tui.widgets.report_view import ReportView
 
 KEY_FOR = {"Y": "y", "PY": "p", "PN": "m", "N": "n", "NI": "i", "NA": "a"}
 
 
 async def settle(pilot) -> None:
-    """Let workers (reading, ranking) finish and the screen catch up."""
+    """Let workers (reading, ranking) finish, the report be laid out, the screen catch up."""
     await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+    screen = pilot.app.screen
+    if isinstance(screen, AssessmentScreen):
+        view = screen.query_one("#report", ReportView)
+        for _ in range(200):
+            if view.laid_out:
+                break
+            await pilot.pause(0.01)
+        assert view.laid_out
     await pilot.pause()
 
 
@@ -31,3 +41,14 @@ async def answer_domain(pilot, domain_id: str, wanted: dict[str, str]) -> None:
             await pilot.press("j" if ids.index(qid) > here else "k")
         await pilot.press(KEY_FOR[code])
         await pilot.pause()
+
+
+def plain(renderable, width: int = 160) -> str:
+    """The text of a rich renderable (a prompt, a table), without styles."""
+    import io
+
+    from rich.console import Console
+
+    console = Console(width=width, record=True, file=io.StringIO())
+    console.print(renderable)
+    return console.export_text()

@@ -67,7 +67,7 @@ async def _open_first(pilot) -> AssessmentScreen:
 
 @pytest.mark.parametrize("damage", ["gone", "changed"])
 async def test_missing_or_changed_report_is_reported_and_answers_still_work(demo_dir, damage):
-    folder, study, path = _first_report(demo_dir)
+    _, study, path = _first_report(demo_dir)
     if damage == "gone":
         path.unlink()
     else:

@@ -200,6 +200,7 @@ class AssessmentScreen(Screen[None]):
             view.show_message(f"⚠ {loaded.problem}")
         else:
             view.show_document(loaded.document)
+        self._refresh_question_lines()
         self._mark_report()
 
     # -- the current state -------------------------------------------------------------
@@ -227,10 +228,8 @@ class AssessmentScreen(Screen[None]):
         s = self.session
         domain = s.domain(self.domain_id)
         asked = s.asked(self.domain_id)
-        answers = s.assessment.answers
-        lines = [line_for(q, answers, len(self.suggestions_for(q.id))) for q in asked]
         questions = self.query_one("#questions", QuestionList)
-        questions.show(lines, keep=keep)
+        questions.show(self._question_lines(asked), keep=keep)
         effect = f"  ·  effect of {s.effect}" if domain.effect else ""
         heading = Text(f"Domain {domain.id}: {domain.name}", style="bold")
         heading.append(effect, style="dim")
@@ -355,11 +354,14 @@ class AssessmentScreen(Screen[None]):
     def _refresh_question_lines(self) -> None:
         questions = self.query_one("#questions", QuestionList)
         keep = questions.focused_question
-        answers = self.session.assessment.answers
-        asked = self.session.asked(self.domain_id)
-        lines = [line_for(q, answers, len(self.suggestions_for(q.id))) for q in asked]
+        lines = self._question_lines(self.session.asked(self.domain_id))
         with questions.prevent(QuestionList.OptionHighlighted):
             questions.show(lines, keep=keep)
+
+    def _question_lines(self, asked) -> list:
+        answers = self.session.assessment.answers
+        level = self.current.no_evidence_threshold if self.current else None
+        return [line_for(q, answers, self.suggestions_for(q.id), level) for q in asked]
 
     @on(Input.Submitted, "#search")
     def _search_next(self, event: Input.Submitted) -> None:
@@ -507,6 +509,13 @@ class AssessmentScreen(Screen[None]):
         s = self.session
         if s.is_complete:
             self.notify("this assessment is marked complete: c reopens it", severity="warning")
+            return
+        if s.proposed(key) == "incomplete":
+            what = "the overall" if key == OVERALL else f"domain {key}"
+            self.notify(
+                f"{what} is not judged yet: answer its questions before overriding",
+                severity="warning",
+            )
             return
         title = "overall judgement" if key == OVERALL else f"domain {key}: {s.domain(key).name}"
         note = ""

@@ -23,10 +23,12 @@ class KeyHints(Static):
             for binding in bindings:
                 if not isinstance(binding, Binding) or not binding.show:
                     continue
-                if binding.action in seen:
+                name = binding.action.removeprefix("app.").removeprefix("screen.")
+                if name in seen:
                     continue
-                seen.add(binding.action)
-                key = binding.key_display or self.app.get_key_display(binding)
+                seen.add(name)
+                first = Binding(binding.key.split(",")[0].strip(), binding.action)
+                key = binding.key_display or self.app.get_key_display(first)
                 action = (
                     binding.action if "." in binding.action else f"{namespace}.{binding.action}"
                 )

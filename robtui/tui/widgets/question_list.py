@@ -27,6 +27,8 @@ class QuestionLine:
     justification: str
     quote_pages: tuple[str, ...]
     suggestions: int
+    best_score: float | None = None
+    no_evidence_threshold: float | None = None
 
 
 def asked_because(condition_text: str) -> str:
@@ -53,7 +55,13 @@ def question_prompt(line: QuestionLine) -> Table:
         details.append(f"❝ {n} quote{'s' if n != 1 else ''} ({', '.join(line.quote_pages)})")
     if line.suggestions:
         n = line.suggestions
-        details.append(f"{n} suggested sentence{'s' if n != 1 else ''}")
+        suggested = f"{n} suggested sentence{'s' if n != 1 else ''}"
+        if line.best_score is not None:
+            suggested += f", best {line.best_score:.2f}"
+            low = line.no_evidence_threshold
+            if low is not None and line.best_score < low:
+                suggested += " (below the ranker's no-evidence level: the report may not say)"
+        details.append(suggested)
     if details:
         body.append("\n" + " · ".join(details), style="dim")
     response = (
@@ -103,12 +111,19 @@ def quote_pages(quotes: Sequence[Any]) -> tuple[str, ...]:
     return tuple(f"p.{q.page}" if q.page else "no page" for q in quotes)
 
 
-def line_for(question: Any, answers: Mapping[str, Any], suggestions: int) -> QuestionLine:
+def line_for(
+    question: Any,
+    answers: Mapping[str, Any],
+    suggestions: Sequence[Any] = (),
+    no_evidence_threshold: float | None = None,
+) -> QuestionLine:
     answer = answers.get(question.id)
     return QuestionLine(
         question=question,
         response=answer.response if answer else None,
         justification=answer.justification if answer else "",
         quote_pages=quote_pages(answer.quotes) if answer else (),
-        suggestions=suggestions,
+        suggestions=len(suggestions),
+        best_score=max((s.score for s in suggestions), default=None),
+        no_evidence_threshold=no_evidence_threshold,
     )

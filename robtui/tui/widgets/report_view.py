@@ -19,6 +19,7 @@ from robtui.reading.document import Document, Sentence
 
 SUGGESTION_STYLE = "bold #111111 on #f2c078"
 QUOTE_MARK = "❝"
+HEADING_STYLE = "bold #6fa8dc"
 CHUNK = 150  # sentences added per step when a long report is laid out
 GUTTER = 7  # page number column, then the sentence
 
@@ -66,7 +67,8 @@ class ReportView(OptionList):
         for sentence in self.document.sentences:
             if sentence.section != section:
                 section = sentence.section
-                options.append(Option(self._section_prompt(section), disabled=True))
+                if sentence.block != "heading":  # a heading of its own names the section
+                    options.append(Option(self._section_prompt(section), disabled=True))
             self._index_of[sentence.index] = len(options)
             options.append(Option(self._prompt(sentence), id=f"s{sentence.index}"))
         self._all_options = options
@@ -81,6 +83,11 @@ class ReportView(OptionList):
         if start + CHUNK < len(options):
             self.set_timer(0.001, lambda: self._add_chunk(options, start + CHUNK, generation))
 
+    @property
+    def laid_out(self) -> bool:
+        """True once every sentence of the report is in the view."""
+        return self.document is None or self.option_count >= len(self._all_options)
+
     def show_message(self, text: str) -> None:
         self._generation += 1
         self.document = None
@@ -93,7 +100,7 @@ class ReportView(OptionList):
         return max(20, width - GUTTER - 2)
 
     def _section_prompt(self, label: str) -> Text:
-        return Text(" " * GUTTER + f"§ {section_title(label)}", style="bold #6fa8dc")
+        return Text(" " * GUTTER + f"§ {section_title(label)}", style=HEADING_STYLE)
 
     def _prompt(self, sentence: Sentence) -> Text:
         """The sentence wrapped to the view's width under its page number (hanging indent)."""
@@ -105,7 +112,10 @@ class ReportView(OptionList):
             marks.append(" ")
         if sentence.index in self._quoted:
             marks.append(f"{QUOTE_MARK} ", style="bold")
-        body_style = "bold" if sentence.block == "heading" else ""
+        heading = sentence.block == "heading"
+        if heading:
+            marks.append("§ ", style=HEADING_STYLE)
+        body_style = HEADING_STYLE if heading else ""
         if mark:
             body_style = (body_style + " underline").strip()
         lines = textwrap.wrap(
