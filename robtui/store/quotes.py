@@ -6,55 +6,52 @@ from pathlib import Path
 
 from robtui.core.model import Quote, Study
 from robtui.errors import InputError
+from robtui.reading.document import Document
 from robtui.store.review_folder import ReviewFolder
 
-PLAIN_TEXT_SUFFIXES = (".txt", ".md")
+# Plain text first: its offsets are the file's own characters.
+DEFAULT_ORDER = (".txt", ".md", ".html", ".htm", ".pdf")
 
 
-def report_text(folder: ReviewFolder, study: Study, index: int) -> tuple[str, object | None]:
-    """The text of a study's report (offsets refer to it) and its Document when one was read.
+def report_document(folder: ReviewFolder, study: Study, index: int) -> Document:
+    """The Document of a study's report as the reader gives it (quote offsets refer to it)."""
+    from robtui.reading.reader import read_document
 
-    Plain-text reports are their own text; other kinds go through the reader.
-    """
     report = study.reports[index]
-    path = folder.report_path(report)
     problem = folder.check_report(report)
     if problem:
         raise InputError(problem)
-    if path.suffix.lower() in PLAIN_TEXT_SUFFIXES:
-        return _plain_text(path), None
-    from robtui.reading.reader import read_document
-
-    document = read_document(path)
-    return document.text, document
+    return read_document(folder.report_path(report))
 
 
-def _plain_text(path: Path) -> str:
-    # Same reading as the text reader: UTF-8, newlines as in the file.
-    with open(path, encoding="utf-8", newline="") as handle:
-        return handle.read()
-
-
-def find_quote(folder: ReviewFolder, study_id: str, text: str, *, occurrence: int = 1) -> Quote:
-    """The quote of ``text`` in the study's reports (plain text first), located by search."""
+def find_quote(
+    folder: ReviewFolder,
+    study_id: str,
+    text: str,
+    *,
+    occurrence: int = 1,
+    prefer: tuple[str, ...] = DEFAULT_ORDER,
+) -> Quote:
+    """The quote of ``text`` in the study's reports, located by search (``prefer``: suffixes
+    tried first, in order)."""
     study = folder.study_or_error(study_id)
     wanted = text.strip()
     if not wanted:
         raise InputError("an empty quote was given: quote a passage of the report")
-    order = sorted(
-        range(len(study.reports)),
-        key=lambda i: Path(study.reports[i].path).suffix.lower() not in PLAIN_TEXT_SUFFIXES,
-    )
-    for index in order:
-        body, document = report_text(folder, study, index)
+
+    def rank(i: int) -> int:
+        suffix = Path(study.reports[i].path).suffix.lower()
+        return prefer.index(suffix) if suffix in prefer else len(prefer)
+
+    for index in sorted(range(len(study.reports)), key=rank):
+        document = report_document(folder, study, index)
+        body = document.text
         start = _nth(body, wanted, occurrence)
         if start is None:
             continue
         end = start + len(wanted)
-        page = None
-        if document is not None:
-            sentence = document.sentence_at(start)
-            page = sentence.page if sentence is not None else None
+        sentence = document.sentence_at(start)
+        page = sentence.page if sentence is not None else None
         return Quote(
             document_sha256=study.reports[index].sha256,
             start=start,

@@ -11,7 +11,7 @@ from robtui.core import assessing
 from robtui.core.questions import builtin_question_set
 from robtui.errors import DataFileError, InputError
 from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir
-from robtui.store.quotes import report_text
+from robtui.store.quotes import report_document
 
 QSET = builtin_question_set()
 
@@ -95,7 +95,7 @@ def check_demo(folder) -> None:
                 index = next(
                     i for i, r in enumerate(study.reports) if r.sha256 == quote.document_sha256
                 )
-                text, _ = report_text(folder, study, index)
+                text = report_document(folder, study, index).text
                 assert text[quote.start : quote.end] == quote.text
 
 
