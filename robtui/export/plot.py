@@ -15,8 +15,6 @@ from robtui.export.palette import OUTLINE, SWATCHES
 from robtui.export.tables import OutcomeExport, column_titles
 
 SHARE_CODES = ("low", "some_concerns", "high", "incomplete")
-_MARKERS = {code: f"$\\mathbf{{{sw.letter}}}$" for code, sw in SWATCHES.items()}
-_MARKERS["incomplete"] = "o"  # a small dot, as in the text exports
 _METADATA = {
     "svg": {"Date": None},
     "pdf": {"CreationDate": None, "ModDate": None},
@@ -34,25 +32,30 @@ def _save(fig, fmt: str) -> bytes:
     import matplotlib
 
     out = io.BytesIO()
-    settings = {"svg.fonttype": "none", "svg.hashsalt": "robtui", "pdf.compression": 1}
+    settings = {
+        "svg.fonttype": "none",
+        "svg.hashsalt": "robtui",
+        "pdf.compression": 1,
+        "pdf.fonttype": 42,
+    }
     with matplotlib.rc_context(settings):
         extra = {"pil_kwargs": {"compress_level": 1}} if fmt == "png" else {}  # speed over size
         fig.savefig(out, format=fmt, metadata=_METADATA[fmt], **extra)
     return out.getvalue()
 
 
-_GLYPHS: dict[tuple[str, float], tuple[object, object, float]] = {}
+_GLYPHS: dict[tuple[str, float, str], tuple[object, object, float]] = {}
 
 
-def _glyph(char: str, size: float):
+def _glyph(char: str, size: float, weight: str = "normal"):
     """(vertices in points, codes, advance in points) of one character, cached."""
-    key = (char, size)
+    key = (char, size, weight)
     if key not in _GLYPHS:
         import numpy as np
         from matplotlib.font_manager import FontProperties
         from matplotlib.textpath import text_to_path
 
-        prop = FontProperties(size=size)
+        prop = FontProperties(size=size, weight=weight)
         verts, codes = text_to_path.get_text_path(prop, char)
         width, _, _ = text_to_path.get_text_width_height_descent(char, prop, ismath=False)
         # get_text_path works in units of FONT_SCALE per font size (as TextPath does)
@@ -62,12 +65,12 @@ def _glyph(char: str, size: float):
     return _GLYPHS[key]
 
 
-_LABELS: dict[tuple[str, float], tuple[object, object, float]] = {}
+_LABELS: dict[tuple[str, float, str], tuple[object, object, float]] = {}
 
 
-def _label(text: str, size: float):
+def _label(text: str, size: float, weight: str = "normal"):
     """(vertices in points, codes, width in points) of a one-line label, cached."""
-    key = (text, size)
+    key = (text, size, weight)
     if key not in _LABELS:
         import numpy as np
 
@@ -76,7 +79,7 @@ def _label(text: str, size: float):
 
         pen, verts, codes = 0.0, [], []
         for char in text:
-            v, c, advance = _glyph(char, size)
+            v, c, advance = _glyph(char, size, weight)
             if len(v):
                 verts.append(v + (pen, 0.0))
                 codes.append(c)
@@ -126,6 +129,26 @@ def _text_paths(fig, ax, items, size: float, align: str, colour: str) -> None:
     )
 
 
+def _add_compound(fig, ax, verts, codes, at, **style) -> None:
+    """One shape (vertices in inches around 0) repeated at every point of ``at`` (inches),
+    drawn as a single compound path."""
+    import numpy as np
+    from matplotlib.patches import PathPatch
+    from matplotlib.path import Path as MPath
+
+    verts = np.asarray(verts, float)
+    placed = (verts[None, :, :] + np.asarray(at, float)[:, None, :]).reshape(-1, 2)
+    path = MPath(placed, np.tile(np.asarray(codes), len(at)))
+    ax.add_artist(PathPatch(path, transform=fig.dpi_scale_trans, clip_on=False, **style))
+
+
+def _dot(radius: float):
+    from matplotlib.path import Path as MPath
+
+    circle = MPath.circle((0.0, 0.0), radius)
+    return circle.vertices, circle.codes
+
+
 def _tile_path(fig, ax, width: float, height: float):
     """A rounded tile of ``width`` x ``height`` data units, centred on 0, in inches."""
     from matplotlib.patches import BoxStyle
@@ -138,7 +161,6 @@ def _tile_path(fig, ax, width: float, height: float):
 
 def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
     """The traffic-light table: studies down, domains and overall across."""
-    from matplotlib.collections import PathCollection
     from matplotlib.patches import FancyBboxPatch
 
     titles = column_titles(qset)
@@ -163,7 +185,7 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
             fontsize=8,
             fontweight="bold",
         )
-    marks = {code: [] for code in SWATCHES}  # letters drawn as markers: one artist per code
+    marks = {code: [] for code in SWATCHES}  # tile centres per judgement
     _text_paths(
         fig,
         ax,
@@ -185,26 +207,34 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
             code = row.judgements[key] or "incomplete"
             marks[code].append((x_of[key] + 0.45, r))
     tile = _tile_path(fig, ax, 0.74, 0.76)
+    to_inches = ax.transData + fig.dpi_scale_trans.inverted()
     for code, centres in marks.items():
         if not centres:
             continue
         sw = SWATCHES[code]
         dashed = code == "incomplete"
-        # one shared tile outline, placed at every centre: one artist per judgement
-        ax.add_collection(
-            PathCollection(
-                [tile],
-                offsets=centres,
-                offset_transform=ax.transData,
-                transform=fig.dpi_scale_trans,
-                facecolor=sw.fill,
-                edgecolor=OUTLINE if dashed else sw.fill,
-                linewidths=0.8,
-                linestyle="--" if dashed else "-",
-            )
+        at = to_inches.transform(centres)
+        # every tile of a judgement in one compound path: one artist per judgement
+        _add_compound(
+            fig,
+            ax,
+            tile.vertices,
+            tile.codes,
+            at,
+            facecolor=sw.fill,
+            edgecolor=OUTLINE if dashed else "none",
+            linewidth=0.8,
+            linestyle="--" if dashed else "-",
         )
-        xs, ys = zip(*centres)
-        ax.scatter(xs, ys, marker=_MARKERS[code], s=36, c=sw.ink, linewidths=0, zorder=3)
+        if dashed:
+            mark_verts, mark_codes = _dot(0.028)
+        else:
+            verts, codes, width = _label(sw.letter, 8, "bold")
+            mark_verts = (verts + (-width / 2, -0.36 * 8)) / 72.0
+            mark_codes = codes
+        _add_compound(
+            fig, ax, mark_verts, mark_codes, at, facecolor=sw.ink, edgecolor="none", linewidth=0
+        )
     ax.add_patch(
         FancyBboxPatch(
             (x_of[OVERALL] + 0.02, 0.45),
