@@ -129,6 +129,13 @@ class Workbench(App[int]):
             return
         self.push_screen(CompareScreen(session))
 
+    async def action_quit(self) -> None:
+        """Quit; anything typed but not yet saved is written first."""
+        for screen in self.screen_stack:
+            if isinstance(screen, AssessmentScreen):
+                screen.save_pending()
+        await super().action_quit()
+
     def action_help(self) -> None:
         if not isinstance(self.screen, HelpScreen):
             self.push_screen(HelpScreen())

@@ -81,6 +81,7 @@ class AssessmentScreen(Screen[None]):
         self.document_index = 0
         self._justify_timer = None
         self._justify_for: str | None = None
+        self._typed: str | None = None  # justification typed, not saved yet
         self.last_update_seconds: float | None = None  # keystroke -> judgement shown (bench)
 
     # -- layout ------------------------------------------------------------------------
@@ -274,6 +275,7 @@ class AssessmentScreen(Screen[None]):
         qid = self.question_id
         answer = self.session.answer(qid) if qid else None
         self._justify_for = qid
+        self._typed = None
         with field.prevent(Input.Changed):
             field.value = answer.justification if answer else ""
         field.placeholder = f"Justification for {qid} (e to write, enter when done)" if qid else ""
@@ -321,7 +323,8 @@ class AssessmentScreen(Screen[None]):
         self.action_answer(event.response)
 
     @on(Input.Changed, "#justification")
-    def _justification_typed(self) -> None:
+    def _justification_typed(self, event: Input.Changed) -> None:
+        self._typed = event.value
         if self._justify_timer is not None:
             self._justify_timer.stop()
         self._justify_timer = self.set_timer(JUSTIFICATION_SAVE_DELAY, self._flush_justification)
@@ -335,21 +338,26 @@ class AssessmentScreen(Screen[None]):
         if getattr(event.widget, "id", None) == "justification":
             self._flush_justification()
 
-    def _flush_justification(self) -> None:
+    def _flush_justification(self, *, redraw: bool = True) -> None:
+        """Save what was typed in the justification field (also called when quitting)."""
         if self._justify_timer is not None:
             self._justify_timer.stop()
             self._justify_timer = None
-        qid = self._justify_for
-        if qid is None or self.session.is_complete:
+        qid, text, self._typed = self._justify_for, self._typed, None
+        if qid is None or text is None or self.session.is_complete:
             return
-        text = self.query_one("#justification", Input).value
         try:
             before = self.session.answer(qid)
             if (before.justification if before else "") != text:
                 self.session.set_justification(qid, text)
-                self._refresh_question_lines()
+                if redraw:
+                    self._refresh_question_lines()
         except RobtuiError as error:
             self.notify(str(error), severity="error")
+
+    def save_pending(self) -> None:
+        """Write anything not yet saved (the app calls this before it exits)."""
+        self._flush_justification(redraw=False)
 
     def _refresh_question_lines(self) -> None:
         questions = self.query_one("#questions", QuestionList)

@@ -1,0 +1,78 @@
+"""The report beside the questions: suggestions with rank and score, jumping between them,
+dismissing one (recorded for the review's learned model), searching, detaching a quote."""
+
+from __future__ import annotations
+
+from robtui.tui.app import Workbench
+from robtui.tui.screens.assessment import AssessmentScreen
+from robtui.tui.widgets.report_view import ReportView
+
+from .conftest import SIZE
+from .helpers import plain, settle
+
+
+async def _assessment(pilot) -> AssessmentScreen:
+    await pilot.pause()
+    await pilot.press("enter", "enter")
+    await settle(pilot)
+    assert isinstance(pilot.app.screen, AssessmentScreen)
+    return pilot.app.screen
+
+
+async def test_suggestions_jump_dismiss_and_quote(demo_dir):
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await _assessment(pilot)
+        view = screen.query_one("#report", ReportView)
+        qid = screen.question_id
+        suggestions = screen.suggestions_for(qid)
+        assert suggestions, "the shipped ranker suggests sentences for the first question"
+        scores = [s.score for s in suggestions]
+        assert scores == sorted(scores, reverse=True)
+
+        await pilot.press("right_square_bracket")
+        assert view.highlighted_sentence.index == suggestions[0].sentence_index
+        shown = plain(view.options[view.highlighted].prompt)
+        assert f"#1 {suggestions[0].score:.2f}" in shown  # rank and score in the report
+        await pilot.press("right_square_bracket")
+        assert view.highlighted_sentence.index == suggestions[1].sentence_index
+        await pilot.press("left_square_bracket")
+        assert view.highlighted_sentence.index == suggestions[0].sentence_index
+
+        await pilot.press("x")  # not evidence for this question
+        await pilot.pause()
+        dismissed = screen.session.assessment.dismissed
+        assert [(d.question_id, d.start, d.end) for d in dismissed] == [
+            (qid, suggestions[0].start, suggestions[0].end)
+        ]
+        assert suggestions[0].sentence_index not in [
+            s.sentence_index for s in screen.suggestions_for(qid)
+        ]
+
+        await pilot.press("right_square_bracket", "q")
+        await pilot.pause()
+        assert len(screen.session.answer(qid).quotes) == 1
+        await pilot.press("q")  # the same sentence again: detached
+        await pilot.pause()
+        assert screen.session.answer(qid).quotes == []
+
+
+async def test_search_moves_to_matching_sentences(demo_dir):
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await _assessment(pilot)
+        view = screen.query_one("#report", ReportView)
+        document = view.document
+        word = "randomi"  # every trial report says how it was randomised
+        hits = [s.index for s in document.sentences if word in s.text.casefold()]
+        assert len(hits) >= 2
+        start = view.highlighted_sentence.index
+        after = [i for i in hits if i > start] + [i for i in hits if i <= start]
+        await pilot.press("slash", *word, "enter")
+        await pilot.pause()
+        assert view.highlighted_sentence.index == after[0]  # the next match after the cursor
+        await pilot.press("enter")
+        assert view.highlighted_sentence.index == after[1]
+        await pilot.press("escape")
+        await pilot.pause()
+        assert screen.focused is view and not screen.query_one("#search").display
