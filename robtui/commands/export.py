@@ -58,7 +58,9 @@ def run(args: argparse.Namespace) -> int:
     if args.out:
         from robtui.export.safety import export_path
 
-        export_path(folder.exports_dir, args.out)  # refuse a bad name before writing anything
+        export_path(
+            folder.exports_dir, args.out, folder.root
+        )  # refuse a bad name before writing anything
     formats = list(dict.fromkeys(FORMATS if "all" in args.formats else args.formats))
     assessments, problems = folder.assessments()
     consensus, consensus_problems = folder.consensus_records()

@@ -9,6 +9,7 @@ greyscale.
 from __future__ import annotations
 
 import io
+import warnings
 
 from robtui.core.model import OVERALL
 from robtui.export.palette import OUTLINE, SWATCHES
@@ -20,6 +21,11 @@ _METADATA = {
     "pdf": {"CreationDate": None, "ModDate": None},
     "png": {},
 }
+
+
+def _plain(text: str) -> str:
+    """User text for a matplotlib Text: one line, and "$" never starts mathematics."""
+    return " ".join(str(text).split()).replace("$", r"\$")
 
 
 def _figure(width: float, height: float):
@@ -56,8 +62,10 @@ def _glyph(char: str, size: float, weight: str = "normal"):
         from matplotlib.textpath import text_to_path
 
         prop = FontProperties(size=size, weight=weight)
-        verts, codes = text_to_path.get_text_path(prop, char)
-        width, _, _ = text_to_path.get_text_width_height_descent(char, prop, ismath=False)
+        with warnings.catch_warnings():  # a glyph missing from the font is drawn as a box
+            warnings.simplefilter("ignore", UserWarning)
+            verts, codes = text_to_path.get_text_path(prop, char)
+            width, _, _ = text_to_path.get_text_width_height_descent(char, prop, ismath=False)
         # get_text_path works in units of FONT_SCALE per font size (as TextPath does)
         scale = size / text_to_path.FONT_SCALE
         verts = np.asarray(verts, float).reshape(-1, 2) * scale
@@ -78,7 +86,7 @@ def _label(text: str, size: float, weight: str = "normal"):
             _LABELS.clear()
 
         pen, verts, codes = 0.0, [], []
-        for char in text:
+        for char in " ".join(text.split()):  # one line: newlines and tabs become spaces
             v, c, advance = _glyph(char, size, weight)
             if len(v):
                 verts.append(v + (pen, 0.0))
@@ -174,7 +182,14 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
     ax.set_xlim(0, width)
     ax.set_ylim(n + 1.6, -1.2)
     ax.axis("off")
-    ax.text(0.1, -0.7, f"Risk of bias: {ex.outcome}", fontsize=10, fontweight="bold", va="center")
+    ax.text(
+        0.1,
+        -0.7,
+        f"Risk of bias: {_plain(ex.outcome)}",
+        fontsize=10,
+        fontweight="bold",
+        va="center",
+    )
     for key in keys:
         ax.text(
             x_of[key] + 0.45,
@@ -295,7 +310,7 @@ def render_summary(ex: OutcomeExport, qset, fmt: str) -> bytes:
     ax.tick_params(axis="x", labelsize=7)
     for side in ("top", "right"):
         ax.spines[side].set_visible(False)
-    ax.set_title(f"{ex.outcome}: judgements per domain", fontsize=9, loc="left")
+    ax.set_title(f"{_plain(ex.outcome)}: judgements per domain", fontsize=9, loc="left")
     handles, labels = ax.get_legend_handles_labels()
     fig.legend(handles, labels, loc="lower center", ncol=4, fontsize=7, frameon=False)
     return _save(fig, fmt)

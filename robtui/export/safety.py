@@ -50,11 +50,12 @@ def md(text: object) -> str:
     return value.replace("\r\n", "\n").replace("\n", "<br>")
 
 
-def export_path(exports_dir: Path, name: str) -> Path:
+def export_path(exports_dir: Path, name: str, root: Path | None = None) -> Path:
     """The path of export file ``name`` inside ``exports_dir``; refuses anything outside it.
 
     Rejects absolute paths, ``..`` parts, and paths that resolve (through symlinks) outside
-    the exports folder.
+    the exports folder; with ``root`` (the review folder), the exports folder itself must
+    resolve inside it.
     """
     if not name or not name.strip():
         raise InputError("export name is empty: give a file name such as 'primary-outcome'")
@@ -67,6 +68,13 @@ def export_path(exports_dir: Path, name: str) -> Path:
     if ".." in pure.parts:
         raise InputError(f"export name {name!r} contains '..': give a name inside exports/")
     base = Path(exports_dir).resolve()
+    if root is not None:
+        top = Path(root).resolve()
+        if base != top and top not in base.parents:
+            raise InputError(
+                f"the exports folder {exports_dir} leads outside the review folder (a symbolic "
+                "link?): make exports/ a plain folder inside the review"
+            )
     target = (base / pure).resolve()
     if target != base and base not in target.parents:
         raise InputError(

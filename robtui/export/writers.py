@@ -368,7 +368,7 @@ def export_outcome(
     written: list[Path] = []
 
     def put(suffix: str, data: str | bytes) -> None:
-        path = export_path(folder.exports_dir, f"{stem}{suffix}")
+        path = export_path(folder.exports_dir, f"{stem}{suffix}", folder.root)
         if isinstance(data, bytes):
             write_bytes_atomic(path, data)
         else:

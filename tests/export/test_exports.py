@@ -190,3 +190,29 @@ def test_unknown_format_and_result(folder):
 
 def test_markup_escapes_quotes():
     assert markup('"a" <b>') == "&quot;a&quot; &lt;b&gt;"
+
+
+def test_figures_take_awkward_user_text(tmp_path):
+    # "$" would start matplotlib mathematics; newlines, tabs and characters missing from the
+    # font must not break the figure
+    f = build_synthetic_review(tmp_path / "r", studies=2, results=1, seed=1, disagreement=0.0)
+    review = f.review.model_copy(deep=True)
+    review.results[0].outcome = "Cost in $ (one $ sign)"
+    review.studies[0].label = "Line one\nline two\t\u8bd5\u9a8c \U0001f600"
+    f.review = review
+    f.save_review()
+    for fmt in ("png", "svg", "pdf"):
+        paths, _ = export_outcome(f, QSET, "outcome-1", fmt)
+        assert all(p.stat().st_size > 1000 for p in paths)
+    svg = (f.exports_dir / "outcome-1-summary.svg").read_text(encoding="utf-8")
+    assert "Cost in $ (one $ sign)" in svg
+
+
+def test_exports_folder_that_is_a_link_out_of_the_review_is_refused(tmp_path):
+    root = tmp_path / "review"
+    root.mkdir()
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    os.symlink(elsewhere, root / "exports")
+    with pytest.raises(InputError, match="outside the review folder"):
+        export_path(root / "exports", "x.md", root)
