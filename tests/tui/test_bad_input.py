@@ -10,15 +10,14 @@ import pytest
 from robtui.errors import InputError
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench, run_workbench
-from robtui.tui.screens.assessment import AssessmentScreen
-from robtui.tui.screens.dialogs import EffectDialog, ListDialog
+from robtui.tui.screens.dialogs import ListDialog
 from robtui.tui.screens.overview import OverviewScreen
 from robtui.tui.screens.start import ProblemScreen
 from robtui.tui.session import STATUS_UNREADABLE
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import settle
+from .helpers import open_selected
 
 REVIEWER = "tess"
 
@@ -54,17 +53,6 @@ def _first_report(demo_dir: Path):
     return folder, study, folder.report_path(study.reports[0])
 
 
-async def _open_first(pilot) -> AssessmentScreen:
-    await pilot.press("enter")
-    await pilot.pause()
-    if isinstance(pilot.app.screen, EffectDialog):
-        await pilot.press("enter")
-        await pilot.pause()
-    await settle(pilot)
-    assert isinstance(pilot.app.screen, AssessmentScreen)
-    return pilot.app.screen
-
-
 @pytest.mark.parametrize("damage", ["gone", "changed"])
 async def test_missing_or_changed_report_is_reported_and_answers_still_work(demo_dir, damage):
     _, study, path = _first_report(demo_dir)
@@ -79,7 +67,7 @@ async def test_missing_or_changed_report_is_reported_and_answers_still_work(demo
         assert isinstance(overview, OverviewScreen)
         first = next(iter(overview.rows.values()))
         assert first.study_id == study.id and first.problems  # flagged in the overview
-        screen = await _open_first(pilot)
+        screen = await open_selected(pilot)
         view = screen.query_one("#report", ReportView)
         assert view.document is None
         message = str(view.options[0].prompt)
@@ -118,5 +106,5 @@ async def test_unreadable_assessment_is_reported_never_overwritten(demo_dir):
         await pilot.pause()
         # the rest of the review is usable: the next result opens
         await pilot.press("down")
-        await _open_first(pilot)
+        await open_selected(pilot)
     assert path.read_bytes() == before

@@ -3,26 +3,17 @@
 from __future__ import annotations
 
 from robtui.tui.app import Workbench
-from robtui.tui.screens.assessment import AssessmentScreen
 from robtui.tui.screens.dialogs import TextDialog
 from robtui.tui.screens.help import HelpScreen
 
 from .conftest import SIZE
-from .helpers import plain, settle
-
-
-async def _assessment(pilot) -> AssessmentScreen:
-    await pilot.pause()
-    await pilot.press("enter", "enter")
-    await settle(pilot)
-    assert isinstance(pilot.app.screen, AssessmentScreen)
-    return pilot.app.screen
+from .helpers import open_selected, plain
 
 
 async def test_clicks_choose_domain_and_answer(demo_dir):
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
-        screen = await _assessment(pilot)
+        screen = await open_selected(pilot)
         await pilot.click("#tab-3")
         await pilot.pause()
         assert screen.domain_id == "3"
@@ -49,7 +40,7 @@ async def test_clicks_choose_domain_and_answer(demo_dir):
 async def test_palette_runs_the_domain_summary(demo_dir):
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
-        await _assessment(pilot)
+        await open_selected(pilot)
         await pilot.press("ctrl+p")
         await pilot.pause()
         await pilot.press(*"Domain summary")
@@ -61,3 +52,17 @@ async def test_palette_runs_the_domain_summary(demo_dir):
         await pilot.press("question_mark")
         await pilot.pause()
         assert isinstance(app.screen, HelpScreen)
+
+
+async def test_clicking_a_key_hint_runs_it(demo_dir):
+    from robtui.tui.widgets.key_hints import KeyHints
+
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_selected(pilot)
+        hints = screen.query_one(KeyHints)
+        line = hints.render().plain
+        assert "Summary" in line and "Quote" in line  # key hints always in view
+        await pilot.click(KeyHints, offset=(line.index("Summary") + 2, 0))
+        await pilot.pause()
+        assert isinstance(app.screen, TextDialog)

@@ -4,25 +4,16 @@ dismissing one (recorded for the review's learned model), searching, detaching a
 from __future__ import annotations
 
 from robtui.tui.app import Workbench
-from robtui.tui.screens.assessment import AssessmentScreen
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import plain, settle
-
-
-async def _assessment(pilot) -> AssessmentScreen:
-    await pilot.pause()
-    await pilot.press("enter", "enter")
-    await settle(pilot)
-    assert isinstance(pilot.app.screen, AssessmentScreen)
-    return pilot.app.screen
+from .helpers import open_selected, plain
 
 
 async def test_suggestions_jump_dismiss_and_quote(demo_dir):
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
-        screen = await _assessment(pilot)
+        screen = await open_selected(pilot)
         view = screen.query_one("#report", ReportView)
         qid = screen.question_id
         suggestions = screen.suggestions_for(qid)
@@ -60,7 +51,7 @@ async def test_suggestions_jump_dismiss_and_quote(demo_dir):
 async def test_search_moves_to_matching_sentences(demo_dir):
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
-        screen = await _assessment(pilot)
+        screen = await open_selected(pilot)
         view = screen.query_one("#report", ReportView)
         document = view.document
         word = "randomi"  # every trial report says how it was randomised

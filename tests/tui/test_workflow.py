@@ -12,12 +12,12 @@ from __future__ import annotations
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
 from robtui.tui.screens.assessment import AssessmentScreen
-from robtui.tui.screens.dialogs import EffectDialog, ListDialog, OverrideDialog
+from robtui.tui.screens.dialogs import ListDialog, OverrideDialog
 from robtui.tui.screens.overview import OverviewScreen
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import answer_domain, settle
+from .helpers import answer_domain, open_selected
 
 LOW_PATH = {
     "1": {"1.1": "Y", "1.2": "Y", "1.3": "N"},
@@ -33,19 +33,6 @@ def screen_text(widget) -> str:
     return str(widget.render())
 
 
-async def open_first_result(pilot) -> AssessmentScreen:
-    app = pilot.app
-    assert isinstance(app.screen, OverviewScreen)
-    await pilot.press("enter")
-    await pilot.pause()
-    if isinstance(app.screen, EffectDialog):
-        await pilot.press("enter")  # the result's own effect is offered first
-        await pilot.pause()
-    await settle(pilot)
-    assert isinstance(app.screen, AssessmentScreen)
-    return app.screen
-
-
 async def test_complete_assessment_then_reopen(demo_dir):
     folder = ReviewFolder.open(demo_dir)
     study = folder.review.studies[0]
@@ -55,7 +42,7 @@ async def test_complete_assessment_then_reopen(demo_dir):
     app = Workbench(demo_dir, REVIEWER)
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        screen = await open_first_result(pilot)
+        screen = await open_selected(pilot)
         assert screen.session.assessment.study_id == study.id
         assert screen.session.assessment.result_id == result.id
         assert screen.session.effect == result.effect
@@ -143,7 +130,7 @@ async def test_complete_assessment_then_reopen(demo_dir):
     app = Workbench(demo_dir, REVIEWER)
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        screen = await open_first_result(pilot)
+        screen = await open_selected(pilot)
         s = screen.session
         assert s.is_complete
         for domain_id, wanted in LOW_PATH.items():
