@@ -30,6 +30,19 @@ from robtui.core.model import (
 from robtui.errors import InputError
 
 SOURCES = ("a", "b", "new")
+AGREEMENT_METHOD = {
+    "pairs": "assessments marked complete by both reviewers; domain and overall judgements are "
+    "the final ones (overrides included); a signalling question counts only where both "
+    "reviewers were asked it on their answer path",
+    "percent_agreement": "share of pairs with the same answer, in percent",
+    "kappa": "Cohen (1960)",
+    "kappa_ci": "kappa +/- 1.96 SE, large-sample SE of Fleiss, Cohen & Everitt (1969), "
+    "clipped to [-1, 1]",
+    "weighted_kappa": "linear agreement weights over low < some_concerns < high (Cohen 1968)",
+    "pabak": "(k p_o - 1) / (k - 1), Byrt, Bishop & Carlin (1993); k = number of categories "
+    "(3 judgements; a question's response options)",
+    "band": "Landis & Koch (1977)",
+}
 
 
 @dataclass(frozen=True)
@@ -318,6 +331,7 @@ def review_agreement(pairs: Sequence[AssessmentPair], qset) -> dict:
         ],
         "domains": domains,
         "questions": questions,
+        "method": AGREEMENT_METHOD,
     }
 
 
