@@ -70,8 +70,9 @@ def choose_reviewers(folder, named: list[str] | None) -> tuple[str, str]:
                 f"{', '.join(known) or 'none yet'}): check the spelling"
             )
         return a, b
-    listed = folder.review.reviewers
-    candidates = listed if len(listed) >= 2 else known
+    lead = folder.review.lead
+    listed = [r for r in folder.review.reviewers if r != lead]
+    candidates = listed if len(listed) >= 2 else [r for r in known if r != lead]
     if len(candidates) != 2:
         raise InputError(
             f"this review has {len(candidates)} reviewers ({', '.join(candidates) or 'none'}): "

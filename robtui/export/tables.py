@@ -129,7 +129,9 @@ def _choose(study_id, own: list[Assessment], cons: Consensus | None, review: Rev
     drafts = [a.reviewer for a in own if a.status != "complete"]
     if drafts:
         notes.append(f"draft by {', '.join(drafts)}")
-    missing = [r for r in review.reviewers if r not in {a.reviewer for a in own}]
+    assessed = {a.reviewer for a in own}
+    # the lead may be listed among the reviewers without assessing anything
+    missing = [r for r in review.reviewers if r not in assessed and r != review.lead]
     if missing:
         notes.append(f"no assessment by {', '.join(missing)}")
     if not complete:
