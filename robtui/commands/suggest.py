@@ -78,19 +78,21 @@ def run(args: argparse.Namespace) -> int:
         }
         print(json.dumps(payload, ensure_ascii=False))
         return 0
-    print(_render(ranking, ranker.no_evidence_threshold, document.path))
+    thresholds = {qid: ranker.threshold_for(qid, args.effect) for qid in ranking}
+    print(_render(ranking, thresholds, document.path))
     return 0
 
 
-def _render(ranking: dict, no_evidence: float, path: str) -> str:
+def _render(ranking: dict, thresholds: dict[str, float], path: str) -> str:
     lines = [f"{path}: suggested sentences (candidates to read; the reviewer decides)"]
     for qid, items in ranking.items():
         lines.append("")
         if not items:
             lines.append(f"{qid}  nothing above the threshold")
             continue
-        flag = f"  [no sentence found: best score below {no_evidence:.2f}]"
-        lines.append(f"{qid}{flag if items[0].score < no_evidence else ''}")
+        cut = thresholds[qid]
+        flag = f"  [no sentence found: best score below {cut:.2f}]"
+        lines.append(f"{qid}{flag if items[0].score < cut else ''}")
         for rank, s in enumerate(items, 1):
             where = f"p{s.page} " if s.page else ""
             text = " ".join(s.text.split())

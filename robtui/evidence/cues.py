@@ -99,7 +99,7 @@ class CueMatcher:
             key: np.array([c for c, k in enumerate(self.cue_owner) if k == key], dtype=np.int64)
             for key in self.keys
         }
-        self._cache: dict[str, list[tuple[int, float]]] = {}
+        self._cache: dict[str, tuple[np.ndarray, np.ndarray]] = {}
 
     def _resolve(self, new_words: list[str]) -> None:
         from rapidfuzz import fuzz, process
@@ -121,7 +121,10 @@ class CueMatcher:
             exact = self.word_index.get(word)
             if exact is not None:
                 matches[exact] = 1.0
-            self._cache[word] = list(matches.items())
+            self._cache[word] = (
+                np.fromiter(matches.keys(), dtype=np.int64, count=len(matches)),
+                np.fromiter(matches.values(), dtype=np.float64, count=len(matches)),
+            )
 
     def coverage(self, sentences: list[list[str]]) -> np.ndarray:
         """(n_sentences, n_cues): mean best word match of each cue in each sentence."""
@@ -129,10 +132,14 @@ class CueMatcher:
         if new:
             self._resolve(sorted(new))
         sim = np.zeros((len(sentences), len(self.words)), dtype=np.float64)
-        for row, words in enumerate(sentences):
-            for word in words:
-                for col, value in self._cache[word]:
-                    sim[row, col] = max(sim[row, col], value)
+        cache = self._cache
+        hits = [(row, cache[w]) for row, words in enumerate(sentences) for w in set(words)
+                if len(cache[w][0])]
+        if hits:
+            rows = np.concatenate([np.full(len(m[0]), r) for r, m in hits])
+            cols = np.concatenate([m[0] for _, m in hits])
+            vals = np.concatenate([m[1] for _, m in hits])
+            np.maximum.at(sim, (rows, cols), vals)
         return sim @ self.weights.T
 
     def key_features(self, coverage: np.ndarray, key: str) -> tuple[np.ndarray, np.ndarray]:

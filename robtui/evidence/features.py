@@ -114,11 +114,12 @@ def _window_max(values: np.ndarray, width: int) -> np.ndarray:
 
 def _in_sections(sections: list[str], expected: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
     wanted_tops = {top_section(e) for e in expected}
-    exact = np.array(
-        [any(s == e or s.startswith(e + ".") for e in expected) for s in sections], dtype=float
-    )
-    top = np.array([top_section(s) in wanted_tops for s in sections], dtype=float)
-    return exact, top
+    exact_of, top_of = {}, {}
+    for label in set(sections):
+        exact_of[label] = float(any(label == e or label.startswith(e + ".") for e in expected))
+        top_of[label] = float(top_section(label) in wanted_tops)
+    return (np.array([exact_of[s] for s in sections], dtype=float),
+            np.array([top_of[s] for s in sections], dtype=float))
 
 
 def question_features(

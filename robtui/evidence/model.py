@@ -44,6 +44,7 @@ class RankerWeights:
     no_evidence_threshold: float
     question_texts: dict[str, str] = field(default_factory=dict)
     provenance: dict = field(default_factory=dict)
+    generic_no_evidence_threshold: float | None = None  # None: use no_evidence_threshold
 
 
 def save_weights(weights: RankerWeights, path: Path) -> None:
@@ -68,6 +69,11 @@ def save_weights(weights: RankerWeights, path: Path) -> None:
         "generic_intercept": np.array([weights.generic_intercept]),
         "generic_platt": weights.generic_platt.astype(np.float64),
         "no_evidence_threshold": np.array([weights.no_evidence_threshold]),
+        "generic_no_evidence_threshold": np.array(
+            [weights.generic_no_evidence_threshold
+             if weights.generic_no_evidence_threshold is not None
+             else weights.no_evidence_threshold]
+        ),
         "question_texts": np.frombuffer(
             json.dumps(weights.question_texts, sort_keys=True).encode(), dtype=np.uint8
         ),
@@ -156,4 +162,7 @@ def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
         no_evidence_threshold=float(data["no_evidence_threshold"][0]),
         question_texts=json.loads(data["question_texts"].tobytes().decode() or "{}"),
         provenance=provenance,
+        generic_no_evidence_threshold=float(
+            data.get("generic_no_evidence_threshold", data["no_evidence_threshold"])[0]
+        ),
     )

@@ -87,6 +87,7 @@ class Ranker:
         self.no_evidence_threshold = weights.no_evidence_threshold
         self._row = {key: i for i, key in enumerate(weights.keys)}
         self._n_word = len(weights.word.idf)
+        self._lexical_t = np.ascontiguousarray(weights.lexical.T)  # (n_lex, n_models)
 
     @property
     def provenance(self) -> dict:
@@ -100,6 +101,13 @@ class Ranker:
         if entry and entry.same_as in self._row:
             return entry.same_as
         return None
+
+    def threshold_for(self, question_id: str, effect: str = "assignment") -> float:
+        """The no-evidence threshold of a question (the transfer model has its own)."""
+        if self.trained_key(model_key(question_id, effect)) is not None:
+            return self.no_evidence_threshold
+        generic = self.weights.generic_no_evidence_threshold
+        return self.no_evidence_threshold if generic is None else generic
 
     def features(self, document: Document) -> DocumentFeatures:
         w = self.weights
@@ -134,13 +142,14 @@ class Ranker:
             return {key: np.zeros(0) for key in keys}
         blocks = self.question_blocks(doc, keys, texts)
         trained = {key: self.trained_key(key) for key in keys}
-        rows = sorted({self._row[t] for t in trained.values() if t is not None})
         lexical = {}
-        if rows:
-            word_part = doc.word.dot(w.lexical[rows, : self._n_word])
-            char_part = doc.char.dot(w.lexical[rows, self._n_word :])
-            base = word_part + char_part + doc.shared @ w.shared[rows].T
-            lexical = {row: base[:, i] for i, row in enumerate(rows)}
+        if any(t is not None for t in trained.values()):
+            base = (
+                doc.word.dot_columns(self._lexical_t[: self._n_word])
+                + doc.char.dot_columns(self._lexical_t[self._n_word :])
+                + doc.shared @ w.shared.T
+            )
+            lexical = {row: base[:, row] for row in range(len(w.keys))}
         out = {}
         for key in keys:
             qf = blocks[key]

@@ -28,8 +28,11 @@ from robtui.evidence.tfidf import word_ngrams
 FILE_NAME = "evidence-review-model.json"
 SCHEMA_VERSION = 1
 HASH_BITS = 18
-L2 = 1.0  # penalty of the review model; common practice value for a small model, no source
+L2 = 0.3  # penalty of the review model; chosen with `robtui bench learning` (simulated review)
 BLEND = 1.0  # weight of the review model's decision value in the blended log-odds
+# A sentence the reviewer already marked for this question (same words) is moved by this much
+# log-odds: a dismissed suggestion should not come back first, a quoted one should stay on top.
+MEMORY = 4.0
 
 
 @dataclass(frozen=True)
@@ -51,14 +54,23 @@ class ReviewModel:
 
     def logit(self, key: str, texts: Sequence[str]) -> np.ndarray:
         """The review model's contribution to each text's log-odds for ``key`` (0 if untrained)."""
-        w = self.weights.get(key)
-        if not w:
-            return np.zeros(len(texts))
         out = np.zeros(len(texts))
+        marked = {_normal(e.text): e.positive for e in self.examples if e.key == key}
+        if not marked:
+            return out
+        w = self.weights.get(key, {})
         for i, text in enumerate(texts):
             feats = hashed_features(text)
-            out[i] = sum(w.get(j, 0.0) for j in feats) / np.sqrt(len(feats)) if feats else 0.0
-        return BLEND * out
+            if w and feats:
+                out[i] = BLEND * sum(w.get(j, 0.0) for j in feats) / np.sqrt(len(feats))
+            seen = marked.get(_normal(text))
+            if seen is not None:
+                out[i] += MEMORY if seen else -MEMORY
+        return out
+
+
+def _normal(text: str) -> str:
+    return " ".join(word_ngrams(text, (1, 1)))
 
 
 def hashed_features(text: str) -> set[int]:

@@ -8,9 +8,7 @@ second). ``tests/evidence/test_tfidf.py`` checks equality with scikit-learn on s
 
 from __future__ import annotations
 
-import math
 import re
-from collections import Counter
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -34,13 +32,16 @@ class SparseRows:
 
     def dot(self, weights: np.ndarray) -> np.ndarray:
         """``self @ weights.T`` for a dense (n_models, n_cols) weight matrix -> (n_rows, n_models)."""
-        out = np.zeros((self.n_rows, weights.shape[0]), dtype=np.float64)
+        return self.dot_columns(np.ascontiguousarray(weights.T))
+
+    def dot_columns(self, columns: np.ndarray) -> np.ndarray:
+        """``self @ columns`` for a dense (n_cols, n_models) matrix (rows gathered contiguously)."""
+        out = np.zeros((self.n_rows, columns.shape[1]), dtype=np.float64)
         if len(self.indices) == 0:
             return out
-        products = weights[:, self.indices] * self.data  # (n_models, nnz)
-        rows = np.repeat(np.arange(self.n_rows), np.diff(self.indptr))
-        for m in range(weights.shape[0]):
-            out[:, m] = np.bincount(rows, weights=products[m], minlength=self.n_rows)
+        products = columns[self.indices] * self.data[:, None]  # (nnz, n_models)
+        nonempty = np.diff(self.indptr) > 0
+        out[nonempty] = np.add.reduceat(products, self.indptr[:-1][nonempty], axis=0)
         return out
 
     def to_scipy(self):
@@ -105,30 +106,27 @@ class TfidfTable:
 
     def transform(self, texts: list[str]) -> SparseRows:
         """TF-IDF rows (sublinear tf, idf, l2-normalised) for ``texts``."""
-        indptr = [0]
-        all_idx: list[int] = []
-        all_val: list[float] = []
-        idf = self.idf
+        n_cols = len(self.idf)
+        lengths = []
+        flat: list[int] = []
         for text in texts:
-            counts = Counter(self._indices(text))
-            if counts:
-                idx = sorted(counts)
-                tf = np.array([counts[i] for i in idx], dtype=np.float64)
-                if self.sublinear_tf:
-                    tf = np.log(tf) + 1.0
-                val = tf * idf[idx]
-                norm = math.sqrt(float(val @ val))
-                if norm > 0:
-                    val = val / norm
-                all_idx.extend(idx)
-                all_val.extend(val.tolist())
-            indptr.append(len(all_idx))
-        return SparseRows(
-            np.asarray(indptr, dtype=np.int64),
-            np.asarray(all_idx, dtype=np.int64),
-            np.asarray(all_val, dtype=np.float64),
-            len(self.idf),
-        )
+            found = self._indices(text)
+            lengths.append(len(found))
+            flat.extend(found)
+        rows = np.repeat(np.arange(len(texts), dtype=np.int64), lengths)
+        keys, counts = np.unique(rows * n_cols + np.asarray(flat, dtype=np.int64),
+                                 return_counts=True)
+        row_of, col_of = np.divmod(keys, n_cols) if len(keys) else (keys, keys)
+        tf = counts.astype(np.float64)
+        if self.sublinear_tf:
+            tf = np.log(tf) + 1.0
+        values = tf * self.idf[col_of]
+        norms = np.sqrt(np.bincount(row_of, weights=values * values, minlength=len(texts)))
+        if len(values):
+            values = values / norms[row_of]
+        indptr = np.zeros(len(texts) + 1, dtype=np.int64)
+        np.cumsum(np.bincount(row_of, minlength=len(texts)), out=indptr[1:])
+        return SparseRows(indptr, col_of.astype(np.int64), values, n_cols)
 
 
 def vocabulary_to_bytes(vocabulary: dict[str, int]) -> np.ndarray:

@@ -27,9 +27,12 @@ def test_every_question_ranked_best_first_offsets_point_at_text(ranker, report_t
 
 def test_the_answering_sentence_comes_first_for_clear_cases(ranker, report_text):
     doc = document_from_text(report_text)
-    ranking = ranker.rank(doc, ["1.1", "1.2", "5.1"], top=1)
+    ranking = ranker.rank(doc, ["1.1", "1.2", "4.3", "5.1"], top=2)
     assert "random number generator" in ranking["1.1"][0].text
-    assert "sealed, opaque envelopes" in ranking["1.2"][0].text
+    # 1.2 maps to CONSORT items 9 and 10 (concealment, and who generated/enrolled/assigned)
+    assert any("sealed, opaque envelopes" in s.text for s in ranking["1.2"])
+    assert all(s.section.startswith("methods.randomisation") for s in ranking["1.2"])
+    assert "assessors were masked" in ranking["4.3"][0].text
     assert "registered" in ranking["5.1"][0].text
 
 

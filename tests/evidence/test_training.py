@@ -1,0 +1,38 @@
+"""Training is deterministic and writes plain-data weights with provenance (tiny subset)."""
+
+import numpy as np
+import pytest
+
+from robtui.benchmarks.corpus import default_corpus_dir
+
+CORPUS = default_corpus_dir()
+needs_corpus = pytest.mark.skipif(CORPUS is None, reason="../shared/corpus is not present")
+ONE_SETTING = ({"C": 1.0, "class_weight": None},)
+
+
+@needs_corpus
+def test_rerun_reproduces_identical_weights(tmp_path):
+    from robtui.evidence.model import load_weights
+    from robtui.evidence.ranker import Ranker
+    from robtui.evidence.train import train
+
+    paths = [tmp_path / "a.npz", tmp_path / "b.npz"]
+    for path in paths:
+        train(CORPUS, path, folds=2, articles=4, grid=ONE_SETTING, log=lambda *_: None)
+    a, b = (load_weights(p) for p in paths)
+    assert a.keys == b.keys and len(a.keys) >= 5
+    assert a.word.vocabulary == b.word.vocabulary and a.char.vocabulary == b.char.vocabulary
+    for name in ("lexical", "shared", "question", "intercept", "platt", "generic"):
+        np.testing.assert_array_equal(getattr(a, name), getattr(b, name))
+    assert np.abs(a.lexical).sum() > 0
+    assert a.no_evidence_threshold == b.no_evidence_threshold
+    prov = a.provenance
+    assert len(prov["trained_on"]["articles"]) == 4
+    assert prov["cross_validation"]["folds"] == 2
+    assert prov["settings"]["C"] == 1.0
+    # the trained weights rank a corpus-free invented sentence for its question
+    from robtui.reading.text import document_from_text
+
+    doc = document_from_text("Methods\nThe weather was mild.\n"
+                             "Allocation was concealed in sealed opaque envelopes.\n")
+    assert len(Ranker(a).rank(doc, ["1.2"])["1.2"]) == 3
