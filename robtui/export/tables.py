@@ -100,6 +100,12 @@ def build_outcome_export(
             whose = source if source == "consensus" else f"answers of {record.reviewer}; {source}"
             supporting += _supporting(study.id, whose, record, qset)
     shares, basis = _shares(rows, keys, spec.weights if spec else {})
+    if spec and spec.weights and basis == "studies":
+        unweighted = [r.study_id for r in rows if r.study_id not in spec.weights]
+        problems.append(
+            f"{', '.join(unweighted)}: no meta-analysis weight given, so the summary counts "
+            "studies; add the weights to the result to weight it"
+        )
     overall = {r.study_id: r.judgements[OVERALL] for r in rows}
     grade = suggest_rob_rating(overall, spec.weights if spec and spec.weights else None)
     return OutcomeExport(

@@ -216,3 +216,25 @@ def test_exports_folder_that_is_a_link_out_of_the_review_is_refused(tmp_path):
     os.symlink(elsewhere, root / "exports")
     with pytest.raises(InputError, match="outside the review folder"):
         export_path(root / "exports", "x.md", root)
+
+
+def test_consensus_judgements_are_the_final_ones(folder):
+    _, ex = _export(folder, "md")
+    row = next(r for r in ex.rows if r.study_id == "Trial-003")
+    record = folder.load_consensus("Trial-003", "outcome-1")
+    assert row.source == "consensus"
+    assert row.judgements == {k: record.final[k] for k in row.judgements}
+    answers = [s for s in ex.supporting if s.study_id == "Trial-003"]
+    assert answers and all(s.source == "consensus" for s in answers)
+    assert {s.question_id: s.response for s in answers}["1.1"] == (record.answers["1.1"].response)
+
+
+def test_partial_weights_fall_back_to_counting_with_a_note(tmp_path):
+    f = build_synthetic_review(tmp_path / "r", studies=3, results=2, seed=2, disagreement=0.0)
+    review = f.review.model_copy(deep=True)
+    review.results[1].weights = {"Trial-000": 5.0}
+    f.review = review
+    f.save_review()
+    _, ex = export_outcome(f, QSET, "outcome-2", "md")
+    assert ex.basis == "studies"
+    assert any("no meta-analysis weight" in p for p in ex.problems)
