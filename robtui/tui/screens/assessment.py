@@ -265,9 +265,15 @@ class AssessmentScreen(Screen[None]):
             text.append("\n")
         if s.may_raise_overall() and not s.override(OVERALL):
             text.append(
-                "Several domains have some concerns: you may raise the overall to High (O).",
+                "Several domains have some concerns: you may raise the overall to High (O).\n",
                 style="dim",
             )
+        status = "✓ complete (c reopens)" if s.is_complete else "draft (c marks complete)"
+        text.append(f"Effect of {s.effect} (t)  ·  {status}", style="dim")
+        if s.unsaved_error:
+            text.append(f"\n⚠ not saved: {s.unsaved_error}", style="bold reverse")
+        else:
+            text.append("  ·  every change saved", style="dim")
         self.query_one("#judgement", Static).update(text)
 
     def _refresh_justification(self) -> None:

@@ -175,7 +175,13 @@ class ReportView(OptionList):
             self.add_options(self._all_options[self.option_count :])
         if option_index is not None:
             self.highlighted = option_index
-            self.scroll_to_highlight(top=False)
+            self._centre(option_index)
+
+    def _centre(self, option_index: int) -> None:
+        """Scroll so the sentence sits a third of the way down, with its context above."""
+        line = self._index_to_line.get(option_index)  # OptionList's own line map
+        if line is not None:
+            self.scroll_to(y=max(0, line - self.size.height // 3), animate=False, immediate=True)
 
     def find(self, query: str, *, backwards: bool = False) -> tuple[int, int] | None:
         """Move to the next sentence containing ``query``; (position, count) of matches."""
