@@ -191,6 +191,8 @@ class _Layout:
         self.y -= style.after
 
     def table(self, rows: list[list[str]]) -> None:
+        from reportlab.pdfbase.pdfmetrics import stringWidth
+
         size, leading = 7.2, 9.5
         height = leading * (len(rows) + 1) + 6
         self._need(height)
@@ -206,6 +208,12 @@ class _Layout:
             self.c.setFont(self.fonts["bold" if r == 0 else "regular"], size)
             for i, cell in enumerate(row):
                 cx = x if i == 0 else x + first + (i - 1) * rest
+                room = (first if i == 0 else rest) - 6
+                font = self.fonts["bold" if r == 0 else "regular"]
+                cell_size = size
+                while cell_size > 5 and stringWidth(cell, font, cell_size) > room:
+                    cell_size -= 0.2
+                self.c.setFont(font, cell_size)
                 self.c.drawString(cx, self.y, cell)
             if r == 0:
                 self.c.line(x, self.y - 3, x + width, self.y - 3)
@@ -226,10 +234,14 @@ class _Layout:
 
 def _hyphenate(word: str, fits) -> tuple[str, str]:
     """Split ``word`` at the longest prefix that ``fits`` with a hyphen; ("", word) if none."""
-    if "-" in word[1:-1]:
-        for pos in sorted((i + 1 for i, ch in enumerate(word[:-1]) if ch == "-"), reverse=True):
-            if fits(word[:pos]):
-                return word[:pos], word[pos:]
+    breaks = [
+        i + 1
+        for i in range(1, len(word) - 1)
+        if word[i] == "-" and word[i - 1].isalpha() and word[i + 1].isalpha()
+    ]
+    for pos in reversed(breaks):
+        if fits(word[:pos]):
+            return word[:pos], word[pos:]
     letters = sum(ch.isalpha() for ch in word)
     if len(word) < 8 or letters < len(word) - 1:
         return "", word

@@ -10,7 +10,7 @@ import re
 from dataclasses import dataclass, field
 
 from robtui.reading.document import BlockKind, Sentence
-from robtui.reading.sections import SectionTracker, bare_run_in, run_in_heading
+from robtui.reading.sections import SectionTracker, bare_run_in, match_heading, run_in_heading
 from robtui.reading.sentences import split_sentences
 
 Box = tuple[float, float, float, float]
@@ -70,14 +70,16 @@ class SentenceMaker:
             return
         tracker = self.tracker
         whole = [(0, len(body))]
-        if block.kind == "heading":
+        if not self.sentences and block.kind == "heading" and match_heading(body) is None:
+            self._emit(block, body, whole, "title")  # a title set as a heading
+        elif block.kind == "heading":
             self._emit(block, body, whole, tracker.heading(body))
         elif block.kind == "caption":
             self._emit(block, body, split_sentences(body), tracker.current)
         elif block.kind == "table":
             self._emit(block, body, _row_spans(body), tracker.current)
         elif not self.sentences and len(body.split()) <= 40:
-            # The first line of a report is its title.
+            # The first block of a report is its title.
             self._emit(block, body, whole, "title")
         else:
             self._body(block, body)

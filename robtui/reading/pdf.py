@@ -357,6 +357,11 @@ def _leading(lines: list[Line]) -> float:
     return statistics.median(gaps) if gaps else 12.0
 
 
+def _short_last_line(prev: Line, line: Line) -> bool:
+    """The short last line of a full-width paragraph (it does not reach the page middle)."""
+    return prev.column == "full" and line.column == "left" and abs(line.x0 - prev.x0) < 3
+
+
 def page_blocks(page: PageLines) -> list[PBlock]:
     """Blocks of one page in reading order."""
     ordered = reading_order(page)
@@ -375,8 +380,8 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         new = (
             current is None
             or prev is None
-            or line.column != prev.column
-            or line.top - prev.top > leading * 1.35
+            or (line.column != prev.column and not _short_last_line(prev, line))
+            or line.top - prev.top > 1.35 * max(leading, prev.size * 1.25)
             or line.top < prev.top
             or line.bold != prev.bold
             or line.italic != prev.italic
@@ -419,7 +424,19 @@ def _table_rows(lines: list[Line]) -> list[list[Line]]:
             rows[-1].append(line)
         else:
             rows.append([line])
-    return rows
+    return [_cells(row) for row in rows]
+
+
+def _cells(row: list[Line]) -> list[Line]:
+    """Table cells of a row: words split at gaps wider than a few spaces."""
+    words = sorted((w for line in row for w in line.words), key=lambda w: w.box[0])
+    cells = [[words[0]]]
+    for word in words[1:]:
+        if word.box[0] - cells[-1][-1].box[2] > max(3.5, 0.6 * word.size):
+            cells.append([word])
+        else:
+            cells[-1].append(word)
+    return [_line(cell) for cell in cells]
 
 
 # -- text building -----------------------------------------------------------------------------
@@ -483,10 +500,10 @@ class TextBuilder:
             if next_word[:1].islower():
                 left = re.sub(r"^\W+", "", prev[:-1]).lower()
                 right = re.sub(r"\W+$", "", next_word).lower()
-                if (
-                    f"{left}-{right}" in self.hyphen_words
-                    and f"{left}{right}" not in self.plain_words
-                ):
+                compound = f"{left}-{right}" in self.hyphen_words or (
+                    len(left) >= 4 and left in self.plain_words and right in self.plain_words
+                )
+                if compound and f"{left}{right}" not in self.plain_words:
                     return next_word
                 self.parts[-1] = prev[:-1]
                 self.length -= 1

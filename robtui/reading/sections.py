@@ -61,7 +61,6 @@ TOP_LEVEL: dict[str, str] = {
     "supplementary material": "other",
     "electronic supplementary material": "other",
     "data sharing": "other",
-    "ethics": "other",
 }
 
 # Subheadings inside methods.

@@ -71,6 +71,7 @@ ABBREVIATIONS: frozenset[str] = frozenset(
 _CANDIDATE = re.compile(r"[.?!](?:[\"'”’)\]]*)")
 _CITATION_TAIL = re.compile(r"\d+(?:[,\u2013\-]\d+)*(?=\s)")
 _OPENER = re.compile(r"[\"'“‘(\[]*([A-Z0-9\u0391-\u03a9À-Þ])")
+_LABEL_NUMBER = re.compile(r"\b(?:Table|Figure|Fig|Box|Panel)\s+[A-Z]?\d+[A-Za-z]?$")
 _WORD_BEFORE = re.compile(r"([A-Za-z][A-Za-z.]*)$")
 
 
@@ -114,6 +115,8 @@ def _boundary_after(text: str, match: re.Match[str], end: int) -> int | None:
         return None
     if text[stop] == "." and _is_abbreviation(text, stop, nxt):
         return None
+    if text[stop] == "." and _LABEL_NUMBER.search(text, max(0, stop - 30), stop):
+        return None  # "Table 1. Baseline characteristics"
     return after
 
 
