@@ -99,6 +99,8 @@ def build_outcome_export(
         if record is not None:
             whose = source if source == "consensus" else f"answers of {record.reviewer}; {source}"
             supporting += _supporting(study.id, whose, record, qset)
+    if not review.studies:
+        problems.append("no studies in the review yet: add them with `robtui study add`")
     shares, basis = _shares(rows, keys, spec.weights if spec else {})
     if spec and spec.weights and basis == "studies":
         unweighted = [r.study_id for r in rows if r.study_id not in spec.weights]
