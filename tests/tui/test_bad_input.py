@@ -10,6 +10,7 @@ import pytest
 from robtui.errors import InputError
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench, run_workbench
+from robtui.tui.screens.assessment import AssessmentScreen
 from robtui.tui.screens.dialogs import ListDialog
 from robtui.tui.screens.overview import OverviewScreen
 from robtui.tui.screens.start import ProblemScreen
@@ -17,7 +18,7 @@ from robtui.tui.session import STATUS_UNREADABLE
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import open_selected
+from .helpers import open_selected, settle
 
 REVIEWER = "tess"
 
@@ -108,3 +109,35 @@ async def test_unreadable_assessment_is_reported_never_overwritten(demo_dir):
         await pilot.press("down")
         await open_selected(pilot)
     assert path.read_bytes() == before
+
+
+async def test_a_report_the_reader_cannot_read_is_a_message_not_a_crash(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    garbage = demo_dir / "broken.pdf"
+    garbage.write_bytes(b"%PDF-1.4\nthis is not really a PDF\n")
+    folder.add_study("broken", "Broken file", [garbage])
+    app = Workbench(demo_dir, REVIEWER)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        overview = app.screen
+        keys = [r.study_id for r in overview.rows.values()]
+        overview.query_one("#results").move_cursor(row=keys.index("broken"))
+        screen = await open_selected(pilot)
+        view = screen.query_one("#report", ReportView)
+        assert view.document is None
+        assert "broken.pdf" in str(view.options[0].prompt)
+        await pilot.press("y")
+        await pilot.pause()
+        assert screen.session.response(screen.question_id) == "Y"
+
+
+async def test_leaving_before_the_report_is_read_is_safe(demo_dir):
+    app = Workbench(demo_dir, REVIEWER)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("enter", "enter", "escape")  # open, then straight back
+        await settle(pilot)
+        assert isinstance(app.screen, OverviewScreen)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert isinstance(app.screen, AssessmentScreen)

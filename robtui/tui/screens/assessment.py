@@ -142,15 +142,19 @@ class AssessmentScreen(Screen[None]):
         for report, _problem in reports:
             if worker.is_cancelled:
                 return
-            loaded.append(
-                load_report(
-                    self.session.folder,
-                    report,
-                    self.session.effect,
-                    stage=lambda text: self.app.call_from_thread(self._stage, text),
-                    ranker_factory=self.app.ranker_factory,
+            try:
+                loaded.append(
+                    load_report(
+                        self.session.folder,
+                        report,
+                        self.session.effect,
+                        stage=lambda text: self.app.call_from_thread(self._stage, text),
+                        ranker_factory=self.app.ranker_factory,
+                    )
                 )
-            )
+            except Exception as error:  # noqa: BLE001 - a bad file must not end the session
+                problem = f"{report.path} could not be read ({type(error).__name__}: {error})"
+                loaded.append(LoadedReport(report, problem=problem))
         if not worker.is_cancelled:
             self.app.call_from_thread(self._reports_loaded, loaded)
 
@@ -169,10 +173,14 @@ class AssessmentScreen(Screen[None]):
         self.app.call_from_thread(self._reports_loaded, self.loaded)
 
     def _stage(self, text: str) -> None:
+        if not self.is_mounted:
+            return
         self.query_one("#report-progress").display = True
         self.query_one("#progress-label", Label).update(text)
 
     def _reports_loaded(self, loaded: list[LoadedReport]) -> None:
+        if not self.is_mounted:  # the reviewer left before the report was ready
+            return
         self.loaded = loaded
         self.query_one("#report-progress").display = False
         self.document_index = min(self.document_index, max(len(loaded) - 1, 0))
