@@ -54,7 +54,10 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "s", "domain summary: answers, quotes, judgement"),
     KeyHelp("assessment", "t", "effect of interest (assignment or adhering)"),
     KeyHelp("assessment", "c", "mark complete (lists what is missing) / reopen"),
-    KeyHelp("assessment", "escape", "back to the overview"),
+    KeyHelp("assessment", "d", "next document of the study (when it has several)"),
+    KeyHelp("assessment", "escape", "back to the overview (from a text field: leave the field)"),
+    KeyHelp("comparison", "up/down  r", "choose a result / compare another pair of reviewers"),
+    KeyHelp("comparison", "escape", "back to the overview"),
 )
 
 
