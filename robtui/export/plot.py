@@ -42,7 +42,6 @@ def _save(fig, fmt: str) -> bytes:
         "svg.fonttype": "none",
         "svg.hashsalt": "robtui",
         "pdf.compression": 1,
-        "pdf.fonttype": 42,
     }
     with matplotlib.rc_context(settings):
         extra = {"pil_kwargs": {"compress_level": 1}} if fmt == "png" else {}  # speed over size
