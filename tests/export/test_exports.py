@@ -238,3 +238,22 @@ def test_partial_weights_fall_back_to_counting_with_a_note(tmp_path):
     _, ex = export_outcome(f, QSET, "outcome-2", "md")
     assert ex.basis == "studies"
     assert any("no meta-analysis weight" in p for p in ex.problems)
+
+
+def test_reviewers_who_differ_without_consensus_are_not_judged_and_listed(tmp_path):
+    f = build_synthetic_review(tmp_path / "r", studies=1, results=1, seed=4, disagreement=0.0)
+    b = assessing.reopen(f.load_assessment("ben", "Trial-000", "outcome-1"))
+    a = f.load_assessment("ana", "Trial-000", "outcome-1")
+    b = assessing.set_override(
+        b,
+        QSET,
+        "overall",
+        next(j for j in ("low", "high") if j != a.final["overall"]),
+        "the reviewer reads the trial as a whole differently",
+    )
+    f.save_assessment(assessing.mark_complete(b, QSET))
+    [path], ex = export_outcome(f, QSET, "outcome-1", "md")
+    assert ex.rows[0].source == "not judged"
+    assert all(v is None for v in ex.rows[0].judgements.values())
+    assert "differ and no consensus is complete" in ex.problems[0]
+    assert "differ and no consensus is complete" in path.read_text(encoding="utf-8")
