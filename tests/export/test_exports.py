@@ -244,13 +244,10 @@ def test_reviewers_who_differ_without_consensus_are_not_judged_and_listed(tmp_pa
     f = build_synthetic_review(tmp_path / "r", studies=1, results=1, seed=4, disagreement=0.0)
     b = assessing.reopen(f.load_assessment("ben", "Trial-000", "outcome-1"))
     a = f.load_assessment("ana", "Trial-000", "outcome-1")
-    b = assessing.set_override(
-        b,
-        QSET,
-        "overall",
-        next(j for j in ("low", "high") if j != a.final["overall"]),
-        "the reviewer reads the trial as a whole differently",
-    )
+    # 1.2 = N gives domain 1 High (allocation not concealed); Y differs from that
+    b = assessing.set_response(b, QSET, "1.2", "Y" if a.answers["1.2"].response == "N" else "N")
+    b = answer_everything(b, QSET, lambda q: q.options[0])
+    assert b.final["1"] != a.final["1"]
     f.save_assessment(assessing.mark_complete(b, QSET))
     [path], ex = export_outcome(f, QSET, "outcome-1", "md")
     assert ex.rows[0].source == "not judged"
