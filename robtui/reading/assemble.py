@@ -43,8 +43,8 @@ def looks_like_heading(line: str) -> bool:
     if len(words) > 14:
         return False
     if stripped.endswith(".") and not re.match(r"^\d+(\.\d+)*\.?\s", stripped):
-        # "Study sample." is a heading only when it stands alone on a very short line.
-        return len(words) <= 5 and stripped[0].isupper() and not re.search(r"\d", stripped)
+        # "Study sample." standing alone is a heading; "We used ITT." is not.
+        return run_in_heading(stripped, "methods") is not None
     if not _HEADING_END_OK.search(stripped):
         return False
     first = stripped.lstrip("0123456789.) ")[:1]
@@ -78,7 +78,7 @@ class SentenceMaker:
             self._emit(block, body, split_sentences(body), tracker.current)
         elif block.kind == "table":
             self._emit(block, body, _row_spans(body), tracker.current)
-        elif not self.sentences and len(body.split()) <= 40:
+        elif not self.sentences and len(body.split()) <= 40 and len(split_sentences(body)) == 1:
             # The first block of a report is its title.
             self._emit(block, body, whole, "title")
         else:
@@ -86,13 +86,20 @@ class SentenceMaker:
 
     def _body(self, block: Block, body: str) -> None:
         tracker = self.tracker
+        if tracker.current == "references":
+            self._emit(block, body, whole_span(body), "references")  # one reference, one entry
+            return
         bare = bare_run_in(body.lstrip())
         if bare is not None:
             tracker.run_in(bare)
         spans = split_sentences(body)
         for i, (a, b) in enumerate(spans):
             piece = body[a:b]
-            if i == 0 and len(spans) > 1:
+            # A run-in heading opens a paragraph, or stands after a wide gap inside it (text
+            # exported from layouts sometimes glues a heading to the paragraph before).
+            gap = body[spans[i - 1][1] : a] if i else ""
+            last = i == len(spans) - 1 and i > 0
+            if (i == 0 and len(spans) > 1) or last or "\n" in gap or "   " in gap:
                 label = run_in_heading(piece, tracker.current)
                 if label is not None:
                     tracker.run_in(label)
@@ -132,6 +139,10 @@ def build_sentences(text: str, blocks: list[Block]) -> list[Sentence]:
         if block.end > block.start:
             maker.add(block, text[block.start : block.end])
     return maker.sentences
+
+
+def whole_span(body: str) -> list[tuple[int, int]]:
+    return [(0, len(body))]
 
 
 def _row_spans(body: str) -> list[tuple[int, int]]:

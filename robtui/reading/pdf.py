@@ -513,8 +513,10 @@ class TextBuilder:
         return next_word
 
     def _learn(self, word: str) -> None:
+        if word.endswith("-"):
+            return  # a fragment before a line break, not a word
         clean = re.sub(r"^\W+|\W+$", "", word).lower()
-        if not clean or clean.endswith("-"):
+        if not clean:
             return
         (self.hyphen_words if "-" in clean else self.plain_words).add(clean)
 

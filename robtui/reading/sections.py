@@ -145,11 +145,11 @@ RESULTS_SUB: dict[str, str] = {
 _METHODS_KEYWORDS: tuple[tuple[str, str], ...] = (
     (r"sequence", "methods.randomisation.sequence_generation"),
     (r"conceal", "methods.randomisation.allocation_concealment"),
-    (r"random|allocation", "methods.randomisation"),
+    (r"random|allocation|\bbias\b", "methods.randomisation"),
     (r"blind|mask", "methods.blinding"),
     (r"sample size|power", "methods.sample_size"),
     (r"statistic|analys", "methods.statistical_methods"),
-    (r"outcome|end ?point|assessment|measure", "methods.outcomes"),
+    (r"outcome|end ?point|assessment|measure|efficacy|safety|evaluation", "methods.outcomes"),
     (r"intervention|treatment|procedure|dose|drug", "methods.interventions"),
     (
         r"participant|patient|subject|population|eligib|inclusion|recruit|setting",

@@ -71,7 +71,11 @@ ABBREVIATIONS: frozenset[str] = frozenset(
 _CANDIDATE = re.compile(r"[.?!](?:[\"'”’)\]]*)")
 _CITATION_TAIL = re.compile(r"\d+(?:[,\u2013\-]\d+)*(?=\s)")
 _OPENER = re.compile(r"[\"'“‘(\[]*([A-Z0-9\u0391-\u03a9À-Þ])")
-_LABEL_NUMBER = re.compile(r"\b(?:Table|Figure|Fig|Box|Panel)\s+[A-Z]?\d+[A-Za-z]?$")
+# A caption's label is not a sentence of its own: "Table 1. Baseline characteristics".
+# Nor is a list number: "1. Quellmann R, Abeyta S. ...".
+_CAPTION_LABEL = re.compile(
+    r"\s*(?:(?:Table|Figure|Fig\.?|Box|Panel)\s+[A-Z]?\d+[A-Za-z]?|\[?\d{1,3}\]?|[a-z])\.\s*$"
+)
 _WORD_BEFORE = re.compile(r"([A-Za-z][A-Za-z.]*)$")
 
 
@@ -83,6 +87,8 @@ def split_sentences(text: str, start: int = 0, end: int | None = None) -> list[t
     for match in _CANDIDATE.finditer(text, start, end):
         boundary = _boundary_after(text, match, end)
         if boundary is None or boundary <= cursor:
+            continue
+        if _CAPTION_LABEL.fullmatch(text, cursor, boundary):
             continue
         spans.append((cursor, boundary))
         cursor = boundary
@@ -115,8 +121,6 @@ def _boundary_after(text: str, match: re.Match[str], end: int) -> int | None:
         return None
     if text[stop] == "." and _is_abbreviation(text, stop, nxt):
         return None
-    if text[stop] == "." and _LABEL_NUMBER.search(text, max(0, stop - 30), stop):
-        return None  # "Table 1. Baseline characteristics"
     return after
 
 

@@ -14,7 +14,16 @@ from robtui.errors import ReadingError
 from robtui.reading.assemble import Block, build_sentences, is_caption, looks_like_heading
 from robtui.reading.document import Document
 
-_TABLE_ROW = re.compile(r"\t|\s\|\s|\S {3,}\S.* {3,}\S")
+_CELL_SEPARATOR = re.compile(r"\t|\s\|\s")
+_WIDE_GAP = re.compile(r" {3,}")
+
+
+def _is_table_row(line: str) -> bool:
+    """Cells split by tabs or bars, or by wide gaps between short (non-sentence) cells."""
+    if _CELL_SEPARATOR.search(line):
+        return True
+    cells = [c for c in _WIDE_GAP.split(line.strip()) if c]
+    return len(cells) >= 3 and max(len(c) for c in cells) <= 40
 
 
 def _lines(text: str) -> list[tuple[int, int]]:
@@ -60,7 +69,7 @@ def blocks_from_text(text: str) -> list[Block]:
         body = text[start:end]
         if is_caption(body):
             kind = "caption"
-        elif _TABLE_ROW.search(body) and len(group) == 1 and not body.rstrip().endswith("."):
+        elif len(group) == 1 and _is_table_row(body) and not body.rstrip().endswith("."):
             kind = "table"
         elif len(group) == 1 and i + 1 < len(groups) and looks_like_heading(body):
             kind = "heading"

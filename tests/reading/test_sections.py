@@ -1,0 +1,123 @@
+"""Heading mapping onto the CONSORT 2010 canonical sections, and section tracking."""
+
+from __future__ import annotations
+
+import pytest
+
+from robtui.reading.document import SECTION_LABELS
+from robtui.reading.sections import SectionTracker, match_heading, normalise_heading
+from robtui.reading.text import document_from_text
+
+
+@pytest.mark.parametrize(
+    ("title", "current", "expected"),
+    [
+        ("Methods", "introduction", "methods"),
+        ("Patients and methods", "introduction", "methods"),
+        ("MATERIALS AND METHODS", "introduction", "methods"),
+        ("2. Methods", "introduction", "methods"),
+        ("Masking", "methods", "methods.blinding"),
+        ("Statistical analysis", "methods", "methods.statistical_methods"),
+        ("Statistical analyses", "methods", "methods.statistical_methods"),
+        ("Statistical Analysis.", "methods", "methods.statistical_methods"),
+        ("Randomization", "methods", "methods.randomisation"),
+        ("Allocation concealment", "methods", "methods.randomisation.allocation_concealment"),
+        ("Sequence generation", "methods", "methods.randomisation.sequence_generation"),
+        ("Sample size calculation", "methods", "methods.sample_size"),
+        ("Outcomes", "methods", "methods.outcomes"),
+        ("Outcomes", "results", "results.outcomes"),
+        ("Adverse events", "results", "results.harms"),
+        ("Participant flow", "results", "results.participant_flow"),
+        ("Baseline characteristics", "results", "results.baseline_data"),
+        ("Role of the funding source", "discussion", "funding"),
+        ("Trial registration", "discussion", "registration"),
+        ("References", "discussion", "references"),
+        ("Blinding of outcome assessors", "methods", "methods.blinding"),
+        ("New ulcers at week 12", "results", None),
+    ],
+)
+def test_heading_mapping(title: str, current: str, expected: str | None) -> None:
+    assert match_heading(title, current) == expected
+
+
+def test_fuzzy_match_catches_misspelt_headings() -> None:
+    # Not in the vocabulary verbatim; rapidfuzz ratio against "statistical methods".
+    assert match_heading("Statistcal methods", "methods") == "methods.statistical_methods"
+    assert match_heading("Particpants", "methods") == "methods.participants"
+
+
+def test_every_label_returned_is_canonical() -> None:
+    titles = ["Masking", "Trial design", "Interventions", "Harms", "Funding", "Protocol"]
+    for where in ("methods", "results", "front"):
+        for title in titles:
+            label = match_heading(title, where)
+            assert label is None or label in SECTION_LABELS
+
+
+def test_normalise_heading_drops_numbering_and_spelling_variants() -> None:
+    assert normalise_heading("2.3 Randomization & Masking:") == "randomisation and masking"
+
+
+def test_structured_abstract_subheadings_stay_in_the_abstract() -> None:
+    tracker = SectionTracker()
+    assert tracker.heading("Abstract") == "abstract"
+    assert tracker.heading("Methods") == "abstract"
+    assert tracker.heading("Results") == "abstract"
+    assert tracker.heading("Introduction") == "introduction"
+    assert tracker.heading("Methods") == "methods"
+
+
+def test_abstract_ends_when_a_subheading_repeats() -> None:
+    tracker = SectionTracker()
+    tracker.heading("Abstract")
+    tracker.heading("Background")
+    tracker.heading("Methods")
+    assert tracker.heading("Background") == "introduction"
+
+
+REPORT = """A fictional trial of something
+
+Abstract
+Background: We tested a thing.
+
+Introduction
+People suffer. We wanted to know.
+
+Patients and methods
+Randomisation and masking. Patients were randomly assigned by a central web system. The list was made by a statistician.
+Allocation concealment. Envelopes were opaque and sealed.
+Participants and outcome assessors were masked.
+
+Statistical analysis
+We used intention to treat.
+
+Results
+Of 40 randomised, 38 were analysed.
+
+Funding This study was funded by the Imaginary Trust.
+"""
+
+
+def test_run_in_headings_open_their_section() -> None:
+    doc = document_from_text(REPORT)
+    by_text = {s.text: s for s in doc.sentences}
+    run_in = by_text["Randomisation and masking."]
+    assert run_in.block == "heading"
+    assert run_in.section == "methods.randomisation"
+    assert by_text["Patients were randomly assigned by a central web system."].section == (
+        "methods.randomisation"
+    )
+    assert by_text["Envelopes were opaque and sealed."].section == (
+        "methods.randomisation.allocation_concealment"
+    )
+    assert by_text["We used intention to treat."].section == "methods.statistical_methods"
+    assert by_text["Of 40 randomised, 38 were analysed."].section == "results"
+    assert by_text["Funding This study was funded by the Imaginary Trust."].section == "funding"
+
+
+def test_title_and_abstract_sections() -> None:
+    doc = document_from_text(REPORT)
+    assert doc.sentences[0].text == "A fictional trial of something"
+    assert doc.sentences[0].section == "title"
+    assert next(s for s in doc.sentences if s.text.startswith("Background:")).section == "abstract"
+    assert next(s for s in doc.sentences if s.text == "People suffer.").section == "introduction"
