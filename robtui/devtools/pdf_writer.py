@@ -287,7 +287,9 @@ def blocks_from_lines(text: str, full_width_lines: int = 0) -> list[PdfBlock]:
     lines = [line.strip() for line in text.splitlines() if line.strip()]
     blocks = []
     for i, line in enumerate(lines):
-        if is_caption(line):
+        if i == 0 and full_width_lines:
+            kind = "title"
+        elif is_caption(line):
             kind = "caption"
         elif looks_like_heading(line) and i + 1 < len(lines):
             kind = "heading"

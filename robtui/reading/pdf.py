@@ -297,13 +297,25 @@ def running_signatures(pages: list[PageLines]) -> set[str]:
 
 
 def strip_running(page: PageLines, running: set[str]) -> PageLines:
+    """The page without running heads, page numbers and small print above the text.
+
+    Small print in the top margin (smaller than the body text) is dropped even when it does
+    not repeat, so one- and two-page documents lose their running head too; small print at
+    the bottom is kept, since footnotes there may name funding or registration.
+    """
+    body_size = _body_size(page.lines)
+    top_zone = page.height * MARGIN_SHARE
     margin = {id(ln) for ln in _margin_lines(page)}
-    kept = [
-        ln
-        for ln in page.lines
-        if id(ln) not in margin
-        or not (_signature(ln) in running or _PAGE_NUMBER.match(_signature(ln)))
-    ]
+
+    def running_line(ln: Line) -> bool:
+        if id(ln) not in margin:
+            return False
+        signature = _signature(ln)
+        if signature in running or _PAGE_NUMBER.match(signature):
+            return True
+        return ln.bottom <= top_zone and ln.size < body_size - 0.8
+
+    kept = [ln for ln in page.lines if not running_line(ln)]
     return PageLines(page.number, page.width, page.height, kept, page.tables)
 
 
@@ -357,9 +369,15 @@ def _leading(lines: list[Line]) -> float:
     return statistics.median(gaps) if gaps else 12.0
 
 
-def _short_last_line(prev: Line, line: Line) -> bool:
+def _short_last_line(prev: Line, line: Line, width: float) -> bool:
     """The short last line of a full-width paragraph (it does not reach the page middle)."""
-    return prev.column == "full" and line.column == "left" and abs(line.x0 - prev.x0) < 3
+    return (
+        prev.column == "full"
+        and line.column == "left"
+        and abs(line.x0 - prev.x0) < 3
+        and prev.x1 > width * 0.75
+        and abs(line.size - prev.size) < 0.3
+    )
 
 
 def page_blocks(page: PageLines) -> list[PBlock]:
@@ -380,7 +398,7 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         new = (
             current is None
             or prev is None
-            or (line.column != prev.column and not _short_last_line(prev, line))
+            or (line.column != prev.column and not _short_last_line(prev, line, page.width))
             or line.top - prev.top > 1.35 * max(leading, prev.size * 1.25)
             or line.top < prev.top
             or line.bold != prev.bold
