@@ -13,6 +13,9 @@ computed by the algorithm.
 
 from __future__ import annotations
 
+import os
+import shutil
+import tempfile
 import tomllib
 from collections.abc import Mapping
 from pathlib import Path
@@ -30,6 +33,8 @@ DEMO_SCHEMA = 1
 _TOP_KEYS = {"schema_version", "title", "lead", "reviewers", "study", "result", "assessment"}
 _BLOCK_KEYS = {"study", "results", "answers", "reviewer", "override"}
 _ANSWER_KEYS = {"code", "why", "quote", "quotes"}
+# Quotes from the PDF when the passage is found there (they then carry a page number).
+QUOTE_ORDER = (".pdf", ".txt")
 _OVERRIDE_KEYS = {"reviewer", "key", "judgement", "reason"}
 
 
@@ -46,12 +51,21 @@ def build_demo_review(dest: Path, *, source: Path | None = None) -> ReviewFolder
         raise InputError(f"{dest} is not empty: give a new or empty folder for the demo")
     spec_path = source / DEMO_FILE
     data = _read_spec(spec_path)
+    # Built beside the destination and moved in whole, so a failure leaves nothing half-made.
+    dest.parent.mkdir(parents=True, exist_ok=True)
+    work = Path(tempfile.mkdtemp(prefix=f".{dest.name}.", dir=dest.parent))
     try:
-        return _build(dest, source, data, spec_path)
+        _build(work / "review", source, data, spec_path)
+        if dest.exists():
+            dest.rmdir()  # empty, checked above
+        os.replace(work / "review", dest)
     except RobtuiError as error:
         if isinstance(error, DataFileError):
             raise
         raise DataFileError(f"{spec_path}: {error}") from None
+    finally:
+        shutil.rmtree(work, ignore_errors=True)
+    return ReviewFolder.open(dest)
 
 
 def _read_spec(path: Path) -> dict:
@@ -75,7 +89,7 @@ def _keys(table: Mapping, allowed: set[str], path: Path, entry: str) -> None:
         raise DataFileError(f"{path}: {entry}: unknown key {unknown[0]!r}")
 
 
-def _build(dest: Path, source: Path, data: dict, path: Path) -> ReviewFolder:
+def _build(dest: Path, source: Path, data: dict, path: Path) -> None:
     qset = builtin_question_set()
     folder = ReviewFolder.create(
         dest, data["title"], lead=data.get("lead"), reviewers=data.get("reviewers", [])
@@ -91,7 +105,6 @@ def _build(dest: Path, source: Path, data: dict, path: Path) -> ReviewFolder:
                 layers = _layers(data.get("assessment", []), study.id, result.id, reviewer, path)
                 a = _assess(folder, qset, reviewer, study.id, result.id, layers)
                 folder.save_assessment(a)
-    return folder
 
 
 def _layers(blocks: list, study_id: str, result_id: str, reviewer: str, path: Path):
@@ -134,7 +147,8 @@ def _assess(folder, qset: QuestionSet, reviewer, study_id, result_id, layers):
             a = assessing.set_justification(a, qset, qid, answer.get("why", ""))
             texts = answer.get("quotes", []) + ([answer["quote"]] if "quote" in answer else [])
             for text in texts:
-                a = assessing.add_quote(a, qset, qid, find_quote(folder, study_id, text))
+                quote = find_quote(folder, study_id, text, prefer=QUOTE_ORDER)
+                a = assessing.add_quote(a, qset, qid, quote)
         for o in overrides:
             a = assessing.set_override(a, qset, o["key"], o["judgement"], o["reason"])
         a = assessing.mark_complete(a, qset)

@@ -10,7 +10,7 @@ from robtui.cli import main
 from robtui.core import assessing
 from robtui.core.questions import builtin_question_set
 from robtui.errors import DataFileError, InputError
-from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir
+from robtui.store.demo import DEMO_FILE, build_demo_review
 from robtui.store.quotes import report_document
 
 QSET = builtin_question_set()
@@ -150,10 +150,14 @@ def test_demo_command_copy_to(tmp_path: Path, capsys, monkeypatch, tiny_source: 
     assert "not empty" in capsys.readouterr().err
 
 
-BUNDLED = demo_source_dir() / DEMO_FILE
+def test_failed_build_leaves_nothing(tiny_source: Path, tmp_path: Path):
+    spec = tiny_source / DEMO_FILE
+    spec.write_text(TINY_SPEC.replace('"5.3" = { code = "N", why = "one analysis" }', ""), "utf-8")
+    with pytest.raises(DataFileError, match="not answered: 5.3"):
+        build_demo_review(tmp_path / "demo", source=tiny_source)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["samples"]
 
 
-@pytest.mark.skipif(not BUNDLED.is_file(), reason="bundled demo description not written yet")
 def test_bundled_demo_builds_and_validates(tmp_path: Path):
     folder = build_demo_review(tmp_path / "demo")
     check_demo(folder)
