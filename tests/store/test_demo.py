@@ -178,3 +178,22 @@ def test_bundled_demo_builds_and_validates(tmp_path: Path):
     assert 3 <= differing <= 40, differing
     quotes = [q for a in folder.assessments()[0] for ans in a.answers.values() for q in ans.quotes]
     assert len(quotes) >= 30
+
+
+def test_plain_demo_builds_fresh_folder_and_opens_workbench(tmp_path, capsys, monkeypatch):
+    import robtui.tui.app
+
+    calls = []
+    monkeypatch.setattr("platformdirs.user_data_dir", lambda app: str(tmp_path / "data" / app))
+    monkeypatch.setattr(
+        robtui.tui.app,
+        "run_workbench",
+        lambda folder, reviewer=None: calls.append((folder, reviewer)) or 0,
+    )
+    assert main(["demo", "--reviewer", "tobias"]) == 0
+    out = capsys.readouterr().out
+    [(folder, reviewer)] = calls
+    assert reviewer == "tobias"
+    assert folder.parent == tmp_path / "data" / "robtui" / "demo"
+    assert f"demo review built in {folder}" in out
+    assert (folder / "review.toml").is_file()
