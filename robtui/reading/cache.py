@@ -6,6 +6,8 @@ it) is always safe: the next read parses the file again. A damaged entry is igno
 
 from __future__ import annotations
 
+import functools
+import hashlib
 import os
 from pathlib import Path
 
@@ -19,6 +21,15 @@ CACHE_ENV = "ROBTUI_CACHE_DIR"
 READER_VERSION = 1
 
 
+@functools.cache
+def reader_fingerprint() -> str:
+    """A digest of the reading code itself: any change to a reader retires old entries."""
+    digest = hashlib.sha256(str(READER_VERSION).encode())
+    for source in sorted(Path(__file__).resolve().parent.glob("*.py")):
+        digest.update(source.read_bytes())
+    return digest.hexdigest()[:12]
+
+
 def cache_dir() -> Path:
     """``$ROBTUI_CACHE_DIR`` or the platform's user cache folder for robtui."""
     env = os.environ.get(CACHE_ENV)
@@ -30,7 +41,7 @@ def cache_dir() -> Path:
 
 
 def _entry(sha256: str, kind: str) -> Path:
-    return cache_dir() / f"{sha256}-{kind}-r{READER_VERSION}-s{DOCUMENT_SCHEMA_VERSION}.json"
+    return cache_dir() / f"{sha256}-{kind}-{reader_fingerprint()}-s{DOCUMENT_SCHEMA_VERSION}.json"
 
 
 def load_cached(sha256: str, kind: str, path: str) -> Document | None:

@@ -627,6 +627,7 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     count = 0
     images = 0
     found_text = False
+    textless: list[int] = []
     try:
         with pdfplumber.open(path) as pdf:
             for number, page in enumerate(pdf.pages, start=1):
@@ -634,7 +635,10 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
                 images += page_images
                 page.close()
                 count = number
-                found_text = found_text or bool(lines.lines or lines.tables)
+                if lines.lines or lines.tables:
+                    found_text = True
+                else:
+                    textless.append(number)
                 if running is None:
                     buffered.append(lines)
                     if len(buffered) < RUNNING_SAMPLE:
@@ -664,6 +668,19 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     flow.close()
     text = builder.text
     sentences = builder.maker.sentences
+    warnings = []
+    if textless:
+        listed = ", ".join(str(n) for n in textless[:10]) + (", ..." if len(textless) > 10 else "")
+        warnings.append(
+            f"{len(textless)} page(s) without a text layer (pages {listed}); if they are scans, "
+            "their content is missing until the PDF is run through OCR"
+        )
     return Document(
-        path=str(path), sha256=digest, kind="pdf", text=text, sentences=sentences, pages=count
+        path=str(path),
+        sha256=digest,
+        kind="pdf",
+        text=text,
+        sentences=sentences,
+        pages=count,
+        warnings=warnings,
     )

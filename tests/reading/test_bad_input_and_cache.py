@@ -165,3 +165,20 @@ def test_cli_read_bad_file_exits_2_with_a_message(tmp_path, capsys) -> None:
     assert cli_main(["read", str(path)]) == 2
     err = capsys.readouterr().err
     assert err.startswith("robtui: ") and "empty" in err
+
+
+def test_pdf_with_some_scanned_pages_warns(tmp_path) -> None:
+    from PIL import Image
+    from reportlab.lib.utils import ImageReader
+    from reportlab.pdfgen.canvas import Canvas
+
+    path = tmp_path / "mixed.pdf"
+    canvas = Canvas(str(path))
+    canvas.drawString(72, 720, "Participants were randomised by a central office.")
+    canvas.showPage()
+    canvas.drawImage(ImageReader(Image.new("RGB", (20, 20))), 72, 400, width=200, height=200)
+    canvas.showPage()
+    canvas.save()
+    doc = read_document(path)
+    assert doc.sentences[0].text == "Participants were randomised by a central office."
+    assert any("pages 2" in w and "OCR" in w for w in doc.warnings)
