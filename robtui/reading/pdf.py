@@ -514,9 +514,10 @@ class TextBuilder:
     def _join_point(self, next_word: str) -> str:
         """Join a line to the previous one: drop a line-end hyphen or add a space."""
         prev = self.parts[-1] if self.parts else ""
-        if len(prev) >= 3 and prev.endswith("-") and prev[-2].isalpha():
-            if next_word[:1].islower():
-                left = re.sub(r"^\W+", "", prev[:-1]).lower()
+        if len(prev) >= 2 and prev.endswith("-") and prev[-2].isalnum():
+            fragment = re.sub(r"^\W+", "", prev[:-1])
+            if next_word[:1].islower() and not (fragment.isupper() or fragment.isdigit()):
+                left = fragment.lower()
                 right = re.sub(r"\W+$", "", next_word).lower()
                 compound = f"{left}-{right}" in self.hyphen_words or (
                     len(left) >= 4 and left in self.plain_words and right in self.plain_words

@@ -70,7 +70,9 @@ ABBREVIATIONS: frozenset[str] = frozenset(
 
 _CANDIDATE = re.compile(r"[.?!](?:[\"'”’)\]]*)")
 _CITATION_TAIL = re.compile(r"\d+(?:[,\u2013\-]\d+)*(?=\s)")
-_OPENER = re.compile(r"[\"'“‘(\[]*([A-Z0-9\u0391-\u03a9À-Þ])")
+# What may open a sentence: a capital or digit (after quotes or brackets), a footnote mark, or
+# a lower-case name with capitals or digits in it ("sPLA2 was", "hs-CRP rose", "mRNA levels").
+_OPENER = re.compile(r"[\"'“‘(\[]*(?:[A-Z0-9\u0391-\u03a9À-Þ*†‡§¶]|[a-z]{1,4}-?[A-Z0-9])")
 # A caption's label is not a sentence of its own: "Table 1. Baseline characteristics".
 # Nor is a list number: "1. Quellmann R, Abeyta S. ...".
 _CAPTION_LABEL = re.compile(

@@ -56,6 +56,15 @@ def sentences(text: str) -> list[str]:
         ),
         ("Was it blinded? Yes! It was.", ["Was it blinded?", "Yes!", "It was."]),
         ("Statistical analysis", ["Statistical analysis"]),
+        (
+            "It fell by 16%. sPLA2-IIA was reduced. hs-CRP rose.",
+            ["It fell by 16%.", "sPLA2-IIA was reduced.", "hs-CRP rose."],
+        ),
+        (
+            "Values were low. *p<0.0001 versus placebo.",
+            ["Values were low.", "*p<0.0001 versus placebo."],
+        ),
+        ("We measured e.g. mRNA levels. Done.", ["We measured e.g. mRNA levels.", "Done."]),
         ('He said "it worked." Then left.', ['He said "it worked."', "Then left."]),
     ],
 )
