@@ -63,7 +63,10 @@ class Workbench(App[int]):
         if self.reviewer:
             self._start(self.reviewer)
         else:
-            listed = list(self.folder.review.reviewers)
+            review = self.folder.review
+            listed = list(review.reviewers)
+            if review.lead and review.lead not in listed:
+                listed.append(review.lead)
             self.push_screen(ReviewerScreen(self.folder.review.title, listed), self._start)
 
     def _start(self, reviewer: str | None) -> None:

@@ -32,3 +32,10 @@ def badge(code: str | None, *, short: bool = False) -> Text:
     sw = swatch(key)
     words = SHORT_LABELS[key] if short else LABELS[key]
     return Text(f" {sw.letter} {words} ", style=f"{sw.ink} on {sw.fill}")
+
+
+def cell_badge(code: str | None) -> Text:
+    """A compact badge for table cells: letter and short label, e.g. 'S Some'."""
+    key = code if code in LABELS else "incomplete"
+    sw = swatch(key)
+    return Text(f"{sw.letter} {SHORT_LABELS[key]}", style=f"{sw.ink} on {sw.fill}")

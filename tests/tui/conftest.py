@@ -16,16 +16,6 @@ SIZE = (140, 42)  # fixed terminal size for every Pilot run and snapshot
 def _demo_template(tmp_path_factory) -> Path:
     """Built once per test session; each test copies it (building reads the sample reports)."""
     root = tmp_path_factory.mktemp("demo-template") / "review"
-    import os
-
-    if os.environ.get("TDEV"):  # TEMPORARY until the demo's sample reports land
-        import shutil
-        import subprocess
-        import sys
-
-        subprocess.run([sys.executable, "/tmp/tdev/make.py"], check=True, capture_output=True)
-        shutil.copytree("/tmp/tdev/review", root)
-        return root
     build_demo_review(root)
     return root
 

@@ -61,8 +61,8 @@ async def test_a_reviewer_sees_only_their_own_work(demo_dir, spy):
             assert dict(row.final) == dict(by_key[key].final if key in by_key else {})
             differing += dict(other_a.final) != dict(row.final)
         assert differing, "the demo has results where the two reviewers differ"
-        # open each result: still only my own files are read
-        for _ in range(len(overview.rows)):
+        # open results (the first few, to keep the suite quick): still only my own files
+        for _ in range(3):
             await pilot.press("enter")
             await settle(pilot)
             await pilot.press("escape")

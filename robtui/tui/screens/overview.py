@@ -14,7 +14,7 @@ from textual.widgets import DataTable, Static
 from textual.widgets.data_table import CellDoesNotExist
 
 from robtui.core.model import OVERALL
-from robtui.tui.palette import badge
+from robtui.tui.palette import cell_badge
 from robtui.tui.session import (
     STATUS_COMPLETE,
     STATUS_FILTERS,
@@ -31,6 +31,11 @@ STATUS_TEXT = {
     STATUS_COMPLETE: Text("✓ complete", style="bold"),
     STATUS_UNREADABLE: Text("⚠ unreadable", style="bold reverse"),
 }
+
+
+def _short(text: str, width: int) -> str:
+    """Cut to ``width`` characters with an ellipsis (the detail line below has it in full)."""
+    return text if len(text) <= width else text[: width - 1] + "…"
 
 
 class OverviewScreen(Screen[None]):
@@ -66,7 +71,7 @@ class OverviewScreen(Screen[None]):
 
     def on_mount(self) -> None:
         table = self.query_one("#results", DataTable)
-        table.add_columns("Study", "Result", "Effect", "Status", "Answered")
+        table.add_columns("Study", "Result", "Effect", "Progress")
         for domain_id in self.session.qset.domain_ids():
             table.add_column(f"D{domain_id}", key=f"d{domain_id}")
         table.add_column("Overall", key="overall")
@@ -100,6 +105,13 @@ class OverviewScreen(Screen[None]):
         self.query_one("#overview-filter", Static).update(line)
         self._show_detail()
 
+    @staticmethod
+    def _progress(row: ResultRow) -> Text:
+        text = STATUS_TEXT.get(row.status, Text(row.status)).copy()
+        if row.asked:
+            text.append(f" {row.answered}/{row.asked}", style="")
+        return text
+
     def _passes(self, row: ResultRow, name: str | None = None) -> bool:
         name = name or self.filter
         if name == "all":
@@ -110,16 +122,13 @@ class OverviewScreen(Screen[None]):
 
     def _cells(self, row: ResultRow) -> list:
         cells: list = [
-            Text(row.study_label),
-            Text(row.result_label),
+            Text(_short(row.study_label, 24)),
+            Text(_short(row.result_label, 28)),
             row.effect,
-            STATUS_TEXT.get(row.status, Text(row.status)),
-            f"{row.answered}/{row.asked}" if row.asked else "—",
+            self._progress(row),
         ]
         for key in [*self.session.qset.domain_ids(), OVERALL]:
-            cells.append(
-                badge(row.final.get(key), short=True) if row.final else Text("—", style="dim")
-            )
+            cells.append(cell_badge(row.final.get(key)) if row.final else Text("—", style="dim"))
         cells.append(Text("⚠ " + row.problems[0][:40], style="bold") if row.problems else "")
         return cells
 
