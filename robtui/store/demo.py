@@ -30,7 +30,9 @@ from robtui.store.review_folder import ReviewFolder
 
 DEMO_FILE = Path("demo") / "demo_review.toml"
 DEMO_SCHEMA = 1
-_TOP_KEYS = {"schema_version", "title", "lead", "reviewers", "study", "result", "assessment"}
+_TOP_KEYS = {
+    "schema_version", "title", "lead", "reviewers", "assessed_at", "study", "result", "assessment",
+}  # fmt: skip
 _BLOCK_KEYS = {"study", "results", "answers", "reviewer", "override"}
 _ANSWER_KEYS = {"code", "why", "quote", "quotes"}
 # Quotes from the PDF when the passage is found there (they then carry a page number).
@@ -104,6 +106,10 @@ def _build(dest: Path, source: Path, data: dict, path: Path) -> None:
             for result in folder.review.results:
                 layers = _layers(data.get("assessment", []), study.id, result.id, reviewer, path)
                 a = _assess(folder, qset, reviewer, study.id, result.id, layers)
+                if "assessed_at" in data:  # fixed times: the same demo every time it is built
+                    a = a.model_copy(
+                        update={"created": data["assessed_at"], "updated": data["assessed_at"]}
+                    )
                 folder.save_assessment(a)
 
 

@@ -150,6 +150,15 @@ def test_demo_command_copy_to(tmp_path: Path, capsys, monkeypatch, tiny_source: 
     assert "not empty" in capsys.readouterr().err
 
 
+def test_same_demo_every_build(tmp_path: Path):
+    one = build_demo_review(tmp_path / "one")
+    two = build_demo_review(tmp_path / "two")
+    files = sorted(p.relative_to(one.root) for p in one.root.rglob("*") if p.is_file())
+    assert files == sorted(p.relative_to(two.root) for p in two.root.rglob("*") if p.is_file())
+    for rel in files:
+        assert (one.root / rel).read_bytes() == (two.root / rel).read_bytes(), rel
+
+
 def test_failed_build_leaves_nothing(tiny_source: Path, tmp_path: Path):
     spec = tiny_source / DEMO_FILE
     spec.write_text(TINY_SPEC.replace('"5.3" = { code = "N", why = "one analysis" }', ""), "utf-8")
