@@ -226,3 +226,27 @@ def test_study_list_reports_changed_file(review: Path, capsys):
     (review / "reports" / "Balm2020" / "balm.txt").write_text("edited", encoding="utf-8")
     code, out, _ = robtui(capsys, "study", "list", review)
     assert code == 1 and "changed since it was added" in out
+
+
+def test_clear_effect_reopen_and_remove_quote(review: Path, capsys):
+    path = review / "assessments" / "ana" / "Balm2020--itch4.json"
+    quote = "Sealed opaque envelopes were opened only after enrolment."
+    assert assess(capsys, review, *LOW, "--quote", f"1.2={quote}")[0] == 0
+    code, out, _ = assess(capsys, review, "--effect", "adhering", "--json")
+    data = json.loads(out)
+    assert code == 0 and data["effect"] == "adhering"
+    assert data["answers"]["assignment:2.6"]["response"] == "Y" and "2.6" not in data["answers"]
+    assert data["proposed"]["2"] == "incomplete"
+    assert json.loads(path.read_text("utf-8")) == data
+    assert assess(capsys, review, "--effect", "assignment")[0] == 0
+    code, out, _ = assess(capsys, review, "1.3=")  # clears the answer
+    assert code == 0 and "domain 1: not answered: 1.3" in out
+    assert json.loads(path.read_text("utf-8"))["answers"]["1.3"]["response"] is None
+    assert assess(capsys, review, "1.3=N", "--complete")[0] == 0
+    code, _, err = assess(capsys, review, "1.1=PY")
+    assert code == 2 and "reopen it first" in err
+    code, out, _ = assess(capsys, review, "--reopen", "--remove-quote", "1.2=1")
+    data = json.loads(path.read_text("utf-8"))
+    assert code == 0 and data["status"] == "draft" and data["answers"]["1.2"]["quotes"] == []
+    code, _, err = assess(capsys, review, "--remove-quote", "1.2=1")
+    assert code == 2 and "no quote number 1" in err
