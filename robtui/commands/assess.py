@@ -136,7 +136,9 @@ def apply_changes(a, qset, folder, args):
             "every override needs its own reason"
         )
     for (key, judgement), reason in zip(overrides, args.reason):
-        a = assessing.set_override(a, qset, key, judgement.strip().lower(), reason)
+        a = assessing.set_override(
+            a, qset, key, judgement.strip().lower().replace(" ", "_").replace("-", "_"), reason
+        )
     if args.complete:
         a = assessing.mark_complete(a, qset)
     return a
