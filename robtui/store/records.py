@@ -115,26 +115,37 @@ def _read_text(path: Path) -> str:
         raise DataFileError(f"{path}: cannot be read ({error.strerror})") from None
 
 
-def read_json_record(model: type[M], path: Path) -> M:
-    """Read and validate a JSON record file."""
+def _json_problem(error: json.JSONDecodeError) -> str:
+    return f"not valid JSON ({error.msg} at line {error.lineno}, column {error.colno})"
+
+
+def _toml_problem(error: tomllib.TOMLDecodeError) -> str:
+    return f"not valid TOML ({error})"
+
+
+_FORMATS = {
+    "json": (json.loads, json.JSONDecodeError, _json_problem),
+    "toml": (tomllib.loads, tomllib.TOMLDecodeError, _toml_problem),
+}
+
+
+def _read_record(model: type[M], path: Path, kind: str) -> M:
+    parse, decode_error, describe = _FORMATS[kind]
     text = _read_text(path)
     try:
-        data = json.loads(text)
-    except json.JSONDecodeError as error:
+        data = parse(text)
+    except decode_error as error:
         raise DataFileError(
-            f"{path}: not valid JSON ({error.msg} at line {error.lineno}, column {error.colno}): "
-            "fix the file by hand or restore it from git"
+            f"{path}: {describe(error)}: fix the file by hand or restore it from git"
         ) from None
     return parse_record(model, data, path)
+
+
+def read_json_record(model: type[M], path: Path) -> M:
+    """Read and validate a JSON record file."""
+    return _read_record(model, path, "json")
 
 
 def read_toml_record(model: type[M], path: Path) -> M:
     """Read and validate a TOML record file."""
-    text = _read_text(path)
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as error:
-        raise DataFileError(
-            f"{path}: not valid TOML ({error}): fix the file by hand or restore it from git"
-        ) from None
-    return parse_record(model, data, path)
+    return _read_record(model, path, "toml")
