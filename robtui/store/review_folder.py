@@ -444,11 +444,6 @@ def _check_names(path: Path, record, reviewer: str | None = None) -> None:
 
 
 def _question_set_version(set_id: str) -> str:
-    try:
-        from robtui.core.questions import builtin_question_set
-    except ImportError:  # question sets not installed in this checkout yet
-        return "1"
-    try:
-        return builtin_question_set(set_id).version
-    except (KeyError, ValueError, FileNotFoundError) as error:
-        raise InputError(f"unknown question set {set_id!r}: {error}") from None
+    from robtui.core.questions import builtin_question_set
+
+    return builtin_question_set(set_id).version  # InputError names the sets available

@@ -257,3 +257,9 @@ def test_add_report_to_existing_study(folder: ReviewFolder, tmp_path: Path):
     report = folder.add_report("S1", protocol, kind="protocol")
     assert report.kind == "protocol"
     assert ReviewFolder.open(folder.root).review.study("S1").reports[-1] == report
+
+
+def test_unknown_question_set_refused(tmp_path: Path):
+    with pytest.raises(InputError, match="no bundled question set named 'rob9'"):
+        ReviewFolder.create(tmp_path / "r", "T", question_set="rob9")
+    assert not (tmp_path / "r").exists()
