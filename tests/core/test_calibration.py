@@ -92,7 +92,7 @@ def test_scripted_calibration_before_and_after(calibrated):
     assert {(c.response_a, c.response_b) for c in q45.cases} == {(NOT_ASKED, "PN")}
 
     # after the rule, domain 4 and overall agree fully
-    assert after.domains["4"].percent_agreement == 100.0
+    assert after.domains["4"].percent_agreement == pytest.approx(100.0)
     assert after.domains["overall"].kappa == pytest.approx(1.0)
     assert before.domains["4"].kappa < after.domains["4"].kappa
     assert [d.question_id for d in after.ranked] == ["1.2"]  # only the PY/Y difference is left
@@ -138,8 +138,10 @@ def test_before_after_rows(calibrated):
     after = round_agreement(load_round(folder.root, 2).pairs, QSET)
     rows = {(c.kind, c.key): c for c in compare_agreement(before, after)}
     d4 = rows[("domain", "4")]
-    assert d4.before.percent_agreement == 50.0 and d4.after.percent_agreement == 100.0
-    assert rows[("question", "4.4")].after.percent_agreement == 100.0
+    assert d4.before.percent_agreement == pytest.approx(
+        50.0
+    ) and d4.after.percent_agreement == pytest.approx(100.0)
+    assert rows[("question", "4.4")].after.percent_agreement == pytest.approx(100.0)
 
 
 def test_rounds_are_never_replaced_and_numbers_go_up(calibrated):
@@ -250,7 +252,7 @@ def test_calibration_on_the_demo_review(tmp_path):
     r2 = build_round(2, folder.review, reviewers, found, rules_version=1, created="t2")
     after = round_agreement(r2.pairs, QSET)
     assert top.question_id not in [d.question_id for d in after.ranked]
-    assert after.questions[top.question_id].percent_agreement == 100.0
+    assert after.questions[top.question_id].percent_agreement == pytest.approx(100.0)
     for stats in (
         *before.domains.values(),
         *after.domains.values(),
