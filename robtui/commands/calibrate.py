@@ -297,12 +297,11 @@ def run_stale(args: argparse.Namespace) -> int:
     print(f"{len(stale)} assessment(s) made under an older rules version (now {book.version}):")
     for s in stale:
         a = s.assessment
-        made = "not recorded" if s.made_under is None else f"v{s.made_under}"
-        new = ", ".join(f"{r.id} ({r.question_id})" for r in s.new_rules) or "none that apply"
-        line = (
-            f"  {a.reviewer} {a.study_id} / {a.result_id} [{a.status}] made under {made}; "
-            f"new rules: {new}"
+        made = (
+            "rules version not recorded" if s.made_under is None else f"made under v{s.made_under}"
         )
+        new = ", ".join(f"{r.id} ({r.question_id})" for r in s.new_rules) or "none that apply"
+        line = f"  {a.reviewer} {a.study_id} / {a.result_id} [{a.status}] {made}; new rules: {new}"
         if s.retired_rules:
             line += "; withdrawn: " + ", ".join(
                 f"{r.id} ({r.question_id})" for r in s.retired_rules
