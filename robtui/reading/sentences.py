@@ -69,7 +69,8 @@ ABBREVIATIONS: frozenset[str] = frozenset(
 
 
 _CANDIDATE = re.compile(r"[.?!](?:[\"'”’)\]]*)")
-_CITATION_TAIL = re.compile(r"\d+(?:[,\u2013\-]\d+)*(?=\s)")
+# Reference numbers after a full stop: "before.12", "before.3,4", "before.18 19 20", "before.27–31".
+_CITATION_TAIL = re.compile(r"\d{1,3}(?:(?:[,\u2013\-]|\s(?=\d{1,3}\b))\d{1,3})*(?=\s)")
 # What may open a sentence: a capital or digit (after quotes or brackets), a footnote mark, or
 # a lower-case name with capitals or digits in it ("sPLA2 was", "hs-CRP rose", "mRNA levels").
 _OPENER = re.compile(r"[\"'“‘(\[]*(?:[A-Z0-9\u0391-\u03a9À-Þ*†‡§¶]|[a-z]{1,4}-?[A-Z0-9])")

@@ -43,6 +43,14 @@ def sentences(text: str) -> list[str]:
             ["This was shown before.12", "The next step followed.3,4", "Then we stopped."],
         ),
         (
+            "It is debated.6 7 In particular, doses vary.18 19 20 21 Whether it helps is unclear.",
+            [
+                "It is debated.6 7",
+                "In particular, doses vary.18 19 20 21",
+                "Whether it helps is unclear.",
+            ],
+        ),
+        (
             "See Fig. 3 and Table 2. Results are in Figure 1. Baseline data follow.",
             ["See Fig. 3 and Table 2.", "Results are in Figure 1.", "Baseline data follow."],
         ),
