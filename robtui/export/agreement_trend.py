@@ -85,7 +85,8 @@ def _label_ends(ax, ends: Mapping[tuple[int, float], list[str]]) -> None:
 def render_trend_plot(
     batches: Sequence[BatchAgreement], domain_names: Mapping[str, str], fmt: str = "png"
 ) -> bytes:
-    """The kappa-by-batch plot as ``fmt`` bytes (png, svg or pdf)."""
+    """The kappa-by-batch plot as ``fmt`` bytes (png, svg or pdf); ``domain_names`` are best
+    short (they label the legend)."""
     if fmt not in PLOT_FORMATS:
         raise ValueError(f"plot format must be one of {', '.join(PLOT_FORMATS)}, not {fmt!r}")
     import matplotlib
@@ -94,7 +95,7 @@ def render_trend_plot(
     from matplotlib.figure import Figure
 
     keys = list(batches[0].domains) if batches else []
-    fig = Figure(figsize=(8, 4.5), dpi=100)
+    fig = Figure(figsize=(8, 5), dpi=100)
     ax = fig.add_subplot(1, 1, 1)
     xs = [b.index for b in batches]
     for level, name in _BANDS:
@@ -123,14 +124,16 @@ def render_trend_plot(
     _label_ends(ax, ends)
     for b in batches:
         if all(s.kappa is None for s in b.domains.values()):
-            ax.text(b.index, -0.27, "n/a", ha="center", fontsize=7, color="#6b6b6b")
+            ax.text(b.index, 0.03, "n/a", ha="center", fontsize=7, color="#6b6b6b")
     ax.set_xlim(0.2, max(xs, default=1) + 1.0)
-    ax.set_ylim(-0.3, 1.05)
+    known = [s.kappa for b in batches for s in b.domains.values() if s.kappa is not None]
+    low = max(-1.05, min([-0.3, *(k - 0.1 for k in known)]))
+    ax.set_ylim(low, 1.05)
     ax.set_xticks(xs)
     ax.set_xlabel("Batch of studies, in assessment order")
     ax.set_ylabel("Cohen's kappa")
     ax.set_title("Agreement between reviewers over the review", fontsize=11)
-    ax.legend(fontsize=7, loc="lower left", ncol=3, frameon=False)
+    ax.legend(fontsize=7, loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3, frameon=False)
     for side in ("top", "right"):
         ax.spines[side].set_visible(False)
     fig.tight_layout()
