@@ -34,8 +34,8 @@ def test_first_articles_meet_the_methods_section_target_on_text(figures) -> None
 
 
 def test_first_articles_text_sentence_boundaries(figures) -> None:
-    # Measured 0.96 on these four; asserted with a margin below that.
-    assert statistics.mean(f.txt_f1 for f in figures) >= 0.93
+    # Measured 0.994 on these four; asserted with a margin below that.
+    assert statistics.mean(f.txt_f1 for f in figures) >= 0.97
 
 
 def test_gold_mapping_check_can_fail() -> None:
