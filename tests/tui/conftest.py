@@ -34,13 +34,40 @@ def demo_folder(demo_dir: Path) -> ReviewFolder:
     return ReviewFolder.open(demo_dir)
 
 
-class NoRanker:
-    """Stands in for the evidence ranker where the point of a test is its absence."""
+class FixedRanker:
+    """Suggests the same sentences with the same scores every time, whatever the shipped
+    weights: for snapshots, whose point is the screen's layout (the real ranker is used by
+    the other tests). For each question: body sentences containing a word of its short
+    label, best first by a fixed rule."""
 
-    def rank(self, *args, **kwargs):
-        from robtui.errors import ModelFileError
+    no_evidence_threshold = 0.3
 
-        raise ModelFileError("no weights in this test")
+    def rank(self, document, questions=None, *, effect="assignment", top=5, **_):
+        from robtui.core.questions import builtin_question_set
+        from robtui.evidence.ranker import Suggestion
+
+        result = {}
+        for question in builtin_question_set().questions(effect):
+            words = {w.casefold() for w in question.short.split() if len(w) > 4}
+            hits = [
+                s
+                for s in document.sentences
+                if s.block == "body" and any(w[:6] in s.text.casefold() for w in words)
+            ][:top]
+            result[question.id] = [
+                Suggestion(
+                    question.id,
+                    s.index,
+                    s.start,
+                    s.end,
+                    s.page,
+                    s.section,
+                    round(0.9 - 0.15 * rank, 2),
+                    s.text,
+                )
+                for rank, s in enumerate(hits)
+            ]
+        return result
 
 
 @pytest.fixture(autouse=True)

@@ -1,6 +1,7 @@
 """Snapshots of the main screens at a fixed terminal size, on the demo review built in tmp.
 
-Nothing in view depends on the clock or on the tmp path. Update after a deliberate change
+Nothing in view depends on the clock or on the tmp path; the assessment screen's suggestions
+come from a fixed stand-in ranker so that retrained weights do not change the picture. Update after a deliberate change
 with `pytest tests/tui/test_snapshots.py --snapshot-update` and look at the new SVGs.
 """
 
@@ -9,7 +10,7 @@ from __future__ import annotations
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
 
-from .conftest import SIZE
+from .conftest import SIZE, FixedRanker
 from .helpers import settle
 
 NEW_REVIEWER = "tess"
@@ -32,10 +33,10 @@ def test_assessment_screen_with_suggestions(snap_compare, demo_dir):
     async def open_and_answer(pilot):
         await pilot.press("enter", "enter")  # the result, then its effect
         await settle(pilot)
-        await pilot.press("y", "j", "y")
+        await pilot.press("y", "j", "y", "right_square_bracket")
         await settle(pilot)
 
-    app = Workbench(demo_dir, NEW_REVIEWER)
+    app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
     assert snap_compare(app, terminal_size=SIZE, run_before=open_and_answer)
 
 
