@@ -1,0 +1,51 @@
+"""Reading and ranking run in a worker: a progress line shows, and keys keep working."""
+
+from __future__ import annotations
+
+import threading
+
+from robtui.tui.app import Workbench
+from robtui.tui.report_loading import shared_ranker
+from robtui.tui.screens.assessment import AssessmentScreen
+
+from .conftest import SIZE
+from .helpers import settle
+
+
+class HeldRanker:
+    """The real ranker, held back until the test lets it go (the point: a slow ranking)."""
+
+    def __init__(self) -> None:
+        self.release = threading.Event()
+        self.real = shared_ranker()
+        self.no_evidence_threshold = self.real.no_evidence_threshold
+
+    def rank(self, *args, **kwargs):
+        assert self.release.wait(timeout=20), "the test never released the ranker"
+        return self.real.rank(*args, **kwargs)
+
+
+async def test_keys_work_while_the_report_is_being_ranked(demo_dir):
+    held = HeldRanker()
+    app = Workbench(demo_dir, "tess", ranker_factory=lambda: held)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("enter", "enter")
+        screen = app.screen
+        assert isinstance(screen, AssessmentScreen)
+        progress = screen.query_one("#report-progress")
+        label = screen.query_one("#progress-label")
+        for _ in range(400):  # reading first (quick when cached), then ranking, held
+            if "Ranking" in str(label.render()):
+                break
+            await pilot.pause(0.025)
+        assert progress.display
+        assert "Ranking" in str(label.render())
+        await pilot.press("y")  # the interface answers while the worker waits
+        await pilot.pause()
+        assert screen.session.response(screen.question_id) == "Y"
+        assert screen.session.final("1") == "incomplete"
+        held.release.set()
+        await settle(pilot)
+        assert not progress.display
+        assert screen.suggestions_for(screen.question_id)
