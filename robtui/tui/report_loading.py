@@ -52,8 +52,12 @@ def load_report(
     *,
     stage: Callable[[str], None] = lambda _text: None,
     ranker_factory: Callable[[], Any] = shared_ranker,
+    learned: bool = True,
 ) -> LoadedReport:
-    """Read ``report`` from the review folder and rank its sentences for every question."""
+    """Read ``report`` from the review folder and rank its sentences for every question.
+
+    ``learned=False`` ranks with the shipped model only (see ReviewSession.may_use_learned).
+    """
     loaded = LoadedReport(report)
     problem = folder.check_report(report)
     if problem:
@@ -72,7 +76,7 @@ def load_report(
         return loaded
     loaded.notes.extend(loaded.document.warnings)
     loaded.suggestions = rank_document(
-        folder, loaded.document, effect, stage, ranker_factory, loaded.notes
+        folder, loaded.document, effect, stage, ranker_factory, loaded.notes, learned=learned
     )
     try:
         loaded.no_evidence_threshold = float(ranker_factory().no_evidence_threshold)
@@ -88,6 +92,8 @@ def rank_document(
     stage: Callable[[str], None] = lambda _text: None,
     ranker_factory: Callable[[], Any] = shared_ranker,
     notes: list[str] | None = None,
+    *,
+    learned: bool = True,
 ) -> dict[str, list[Any]]:
     """Suggestions per question id for ``document`` (empty, with a note, if ranking fails)."""
     notes = notes if notes is not None else []
@@ -99,9 +105,10 @@ def rank_document(
         return {}
     review_model = None
     try:
-        from robtui.evidence.review_model import load_review_model
+        if learned:
+            from robtui.evidence.review_model import load_review_model
 
-        review_model = load_review_model(folder.learned_dir)
+            review_model = load_review_model(folder.learned_dir)
     except ImportError:
         review_model = None
     except RobtuiError as error:

@@ -133,6 +133,21 @@ class ReviewSession:
             problems=problems,
         )
 
+    def may_use_learned(self, study_id: str) -> bool:
+        """Whether the review's learned ranker may shape this study's suggestions.
+
+        It learns from every reviewer's quotes and dismissals, so for a study another
+        reviewer has also assessed it could hint at their choices: then only the shipped
+        model ranks. Only the existence of their files is checked, never their content.
+        """
+        for name in self.folder.reviewers_on_disk():
+            if name == self.reviewer:
+                continue
+            for result in self.review.results:
+                if self.folder.assessment_path(name, study_id, result.id).exists():
+                    return False
+        return True
+
     def load(self, study_id: str, result_id: str) -> AssessmentSession | None:
         """This reviewer's assessment of the result, or None when not started.
 

@@ -98,3 +98,46 @@ async def test_without_a_name_the_first_screen_asks_who_is_assessing(demo_dir):
         await pilot.pause()
         assert isinstance(app.screen, OverviewScreen)
         assert app.screen.session.reviewer == "tess"
+
+
+class RecordingRanker:
+    """The real ranker, noting which learned model each ranking was given."""
+
+    def __init__(self) -> None:
+        from robtui.tui.report_loading import shared_ranker
+
+        self.real = shared_ranker()
+        self.no_evidence_threshold = self.real.no_evidence_threshold
+        self.models: list[object] = []
+
+    def rank(self, *args, **kwargs):
+        self.models.append(kwargs.get("review_model"))
+        return self.real.rank(*args, **kwargs)
+
+
+async def test_learned_model_is_kept_out_where_another_reviewer_assesses(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    first = folder.review.studies[0].id
+    folder.add_study(
+        "NEW2032",
+        "A study nobody has assessed",
+        [folder.report_path(folder.review.studies[0].reports[0])],
+    )
+    recorder = RecordingRanker()
+    app = Workbench(demo_dir, "tess", ranker_factory=lambda: recorder)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        overview = app.screen
+        keys = [r.study_id for r in overview.rows.values()]
+        await pilot.press("enter", "enter")  # the first study: the demo reviewers assessed it
+        await settle(pilot)
+        assert app.screen.session.assessment.study_id == first
+        assert recorder.models and all(m is None for m in recorder.models)
+        assert any("learned model is left out" in n for n in app.screen.current.notes)
+        await pilot.press("escape")
+        await pilot.pause()
+        recorder.models.clear()
+        overview.query_one("#results").move_cursor(row=keys.index("NEW2032"))
+        await pilot.press("enter", "enter")
+        await settle(pilot)
+        assert recorder.models and all(m is not None for m in recorder.models)

@@ -39,6 +39,7 @@ from robtui.tui.widgets.question_list import QuestionList, line_for
 from robtui.tui.widgets.report_view import ReportView
 from robtui.tui.widgets.response_bar import ResponseBar
 
+BLIND_NOTE = "shipped model only: the learned model is left out where others also assess"
 CANDIDATE_NOTE = "Suggestions are candidates ranked by a classifier; you decide."
 JUSTIFICATION_SAVE_DELAY = 0.4  # seconds of quiet typing before the justification is saved
 
@@ -138,6 +139,7 @@ class AssessmentScreen(Screen[None]):
         if not reports:
             self.app.call_from_thread(self._reports_loaded, [])
             return
+        learned = self.session.review_session.may_use_learned(self.session.assessment.study_id)
         loaded = []
         for report, _problem in reports:
             if worker.is_cancelled:
@@ -150,8 +152,11 @@ class AssessmentScreen(Screen[None]):
                         self.session.effect,
                         stage=lambda text: self.app.call_from_thread(self._stage, text),
                         ranker_factory=self.app.ranker_factory,
+                        learned=learned,
                     )
                 )
+                if not learned:
+                    loaded[-1].notes.append(BLIND_NOTE)
             except Exception as error:  # noqa: BLE001 - a bad file must not end the session
                 problem = f"{report.path} could not be read ({type(error).__name__}: {error})"
                 loaded.append(LoadedReport(report, problem=problem))
@@ -169,6 +174,9 @@ class AssessmentScreen(Screen[None]):
                     self.session.effect,
                     ranker_factory=self.app.ranker_factory,
                     notes=loaded.notes,
+                    learned=self.session.review_session.may_use_learned(
+                        self.session.assessment.study_id
+                    ),
                 )
         self.app.call_from_thread(self._reports_loaded, self.loaded)
 
