@@ -3,8 +3,10 @@
 A simulated reviewer works through development articles in article order. The "shipped" model
 is trained on the other half of the articles (so it has never seen the simulated review's);
 after each article the reviewer's quotes (the article's gold sentences for each mapped
-question, up to three) become positives and the suggestions they read and rejected (non-hits
-ranked above the first hit in the top five) negatives. After every few articles the figure —
+question, up to three) become positives, the suggestions they read and rejected (non-hits
+ranked above the first hit in the top five) negatives, and the other best-scored sentences
+they passed over weak negatives, each with the shipped model's log-odds as offset (as
+robtui.evidence.review_model.examples_from_assessment does in a real review). After every few articles the figure —
 macro recall@1 and MRR over the mapped questions on the next unseen articles — is printed for
 the shipped model alone and for the shipped model blended with the review model. Both halves
 take a turn as the simulated review and the figures are averaged step by step.
@@ -43,7 +45,12 @@ def simulate(train_docs, review_docs, keys, texts, settings, window: int, step: 
     """Curve of (articles learned, examples, shipped r@1, blended r@1, shipped MRR, blended MRR)."""
     from robtui.evidence.metrics import first_hit_rank
     from robtui.evidence.ranker import Ranker
-    from robtui.evidence.review_model import LearnedExample, update_review_model
+    from robtui.evidence.review_model import (
+        PASSED_OVER,
+        PASSED_OVER_WEIGHT,
+        LearnedExample,
+        update_review_model,
+    )
     from robtui.evidence.train import fit_weights
 
     ranker = Ranker(fit_weights(train_docs, keys, settings, texts))
@@ -82,13 +89,26 @@ def simulate(train_docs, review_docs, keys, texts, settings, window: int, step: 
             z = shipped[learned][key]
             if model:
                 z = z + model.logit(key, sentence_texts[learned])
+            base = shipped[learned][key]
             order = np.argsort(-z, kind="stable")[:5]
+            dismissed = set()
             for i in order:
                 if doc.labels[key][i]:
                     break
-                negatives.append(LearnedExample(key, sentence_texts[learned][i], False))
+                dismissed.add(int(i))
+                negatives.append(LearnedExample(key, sentence_texts[learned][i], False, 1.0,
+                                                float(base[i])))
             gold = np.nonzero(doc.labels[key])[0][:3]
-            positives.extend(LearnedExample(key, sentence_texts[learned][i], True) for i in gold)
+            positives.extend(LearnedExample(key, sentence_texts[learned][i], True, 1.0,
+                                            float(base[i])) for i in gold)
+            if len(gold):  # the reviewer found the evidence: what else scored high was passed over
+                passed = [int(i) for i in np.argsort(-base, kind="stable")
+                          if int(i) not in dismissed and not doc.labels[key][i]][:PASSED_OVER]
+                negatives.extend(
+                    LearnedExample(key, sentence_texts[learned][i], False, PASSED_OVER_WEIGHT,
+                                   float(base[i]))
+                    for i in passed
+                )
         n_examples += len(positives) + len(negatives)
         model = update_review_model(model, positives, negatives)
     return curve

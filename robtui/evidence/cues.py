@@ -109,7 +109,7 @@ class CueMatcher:
         if long_new and self.long_words:
             scores = process.cdist(
                 long_new, self.long_words, scorer=fuzz.ratio, score_cutoff=FUZZY_CUTOFF,
-                dtype=np.uint8,
+                dtype=np.uint8, workers=-1,
             )
             for r, word in enumerate(long_new):
                 cols = np.nonzero(scores[r])[0]
@@ -136,7 +136,7 @@ class CueMatcher:
         hits = [(row, cache[w]) for row, words in enumerate(sentences) for w in set(words)
                 if len(cache[w][0])]
         if hits:
-            rows = np.concatenate([np.full(len(m[0]), r) for r, m in hits])
+            rows = np.repeat([r for r, _ in hits], [len(m[0]) for _, m in hits])
             cols = np.concatenate([m[0] for _, m in hits])
             vals = np.concatenate([m[1] for _, m in hits])
             np.maximum.at(sim, (rows, cols), vals)

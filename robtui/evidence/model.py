@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import io
 import json
+import os
 import zipfile
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -45,6 +46,7 @@ class RankerWeights:
     question_texts: dict[str, str] = field(default_factory=dict)
     provenance: dict = field(default_factory=dict)
     generic_no_evidence_threshold: float | None = None  # None: use no_evidence_threshold
+    warm_words: list[str] = field(default_factory=list)  # frequent words, cached at load
 
 
 def save_weights(weights: RankerWeights, path: Path) -> None:
@@ -74,6 +76,7 @@ def save_weights(weights: RankerWeights, path: Path) -> None:
              if weights.generic_no_evidence_threshold is not None
              else weights.no_evidence_threshold]
         ),
+        "warm_words": np.frombuffer("\n".join(weights.warm_words).encode(), dtype=np.uint8),
         "question_texts": np.frombuffer(
             json.dumps(weights.question_texts, sort_keys=True).encode(), dtype=np.uint8
         ),
@@ -86,6 +89,8 @@ def save_weights(weights: RankerWeights, path: Path) -> None:
     write_text_atomic(
         provenance_path(path), json.dumps(provenance, indent=2, sort_keys=True) + "\n"
     )
+    for written in (path, provenance_path(path)):  # package data: readable by everyone
+        os.chmod(written, 0o644)
 
 
 def provenance_path(path: Path) -> Path:
@@ -131,7 +136,7 @@ def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
     keys_text = data["keys"].tobytes().decode()
     keys = keys_text.split("\n") if keys_text else []
     n = len(keys)
-    lexical = data["lexical"].astype(np.float64)
+    lexical = data["lexical"].astype(np.float32)
     _check(lexical.shape == (n, len(word_vocab) + len(char_vocab)), "lexical weights shape")
     shared, question = data["shared"], data["question"]
     _check(shared.shape == (n, len(SHARED_NAMES)), "shared weights shape")
@@ -165,4 +170,6 @@ def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
         generic_no_evidence_threshold=float(
             data.get("generic_no_evidence_threshold", data["no_evidence_threshold"])[0]
         ),
+        warm_words=[w for w in data["warm_words"].tobytes().decode().split("\n") if w]
+        if "warm_words" in data else [],
     )

@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from robtui.errors import InputError
-from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key
+from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key, tokens
 from robtui.evidence.features import (
     QUESTION_NAMES,
     SHARED_NAMES,
@@ -87,7 +87,11 @@ class Ranker:
         self.no_evidence_threshold = weights.no_evidence_threshold
         self._row = {key: i for i, key in enumerate(weights.keys)}
         self._n_word = len(weights.word.idf)
-        self._lexical_t = np.ascontiguousarray(weights.lexical.T)  # (n_lex, n_models)
+        self._lexical_t = np.ascontiguousarray(weights.lexical.T, dtype=np.float32)
+        self._question_cache: dict[tuple[str, ...], np.ndarray] = {}
+        if weights.warm_words:  # fill the per-word caches now, so the first document is fast
+            weights.char.transform([" ".join(weights.warm_words)])
+            self.matcher.coverage([tokens(" ".join(weights.warm_words))])
 
     @property
     def provenance(self) -> dict:
@@ -114,12 +118,17 @@ class Ranker:
         return document_features(document.sentences, w.word, w.char, self.matcher)
 
     def _question_vectors(self, texts: list[str]) -> np.ndarray:
-        rows = self.weights.word.transform(texts)
-        dense = np.zeros((rows.n_rows, rows.n_cols))
-        for r in range(rows.n_rows):
-            sl = slice(rows.indptr[r], rows.indptr[r + 1])
-            dense[r, rows.indices[sl]] = rows.data[sl]
-        return dense
+        """(n_word, len(texts)) word TF-IDF of the question wordings, cached per wording list."""
+        key = tuple(texts)
+        cached = self._question_cache.get(key)
+        if cached is None:
+            rows = self.weights.word.transform(list(texts))
+            cached = np.zeros((rows.n_cols, rows.n_rows))
+            for r in range(rows.n_rows):
+                sl = slice(rows.indptr[r], rows.indptr[r + 1])
+                cached[rows.indices[sl], r] = rows.data[sl]
+            self._question_cache[key] = cached
+        return cached
 
     def question_blocks(
         self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]
@@ -127,7 +136,7 @@ class Ranker:
         """Per key, the (n, len(QUESTION_NAMES)) question features of every sentence."""
         if doc.n == 0:
             return {key: np.zeros((0, len(QUESTION_NAMES))) for key in keys}
-        similarity = doc.word.dot(self._question_vectors(list(texts)))  # (n, len(keys))
+        similarity = doc.word.dot_columns(self._question_vectors(list(texts)))  # (n, keys)
         return {
             key: question_features(doc, key, self.cues.get(key), self.matcher, similarity[:, j])
             for j, key in enumerate(keys)

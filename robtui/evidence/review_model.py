@@ -33,6 +33,8 @@ BLEND = 1.0  # weight of the review model's decision value in the blended log-od
 # A sentence the reviewer already marked for this question (same words) is moved by this much
 # log-odds: a dismissed suggestion should not come back first, a quoted one should stay on top.
 MEMORY = 4.0
+PASSED_OVER = 20  # best-scored sentences a reviewer passed over count as weak negatives ...
+PASSED_OVER_WEIGHT = 0.3  # ... with this weight (both chosen with `robtui bench learning`)
 
 
 @dataclass(frozen=True)
@@ -42,6 +44,8 @@ class LearnedExample:
     key: str
     text: str
     positive: bool
+    weight: float = 1.0  # a sentence merely left unquoted counts less than a dismissed one
+    offset: float = 0.0  # the shipped model's log-odds for it, when known: learn the residual
 
 
 @dataclass
@@ -80,28 +84,34 @@ def hashed_features(text: str) -> set[int]:
 
 
 def _fit(examples: list[LearnedExample]) -> dict[int, float]:
-    """L2 logistic regression without intercept by Newton steps on the used columns only."""
+    """Weighted L2 logistic regression without intercept, with offsets (L-BFGS, scipy)."""
+    from scipy.optimize import minimize
+    from scipy.sparse import csr_matrix
+
     rows = [sorted(hashed_features(e.text)) for e in examples]
     columns = sorted({j for r in rows for j in r})
     if not columns or len({e.positive for e in examples}) < 2:
         return {}
     col = {j: c for c, j in enumerate(columns)}
-    X = np.zeros((len(rows), len(columns)))
-    for i, r in enumerate(rows):
-        if r:
-            X[i, [col[j] for j in r]] = 1.0 / np.sqrt(len(r))
+    data, indices, indptr = [], [], [0]
+    for r in rows:
+        indices.extend(col[j] for j in r)
+        data.extend([1.0 / np.sqrt(len(r))] * len(r))
+        indptr.append(len(indices))
+    X = csr_matrix((data, indices, indptr), shape=(len(rows), len(columns)))
     y = np.array([1.0 if e.positive else 0.0 for e in examples])
-    w = np.zeros(len(columns))
-    for _ in range(30):
-        p = 1.0 / (1.0 + np.exp(-(X @ w)))
-        grad = X.T @ (p - y) + L2 * w
-        # Newton step through the n-by-n system (Woodbury): few examples, many words.
-        A = X * np.sqrt(p * (1 - p))[:, None]
-        inner = np.linalg.solve(L2 * np.eye(len(rows)) + A @ A.T, A @ grad)
-        step = (grad - A.T @ inner) / L2
-        w -= step
-        if np.max(np.abs(step)) < 1e-6:
-            break
+    sw = np.array([e.weight for e in examples])
+    offset = np.array([e.offset for e in examples])
+
+    def loss(w):
+        z = X @ w + offset
+        value = np.sum(sw * (np.logaddexp(0, z) - y * z)) + 0.5 * L2 * w @ w
+        grad = X.T @ (sw * (1 / (1 + np.exp(-z)) - y)) + L2 * w
+        return value, grad
+
+    result = minimize(loss, np.zeros(len(columns)), jac=True, method="L-BFGS-B",
+                      options={"maxiter": 500})
+    w = result.x
     return {j: float(w[col[j]]) for j in columns if abs(w[col[j]]) > 1e-9}
 
 
@@ -119,9 +129,12 @@ def update_review_model(
         merged[(e.key, e.text)] = e
     for items, positive in ((positives, True), (negatives, False)):
         for item in items:
-            key, text = (item.key, item.text) if isinstance(item, LearnedExample) else item
-            if text.strip():
-                merged[(key, text)] = LearnedExample(key, text, positive)
+            if isinstance(item, LearnedExample):
+                example = LearnedExample(item.key, item.text, positive, item.weight, item.offset)
+            else:
+                example = LearnedExample(item[0], item[1], positive)
+            if example.text.strip():
+                merged[(example.key, example.text)] = example
     examples = list(merged.values())
     by_key: dict[str, list[LearnedExample]] = {}
     for e in examples:
@@ -130,25 +143,71 @@ def update_review_model(
     return ReviewModel(examples, weights)
 
 
-def examples_from_assessment(assessment, documents: Mapping[str, object]):
-    """Positives from an assessment's quotes, negatives from its dismissed suggestions.
+def examples_from_assessment(assessment, documents: Mapping[str, object], ranker=None):
+    """Examples from one assessment: quotes (positives), dismissed suggestions (negatives).
 
-    ``documents`` maps a document's sha256 to its Document (for the text of dismissed spans).
+    ``documents`` maps a document's sha256 to its Document. With ``ranker`` (the shipped one)
+    each example carries the shipped model's log-odds as offset, so the review model learns
+    what the shipped model gets wrong; and, for a question with quotes, the document's
+    best-scored sentences the reviewer neither quoted nor dismissed are added as weak
+    negatives (weight PASSED_OVER_WEIGHT), as ``robtui bench learning`` simulates.
     Returns (positives, negatives) as lists of LearnedExample.
     """
     effect = assessment.effect
-    positives = [
-        LearnedExample(model_key(qid, effect), quote.text, True)
-        for qid, answer in assessment.answers.items()
-        for quote in answer.quotes
-    ]
-    negatives = []
+    quoted: dict[tuple[str, str], list] = {}
+    for qid, answer in assessment.answers.items():
+        for quote in answer.quotes:
+            quoted.setdefault((quote.document_sha256, qid), []).append(quote)
+    dismissed: dict[tuple[str, str], list] = {}
     for d in assessment.dismissed:
-        doc = documents.get(d.document_sha256)
-        if doc is not None and d.end <= len(doc.text):
-            negatives.append(LearnedExample(model_key(d.question_id, effect),
-                                            doc.text[d.start : d.end], False))
+        dismissed.setdefault((d.document_sha256, d.question_id), []).append(d)
+    positives, negatives = [], []
+    for (sha, qid) in sorted(set(quoted) | set(dismissed)):
+        key = model_key(qid, effect)
+        doc = documents.get(sha)
+        base = _shipped_logits(ranker, doc, qid, effect)
+        spans_q = [(q.start, q.end, q.text) for q in quoted.get((sha, qid), [])]
+        spans_d = [(d.start, d.end, doc.text[d.start : d.end] if doc else "")
+                   for d in dismissed.get((sha, qid), [])]
+        for spans, out, positive in ((spans_q, positives, True), (spans_d, negatives, False)):
+            for start, end, text in spans:
+                if text.strip():
+                    out.append(LearnedExample(key, text, positive, 1.0,
+                                              _offset_at(doc, base, start, end)))
+        if spans_q and doc is not None and base is not None:
+            marked = [(a, b) for a, b, _ in spans_q + spans_d]
+            passed = [i for i in np.argsort(-base, kind="stable")
+                      if not any(_overlaps(doc.sentences[i], a, b) for a, b in marked)]
+            negatives.extend(
+                LearnedExample(key, doc.sentences[i].text, False, PASSED_OVER_WEIGHT,
+                               float(base[i]))
+                for i in passed[:PASSED_OVER]
+            )
     return positives, negatives
+
+
+def _shipped_logits(ranker, doc, qid: str, effect: str) -> np.ndarray | None:
+    if ranker is None or doc is None or not doc.sentences:
+        return None
+    key = model_key(qid, effect)
+    text = ranker.weights.question_texts.get(key, "")
+    return ranker.logits(ranker.features(doc), [key], [text])[key]
+
+
+def _overlaps(sentence, start: int, end: int) -> bool:
+    return min(sentence.end, end) - max(sentence.start, start) > 0
+
+
+def _offset_at(doc, base: np.ndarray | None, start: int, end: int) -> float:
+    """The shipped log-odds of the sentence that overlaps [start, end) most (0 if unknown)."""
+    if doc is None or base is None:
+        return 0.0
+    best, best_overlap = 0.0, 0
+    for i, s in enumerate(doc.sentences):
+        overlap = min(s.end, end) - max(s.start, start)
+        if overlap > best_overlap:
+            best, best_overlap = float(base[i]), overlap
+    return best
 
 
 def load_review_model(folder_learned_dir: Path) -> ReviewModel:
@@ -160,7 +219,8 @@ def load_review_model(folder_learned_dir: Path) -> ReviewModel:
         raw = json.loads(path.read_text(encoding="utf-8"))
         if raw.get("schema_version") != SCHEMA_VERSION:
             raise ValueError(f"schema_version {raw.get('schema_version')!r} is not {SCHEMA_VERSION}")
-        examples = [LearnedExample(str(e["key"]), str(e["text"]), bool(e["positive"]))
+        examples = [LearnedExample(str(e["key"]), str(e["text"]), bool(e["positive"]),
+                                   float(e.get("weight", 1.0)), float(e.get("offset", 0.0)))
                     for e in raw["examples"]]
         weights = {str(k): {int(j): float(v) for j, v in pairs} for k, pairs in raw["weights"].items()}
     except (OSError, ValueError, KeyError, TypeError) as error:
@@ -179,7 +239,8 @@ def save_review_model(model: ReviewModel, learned_dir: Path) -> Path:
     payload = {
         "schema_version": SCHEMA_VERSION,
         "about": "examples a review's reviewers marked, and the small ranker learned from them",
-        "examples": [{"key": e.key, "text": e.text, "positive": e.positive} for e in model.examples],
+        "examples": [{"key": e.key, "text": e.text, "positive": e.positive, "weight": e.weight,
+                      "offset": round(e.offset, 6)} for e in model.examples],
         "weights": {k: sorted([j, round(v, 6)] for j, v in w.items())
                     for k, w in sorted(model.weights.items())},
     }

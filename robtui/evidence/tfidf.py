@@ -39,7 +39,7 @@ class SparseRows:
         out = np.zeros((self.n_rows, columns.shape[1]), dtype=np.float64)
         if len(self.indices) == 0:
             return out
-        products = columns[self.indices] * self.data[:, None]  # (nnz, n_models)
+        products = columns[self.indices] * self.data[:, None].astype(columns.dtype)
         nonempty = np.diff(self.indptr) > 0
         out[nonempty] = np.add.reduceat(products, self.indptr[:-1][nonempty], axis=0)
         return out
@@ -97,12 +97,23 @@ class TfidfTable:
         for word in text.lower().split():
             hit = cache.get(word)
             if hit is None:
-                grams = char_wb_ngrams_of_word(word, self.ngram_range)
-                hit = [vocab[g] for g in grams if g in vocab]
+                hit = self._char_hits(word)
                 if len(cache) < 200_000:
                     cache[word] = hit
             found.extend(hit)
         return found
+
+    def _char_hits(self, word: str) -> list[int]:
+        """Vocabulary indices of a word's char_wb n-grams (same n-grams as scikit-learn's)."""
+        padded = f" {word} "
+        length = len(padded)
+        low, high = self.ngram_range
+        if length < high:  # a short word: scikit-learn's loop, which counts it once
+            grams = char_wb_ngrams_of_word(word, self.ngram_range)
+        else:
+            grams = [padded[i : i + n] for n in range(low, high + 1) for i in range(length - n + 1)]
+        get = self.vocabulary.get
+        return [i for i in map(get, grams) if i is not None]
 
     def transform(self, texts: list[str]) -> SparseRows:
         """TF-IDF rows (sublinear tf, idf, l2-normalised) for ``texts``."""

@@ -233,7 +233,16 @@ def fit_weights(
         no_evidence_threshold=_youden_threshold(tops, present) if tops else 0.5,
         question_texts=dict(texts), provenance=provenance or {},
         generic_no_evidence_threshold=generic_cut,
+        warm_words=_frequent_words(prep.docs),
     )
+
+
+def _frequent_words(docs: list[LabelledDocument], n: int = 6000) -> list[str]:
+    """The training text's most frequent words (ties by first appearance): cached at load."""
+    from collections import Counter
+
+    counts = Counter(w for d in docs for s in d.document.sentences for w in s.text.lower().split())
+    return [w for w, _ in counts.most_common(n) if "\n" not in w]
 
 
 def _generic_model(X: np.ndarray, y: np.ndarray, seed: int):

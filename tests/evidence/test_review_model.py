@@ -26,31 +26,63 @@ Participants were enrolled by the ward doctors.
 """
 
 
+# The next report of the same invented review: a new sentence about the zorblat box.
+NEXT = """Methods
+A previous trial of our group concealed allocation with sealed, opaque envelopes.
+Here each child took one token from the zorblat box kept at reception.
+Height was measured with a stadiometer.
+"""
+
+
 def _rank_of(ranking, needle):
     return next(i for i, s in enumerate(ranking) if needle in s.text) + 1
 
 
-def test_review_model_raises_the_reviewers_kind_of_sentence(ranker):
+def _assessment_marking(doc, quote_needle, dismiss_needle):
+    from robtui.core.model import Answer, Assessment, DismissedSuggestion, Quote
+
+    quote = next(s for s in doc.sentences if quote_needle in s.text)
+    dismiss = next(s for s in doc.sentences if dismiss_needle in s.text)
+    return Assessment(
+        reviewer="ana", study_id="S1", result_id="R1",
+        answers={"1.2": Answer(response="Y", quotes=[Quote(
+            document_sha256=doc.sha256, start=quote.start, end=quote.end, text=quote.text)])},
+        dismissed=[DismissedSuggestion(question_id="1.2", document_sha256=doc.sha256,
+                                       start=dismiss.start, end=dismiss.end)],
+    )
+
+
+def test_review_model_learned_on_one_report_helps_on_the_next(ranker):
+    from robtui.evidence.review_model import examples_from_assessment
+
+    first, nxt = document_from_text(DOC), document_from_text(NEXT)
+    assessment = _assessment_marking(first, "zorblat box", "sealed, opaque envelopes")
+    positives, negatives = examples_from_assessment(assessment, {first.sha256: first}, ranker)
+    assert [e.text for e in positives] == [s.text for s in first.sentences if "zorblat" in s.text]
+    assert negatives[0].text.startswith("An earlier trial") and negatives[0].weight == 1.0
+    assert all(e.weight < 1.0 for e in negatives[1:])  # passed over: weak negatives
+    assert all(e.offset != 0.0 for e in positives + negatives)  # shipped log-odds as offsets
+    model = update_review_model(None, positives, negatives)
+    before = ranker.rank(nxt, ["1.2"], top=None)["1.2"]
+    after = ranker.rank(nxt, ["1.2"], top=None, review_model=model)["1.2"]
+    target_before = next(s for s in before if "zorblat" in s.text)
+    target_after = next(s for s in after if "zorblat" in s.text)
+    assert target_after.score > target_before.score
+    distractor_before = next(s for s in before if "envelopes" in s.text)
+    distractor_after = next(s for s in after if "envelopes" in s.text)
+    assert distractor_after.score < distractor_before.score  # like what was dismissed
+    # a question without examples is ranked by the shipped model alone
+    assert ranker.rank(nxt, ["1.1"], review_model=model) == ranker.rank(nxt, ["1.1"])
+
+
+def test_a_dismissed_sentence_does_not_come_back_first(ranker):
     doc = document_from_text(DOC)
     before = ranker.rank(doc, ["1.2"], top=None)["1.2"]
-    start_rank = _rank_of(before, "zorblat box")
-    assert start_rank > 1  # the shipped model alone does not put it first
-    score_before = before[start_rank - 1].score
-    model = update_review_model(
-        None,
-        positives=[LearnedExample("1.2", "Allocation used a zorblat box per site.", True),
-                   ("1.2", "Tokens were drawn from the zorblat box by the nurse."),
-                   ("1.2", "The zorblat box held one token per participant.")],
-        negatives=[LearnedExample("1.2", before[0].text, False)],
-    )
+    model = update_review_model(None, [("1.2", "Tokens came from a zorblat box.")],
+                                [LearnedExample("1.2", before[0].text, False)])
     after = ranker.rank(doc, ["1.2"], top=None, review_model=model)["1.2"]
-    # the dismissed sentence drops out of first place; the unseen zorblat sentence (learned
-    # words, not an exact repeat) gains score and comes first
     assert after[0].text != before[0].text
-    assert _rank_of(after, "zorblat box") == 1
-    assert after[0].score > score_before
-    # a question without examples is ranked by the shipped model alone
-    assert ranker.rank(doc, ["1.1"], review_model=model) == ranker.rank(doc, ["1.1"])
+    assert _rank_of(after, before[0].text) > 1
 
 
 def test_latest_label_wins_and_untrained_keys_add_nothing():
