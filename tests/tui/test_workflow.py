@@ -94,14 +94,11 @@ async def test_complete_assessment_then_reopen(demo_dir):
         await pilot.press("1", "o")
         await pilot.pause()
         assert isinstance(app.screen, OverrideDialog)
-        await pilot.press("enter")  # judgement list: keep low -> moves to the reason
-        await pilot.press("enter")  # empty reason is refused
+        await pilot.press("down", "enter")  # some concerns, then on to the reason
+        await pilot.press("enter")  # an empty reason is refused
         await pilot.pause()
         assert isinstance(app.screen, OverrideDialog)
         assert "needs a reason" in screen_text(app.screen.query_one("#override-error"))
-        app.screen.query_one("#override-options").focus()
-        await pilot.press("down")  # some concerns
-        await pilot.press("enter")
         await pilot.press(*"small")
         await pilot.press("enter")
         await pilot.pause()
@@ -143,3 +140,21 @@ async def test_complete_assessment_then_reopen(demo_dir):
         await pilot.press("c")  # reopen for changes
         await pilot.pause()
         assert not s.is_complete
+
+
+async def test_choosing_the_proposal_again_removes_an_override(demo_dir):
+    app = Workbench(demo_dir, REVIEWER)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_selected(pilot)
+        await answer_domain(pilot, "1", LOW_PATH["1"])
+        screen.session.set_override("1", "high", "prepared for this test")
+        await pilot.press("o")
+        await pilot.pause()
+        dialog = app.screen
+        assert isinstance(dialog, OverrideDialog)
+        dialog.query_one("#override-options").highlighted = 0  # low, the proposal
+        await pilot.press("enter", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, AssessmentScreen)
+        assert screen.session.override("1") is None
+        assert screen.session.final("1") == "low"

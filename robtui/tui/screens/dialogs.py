@@ -86,6 +86,11 @@ class OverrideDialog(ModalScreen[OverrideChoice | None]):
             yield Static(proposed)
             if self.note:
                 yield Static(self.note, classes="dialog-note")
+            yield Static(
+                "Choose a judgement (enter), give the reason (enter saves). Choosing the "
+                "proposal again removes an override. Escape cancels.",
+                classes="dialog-note",
+            )
             yield OptionList(
                 *[Option(badge(code), id=code) for code in self.CHOICES], id="override-options"
             )
@@ -115,6 +120,16 @@ class OverrideDialog(ModalScreen[OverrideChoice | None]):
     @on(Button.Pressed, "#override-save")
     def _save(self) -> None:
         options = self.query_one("#override-options", OptionList)
+        judgement = self.CHOICES[options.highlighted or 0]
+        if judgement == self.proposed:  # back to the proposal: no override
+            if self.current is not None:
+                self.dismiss(OverrideChoice(None))
+                return
+            self.query_one("#override-error", Static).update(
+                "That is the proposed judgement: choose another one to override it."
+            )
+            options.focus()
+            return
         reason = self.query_one("#override-reason", Input).value.strip()
         if not reason:
             self.query_one("#override-error", Static).update(
@@ -122,7 +137,6 @@ class OverrideDialog(ModalScreen[OverrideChoice | None]):
             )
             self.query_one("#override-reason", Input).focus()
             return
-        judgement = self.CHOICES[options.highlighted or 0]
         self.dismiss(OverrideChoice(judgement, reason))
 
     @on(Button.Pressed, "#override-remove")
