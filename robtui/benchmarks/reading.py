@@ -289,8 +289,9 @@ def _child_peak(pdf: Path) -> dict:
         "base=hwm();"
         "tracemalloc.start() if sys.argv[2]=='1' else None;t=time.perf_counter();"
         "d=read_document(Path(sys.argv[1]),use_cache=False);t=time.perf_counter()-t;"
-        "peak=tracemalloc.get_traced_memory()[1] if sys.argv[2]=='1' else 0;"
-        "print(json.dumps({'pages':d.pages,'seconds':t,'rss_kb':hwm(),'base_kb':base,'traced':peak,"
+        "kept,peak=tracemalloc.get_traced_memory() if sys.argv[2]=='1' else (0,0);"
+        "print(json.dumps({'pages':d.pages,'seconds':t,"
+        "'rss_kb':hwm(),'base_kb':base,'traced':peak,'kept':kept,"
         "'text_chars':len(d.text)}))"
     )
     out = {}
@@ -304,6 +305,7 @@ def _child_peak(pdf: Path) -> dict:
         data = json.loads(result.stdout)
         if traced == "1":
             out["traced_peak_mb"] = data["traced"] / 1e6
+            out["kept_mb"] = data["kept"] / 1e6  # the finished Document, still referenced
         else:
             out.update(data)
     return out
@@ -404,15 +406,22 @@ def _print_speed(f: dict) -> None:
     print(
         f"memory: {small['pages']} pages: peak RSS {small['rss_kb'] / 1024:.0f} MB "
         f"(after imports {small['base_kb'] / 1024:.0f} MB), traced Python peak "
-        f"{small['traced_peak_mb']:.1f} MB"
+        f"{small['traced_peak_mb']:.1f} MB (the document itself {small['kept_mb']:.1f} MB)"
     )
     if "large_memory" in f:
         large = f["large_memory"]
         print(
             f"        {large['pages']} pages: peak RSS {large['rss_kb'] / 1024:.0f} MB "
             f"(after imports {large['base_kb'] / 1024:.0f} MB), traced Python peak "
-            f"{large['traced_peak_mb']:.1f} MB, read in {large['seconds']:.1f} s"
+            f"{large['traced_peak_mb']:.1f} MB (the document itself {large['kept_mb']:.1f} MB), "
+            f"read in {large['seconds']:.1f} s"
         )
         ratio = large["traced_peak_mb"] / max(1e-9, small["traced_peak_mb"])
         pages = large["pages"] / max(1, small["pages"])
         print(f"        traced peak grows {ratio:.1f}x for {pages:.0f}x the pages")
+        work_small = small["traced_peak_mb"] - small["kept_mb"]
+        work_large = large["traced_peak_mb"] - large["kept_mb"]
+        print(
+            f"        working memory beyond the document: {work_small:.1f} MB vs "
+            f"{work_large:.1f} MB"
+        )
