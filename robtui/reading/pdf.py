@@ -528,6 +528,8 @@ class TextBuilder:
                 self.length -= 1
                 return next_word
             return next_word
+        if prev.endswith(("-", "−")) and next_word[:1].isdigit():
+            return next_word  # a minus sign or range broken before its number: "(-" + "1.4"
         self._put(" ")
         return next_word
 

@@ -165,3 +165,41 @@ def test_render_text_as_pdf_round_trip(tmp_path) -> None:
         "It worked.",
         "Methods",
     ]
+
+
+def _line(*words: str):
+    from robtui.reading.pdf import Line, Word
+
+    boxes = [
+        Word(w, (10.0 * i, 0.0, 10.0 * i + 8, 9.0), False, False, 9.0) for i, w in enumerate(words)
+    ]
+    return Line(boxes, 0.0, 0.0, 10.0 * len(words), 9.0)
+
+
+@pytest.mark.parametrize(
+    ("first", "second", "expected"),
+    [
+        (("treat-",), ("ment", "works."), "treatment works."),
+        (("C-",), ("reactive", "protein."), "C-reactive protein."),
+        (("IL-",), ("6", "fell."), "IL-6 fell."),
+        (("RAPIDS-",), ("2", "trial."), "RAPIDS-2 trial."),
+        (("(-",), ("1.4", "days)."), "(-1.4 days)."),
+        (("the",), ("trial.",), "the trial."),
+    ],
+)
+def test_line_joins(first, second, expected) -> None:
+    from robtui.reading.pdf import PBlock, TextBuilder
+
+    builder = TextBuilder()
+    builder.add(PBlock("body", [_line(*first), _line(*second)], 1), "body")
+    assert builder.text == expected
+    assert [s.text for s in builder.maker.sentences] == [expected]
+
+
+def test_compound_seen_before_keeps_its_hyphen() -> None:
+    from robtui.reading.pdf import PBlock, TextBuilder
+
+    builder = TextBuilder()
+    builder.add(PBlock("body", [_line("A", "double-blind", "trial.")], 1), "body")
+    builder.add(PBlock("body", [_line("It", "was", "double-"), _line("blind", "too.")], 1), "body")
+    assert builder.text.endswith("It was double-blind too.")
