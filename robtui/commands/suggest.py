@@ -79,11 +79,12 @@ def run(args: argparse.Namespace) -> int:
         print(json.dumps(payload, ensure_ascii=False))
         return 0
     thresholds = {qid: ranker.threshold_for(qid, args.effect) for qid in ranking}
-    print(_render(ranking, thresholds, document.path))
+    untrained = {qid for qid in ranking if not ranker.is_trained(qid, args.effect)}
+    print(_render(ranking, thresholds, untrained, document.path))
     return 0
 
 
-def _render(ranking: dict, thresholds: dict[str, float], path: str) -> str:
+def _render(ranking: dict, thresholds: dict[str, float], untrained: set[str], path: str) -> str:
     lines = [f"{path}: suggested sentences (candidates to read; the reviewer decides)"]
     for qid, items in ranking.items():
         lines.append("")
@@ -91,8 +92,9 @@ def _render(ranking: dict, thresholds: dict[str, float], path: str) -> str:
             lines.append(f"{qid}  nothing above the threshold")
             continue
         cut = thresholds[qid]
-        flag = f"  [no sentence found: best score below {cut:.2f}]"
-        lines.append(f"{qid}{flag if items[0].score < cut else ''}")
+        flag = f"  [no sentence found: best score below {cut:.2f}]" if items[0].score < cut else ""
+        rough = "  (no training data: ranked by cue lexicon and wording)" if qid in untrained else ""
+        lines.append(f"{qid}{flag}{rough}")
         for rank, s in enumerate(items, 1):
             where = f"p{s.page} " if s.page else ""
             text = " ".join(s.text.split())

@@ -106,9 +106,13 @@ class Ranker:
             return entry.same_as
         return None
 
+    def is_trained(self, question_id: str, effect: str = "assignment") -> bool:
+        """True when the question has a model of its own (else the transfer model ranks it)."""
+        return self.trained_key(model_key(question_id, effect)) is not None
+
     def threshold_for(self, question_id: str, effect: str = "assignment") -> float:
         """The no-evidence threshold of a question (the transfer model has its own)."""
-        if self.trained_key(model_key(question_id, effect)) is not None:
+        if self.is_trained(question_id, effect):
             return self.no_evidence_threshold
         generic = self.weights.generic_no_evidence_threshold
         return self.no_evidence_threshold if generic is None else generic

@@ -240,9 +240,23 @@ def save_review_model(model: ReviewModel, learned_dir: Path) -> Path:
         "schema_version": SCHEMA_VERSION,
         "about": "examples a review's reviewers marked, and the small ranker learned from them",
         "examples": [{"key": e.key, "text": e.text, "positive": e.positive, "weight": e.weight,
-                      "offset": round(e.offset, 6)} for e in model.examples],
+                      "offset": e.offset} for e in model.examples],
         "weights": {k: sorted([j, round(v, 6)] for j, v in w.items())
                     for k, w in sorted(model.weights.items())},
     }
     write_text_atomic(path, json.dumps(payload, indent=2, ensure_ascii=False) + "\n")
     return path
+
+
+def learn_from_assessment(
+    learned_dir: Path, assessment, documents: Mapping[str, object], ranker=None
+) -> ReviewModel:
+    """Load the review's model, add what ``assessment`` teaches, save it (atomic), return it.
+
+    Call it when a reviewer saves an assessment; a damaged model file raises DataFileError
+    and is left untouched.
+    """
+    positives, negatives = examples_from_assessment(assessment, documents, ranker)
+    model = update_review_model(load_review_model(learned_dir), positives, negatives)
+    save_review_model(model, learned_dir)
+    return model

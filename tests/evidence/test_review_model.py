@@ -113,3 +113,16 @@ def test_missing_file_is_an_empty_model_and_a_damaged_one_is_reported_not_replac
     bad.write_text(json.dumps({"schema_version": 99}), encoding="utf-8")
     with pytest.raises(DataFileError, match="schema_version"):
         load_review_model(tmp_path)
+
+
+def test_learn_from_assessment_saves_and_reloads(tmp_path, ranker):
+    from robtui.evidence.review_model import learn_from_assessment
+
+    doc = document_from_text(DOC)
+    assessment = _assessment_marking(doc, "zorblat box", "sealed, opaque envelopes")
+    learned = tmp_path / "learned"
+    model = learn_from_assessment(learned, assessment, {doc.sha256: doc}, ranker)
+    reloaded = load_review_model(learned)
+    assert reloaded.examples == model.examples and reloaded.count("1.2") >= 2
+    again = learn_from_assessment(learned, assessment, {doc.sha256: doc}, ranker)
+    assert len(again.examples) == len(model.examples)  # the same marks are not counted twice
