@@ -8,6 +8,7 @@ PDF, missing ranker weights) come back as text, so the rest of the assessment st
 from __future__ import annotations
 
 import threading
+import time
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
@@ -43,6 +44,7 @@ class LoadedReport:
     notes: list[str] = field(default_factory=list)  # shown, but the report is usable
     # scores below this read as "no sentence found for this question" (the ranker's own)
     no_evidence_threshold: float | None = None
+    seconds: dict[str, float] = field(default_factory=dict)  # "read", "rank" (for the bench)
 
 
 def load_report(
@@ -69,15 +71,19 @@ def load_report(
     stage(f"Reading {report.path} …")
     from robtui.reading.reader import read_document
 
+    started = time.perf_counter()
     try:
         loaded.document = read_document(folder.report_path(report))
     except RobtuiError as error:
         loaded.problem = str(error)
         return loaded
+    loaded.seconds["read"] = time.perf_counter() - started
     loaded.notes.extend(loaded.document.warnings)
+    started = time.perf_counter()
     loaded.suggestions = rank_document(
         folder, loaded.document, effect, stage, ranker_factory, loaded.notes, learned=learned
     )
+    loaded.seconds["rank"] = time.perf_counter() - started
     try:
         loaded.no_evidence_threshold = float(ranker_factory().no_evidence_threshold)
     except (RobtuiError, AttributeError, TypeError, ValueError):

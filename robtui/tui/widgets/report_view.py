@@ -96,8 +96,10 @@ class ReportView(OptionList):
 
     @property
     def _text_width(self) -> int:
-        width = self.scrollable_content_region.width or self.size.width or 80
-        return max(20, width - GUTTER - 2)
+        # From the widget's own width, keeping room for the scrollbar whether or not it shows,
+        # so its appearing does not lay the whole report out again.
+        width = self.size.width or 80
+        return max(20, width - GUTTER - self.styles.scrollbar_size_vertical - 2)
 
     def _section_prompt(self, label: str) -> Text:
         return Text(" " * GUTTER + f"§ {section_title(label)}", style=HEADING_STYLE)
