@@ -7,7 +7,7 @@ from robtui.tui.app import Workbench
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import open_selected, plain
+from .helpers import open_selected, plain, settle
 
 
 async def test_suggestions_jump_dismiss_and_quote(demo_dir):
@@ -67,3 +67,18 @@ async def test_search_moves_to_matching_sentences(demo_dir):
         await pilot.press("escape")
         await pilot.pause()
         assert screen.focused is view and not screen.query_one("#search").display
+
+
+async def test_resizing_rewraps_the_report_and_keeps_the_place(demo_dir):
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_selected(pilot)
+        view = screen.query_one("#report", ReportView)
+        await pilot.press("right_square_bracket")
+        here = view.highlighted_sentence.index
+        wide = max(len(plain(o.prompt).splitlines()) for o in view.options)
+        await pilot.resize_terminal(100, 42)
+        await settle(pilot)
+        assert view.highlighted_sentence.index == here
+        narrow = max(len(plain(o.prompt).splitlines()) for o in view.options)
+        assert narrow > wide  # the same sentences take more lines when narrower
