@@ -268,9 +268,7 @@ def match_heading(title: str, current: str = "front", *, keywords: bool = True) 
         return None
     top = _vocab_match(norm, TOP_LEVEL)
     if top is not None:
-        # "Participants" and friends are both top-level-ish and methods subheadings; the
-        # methods vocabulary wins inside methods and results.
-        return top
+        return top  # top-level names switch section wherever they occur
     where = top_section(current)
     if where == "results":
         label = _vocab_match(norm, RESULTS_SUB)
