@@ -21,11 +21,6 @@ LABELS = {
 }
 
 
-def label(code: str | None) -> str:
-    """The text label of a judgement code ("Not judged" for incomplete or missing)."""
-    return LABELS.get(code or "incomplete", LABELS["incomplete"])
-
-
 def badge(code: str | None, *, short: bool = False) -> Text:
     """A coloured badge with letter and text label, e.g. ' S Some concerns '."""
     key = code if code in LABELS else "incomplete"

@@ -12,12 +12,12 @@ robtui.core.assessing and is saved at once (``ReviewFolder.save_assessment`` is 
 from __future__ import annotations
 
 import re
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from robtui.core import algorithm, assessing
-from robtui.core.model import OVERALL, Assessment, DismissedSuggestion, Quote, ReportFile
+from robtui.core.model import Assessment, DismissedSuggestion, Quote, ReportFile
 from robtui.core.questions import Domain, Question, QuestionSet, builtin_question_set
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.store.progress import assessment_progress
@@ -401,8 +401,3 @@ class AssessmentSession:
         if self.assessment.last_question == question_id:
             return self.assessment
         return self.assessment.model_copy(update={"last_question": question_id})
-
-
-def judgement_keys(qset: QuestionSet) -> Sequence[str]:
-    """Domain ids then "overall"."""
-    return [*qset.domain_ids(), OVERALL]

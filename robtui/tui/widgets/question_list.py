@@ -13,7 +13,7 @@ from typing import Any
 from rich.table import Table
 from rich.text import Text
 from textual.widgets import OptionList
-from textual.widgets.option_list import Option, OptionDoesNotExist
+from textual.widgets.option_list import Option
 
 RESPONSE_STYLE = "bold #111111 on #d9d9d9"
 
@@ -98,13 +98,6 @@ class QuestionList(OptionList):
         if self.highlighted is None or not self.options:
             return None
         return self.options[self.highlighted].id
-
-    def focus_question(self, question_id: str) -> bool:
-        try:
-            self.highlighted = self.get_option_index(question_id)
-        except OptionDoesNotExist:  # not asked on the current path
-            return False
-        return True
 
 
 def quote_pages(quotes: Sequence[Any]) -> tuple[str, ...]:
