@@ -146,11 +146,19 @@ def main(argv: list[str] | None = None) -> int:
               simulate(first, second, keys, texts, settings, args.window, args.step)]
     steps = min(len(c) for c in curves)
     print("articles  examples   recall@1 shipped  recall@1 blended   MRR shipped  MRR blended")
+    table = []
     for s in range(steps):
         rows = [c[s] for c in curves]
         learned = rows[0][0]
         ex = np.mean([r[1] for r in rows])
         vals = [np.mean([r[j] for r in rows]) for j in (2, 3, 4, 5)]
+        table.append(vals)
         print(f"{learned:>8}  {ex:>8.0f}   {vals[0]:>16.3f}  {vals[1]:>16.3f}   {vals[2]:>11.3f}"
               f"  {vals[3]:>11.3f}")
+    later = [v for v in table[len(table) // 2 :]]
+    if later:
+        gain1 = np.mean([v[1] - v[0] for v in later])
+        gain_mrr = np.mean([v[3] - v[2] for v in later])
+        print(f"\nsecond half of the review: blended minus shipped, recall@1 {gain1:+.3f}, "
+              f"MRR {gain_mrr:+.3f} (mean over its steps)")
     return 0
