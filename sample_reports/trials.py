@@ -253,7 +253,9 @@ BIRCH = Trial(
         (
             "",
             "Participants were randomly assigned to the app or the leaflet in a 1:1 ratio. "
-            "The research nurse informed participants of their group at the baseline visit.",
+            "The research nurse informed participants of their group at the baseline visit. "
+            "Neither participants nor the research nurse were blinded, and pain was reported by "
+            "participants on the postal questionnaire.",
         )
     ],
     statistics=[
@@ -456,7 +458,9 @@ DOGWOOD = Trial(
             "",
             "Randomisation used a computer-generated sequence prepared by the trial "
             "statistician, and allocations were placed in sequentially numbered, opaque, "
-            "sealed envelopes opened by the clinic nurse after enrolment.",
+            "sealed envelopes opened by the clinic nurse after enrolment. Participants and "
+            "clinic nurses were aware of the allocated treatment, because the cream and the "
+            "emollient differ in appearance and smell.",
         )
     ],
     statistics=[
