@@ -188,6 +188,23 @@ def _pdf_candidates(document: Document) -> list[tuple[str, int]]:
     return out
 
 
+def _nearest_match(
+    gold_text: str,
+    cand_texts: list[str],
+    candidates: list[tuple[str, int]],
+    where: float,
+    n_sentences: int,
+) -> int:
+    """Index of the PDF sentence matching ``gold_text`` best; among equal scores (a heading
+    such as "Methods" occurs in the abstract and the body) the one nearest the gold position."""
+    from rapidfuzz import process
+
+    found = process.extract(gold_text, cand_texts, scorer=fuzz.ratio, limit=8)
+    top = max(score for _, score, _ in found)
+    tied = [candidates[i][1] for _, score, i in found if score >= top - 0.5]
+    return min(tied, key=lambda i: abs(i / max(1, n_sentences) - where))
+
+
 def full_width_lines(article: Article) -> int:
     """How many non-empty lines of the article lie before the end of its abstract."""
     end = 0
@@ -236,7 +253,10 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
         hit = txt.sentence_at(a)
         right_txt += hit is not None and label_ok(hit.section, accepted)
         if found:
-            right_pdf += label_ok(pdf.sentences[candidates[best[2]][1]].section, accepted)
+            index = _nearest_match(
+                gtext, cand_texts, candidates, a / len(article.text), len(single)
+            )
+            right_pdf += label_ok(pdf.sentences[index].section, accepted)
     n = max(1, len(gold))
     return ArticleFigures(
         txt_f1,
