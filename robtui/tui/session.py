@@ -19,9 +19,11 @@ from pathlib import Path
 from robtui.core import algorithm, assessing
 from robtui.core.model import Assessment, DismissedSuggestion, Quote, ReportFile
 from robtui.core.questions import Domain, Question, QuestionSet, builtin_question_set
+from robtui.core.rules import AnsweringRule, RuleBook, rules_for, stamp_rules_version
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.store.progress import assessment_progress
 from robtui.store.review_folder import ReviewFolder
+from robtui.store.rules_file import load_rules_safely
 
 REVIEWER_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
 
@@ -76,6 +78,10 @@ class ReviewSession:
         self.folder = folder
         self.reviewer = check_reviewer_name(reviewer)
         self.qset: QuestionSet = builtin_question_set(folder.review.question_set)
+        # Read once: the rules shown are the ones every save of this session is stamped with.
+        self.rules: RuleBook | None
+        self.rules_unavailable: str | None
+        self.rules, self.rules_unavailable = load_rules_safely(folder)
 
     @property
     def review(self):
@@ -283,6 +289,13 @@ class AssessmentSession:
             return []
         return [(report, self.folder.check_report(report)) for report in study.reports]
 
+    def answering_rules(self, question_id: str) -> list[AnsweringRule]:
+        """The review's rules in force for the question that apply to this result."""
+        result = self.result
+        if result is None:
+            return []
+        return rules_for(self.review_session.rules, question_id, result, self.effect)
+
     def is_dismissed(self, question_id: str, sha256: str, start: int, end: int) -> bool:
         return any(
             d.question_id == question_id
@@ -293,8 +306,14 @@ class AssessmentSession:
         )
 
     # -- changing it (each saves) ------------------------------------------------------
-    def save(self) -> Path:
-        """Write the assessment now (atomic); keeps it in memory if the write fails."""
+    def save(self, *, stamp: bool = True) -> Path:
+        """Write the assessment now (atomic); keeps it in memory if the write fails.
+
+        The rules version the session read is recorded with every change (``stamp``); a save
+        of the reviewer's position alone keeps the version the answers were made under.
+        """
+        if stamp:
+            self.assessment = stamp_rules_version(self.assessment, self.review_session.rules)
         try:
             path = self.folder.save_assessment(self.assessment)
         except (RobtuiError, OSError) as error:
@@ -305,9 +324,9 @@ class AssessmentSession:
             self.on_saved(path)
         return path
 
-    def _commit(self, assessment: Assessment) -> None:
+    def _commit(self, assessment: Assessment, *, stamp: bool = True) -> None:
         self.assessment = assessment
-        self.save()
+        self.save(stamp=stamp)
 
     def _editable(self) -> None:
         if self.is_complete:
@@ -388,7 +407,7 @@ class AssessmentSession:
         """Record where the reviewer is, so reopening resumes there (saved)."""
         if self.assessment.last_question == question_id:
             return
-        self._commit(self._at(question_id))
+        self._commit(self._at(question_id), stamp=False)
 
     def mark_complete(self) -> None:
         """Mark complete; InputError listing what is missing when it cannot be."""

@@ -112,6 +112,7 @@ class AssessmentScreen(Screen[None]):
                 yield JudgementStrip([*s.domain_ids(), OVERALL], id="strip")
                 yield Static("", id="domain-heading")
                 yield QuestionList(id="questions")
+                yield Static("", id="rules")
                 yield ResponseBar(id="responses")
                 yield Input(
                     placeholder="Justification (e to write, enter when done)", id="justification"
@@ -261,7 +262,38 @@ class AssessmentScreen(Screen[None]):
         self.query_one("#domain-heading", Static).update(heading)
         self._refresh_judgements()
         self._refresh_justification()
+        self._refresh_rules()
         self._mark_report()
+
+    def _refresh_rules(self) -> None:
+        """The review's answering rules for the focused question, or why they are unavailable."""
+        panel = self.query_one("#rules", Static)
+        text = self.rules_text(self.question_id)
+        panel.update(text)
+        panel.display = bool(text.plain)
+
+    def rules_text(self, question_id: str | None) -> Text:
+        """Empty when the review has no answering rules at all (nothing to show)."""
+        review = self.session.review_session
+        if review.rules is None:
+            text = Text("⚠ ", style="bold")
+            text.append(review.rules_unavailable or "answering rules unavailable", style="bold")
+            text.append("\n  Answer as usual; everything else works.", style="dim")
+            return text
+        if question_id is None or not review.rules.active():
+            return Text("")
+        rules = self.session.answering_rules(question_id)
+        version = f"rules v{review.rules.version}"
+        if not rules:
+            return Text(f"Answering rules ({version}): none for {question_id}", style="dim")
+        text = Text(f"Answering rules for {question_id} ({version}):", style="bold")
+        for rule in rules:
+            text.append(f"\n{rule.id} ", style="bold")
+            if rule.answer:
+                text.append(f"→ {rule.answer} ", style="bold reverse")
+            text.append(rule.text)
+            text.append(f"  (when {rule.condition_text()})", style="dim")
+        return text
 
     def _refresh_judgements(self) -> None:
         s = self.session
@@ -325,6 +357,7 @@ class AssessmentScreen(Screen[None]):
     def _question_moved(self) -> None:
         self._flush_justification()
         self._refresh_justification()
+        self._refresh_rules()
         self._mark_report()
         qid = self.question_id
         if qid:
