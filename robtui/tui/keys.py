@@ -32,7 +32,12 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("everywhere", "ctrl+p", "command palette (all main actions by name)"),
     KeyHelp("everywhere", "ctrl+q", "quit (all work is already saved)"),
     KeyHelp("overview", "up/down  enter", "choose a result / open it to assess"),
-    KeyHelp("overview", "f", "filter by status: all, not started, draft, complete, problems"),
+    KeyHelp(
+        "overview",
+        "f",
+        "filter by status: all, not started, draft, complete, problems, second look (made "
+        "under older answering rules)",
+    ),
     KeyHelp("overview", "v", "the lead's comparison of two reviewers (lead only)"),
     KeyHelp("assessment", "y p m n i a", "answer Y, PY, PN, N, NI, NA to the focused question"),
     KeyHelp("assessment", "backspace", "clear the focused question's response"),

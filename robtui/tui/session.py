@@ -19,7 +19,13 @@ from pathlib import Path
 from robtui.core import algorithm, assessing
 from robtui.core.model import Assessment, DismissedSuggestion, Quote, ReportFile
 from robtui.core.questions import Domain, Question, QuestionSet, builtin_question_set
-from robtui.core.rules import AnsweringRule, RuleBook, rules_for, stamp_rules_version
+from robtui.core.rules import (
+    AnsweringRule,
+    RuleBook,
+    rules_for,
+    stale_assessments,
+    stamp_rules_version,
+)
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.store.progress import assessment_progress
 from robtui.store.review_folder import ReviewFolder
@@ -31,12 +37,14 @@ STATUS_NOT_STARTED = "not started"
 STATUS_DRAFT = "draft"
 STATUS_COMPLETE = "complete"
 STATUS_UNREADABLE = "unreadable"
+SECOND_LOOK = "second look"
 STATUS_FILTERS: tuple[str, ...] = (
     "all",
     STATUS_NOT_STARTED,
     STATUS_DRAFT,
     STATUS_COMPLETE,
     "problems",
+    SECOND_LOOK,
 )
 
 
@@ -65,6 +73,7 @@ class ResultRow:
     answered: int
     asked: int
     problems: tuple[str, ...] = ()
+    second_look: str | None = None  # why: made under an older answering-rules version
 
     @property
     def key(self) -> str:
@@ -123,9 +132,11 @@ class ReviewSession:
         except RobtuiError as error:
             assessment = None
             status, problems = STATUS_UNREADABLE, (str(error), *report_problems)
+        second_look = None
         if assessment is not None:
             status, effect, final = assessment.status, assessment.effect, dict(assessment.final)
             answered, asked = assessment_progress(assessment, self.qset)
+            second_look = self.second_look(assessment)
         return ResultRow(
             study_id=study.id,
             study_label=study.label,
@@ -137,7 +148,23 @@ class ReviewSession:
             answered=answered,
             asked=asked,
             problems=problems,
+            second_look=second_look,
         )
+
+    def second_look(self, assessment: Assessment) -> str | None:
+        """Why the assessment deserves a second look (made under older rules), or None."""
+        if self.rules is None:
+            return None
+        results = {r.id: r for r in self.review.results}
+        stale = stale_assessments([assessment], self.rules, results)
+        if not stale:
+            return None
+        made = stale[0].made_under
+        since = "rules version not recorded" if made is None else f"made under rules v{made}"
+        new = ", ".join(f"{r.id} ({r.question_id})" for r in stale[0].new_rules)
+        gone = ", ".join(f"{r.id} ({r.question_id})" for r in stale[0].retired_rules)
+        text = f"{since}, now v{self.rules.version}; new rules: {new or 'none that apply'}"
+        return text + (f"; withdrawn: {gone}" if gone else "")
 
     def may_use_learned(self, study_id: str) -> bool:
         """Whether the review's learned ranker may shape this study's suggestions.

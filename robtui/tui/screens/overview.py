@@ -16,6 +16,7 @@ from textual.widgets.data_table import CellDoesNotExist
 from robtui.core.model import OVERALL
 from robtui.tui.palette import cell_badge
 from robtui.tui.session import (
+    SECOND_LOOK,
     STATUS_COMPLETE,
     STATUS_FILTERS,
     STATUS_NOT_STARTED,
@@ -118,6 +119,8 @@ class OverviewScreen(Screen[None]):
             return True
         if name == "problems":
             return bool(row.problems)
+        if name == SECOND_LOOK:
+            return row.second_look is not None
         return row.status == name
 
     def _cells(self, row: ResultRow) -> list:
@@ -129,7 +132,12 @@ class OverviewScreen(Screen[None]):
         ]
         for key in [*self.session.qset.domain_ids(), OVERALL]:
             cells.append(cell_badge(row.final.get(key)) if row.final else Text("—", style="dim"))
-        cells.append(Text("⚠ " + row.problems[0][:40], style="bold") if row.problems else "")
+        if row.problems:
+            cells.append(Text("⚠ " + row.problems[0][:40], style="bold"))
+        elif row.second_look:
+            cells.append(Text("↻ second look: rules changed", style="bold"))
+        else:
+            cells.append("")
         return cells
 
     @property
@@ -152,6 +160,8 @@ class OverviewScreen(Screen[None]):
         text = Text(f"{row.study_label} — {row.result_label}", style="bold")
         for problem in row.problems:
             text.append(f"\n⚠ {problem}")
+        if row.second_look:
+            text.append(f"\n↻ second look: {row.second_look}")
         if not row.problems:
             text.append("\nenter: assess this result", style="dim")
         detail.update(text)
