@@ -203,3 +203,18 @@ def test_compound_seen_before_keeps_its_hyphen() -> None:
     builder.add(PBlock("body", [_line("A", "double-blind", "trial.")], 1), "body")
     builder.add(PBlock("body", [_line("It", "was", "double-"), _line("blind", "too.")], 1), "body")
     assert builder.text.endswith("It was double-blind too.")
+
+
+def test_one_column_pages_read_top_to_bottom(tmp_path) -> None:
+    blocks = [PdfBlock("title", "A one-column invented report", full_width=True)]
+    blocks.append(PdfBlock("heading", "Methods", full_width=True))
+    blocks += [PdfBlock("para", text, full_width=True) for text in PARAGRAPHS[:30]]
+    path = tmp_path / "one-column.pdf"
+    assert render_blocks_as_pdf(blocks, path, header=HEADER) >= 2
+    doc = read_document(path, use_cache=False)
+    expected = []
+    for text in PARAGRAPHS[:30]:
+        expected += [s.text for s in document_from_text(text).sentences]
+    assert [s.text for s in doc.sentences if s.block == "body"] == expected
+    assert HEADER not in doc.text
+    assert {s.section for s in doc.sentences if s.block == "body"} == {"methods"}
