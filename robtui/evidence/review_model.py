@@ -28,13 +28,13 @@ from robtui.evidence.tfidf import word_ngrams
 FILE_NAME = "evidence-review-model.json"
 SCHEMA_VERSION = 1
 HASH_BITS = 18
-L2 = 0.3  # penalty of the review model; chosen with `robtui bench learning` (simulated review)
+L2 = 0.3  # penalty; 0.03-3 tried in `robtui bench learning`: differences within noise there
 BLEND = 1.0  # weight of the review model's decision value in the blended log-odds
 # A sentence the reviewer already marked for this question (same words) is moved by this much
 # log-odds: a dismissed suggestion should not come back first, a quoted one should stay on top.
 MEMORY = 4.0
 PASSED_OVER = 20  # best-scored sentences a reviewer passed over count as weak negatives ...
-PASSED_OVER_WEIGHT = 0.3  # ... with this weight (both chosen with `robtui bench learning`)
+PASSED_OVER_WEIGHT = 0.3  # ... with this weight (tried with `robtui bench learning`; no source)
 
 
 @dataclass(frozen=True)
