@@ -232,4 +232,6 @@ class Ranker:
 
 def load_ranker(path: Path | None = None) -> Ranker:
     """The ranker with the shipped weights (or those at ``path``); ModelFileError if unusable."""
-    return Ranker(load_weights(path))
+    ranker = Ranker(load_weights(path))
+    active_questions("assignment")  # reads (and caches) the question set now, not when ranking
+    return ranker
