@@ -62,6 +62,14 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "d", "next document of the study (when it has several)"),
     KeyHelp("assessment", "escape", "back to the overview (from a text field: leave the field)"),
     KeyHelp("comparison", "up/down  r", "choose a result / compare another pair of reviewers"),
+    KeyHelp("comparison", "tab", "between the results and the differences to settle"),
+    KeyHelp(
+        "comparison",
+        "a / b",
+        "settle the focused difference with reviewer A's / B's answer (a note is required)",
+    ),
+    KeyHelp("comparison", "n", "settle it with a new answer (a note is required)"),
+    KeyHelp("comparison", "c", "mark the consensus complete (nothing left to settle) / reopen"),
     KeyHelp("comparison", "escape", "back to the overview"),
 )
 

@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from robtui.core import algorithm, assessing
-from robtui.core.model import Assessment, DismissedSuggestion, Quote, ReportFile
+from robtui.core.model import Assessment, Consensus, DismissedSuggestion, Quote, ReportFile
 from robtui.core.questions import Domain, Question, QuestionSet, builtin_question_set
 from robtui.core.rules import (
     AnsweringRule,
@@ -210,11 +210,7 @@ class ReviewSession:
         Pairs where a side is missing or still a draft are kept, with the reason
         (``AssessmentPair.problem``); only complete pairs are compared.
         """
-        if not self.is_lead:
-            raise InputError(
-                f"only the review's lead ({self.review.lead or 'none named'}) may compare "
-                "reviewers' assessments; open the review as the lead"
-            )
+        self.require_lead()
         from robtui.core.comparison import pair_assessments
 
         lists = []
@@ -228,6 +224,26 @@ class ReviewSession:
             lists[0], lists[1], reviewer_a=reviewer_a, reviewer_b=reviewer_b, expected=expected
         )
         return pairs, problems
+
+    def require_lead(self) -> None:
+        if not self.is_lead:
+            raise InputError(
+                f"only the review's lead ({self.review.lead or 'none named'}) may compare "
+                "reviewers' assessments; open the review as the lead"
+            )
+
+    def load_consensus(self, study_id: str, result_id: str) -> Consensus | None:
+        """The lead's consensus record of a result (None when not started; lead only).
+
+        Raises DataFileError when the file is unreadable (it is left untouched).
+        """
+        self.require_lead()
+        return self.folder.load_consensus(study_id, result_id)
+
+    def save_consensus(self, consensus: Consensus) -> Path:
+        """Write a consensus record (atomic), apart from both reviewers' files; lead only."""
+        self.require_lead()
+        return self.folder.save_consensus(consensus)
 
     def comparable_reviewers(self) -> list[str]:
         """Reviewers who could be compared: named in the review or with files on disk."""

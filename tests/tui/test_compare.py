@@ -12,6 +12,18 @@ from robtui.tui.session import ReviewSession
 from .conftest import SIZE
 
 
+async def open_pair(pilot, pair) -> CompareScreen:
+    """From the lead's overview: v, then the pair's result highlighted."""
+    await pilot.pause()
+    await pilot.press("v")
+    await pilot.pause()
+    screen = pilot.app.screen
+    assert isinstance(screen, CompareScreen)
+    screen.query_one("#pairs").highlighted = screen.pairs.index(pair)
+    await pilot.pause()
+    return screen
+
+
 async def test_lead_sees_both_sides_differences_first(demo_dir):
     folder = ReviewFolder.open(demo_dir)
     lead = folder.review.lead
@@ -27,17 +39,78 @@ async def test_lead_sees_both_sides_differences_first(demo_dir):
 
     app = Workbench(demo_dir, lead)
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
-        await pilot.press("v")
-        await pilot.pause()
-        screen = app.screen
-        assert isinstance(screen, CompareScreen)
-        index = screen.pairs.index(differing)
-        screen.query_one("#pairs").highlighted = index
-        await pilot.pause()
+        await open_pair(pilot, differing)
         shown = app.export_screenshot()
         for text in (a, b, first.question_id, "≠"):
             assert text in shown
         await pilot.press("escape")
         await pilot.pause()
         assert not isinstance(app.screen, CompareScreen)
+
+
+def _files(root) -> dict[str, bytes]:
+    return {str(p.relative_to(root)): p.read_bytes() for p in sorted(root.rglob("*.json"))}
+
+
+async def test_lead_settles_every_difference_and_completes_the_consensus(demo_dir):
+    from robtui.core.algorithm import propose_all
+    from robtui.core.comparison import path_answers, pending_questions
+
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    qset = builtin_question_set(folder.review.question_set)
+    session = ReviewSession(folder, lead)
+    a, b = session.comparable_reviewers()[:2]
+    pairs, _ = session.comparison_pairs(a, b)
+    pair = next(p for p in pairs if p.comparable and compare_pair(p, qset).n_differences >= 2)
+    reviewers_before = _files(demo_dir / "assessments")
+
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_pair(pilot, pair)
+        assert "not started" in str(screen.query_one("#consensus-status").render())
+        assert "Consensus" in app.export_screenshot()  # the judgements column beside A and B
+        await pilot.press("c")  # refused while differences are open
+        await pilot.pause()
+        assert folder.load_consensus(pair.study_id, pair.result_id) is None
+        await pilot.press("tab")
+        first = screen.focused_question
+        # A note is required: enter on an empty note keeps the dialog open.
+        await pilot.press("n", "enter", "enter")
+        await pilot.pause()
+        assert "A note is required" in str(app.screen.query_one("#settle-error").render())
+        await pilot.press("escape")
+        await pilot.pause()
+        assert app.screen is screen
+        # The first difference gets a new answer (the question's first option) ...
+        new_answer = qset.question(first, pair.a.effect).options[0]
+        await pilot.press("n", "enter", *"discussed", "enter")
+        await pilot.pause()
+        # ... every other one takes A's answer, until nothing is pending.
+        for _ in range(30):
+            pending = pending_questions(screen.consensus, qset)
+            if not pending:
+                break
+            assert screen.focused_question == pending[0]
+            await pilot.press("a", *"as A", "enter")
+            await pilot.pause()
+        assert not pending_questions(screen.consensus, qset)
+        await pilot.press("c")
+        await pilot.pause()
+        assert "✓ complete" in str(screen.query_one("#consensus-status").render())
+
+    saved = ReviewFolder.open(demo_dir).load_consensus(pair.study_id, pair.result_id)
+    assert saved is not None and saved.status == "complete" and saved.lead == lead
+    assert saved.reviewers == (a, b)
+    agreed = path_answers(qset, saved.effect, saved.answers)
+    by_a = path_answers(qset, pair.a.effect, pair.a.answers)
+    assert agreed[first] == new_answer
+    assert saved.decisions[first].source == "new" and saved.decisions[first].note == "discussed"
+    for qid, decision in saved.decisions.items():
+        if decision.source == "a":
+            assert decision.note == "as A" and agreed.get(qid) == by_a.get(qid)
+        if qid in agreed and qid != first:
+            assert decision.source in ("agreed", "a")
+    assert saved.proposed == propose_all(qset, saved.effect, agreed)
+    assert saved.final == saved.proposed  # no override by the lead
+    assert _files(demo_dir / "assessments") == reviewers_before  # reviewers' files untouched

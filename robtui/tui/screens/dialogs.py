@@ -1,4 +1,5 @@
-"""Small dialogs: effect of interest, override with reason, what is missing, a message."""
+"""Small dialogs: effect of interest, override with reason, settling a difference, what is
+missing, a message."""
 
 from __future__ import annotations
 
@@ -14,6 +15,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
+from robtui.tui.keys import RESPONSE_NAMES
 from robtui.tui.palette import badge
 
 EFFECTS = {
@@ -193,4 +195,77 @@ class TextDialog(ModalScreen[None]):
 
     @on(Button.Pressed, "#text-close")
     def action_close(self) -> None:
+        self.dismiss(None)
+
+
+@dataclass(frozen=True)
+class SettleChoice:
+    response: str | None  # the new answer; None when a reviewer's answer is taken
+    note: str
+
+
+class SettleDialog(ModalScreen[SettleChoice | None]):
+    """The lead settles one question: a note is required; a new answer also needs a response."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(
+        self, title: str, what: Text, options: tuple[str, ...] = (), current: str | None = None
+    ) -> None:
+        super().__init__()
+        self.title_text = title
+        self.what = what
+        self.options = options  # empty: a reviewer's answer is taken as it is
+        self.current = current
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog wide"):
+            yield Label(Text(self.title_text, style="bold"))
+            yield Static(self.what, classes="dialog-note")
+            if self.options:
+                yield OptionList(
+                    *[
+                        Option(f"{code}  {RESPONSE_NAMES.get(code, code)}", id=code)
+                        for code in self.options
+                    ],
+                    id="settle-options",
+                )
+            yield Input(
+                placeholder="Note: why this is the agreed answer (required)", id="settle-note"
+            )
+            yield Static("", id="settle-error", classes="error-text")
+            with Horizontal(classes="dialog-buttons"):
+                yield Button("Settle", id="settle-save", variant="primary")
+                yield Button("Cancel", id="settle-cancel")
+
+    def on_mount(self) -> None:
+        if self.options:
+            options = self.query_one("#settle-options", OptionList)
+            if self.current in self.options:
+                options.highlighted = self.options.index(self.current)
+            options.focus()
+        else:
+            self.query_one("#settle-note", Input).focus()
+
+    @on(OptionList.OptionSelected, "#settle-options")
+    def _response_chosen(self) -> None:
+        self.query_one("#settle-note", Input).focus()
+
+    @on(Input.Submitted, "#settle-note")
+    @on(Button.Pressed, "#settle-save")
+    def _save(self) -> None:
+        note = self.query_one("#settle-note", Input).value.strip()
+        if not note:
+            self.query_one("#settle-error", Static).update(
+                "A note is required: say why this is the agreed answer."
+            )
+            self.query_one("#settle-note", Input).focus()
+            return
+        response = None
+        if self.options:
+            response = self.options[self.query_one("#settle-options", OptionList).highlighted or 0]
+        self.dismiss(SettleChoice(response, note))
+
+    @on(Button.Pressed, "#settle-cancel")
+    def action_cancel(self) -> None:
         self.dismiss(None)
