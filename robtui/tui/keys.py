@@ -51,7 +51,11 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp(
         "assessment", "x", "dismiss the highlighted suggestion (it does not answer the question)"
     ),
-    KeyHelp("assessment", "e", "write the justification of the focused answer (enter: done)"),
+    KeyHelp(
+        "assessment",
+        "e",
+        "write the justification of the focused answer (enter: done, ctrl+j: new line)",
+    ),
     KeyHelp("assessment", "/", "search the report (enter: next match, escape: close)"),
     KeyHelp(
         "assessment", "o / O", "override the domain / overall judgement (a reason is required)"

@@ -9,7 +9,7 @@ from robtui.tui.screens.assessment import AssessmentScreen
 from robtui.tui.screens.dialogs import EffectDialog
 
 from .conftest import SIZE
-from .helpers import settle
+from .helpers import open_selected, settle
 
 
 async def test_effect_chosen_at_the_start_switches_domain_2(demo_dir):
@@ -43,15 +43,42 @@ async def test_effect_chosen_at_the_start_switches_domain_2(demo_dir):
         assert all(screen.session.question(o.id).text in assignment for o in questions.options)
 
 
-async def test_justification_typed_just_before_quitting_is_saved(demo_dir):
+def _first_saved(demo_dir):
+    """tess's saved assessment of the overview's first row (first study, first result)."""
     review = ReviewFolder.open(demo_dir).review
-    study, result = review.studies[0].id, review.results[0].id
+    return ReviewFolder.open(demo_dir).load_assessment(
+        "tess", review.studies[0].id, review.results[0].id
+    )
+
+
+async def test_justification_typed_just_before_quitting_is_saved(demo_dir):
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
-        await pilot.pause()
-        await pilot.press("enter", "enter")
-        await settle(pilot)
+        await open_selected(pilot)
         qid = app.screen.question_id
         await pilot.press("e", *"sealed", "ctrl+q")  # no pause for the save timer
-    saved = ReviewFolder.open(demo_dir).load_assessment("tess", study, result)
+    saved = _first_saved(demo_dir)
     assert saved.answers[qid].justification == "sealed"
+
+
+async def test_justification_of_several_lines_is_saved_when_typing_pauses(demo_dir):
+    from robtui.tui.screens.assessment import JUSTIFICATION_SAVE_DELAY
+    from robtui.tui.widgets.justification import JustificationArea
+    from robtui.tui.widgets.question_list import QuestionList
+
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_selected(pilot)
+        qid = screen.question_id
+        await pilot.press("e", *"one", "ctrl+j", *"two")
+        assert isinstance(app.focused, JustificationArea)  # ctrl+j stayed in the field
+        await pilot.pause(JUSTIFICATION_SAVE_DELAY * 2)  # a pause in typing saves
+        on_disk = _first_saved(demo_dir)
+        assert on_disk.answers[qid].justification == "one\ntwo"
+        await pilot.press(*"!", "enter")  # enter: done, back to the questions
+        await pilot.pause()
+        assert isinstance(app.focused, QuestionList)
+        assert screen.session.answer(qid).justification == "one\ntwo!"
+        await pilot.press("j", "k")  # moving away and back shows the saved text
+        await pilot.pause()
+        assert screen.query_one("#justification").text == "one\ntwo!"

@@ -17,7 +17,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
-from textual.widgets import Input, Label, ProgressBar, Static
+from textual.widgets import Input, Label, ProgressBar, Static, TextArea
 from textual.worker import get_current_worker
 
 from robtui.core.model import OVERALL, Quote
@@ -34,6 +34,7 @@ from robtui.tui.screens.dialogs import (
 )
 from robtui.tui.session import AssessmentSession
 from robtui.tui.widgets.judgement_strip import DomainTab, JudgementStrip
+from robtui.tui.widgets.justification import JustificationArea
 from robtui.tui.widgets.key_hints import KeyHints
 from robtui.tui.widgets.question_list import QuestionList, line_for
 from robtui.tui.widgets.report_view import ReportView
@@ -114,7 +115,7 @@ class AssessmentScreen(Screen[None]):
                 yield QuestionList(id="questions")
                 yield Static("", id="rules")
                 yield ResponseBar(id="responses")
-                yield Input(
+                yield JustificationArea(
                     placeholder="Justification (e to write, enter when done)", id="justification"
                 )
                 yield Static("", id="judgement")
@@ -325,14 +326,18 @@ class AssessmentScreen(Screen[None]):
         self.query_one("#judgement", Static).update(text)
 
     def _refresh_justification(self) -> None:
-        field = self.query_one("#justification", Input)
+        field = self.query_one("#justification", JustificationArea)
         qid = self.question_id
         answer = self.session.answer(qid) if qid else None
         self._justify_for = qid
         self._typed = None
-        with field.prevent(Input.Changed):
-            field.value = answer.justification if answer else ""
-        field.placeholder = f"Justification for {qid} (e to write, enter when done)" if qid else ""
+        text = answer.justification if answer else ""
+        if field.text != text:
+            with field.prevent(TextArea.Changed):
+                field.load_text(text)
+        field.placeholder = (
+            f"Justification for {qid} (e to write, enter when done, ctrl+j new line)" if qid else ""
+        )
         field.disabled = self.session.is_complete or qid is None
 
     def _mark_report(self) -> None:
@@ -377,14 +382,14 @@ class AssessmentScreen(Screen[None]):
     def _response_clicked(self, event: ResponseBar.Picked) -> None:
         self.action_answer(event.response)
 
-    @on(Input.Changed, "#justification")
-    def _justification_typed(self, event: Input.Changed) -> None:
-        self._typed = event.value
+    @on(TextArea.Changed, "#justification")
+    def _justification_typed(self, event: TextArea.Changed) -> None:
+        self._typed = event.text_area.text
         if self._justify_timer is not None:
             self._justify_timer.stop()
         self._justify_timer = self.set_timer(JUSTIFICATION_SAVE_DELAY, self._flush_justification)
 
-    @on(Input.Submitted, "#justification")
+    @on(JustificationArea.Done, "#justification")
     def _justification_done(self) -> None:
         self._flush_justification()
         self.query_one("#questions", QuestionList).focus()
@@ -538,7 +543,7 @@ class AssessmentScreen(Screen[None]):
         if self.session.is_complete:
             self.notify("this assessment is marked complete: c reopens it", severity="warning")
             return
-        self.query_one("#justification", Input).focus()
+        self.query_one("#justification", JustificationArea).focus()
 
     def action_switch_pane(self) -> None:
         """Tab: between the report and the questions (leaving a text field first)."""
@@ -556,7 +561,7 @@ class AssessmentScreen(Screen[None]):
 
     def action_back(self) -> None:
         focused = self.focused
-        if isinstance(focused, Input):
+        if isinstance(focused, (Input, TextArea)):
             if focused.id == "search":
                 focused.display = False
                 self.query_one("#report", ReportView).focus()
