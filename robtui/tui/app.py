@@ -19,6 +19,7 @@ from robtui.errors import RobtuiError
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.report_loading import shared_ranker
 from robtui.tui.screens.assessment import AssessmentScreen
+from robtui.tui.screens.compare import CompareScreen
 from robtui.tui.screens.dialogs import EffectDialog, ListDialog
 from robtui.tui.screens.help import HelpScreen
 from robtui.tui.screens.overview import OverviewScreen
@@ -125,11 +126,6 @@ class Workbench(App[int]):
                 "Only the review's lead sees the comparison of reviewers.", severity="warning"
             )
             return
-        try:
-            from robtui.tui.screens.compare import CompareScreen
-        except ImportError:
-            self.notify("The comparison screen is not available yet.", severity="warning")
-            return
         self.push_screen(CompareScreen(session))
 
     async def action_quit(self) -> None:
@@ -158,7 +154,7 @@ class Workbench(App[int]):
                 yield SystemCommand(
                     "Compare reviewers", "The lead's side-by-side comparison", self.open_comparison
                 )
-        if isinstance(screen, AssessmentScreen):
+        if isinstance(screen, (AssessmentScreen, CompareScreen)):
             for title, help_text, action in screen.palette_commands():
                 yield SystemCommand(title, help_text, partial(screen.run_action, action))
 

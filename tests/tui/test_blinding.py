@@ -8,6 +8,7 @@ import pytest
 from robtui.errors import InputError
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
+from robtui.tui.screens.compare import CompareScreen
 from robtui.tui.screens.overview import OverviewScreen
 from robtui.tui.screens.start import ReviewerScreen
 from robtui.tui.session import ReviewSession
@@ -77,8 +78,15 @@ async def test_a_reviewer_sees_only_their_own_work(demo_dir, spy):
 def test_only_the_lead_may_compare(demo_dir):
     folder = ReviewFolder.open(demo_dir)
     me, other = _two_reviewers(folder)
+    mine = ReviewSession(folder, me)
     with pytest.raises(InputError, match="only the review's lead"):
-        ReviewSession(folder, me).comparison_pairs(me, other)
+        mine.comparison_pairs(me, other)
+    # Nor the consensus, nor the comparison screen itself.
+    study, result = folder.review.studies[0].id, folder.review.results[0].id
+    with pytest.raises(InputError, match="only the review's lead"):
+        mine.load_consensus(study, result)
+    with pytest.raises(InputError, match="only the review's lead"):
+        CompareScreen(mine)
     pairs, problems = ReviewSession(folder, folder.review.lead).comparison_pairs(me, other)
     assert pairs and not problems
 

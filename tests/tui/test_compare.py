@@ -69,6 +69,8 @@ async def test_lead_settles_every_difference_and_completes_the_consensus(demo_di
     async with app.run_test(size=SIZE) as pilot:
         screen = await open_pair(pilot, pair)
         assert "not started" in str(screen.query_one("#consensus-status").render())
+        titles = [command.title for command in app.get_system_commands(screen)]
+        assert "Take reviewer A's answer" in titles and "New consensus answer" in titles
         assert "Consensus" in app.export_screenshot()  # the judgements column beside A and B
         await pilot.press("c")  # refused while differences are open
         await pilot.pause()
@@ -98,6 +100,8 @@ async def test_lead_settles_every_difference_and_completes_the_consensus(demo_di
         await pilot.press("c")
         await pilot.pause()
         assert "✓ complete" in str(screen.query_one("#consensus-status").render())
+        listed = screen.query_one("#pairs").get_option_at_index(screen.index).prompt
+        assert "✓ consensus" in listed.plain
 
     saved = ReviewFolder.open(demo_dir).load_consensus(pair.study_id, pair.result_id)
     assert saved is not None and saved.status == "complete" and saved.lead == lead

@@ -188,21 +188,43 @@ class CompareScreen(Screen[None]):
         self.query_one("#compare-title", Static).update(title)
         options = []
         for index, pair in enumerate(self.pairs):
-            study = self.session.review.study(pair.study_id)
-            result = self.session.review.result(pair.result_id)
-            label = Text(study.label if study else pair.study_id, style="bold")
-            label.append(f"\n{result.outcome if result else pair.result_id}")
-            if pair.comparable:
-                n = compare_pair(pair, self.session.qset).n_differences
-                label.append(f"\n{n} difference{'s' if n != 1 else ''}", style="")
-            else:
-                label.append("\nnot comparable yet", style="dim")
-            options.append(Option(label, id=str(index)))
+            options.append(Option(self._pair_label(pair), id=str(index)))
         pairs = self.query_one("#pairs", OptionList)
         pairs.set_options(options)
         if options:
             pairs.highlighted = 0
         self._show(0)
+
+    def _pair_state(self, pair: AssessmentPair) -> Text:
+        """Differences and the consensus state, for the pair's line in the list."""
+        if not pair.comparable:
+            return Text("\nnot comparable yet", style="dim")
+        n = compare_pair(pair, self.session.qset).n_differences
+        text = Text(f"\n{n} difference{'s' if n != 1 else ''}")
+        try:
+            saved = self.session.load_consensus(pair.study_id, pair.result_id)
+        except RobtuiError:
+            return text.append("  ·  ⚠ consensus unreadable", style="bold")
+        if saved is not None:
+            done = saved.status == "complete"
+            text.append(f"  ·  {'✓ consensus' if done else 'consensus draft'}", style="bold")
+        return text
+
+    def _relabel_pair(self) -> None:
+        pair = self.pair
+        if pair is None:
+            return
+        self.query_one("#pairs", OptionList).replace_option_prompt_at_index(
+            self.index, self._pair_label(pair)
+        )
+
+    def _pair_label(self, pair: AssessmentPair) -> Text:
+        study = self.session.review.study(pair.study_id)
+        result = self.session.review.result(pair.result_id)
+        label = Text(study.label if study else pair.study_id, style="bold")
+        label.append(f"\n{result.outcome if result else pair.result_id}")
+        label.append_text(self._pair_state(pair))
+        return label
 
     @on(OptionList.OptionHighlighted, "#pairs")
     def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
@@ -364,6 +386,7 @@ class CompareScreen(Screen[None]):
                 self.notify(str(error), severity="error")
                 return
             self.consensus, self.consensus_saved = settled, True
+            self._relabel_pair()
             pending = pending_questions(settled, qset)
             self._refresh_consensus(keep=pending[0] if pending else qid)
 
@@ -384,6 +407,7 @@ class CompareScreen(Screen[None]):
             self.notify(str(error), severity="warning")
             return
         self.consensus, self.consensus_saved = changed, True
+        self._relabel_pair()
         done = "complete" if changed.status == "complete" else "reopened"
         self.notify(f"consensus {done} for {pair.study_id} / {pair.result_id}")
         self._refresh_consensus()
@@ -395,3 +419,24 @@ class CompareScreen(Screen[None]):
 
     def action_back(self) -> None:
         self.dismiss(None)
+
+    def palette_commands(self) -> list[tuple[str, str, str]]:
+        return [
+            (
+                "Take reviewer A's answer",
+                "Settle the focused difference (note required)",
+                "settle('a')",
+            ),
+            (
+                "Take reviewer B's answer",
+                "Settle the focused difference (note required)",
+                "settle('b')",
+            ),
+            (
+                "New consensus answer",
+                "Settle the focused difference (note required)",
+                "settle('new')",
+            ),
+            ("Complete / reopen the consensus", "Nothing may be left to settle", "complete"),
+            ("Compare other reviewers", "The next pair of reviewers", "next_reviewers"),
+        ]
