@@ -55,6 +55,9 @@ async def test_an_invalid_rules_file_says_why_and_the_rest_works(demo_dir):
     before = rules.read_bytes()
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        title = str(app.screen.query_one("#overview-title").render())
+        assert "answering rules unavailable" in title
         screen = await open_selected(pilot)
         shown = str(screen.query_one("#rules").render())
         assert "answering rules unavailable" in shown

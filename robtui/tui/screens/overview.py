@@ -64,6 +64,8 @@ class OverviewScreen(Screen[None]):
             if self.session.is_lead:
                 who += " (lead: v compares reviewers)"
             title.append(who, style="")
+            if self.session.rules_unavailable:
+                title.append(f"\n⚠ {self.session.rules_unavailable}", style="bold")
             yield Static(title, id="overview-title")
             yield Static("", id="overview-filter")
             yield DataTable(id="results", cursor_type="row", zebra_stripes=True)
