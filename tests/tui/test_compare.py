@@ -118,3 +118,26 @@ async def test_lead_settles_every_difference_and_completes_the_consensus(demo_di
     assert saved.proposed == propose_all(qset, saved.effect, agreed)
     assert saved.final == saved.proposed  # no override by the lead
     assert _files(demo_dir / "assessments") == reviewers_before  # reviewers' files untouched
+
+
+async def test_an_unreadable_consensus_file_is_reported_and_left_alone(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    qset = builtin_question_set(folder.review.question_set)
+    session = ReviewSession(folder, lead)
+    pairs, _ = session.comparison_pairs(*session.comparable_reviewers()[:2])
+    pair = next(p for p in pairs if p.comparable and compare_pair(p, qset).n_differences)
+    path = folder.consensus_path(pair.study_id, pair.result_id)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text("{ not json", encoding="utf-8")
+
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_pair(pilot, pair)
+        assert "cannot be read" in str(screen.query_one("#consensus-status").render())
+        await pilot.press("tab", "a")  # refused: no dialog, nothing written
+        await pilot.pause()
+        assert app.screen is screen
+        await pilot.press("c")
+        await pilot.pause()
+    assert path.read_text(encoding="utf-8") == "{ not json"
