@@ -113,6 +113,14 @@ class ReviewFolder:
     def learned_dir(self) -> Path:
         return self.root / "learned"
 
+    def learned_dir_for(self, reviewer: str) -> Path:
+        """The folder of ``reviewer``'s own learned ranker.
+
+        Each reviewer's model learns only from that reviewer's quotes and dismissals, so the
+        suggestions one reviewer sees never carry another reviewer's choices (blinding).
+        """
+        return self.learned_dir / check_id(reviewer, "reviewer")
+
     def assessment_path(self, reviewer: str, study_id: str, result_id: str) -> Path:
         check_id(reviewer, "reviewer")
         return (

@@ -11,6 +11,7 @@ import threading
 import time
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import Any
 
 from robtui.core.model import ReportFile
@@ -54,11 +55,11 @@ def load_report(
     *,
     stage: Callable[[str], None] = lambda _text: None,
     ranker_factory: Callable[[], Any] = shared_ranker,
-    learned: bool = True,
+    learned_dir: Path | None = None,
 ) -> LoadedReport:
     """Read ``report`` from the review folder and rank its sentences for every question.
 
-    ``learned=False`` ranks with the shipped model only (see ReviewSession.may_use_learned).
+    ``learned_dir`` is the reviewer's own learned model (None: the shipped model only).
     """
     loaded = LoadedReport(report)
     problem = folder.check_report(report)
@@ -81,7 +82,8 @@ def load_report(
     loaded.notes.extend(loaded.document.warnings)
     started = time.perf_counter()
     loaded.suggestions = rank_document(
-        folder, loaded.document, effect, stage, ranker_factory, loaded.notes, learned=learned
+        folder, loaded.document, effect, stage, ranker_factory, loaded.notes,
+        learned_dir=learned_dir,
     )
     loaded.seconds["rank"] = time.perf_counter() - started
     try:
@@ -99,7 +101,7 @@ def rank_document(
     ranker_factory: Callable[[], Any] = shared_ranker,
     notes: list[str] | None = None,
     *,
-    learned: bool = True,
+    learned_dir: Path | None = None,
 ) -> dict[str, list[Any]]:
     """Suggestions per question id for ``document`` (empty, with a note, if ranking fails)."""
     notes = notes if notes is not None else []
@@ -111,14 +113,14 @@ def rank_document(
         return {}
     review_model = None
     try:
-        if learned:
+        if learned_dir is not None:
             from robtui.evidence.review_model import load_review_model
 
-            review_model = load_review_model(folder.learned_dir)
+            review_model = load_review_model(learned_dir)
     except ImportError:
         review_model = None
     except RobtuiError as error:
-        notes.append(f"the review's learned model was not used: {error}")
+        notes.append(f"your learned model was not used: {error}")
     try:
         return ranker.rank(
             document, effect=effect, top=SUGGESTIONS_PER_QUESTION, review_model=review_model

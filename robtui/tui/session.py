@@ -166,20 +166,10 @@ class ReviewSession:
         text = f"{since}, now v{self.rules.version}; new rules: {new or 'none that apply'}"
         return text + (f"; withdrawn: {gone}" if gone else "")
 
-    def may_use_learned(self, study_id: str) -> bool:
-        """Whether the review's learned ranker may shape this study's suggestions.
-
-        It learns from every reviewer's quotes and dismissals, so for a study another
-        reviewer has also assessed it could hint at their choices: then only the shipped
-        model ranks. Only the existence of their files is checked, never their content.
-        """
-        for name in self.folder.reviewers_on_disk():
-            if name == self.reviewer:
-                continue
-            for result in self.review.results:
-                if self.folder.assessment_path(name, study_id, result.id).exists():
-                    return False
-        return True
+    @property
+    def learned_dir(self) -> Path:
+        """This reviewer's own learned ranker: it learns from nobody else's quotes (blinding)."""
+        return self.folder.learned_dir_for(self.reviewer)
 
     def load(self, study_id: str, result_id: str) -> AssessmentSession | None:
         """This reviewer's assessment of the result, or None when not started.

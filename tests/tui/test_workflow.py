@@ -110,6 +110,7 @@ async def test_complete_assessment_then_reopen(demo_dir):
         await pilot.press("c")
         await pilot.pause()
         assert screen.session.is_complete
+        await app.workers.wait_for_complete()  # the reviewer's ranker learns in a worker
         await pilot.press("y")  # complete: answers are locked
         await pilot.pause()
         assert screen.session.response("1.1") == "Y"
@@ -120,6 +121,14 @@ async def test_complete_assessment_then_reopen(demo_dir):
     # on disk, exactly as left
     saved = ReviewFolder.open(demo_dir).load_assessment(REVIEWER, study.id, result.id)
     assert saved.status == "complete"
+    # completing taught the reviewer's own ranker: the quote is a positive for 1.3
+    from robtui.evidence.review_model import load_review_model
+
+    learned = load_review_model(ReviewFolder.open(demo_dir).learned_dir_for(REVIEWER))
+    assert any(
+        e.positive and e.key == "1.3" and e.text == saved.answers["1.3"].quotes[0].text
+        for e in learned.examples
+    )
     assert saved.overrides["1"].reason == "small"
     assert saved.answers["1.3"].justification == "alike"
 

@@ -40,7 +40,6 @@ from robtui.tui.widgets.question_list import QuestionList, line_for
 from robtui.tui.widgets.report_view import ReportView
 from robtui.tui.widgets.response_bar import ResponseBar
 
-BLIND_NOTE = "shipped model only: the learned model is left out where others also assess"
 CANDIDATE_NOTE = "Suggestions are candidates ranked by a classifier; you decide."
 JUSTIFICATION_SAVE_DELAY = 0.4  # seconds of quiet typing before the justification is saved
 
@@ -141,7 +140,7 @@ class AssessmentScreen(Screen[None]):
         if not reports:
             self.app.call_from_thread(self._reports_loaded, [])
             return
-        learned = self.session.review_session.may_use_learned(self.session.assessment.study_id)
+        learned_dir = self.session.review_session.learned_dir
         loaded = []
         for report, _problem in reports:
             if worker.is_cancelled:
@@ -154,11 +153,9 @@ class AssessmentScreen(Screen[None]):
                         self.session.effect,
                         stage=lambda text: self.app.call_from_thread(self._stage, text),
                         ranker_factory=self.app.ranker_factory,
-                        learned=learned,
+                        learned_dir=learned_dir,
                     )
                 )
-                if not learned:
-                    loaded[-1].notes.append(BLIND_NOTE)
             except Exception as error:  # noqa: BLE001 - a bad file must not end the session
                 problem = f"{report.path} could not be read ({type(error).__name__}: {error})"
                 loaded.append(LoadedReport(report, problem=problem))
@@ -176,9 +173,7 @@ class AssessmentScreen(Screen[None]):
                     self.session.effect,
                     ranker_factory=self.app.ranker_factory,
                     notes=loaded.notes,
-                    learned=self.session.review_session.may_use_learned(
-                        self.session.assessment.study_id
-                    ),
+                    learned_dir=self.session.review_session.learned_dir,
                 )
         self.app.call_from_thread(self._reports_loaded, self.loaded)
 
@@ -663,6 +658,30 @@ class AssessmentScreen(Screen[None]):
         if self._guard(s.mark_complete):
             self.notify("marked complete")
             self.refresh_form(keep=self.question_id)
+            self.learn_from_completed()
+
+    @work(thread=True, exclusive=True, group="learn")
+    def learn_from_completed(self) -> None:
+        """Teach this reviewer's own ranker from the finished assessment: quotes are
+        positives, dismissed suggestions negatives (never another reviewer's)."""
+        documents = {
+            item.document.sha256: item.document for item in self.loaded if item.document is not None
+        }
+        if not documents:
+            return
+        try:
+            from robtui.evidence.review_model import learn_from_assessment
+
+            learn_from_assessment(
+                self.session.review_session.learned_dir,
+                self.session.assessment,
+                documents,
+                self.app.ranker_factory(),
+            )
+        except Exception as error:  # noqa: BLE001 - learning must never cost the reviewer work
+            self.app.call_from_thread(
+                self.notify, f"your learned model was not updated: {error}", severity="warning"
+            )
 
     def action_next_document(self) -> None:
         if len(self.loaded) > 1:
