@@ -9,6 +9,13 @@ shared answer away), and
 ``[[assessment.override]]`` records a reviewer's override with its reason. Quotes are given
 as text; their offsets are found by searching the report. Proposed judgements are always
 computed by the algorithm.
+
+``[[consensus]]`` blocks give the lead's consensus for one study and result: each entry of
+``[consensus.settle]`` settles one question by taking a reviewer's answer (``take = NAME``)
+or giving a new one (``answer = CODE``), always with a ``note``; ``status = "complete"``
+marks the record complete (refused while a question is still open), ``"draft"`` leaves the
+rest for the lead. Records are made with the comparison module's consensus functions from
+the two reviewers' saved assessments, so their judgements too come from the algorithm.
 """
 
 from __future__ import annotations
@@ -21,6 +28,14 @@ from collections.abc import Mapping
 from pathlib import Path
 
 from robtui.core import assessing
+from robtui.core.comparison import (
+    complete_consensus,
+    differences,
+    pair_assessments,
+    pending_questions,
+    settle,
+    start_consensus,
+)
 from robtui.core.model import ResultSpec
 from robtui.core.questions import QuestionSet, builtin_question_set
 from robtui.errors import DataFileError, InputError, RobtuiError
@@ -31,13 +46,17 @@ from robtui.store.review_folder import ReviewFolder
 DEMO_FILE = Path("demo") / "demo_review.toml"
 DEMO_SCHEMA = 1
 _TOP_KEYS = {
-    "schema_version", "title", "lead", "reviewers", "assessed_at", "study", "result", "assessment",
+    "schema_version", "title", "lead", "reviewers", "assessed_at", "settled_at", "study", "result",
+    "assessment", "consensus",
 }  # fmt: skip
 _BLOCK_KEYS = {"study", "results", "answers", "reviewer", "override"}
 _ANSWER_KEYS = {"code", "why", "quote", "quotes"}
 # Quotes from the PDF when the passage is found there (they then carry a page number).
 QUOTE_ORDER = (".pdf", ".txt")
 _OVERRIDE_KEYS = {"reviewer", "key", "judgement", "reason"}
+_CONSENSUS_KEYS = {"study", "result", "status", "settle"}
+_SETTLE_KEYS = {"take", "answer", "note"}
+CONSENSUS_STATUSES = ("draft", "complete")
 
 
 def demo_source_dir() -> Path:
@@ -111,6 +130,11 @@ def _build(dest: Path, source: Path, data: dict, path: Path) -> None:
                         update={"created": data["assessed_at"], "updated": data["assessed_at"]}
                     )
                 folder.save_assessment(a)
+    for index, block in enumerate(data.get("consensus", []), start=1):
+        record = _consensus(folder, qset, block, path, f"consensus {index}")
+        if "settled_at" in data:  # fixed, like the assessments' times
+            record = record.model_copy(update={"updated": data["settled_at"]})
+        folder.save_consensus(record)
 
 
 def _layers(blocks: list, study_id: str, result_id: str, reviewer: str, path: Path):
@@ -161,3 +185,68 @@ def _assess(folder, qset: QuestionSet, reviewer, study_id, result_id, layers):
     except InputError as error:
         raise InputError(f"{where}: {error}") from None
     return a.model_copy(update={"last_question": None})
+
+
+def _consensus(folder: ReviewFolder, qset: QuestionSet, block: Mapping, path: Path, entry: str):
+    """The lead's consensus record for one ``[[consensus]]`` block, settled question by question
+    through the comparison module (in question order) from both reviewers' saved assessments."""
+    _keys(block, _CONSENSUS_KEYS, path, entry)
+    study_id, result_id = str(block.get("study", "")), str(block.get("result", ""))
+    try:
+        pair = _saved_pair(folder, study_id, result_id)
+        status = block.get("status", "draft")
+        if status not in CONSENSUS_STATUSES:
+            raise InputError(f"status must be one of {', '.join(CONSENSUS_STATUSES)}")
+        record = start_consensus(pair, folder.review.lead, qset)
+        disputed = {q.question_id for q in differences(pair, qset) if q.differs}
+        entries = block.get("settle", {})
+        order = {q.id: i for i, q in enumerate(qset.questions(record.effect))}
+        unknown = sorted(set(entries) - set(order))
+        if unknown:
+            raise InputError(f"unknown question {unknown[0]}")
+        for qid in sorted(entries, key=order.__getitem__):
+            _keys(entries[qid], _SETTLE_KEYS, path, f"{entry}, settle {qid}")
+            record = _settle_one(record, qset, pair, qid, entries[qid], disputed)
+        if status == "complete":
+            record = complete_consensus(record, qset)
+    except InputError as error:
+        raise InputError(f"{entry} ({study_id} / {result_id}): {error}") from None
+    return record
+
+
+def _saved_pair(folder: ReviewFolder, study_id: str, result_id: str):
+    """The two reviewers' (other than the lead) saved assessments of one study and result."""
+    lead = folder.review.lead
+    if not lead:
+        raise InputError("a consensus needs the review's lead: add lead = NAME")
+    folder.study_or_error(study_id)
+    folder.result_or_error(result_id)
+    names = [r for r in folder.review.reviewers if r != lead]
+    if len(names) != 2:
+        raise InputError("a consensus needs exactly two reviewers besides the lead")
+    found = [folder.load_assessment(name, study_id, result_id) for name in names]
+    [pair] = pair_assessments(
+        [found[0]] if found[0] else [],
+        [found[1]] if found[1] else [],
+        reviewer_a=names[0],
+        reviewer_b=names[1],
+        expected=[(study_id, result_id)],
+    )
+    return pair
+
+
+def _settle_one(record, qset, pair, qid: str, entry: Mapping, disputed: set[str]):
+    """Settle one question as the demo description says (take a reviewer, or a new answer)."""
+    if qid not in disputed and qid not in pending_questions(record, qset):
+        raise InputError(f"{qid}: both reviewers gave the same answer: nothing to settle")
+    if ("take" in entry) == ("answer" in entry):
+        raise InputError(f"{qid}: give either take = REVIEWER or answer = CODE")
+    note = entry.get("note", "")
+    if "answer" in entry:
+        return settle(record, qset, qid, "new", entry["answer"], note)
+    sides = {pair.reviewer_a: "a", pair.reviewer_b: "b"}
+    if entry["take"] not in sides:
+        raise InputError(
+            f"{qid}: take = {entry['take']!r}: use {pair.reviewer_a} or {pair.reviewer_b}"
+        )
+    return settle(record, qset, qid, sides[entry["take"]], note=note, pair=pair)

@@ -2,16 +2,21 @@
 
 from __future__ import annotations
 
+import tomllib
 from pathlib import Path
 
 import pytest
 
 from robtui.cli import main
 from robtui.core import assessing
+from robtui.core.algorithm import propose_all
+from robtui.core.comparison import differences, pair_assessments, path_answers, pending_questions
+from robtui.core.model import Consensus
 from robtui.core.questions import builtin_question_set
 from robtui.errors import DataFileError, InputError
-from robtui.store.demo import DEMO_FILE, build_demo_review
+from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir
 from robtui.store.quotes import report_document
+from robtui.store.review_folder import ReviewFolder
 
 QSET = builtin_question_set()
 
@@ -206,3 +211,162 @@ def test_plain_demo_builds_fresh_folder_and_opens_workbench(tmp_path, capsys, mo
     assert folder.parent == tmp_path / "data" / "robtui" / "demo"
     assert f"demo review built in {folder}" in out
     assert (folder / "review.toml").is_file()
+
+
+# -- the lead's consensus records -------------------------------------------------------------
+TINY_CONSENSUS = """
+[[consensus]]
+study = "Fern2019"
+result = "fatigue8"
+status = "complete"
+[consensus.settle]
+"1.2" = { take = "ana", note = "the service is named; how it worked does not change that" }
+"""
+
+
+TINY_NEW_ANSWER = '"2.1" = { answer = "PN", note = "the taste was matched, as the methods say" }'
+TINY_CONSENSUS += TINY_NEW_ANSWER + "\n"
+
+
+def _tiny_with_consensus(tiny_source: Path, text: str = TINY_CONSENSUS) -> None:
+    (tiny_source / DEMO_FILE).write_text(TINY_SPEC + text, encoding="utf-8")
+
+
+def test_tiny_consensus_through_the_consensus_functions(tiny_source: Path, tmp_path: Path):
+    _tiny_with_consensus(tiny_source)
+    folder = build_demo_review(tmp_path / "demo", source=tiny_source)
+    [record], problems = folder.consensus_records()
+    assert problems == []
+    assert record.status == "complete" and record.lead == "lead"
+    assert record.reviewers == ("ana", "ben")
+    assert record.decisions["1.2"].source == "a" and record.decisions["1.2"].response == "Y"
+    assert record.decisions["2.1"].source == "new" and record.decisions["2.1"].response == "PN"
+    assert record.decisions["1.1"].source == "agreed"
+    # 2.1 PN and 2.2 N: 2.3 is not asked (RoB 2 domain 2, effect of assignment), so ben's
+    # PN on it is off the agreed path and nothing is left open.
+    assert "2.3" not in path_answers(QSET, record.effect, record.answers)
+    assert record.proposed == propose_all(
+        QSET, record.effect, path_answers(QSET, record.effect, record.answers)
+    )
+
+
+@pytest.mark.parametrize(
+    "change, message",
+    [
+        (('take = "ana"', 'take = "zoe"'), "use ana or ben"),
+        (('"1.2" = { take', '"1.1" = { take'), "1.1: both reviewers gave the same answer"),
+        (('"2.1" = { answer = "PN"', '"2.1" = { answer = "XX"'), "must be one of"),
+        (('note = "the taste was matched, as the methods say"', 'note = ""'), "needs a note"),
+        ((TINY_NEW_ANSWER, ""), "not finished: settle 2.1"),
+        (('result = "fatigue8"', 'result = "fatigue9"'), "no result 'fatigue9'"),
+        (('status = "complete"', 'status = "done"'), "status must be one of"),
+        (('take = "ana",', 'take = "ana", answer = "Y",'), "either take"),
+        (('"1.2" = { take', '"9.9" = { take'), "unknown question 9.9"),
+    ],
+)
+def test_bad_consensus_description_named(tiny_source: Path, tmp_path: Path, change, message):
+    _tiny_with_consensus(tiny_source, TINY_CONSENSUS.replace(*change))
+    with pytest.raises(DataFileError, match=message) as info:
+        build_demo_review(tmp_path / "demo", source=tiny_source)
+    assert str(tiny_source / DEMO_FILE) in str(info.value)
+    assert "consensus 1 (Fern2019" in str(info.value)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["samples"]  # nothing half-made
+
+
+@pytest.fixture(scope="module")
+def bundled_demo(tmp_path_factory) -> ReviewFolder:
+    return build_demo_review(tmp_path_factory.mktemp("bundled") / "demo")
+
+
+def test_bundled_demo_consensus_records(bundled_demo: ReviewFolder):
+    folder = bundled_demo
+    records, problems = folder.consensus_records()
+    assert problems == []
+    by_key = {(r.study_id, r.result_id): r for r in records}
+    studies = [s.id for s in folder.review.studies]
+    lead = folder.review.lead
+    assert lead == "ines"
+    for study_id in studies:
+        record = by_key[(study_id, "primary-itt")]
+        assert record.status == "complete", study_id
+        assert pending_questions(record, QSET) == []
+    drafts = [r for r in records if r.result_id == "primary-adh"]
+    assert len(drafts) == 1 and drafts[0].status == "draft"
+    settled = [d for d in drafts[0].decisions.values() if d.source != "agreed"]
+    assert settled and pending_questions(drafts[0], QSET)  # some settled, some still open
+    sources = set()
+    for record in records:
+        path = folder.consensus_path(record.study_id, record.result_id)
+        assert Consensus.model_validate_json(path.read_text(encoding="utf-8")) == record
+        assert record.lead == lead
+        assert record.reviewers == tuple(r for r in folder.review.reviewers if r != lead)
+        agreed = path_answers(QSET, record.effect, record.answers)
+        assert record.proposed == propose_all(QSET, record.effect, agreed), "from the algorithm"
+        assert record.final == record.proposed  # no override by the lead in the demo
+        pair = [
+            folder.load_assessment(name, record.study_id, record.result_id)
+            for name in record.reviewers
+        ]
+        differing = {
+            q.question_id
+            for q in differences(pair_assessments([pair[0]], [pair[1]]).pop(), QSET)
+            if q.differs
+        }
+        for qid, decision in record.decisions.items():
+            sources.add(decision.source)
+            if decision.source == "agreed":
+                assert qid not in differing
+                continue
+            assert decision.note.strip(), (record.study_id, qid)
+            if decision.source in ("a", "b"):
+                side = pair[0] if decision.source == "a" else pair[1]
+                taken = path_answers(QSET, side.effect, side.answers).get(qid)
+                assert agreed.get(qid) == taken == decision.response
+            else:
+                assert agreed[qid] == decision.response
+        # every difference on the agreed path of a complete record was settled with a note
+        if record.status == "complete":
+            for qid in differing & set(agreed):
+                assert record.decisions[qid].source != "agreed"
+    assert sources == {"agreed", "a", "b", "new"}
+
+
+def test_consensus_leaves_the_reviewers_files_unchanged(bundled_demo: ReviewFolder, tmp_path):
+    import shutil
+
+    import tomli_w
+
+    source = tmp_path / "samples"
+    shutil.copytree(demo_source_dir(), source)
+    spec = tomllib.loads((source / DEMO_FILE).read_text(encoding="utf-8"))
+    assert spec.pop("consensus")
+    (source / DEMO_FILE).write_text(tomli_w.dumps(spec), encoding="utf-8")
+    plain = build_demo_review(tmp_path / "plain", source=source)
+    assert plain.consensus_records() == ([], [])
+
+    def reviewers_files(folder):
+        root = folder.root / "assessments"
+        return {str(p.relative_to(root)): p.read_bytes() for p in sorted(root.rglob("*"))
+                if p.is_file()}  # fmt: skip
+
+    assert reviewers_files(bundled_demo) == reviewers_files(plain)
+    assert len(reviewers_files(plain)) == 2 * 6 * 2
+
+
+def test_export_of_the_demo_judges_every_study_of_primary_itt(bundled_demo, tmp_path, capsys):
+    import shutil
+
+    root = tmp_path / "demo"
+    shutil.copytree(bundled_demo.root, root)
+    assert main(["export", str(root), "--format", "html", "--result", "primary-itt"]) == 0
+    page = (root / "exports" / "primary-itt.html").read_text(encoding="utf-8")
+    assert "not judged" not in capsys.readouterr().err
+    assert "· Not judged</td>" not in page and 'class="j k-incomplete' not in page
+    for study in bundled_demo.review.studies:
+        assert study.label in page
+    # the traffic-light table's source column: every row from a complete consensus
+    assert page.count('<td class="note">consensus</td>') == len(bundled_demo.review.studies)
+    # the same check fails where the user still has to settle: primary-adh is mostly open
+    assert main(["export", str(root), "--format", "html", "--result", "primary-adh"]) == 0
+    assert "not judged" in capsys.readouterr().err
+    assert "· Not judged</td>" in (root / "exports" / "primary-adh.html").read_text("utf-8")
