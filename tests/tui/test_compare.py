@@ -62,7 +62,14 @@ async def test_lead_settles_every_difference_and_completes_the_consensus(demo_di
     session = ReviewSession(folder, lead)
     a, b = session.comparable_reviewers()[:2]
     pairs, _ = session.comparison_pairs(a, b)
-    pair = next(p for p in pairs if p.comparable and compare_pair(p, qset).n_differences >= 2)
+    # a result the demo's lead has not started a consensus for (the demo settles primary-itt)
+    pair = next(
+        p
+        for p in pairs
+        if p.comparable
+        and compare_pair(p, qset).n_differences >= 2
+        and folder.load_consensus(p.study_id, p.result_id) is None
+    )
     reviewers_before = _files(demo_dir / "assessments")
 
     app = Workbench(demo_dir, lead)
