@@ -31,16 +31,6 @@ def _num(value, pattern: str = "{:.2f}") -> str:
     return "-" if value is None else pattern.format(value)
 
 
-def _pooled_domain_name(qset, domain_id: str) -> str:
-    """A domain's short name; for a domain with variants (domain 2), the part they share,
-    because its judgements are pooled over results of either effect of interest."""
-    names = {qset.domain(domain_id, effect).short_name for effect in qset.effects()}
-    if len(names) == 1:
-        return names.pop()
-    stems = {name.split(" (", 1)[0] for name in names}
-    return stems.pop() if len(stems) == 1 else " / ".join(sorted(names))
-
-
 def format_table(stats: dict, qset) -> list[str]:
     head = (
         f"{'':<28} {'n':>4} {'agree%':>7} {'kappa':>6} {'95% CI':>15} {'w.kappa':>7} "
@@ -59,7 +49,7 @@ def format_table(stats: dict, qset) -> list[str]:
         return line
 
     for key, s in stats["domains"].items():
-        label = "Overall" if key == "overall" else f"D{key} {_pooled_domain_name(qset, key)}"
+        label = "Overall" if key == "overall" else qset.domain_label(key)
         lines.append(row(label[:28], s))
     lines.append("")
     lines.append("Signalling questions (pairs where both reviewers were asked):")

@@ -334,7 +334,7 @@ def run_trend(args: argparse.Namespace) -> int:
     print(f"table written: {table_path} ({len(batches)} batch(es), {len(pairs)} pair(s))")
     if args.plot != "none":
         plot_path = export_path(folder.exports_dir, f"{args.name}.{args.plot}")
-        short = {d: qset.domain(d).short_name for d in qset.domain_ids()}
+        short = {d: qset.domain_short_name(d) for d in qset.domain_ids()}
         write_bytes_atomic(plot_path, render_trend_plot(batches, short, args.plot))
         print(f"plot written: {plot_path}")
     for m in missing:

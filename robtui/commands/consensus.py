@@ -111,7 +111,7 @@ def _summary(record, qset) -> list[str]:
         )
     ]
     for key, value in record.final.items():
-        label = "Overall" if key == "overall" else f"D{key} {qset.domain(key).short_name}"
+        label = "Overall" if key == "overall" else qset.domain_label(key, record.effect)
         proposed = record.proposed.get(key)
         extra = (
             f" (override; algorithm: {judgement_label(proposed)})"

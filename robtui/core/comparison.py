@@ -238,11 +238,10 @@ def differences(pair: AssessmentPair, qset) -> list[QuestionDifference]:
     return [r for r in rows if r.differs] + [r for r in rows if not r.differs]
 
 
-def _judgement_keys(qset) -> list[tuple[str, str]]:
+def _judgement_keys(qset, effect: str | None = None) -> list[tuple[str, str]]:
     keys = []
     for domain_id in qset.domain_ids():
-        domain = qset.domain(domain_id)
-        keys.append((domain_id, f"D{domain_id} {domain.short_name}"))
+        keys.append((domain_id, qset.domain_label(domain_id, effect)))
     keys.append((OVERALL, "Overall"))
     return keys
 
@@ -251,7 +250,7 @@ def judgement_rows(pair: AssessmentPair, qset) -> list[JudgementRow]:
     """Domain and overall judgements of both sides, in order."""
     _require_comparable(pair)
     rows = []
-    for key, label in _judgement_keys(qset):
+    for key, label in _judgement_keys(qset, pair.a.effect):
         over_a, over_b = pair.a.overrides.get(key), pair.b.overrides.get(key)
         rows.append(
             JudgementRow(

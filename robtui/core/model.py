@@ -7,7 +7,7 @@ codes: Y, PY, PN, N, NI, and NA for questions asked "if applicable".
 
 from __future__ import annotations
 
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
@@ -35,7 +35,7 @@ _ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$"
 
 def utc_now() -> datetime:
     """Current time in UTC, to the second (stable in files)."""
-    return datetime.now(timezone.utc).replace(microsecond=0)
+    return datetime.now(UTC).replace(microsecond=0)
 
 
 class Record(BaseModel):
@@ -93,7 +93,7 @@ class Review(Record):
     calibration_studies: list[str] = Field(default_factory=list)
 
     @model_validator(mode="after")
-    def _unique_ids(self) -> "Review":
+    def _unique_ids(self) -> Review:
         for name, ids in (
             ("result", [r.id for r in self.results]),
             ("study", [s.id for s in self.studies]),
@@ -124,7 +124,7 @@ class Quote(Record):
     text: str = Field(min_length=1)
 
     @model_validator(mode="after")
-    def _ordered(self) -> "Quote":
+    def _ordered(self) -> Quote:
         if self.end <= self.start:
             raise ValueError(f"quote end ({self.end}) must be after its start ({self.start})")
         return self

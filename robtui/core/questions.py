@@ -146,6 +146,23 @@ class QuestionSet:
         """Effects of interest the set offers variants for (e.g. assignment, adhering)."""
         return [e for e in EFFECTS if any(d.effect == e for d in self.domains)]
 
+    def domain_short_name(self, domain_id: str, effect: str | None = None) -> str:
+        """A domain's short name for ``effect``; ``effect=None`` pools the variants (e.g.
+        agreement over results of either effect), giving the part of their names they share."""
+        if effect is not None:
+            return self.domain(domain_id, effect).short_name
+        names = sorted({d.short_name for d in self.domains if d.id == domain_id})
+        if not names:
+            self.domain(domain_id)  # raises the usual "no domain" message
+        stems = {name.split(" (", 1)[0] for name in names}
+        if len(names) == 1:
+            return names[0]
+        return stems.pop() if len(stems) == 1 else " / ".join(names)
+
+    def domain_label(self, domain_id: str, effect: str | None = None) -> str:
+        """"D2 Deviations (adhering)"-style label (see domain_short_name)."""
+        return f"D{domain_id} {self.domain_short_name(domain_id, effect)}"
+
     def domain(self, domain_id: str, effect: str = "assignment") -> Domain:
         matches = [d for d in self.domains if d.id == domain_id]
         if not matches:

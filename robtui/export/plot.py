@@ -170,7 +170,7 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
     """The traffic-light table: studies down, domains and overall across."""
     from matplotlib.patches import FancyBboxPatch
 
-    titles = column_titles(qset)
+    titles = column_titles(qset, ex.effect)
     keys = [k for k, _ in ex.columns]
     n = max(len(ex.rows), 1)
     label_w = 2.6
@@ -267,7 +267,7 @@ def render_lights(ex: OutcomeExport, qset, fmt: str) -> bytes:
 
 def render_summary(ex: OutcomeExport, qset, fmt: str) -> bytes:
     """One 100% bar per domain: share of studies (or of weight) at each judgement."""
-    titles = column_titles(qset)
+    titles = column_titles(qset, ex.effect)
     keys = [k for k, _ in ex.columns]
     fig = _figure(8.0, 1.4 + 0.45 * len(keys))
     ax = fig.add_axes((0.27, 0.24, 0.68, 0.66))

@@ -61,9 +61,9 @@ def _columns(qset) -> list[tuple[str, str]]:
     return cols + [(OVERALL, "Overall")]
 
 
-def column_titles(qset) -> dict[str, str]:
-    """Domain key -> "D1 Randomisation" style title (our short names)."""
-    titles = {d: f"D{d} {qset.domain(d).short_name}" for d in qset.domain_ids()}
+def column_titles(qset, effect: str | None = None) -> dict[str, str]:
+    """Domain key -> "D1 Randomisation" style title (our short names) for ``effect``."""
+    titles = {d: qset.domain_label(d, effect) for d in qset.domain_ids()}
     titles[OVERALL] = "Overall"
     return titles
 

@@ -105,7 +105,7 @@ def _notes_by_study(ex: OutcomeExport) -> dict[str, str]:
 
 # -- markdown ----------------------------------------------------------------------------------
 def to_markdown(ex: OutcomeExport, qset) -> str:
-    titles = column_titles(qset)
+    titles = column_titles(qset, ex.effect)
     lines = [f"# Risk of bias: {md(_heading(ex))}", "", f"Review: {md(ex.review_title)}", ""]
     lines += [
         "## Judgements",
@@ -189,7 +189,7 @@ table.support td{vertical-align:top;border-bottom:1px solid #ddd;padding:.3rem .
 
 
 def to_html(ex: OutcomeExport, qset) -> str:
-    titles = column_titles(qset)
+    titles = column_titles(qset, ex.effect)
     css = _CSS % {"outline": OUTLINE}
     styles = "".join(
         f".k-{code}{{background:{sw.fill};color:{sw.ink}}}" for code, sw in SWATCHES.items()
@@ -270,7 +270,7 @@ def to_html(ex: OutcomeExport, qset) -> str:
 
 # -- tex ---------------------------------------------------------------------------------------
 def to_tex(ex: OutcomeExport, qset) -> str:
-    titles = column_titles(qset)
+    titles = column_titles(qset, ex.effect)
     colours = "\n".join(
         f"\\definecolor{{rt{code.replace('_', '')}}}{{HTML}}{{{sw.fill[1:]}}}"
         f"\\definecolor{{rt{code.replace('_', '')}ink}}{{HTML}}{{{sw.ink[1:]}}}"

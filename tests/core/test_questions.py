@@ -226,3 +226,11 @@ def test_bundled_file_round_trip_from_a_copy(tmp_path):
     copy = tmp_path / "copy.toml"
     shutil.copy(src, copy)
     assert load_question_set(copy) == builtin_question_set()
+
+
+def test_domain_labels_follow_the_effect_and_pool_the_variants():
+    qset = builtin_question_set()
+    assert qset.domain_label("2", "assignment") == "D2 Deviations (assignment)"
+    assert qset.domain_label("2", "adhering") == "D2 Deviations (adhering)"
+    assert qset.domain_label("2") == "D2 Deviations"  # pooled over both effects
+    assert qset.domain_label("1") == "D1 Randomisation"
