@@ -40,13 +40,20 @@ def fresh_demo_dir() -> Path:
 
 
 def run(args: argparse.Namespace) -> int:
+    from robtui.errors import InputError
     from robtui.store.demo import build_demo_review
     from robtui.store.review_folder import check_id
 
     if args.reviewer is not None:
         check_id(args.reviewer, "reviewer")
     dest = args.copy_to if args.copy_to is not None else fresh_demo_dir()
-    folder = build_demo_review(dest)
+    try:
+        folder = build_demo_review(dest)
+    except OSError as error:
+        raise InputError(
+            f"cannot build the demo in {dest}: {error.strerror or error}: "
+            "give a new or empty folder you can write to"
+        ) from error
     reviewers = ", ".join(folder.review.reviewers)
     print(
         f"demo review built in {folder.root} (reviewers: {reviewers}; lead: {folder.review.lead})"

@@ -34,15 +34,22 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from robtui.errors import InputError
     from robtui.store.review_folder import ReviewFolder
 
-    folder = ReviewFolder.create(
-        args.folder,
-        args.title,
-        question_set=args.question_set,
-        lead=args.lead,
-        reviewers=args.reviewer,
-    )
+    try:
+        folder = ReviewFolder.create(
+            args.folder,
+            args.title,
+            question_set=args.question_set,
+            lead=args.lead,
+            reviewers=args.reviewer,
+        )
+    except OSError as error:
+        raise InputError(
+            f"cannot make the review folder {args.folder}: {error.strerror or error}: "
+            "choose a folder you can write to"
+        ) from error
     print(f"made review folder {folder.root}")
     print(f"next: robtui study add {folder.root} --id STUDY --label LABEL --report FILE")
     return 0
