@@ -69,15 +69,21 @@ def run(args: argparse.Namespace) -> int:
         name = args.out if len(results) == 1 or not args.out else f"{args.out}-{result_id}"
         outcome = None
         for fmt in formats:
-            paths, outcome = export_outcome(
-                folder,
-                qset,
-                result_id,
-                fmt,
-                name=name,
-                assessments=assessments,
-                consensus=consensus,
-            )
+            try:
+                paths, outcome = export_outcome(
+                    folder,
+                    qset,
+                    result_id,
+                    fmt,
+                    name=name,
+                    assessments=assessments,
+                    consensus=consensus,
+                )
+            except OSError as error:
+                raise InputError(
+                    f"cannot write the {fmt} export of {result_id} in {folder.exports_dir}: "
+                    f"{error.strerror or error}: make sure exports/ is a folder you can write to"
+                ) from error
             for path in paths:
                 print(path)
         if outcome is not None:

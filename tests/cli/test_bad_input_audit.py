@@ -43,3 +43,19 @@ def test_demo_copy_to_a_folder_that_cannot_be_made(tmp_path, capsys):
     assert len(err.strip().splitlines()) == 1
     assert plain.read_text(encoding="utf-8") == "not a folder\n"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["plain.txt"]
+
+
+def test_export_when_exports_is_not_a_folder(tmp_path, capsys):
+    review = tmp_path / "review"
+    assert robtui(capsys, "init", review, "--title", "T", "--reviewer", "ana")[0] == 0
+    added = robtui(capsys, "result", "add", review, "--id", "pain", "--outcome", "Pain")
+    assert added[0] == 0
+    exports = review / "exports"
+    exports.rmdir()
+    exports.write_text("a file where the exports folder should be\n", encoding="utf-8")
+    code, _out, err = robtui(capsys, "export", review, "--format", "csv")
+    assert code == 2
+    assert err.startswith("robtui: cannot write the csv export of pain")
+    assert "make sure exports/ is a folder you can write to" in err
+    assert "Traceback" not in err
+    assert exports.read_text(encoding="utf-8") == "a file where the exports folder should be\n"
