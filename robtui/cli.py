@@ -53,6 +53,16 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return 0
+    except OSError as error:
+        # A folder of the review turned into a file, a full disk, no permission: the user's
+        # environment, not a robtui bug, so one line instead of a traceback.
+        where = error.filename or "a file of the review"
+        print(
+            f"robtui: {where}: {error.strerror or error}: check that the path exists, that "
+            "folders of the review are folders, and that you may write there",
+            file=sys.stderr,
+        )
+        return EXIT_USAGE
 
 
 if __name__ == "__main__":

@@ -59,3 +59,59 @@ def test_export_when_exports_is_not_a_folder(tmp_path, capsys):
     assert "make sure exports/ is a folder you can write to" in err
     assert "Traceback" not in err
     assert exports.read_text(encoding="utf-8") == "a file where the exports folder should be\n"
+
+
+def _review_with_a_result(tmp_path: Path, capsys) -> Path:
+    review = tmp_path / "review"
+    made = robtui(capsys, "init", review, "--title", "T", "--reviewer", "ana", "--reviewer", "ben")
+    assert made[0] == 0
+    assert robtui(capsys, "result", "add", review, "--id", "pain", "--outcome", "Pain")[0] == 0
+    return review
+
+
+def _blocked(folder: Path) -> str:
+    """Replace a folder of the review by a plain file; returns the file's text."""
+    text = "a file where a folder should be\n"
+    if folder.exists():
+        folder.rmdir()
+    folder.parent.mkdir(parents=True, exist_ok=True)
+    folder.write_text(text, encoding="utf-8")
+    return text
+
+
+def test_study_add_when_reports_is_not_a_folder(tmp_path, capsys):
+    review = _review_with_a_result(tmp_path, capsys)
+    report = tmp_path / "trial.txt"
+    report.write_text("An invented trial of a fictional balm.\n", encoding="utf-8")
+    text = _blocked(review / "reports")
+    before = (review / "review.toml").read_text(encoding="utf-8")
+    code, _out, err = robtui(
+        capsys, "study", "add", review, "--id", "S1", "--label", "S 1", "--report", report
+    )
+    assert code == 2
+    assert err.startswith("robtui: ") and "you may write there" in err
+    assert len(err.strip().splitlines()) == 1
+    assert (review / "reports").read_text(encoding="utf-8") == text
+    assert (review / "review.toml").read_text(encoding="utf-8") == before
+
+
+def test_calibrate_trend_and_assess_when_folders_are_files(tmp_path, capsys):
+    review = tmp_path / "demo"
+    assert robtui(capsys, "demo", "--copy-to", review)[0] == 0
+    exports = _blocked(review / "exports")
+    code, _out, err = robtui(capsys, "calibrate", "trend", review)
+    assert code == 2
+    assert err.startswith("robtui: ") and "you may write there" in err
+    assert len(err.strip().splitlines()) == 1
+    assert (review / "exports").read_text(encoding="utf-8") == exports
+    assert "maren" in (review / "review.toml").read_text(encoding="utf-8")
+    for old in (review / "assessments" / "maren").iterdir():
+        old.unlink()
+    mine = _blocked(review / "assessments" / "maren")
+    code, _out, err = robtui(
+        capsys, "assess", review, "--reviewer", "maren", "--study", "ALDER2031",
+        "--result", "primary-itt", "1.1=Y",
+    )  # fmt: skip
+    assert code == 2
+    assert err.startswith("robtui: ") and "you may write there" in err
+    assert (review / "assessments" / "maren").read_text(encoding="utf-8") == mine
