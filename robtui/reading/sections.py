@@ -222,8 +222,11 @@ _ABSTRACT_PHRASES = frozenset(
     }
 )
 # Past this many words, a structured abstract is over: the next top-level heading ends it.
+# Our own setting, no source: chosen above the word limits journals usually set for abstracts
+# (that those limits are lower is from memory).
 ABSTRACT_MAX_WORDS = 450
 
+# Lowest rapidfuzz ratio for a heading to match a vocabulary entry: our own setting, no source.
 FUZZY_CUTOFF = 88.0
 
 # A methods subheading opens a methods subsection only from these sections (a report may lack
