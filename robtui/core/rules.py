@@ -39,7 +39,7 @@ _FALSE_WORDS = {"false", "no", "n", "0"}
 
 
 class QuestionSetLike(Protocol):
-    """What validation needs of engineer Q's QuestionSet."""
+    """What validation needs of a QuestionSet."""
 
     id: str
     version: str

@@ -52,7 +52,10 @@ def review_progress(
             for name in reviewers:
                 a = by_key.get((name, study.id, result.id))
                 if a is None:
-                    rows.append(ProgressRow(study.id, result.id, name, "not started", 0, 0, None))
+                    # a file that exists but did not load is unreadable (listed in problems)
+                    there = folder.assessment_path(name, study.id, result.id).exists()
+                    state = "unreadable" if there else "not started"
+                    rows.append(ProgressRow(study.id, result.id, name, state, 0, 0, None))
                     continue
                 a = assessing.recompute(a, qset)
                 answered, asked = assessment_progress(a, qset)

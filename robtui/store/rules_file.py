@@ -258,8 +258,9 @@ def save_rulebook(
     if previous_text is not None:
         _keep_copy(path, previous_text, expected_version)
     text = rules_to_toml(book)
-    write_text_atomic(path, text)
+    # The history copy first: if it cannot be written, rules.toml is left as it was.
     _keep_copy(path, text, book.version)  # lets a later hand edit be noticed
+    write_text_atomic(path, text)
     return book
 
 

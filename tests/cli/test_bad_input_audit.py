@@ -115,3 +115,17 @@ def test_calibrate_trend_and_assess_when_folders_are_files(tmp_path, capsys):
     assert code == 2
     assert err.startswith("robtui: ") and "you may write there" in err
     assert (review / "assessments" / "maren").read_text(encoding="utf-8") == mine
+
+
+def test_status_shows_an_unreadable_assessment_as_unreadable_and_leaves_it(tmp_path, capsys):
+    review = tmp_path / "demo"
+    assert robtui(capsys, "demo", "--copy-to", review)[0] == 0
+    victim = next((review / "assessments" / "maren").glob("*.json"))
+    victim.write_text("{ broken", encoding="utf-8")
+    code, out, err = robtui(capsys, "status", review, "--reviewer", "maren")
+    study, result = victim.stem.split("--")
+    row = next(line for line in out.splitlines() if line.startswith(study) and result in line)
+    assert "unreadable" in row and "not started" not in row
+    assert str(victim) in out + err  # the problem names the file
+    assert code != 0
+    assert victim.read_text(encoding="utf-8") == "{ broken"

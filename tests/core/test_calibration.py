@@ -1,7 +1,7 @@
 """Calibration rounds: a scripted two-reviewer calibration, kappas checked against scikit-learn.
 
 Reference library: scikit-learn's cohen_kappa_score (Cohen 1960) on the same pairs, and
-engineer A's review_agreement (the `robtui agreement` figures) for consistency.
+comparison.review_agreement (the `robtui agreement` figures) for consistency.
 """
 
 import math
