@@ -170,7 +170,8 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         t0 = time.perf_counter()
         train_docs = [txt_docs[i] for i in train]
         prep = prepare(train_docs, keys, settings, texts)
-        weights = fit_weights(train_docs, keys, settings, texts, prepared=prep)
+        weights = fit_weights(train_docs, keys, settings, texts, prepared=prep,
+                              item_map=mapping.questions)
         ranker = Ranker(weights)
         thresholds.append(weights.no_evidence_threshold)
         # transfer model, leave one question (and those sharing its items) out

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import tempfile
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -29,6 +29,7 @@ class LabelledDocument:
     spans: list[tuple[int, int] | None]  # each sentence's span in the article text (None: lost)
     labels: dict[str, np.ndarray]  # question id -> bool per sentence
     present: dict[str, bool]  # question id -> the article has gold evidence
+    items: dict[str, np.ndarray] = field(default_factory=dict)  # CONSORT item -> bool per sentence
 
 
 def _normalised(text: str) -> tuple[str, list[int]]:
@@ -75,14 +76,18 @@ def label_document(
         spans = align_to_source([s.text for s in document.sentences], article.text)
     else:
         spans = [(s.start, s.end) for s in document.sentences]
-    labels, present = {}, {}
-    for qid, items in mapping.questions.items():
+    def hits(items) -> tuple[bool, np.ndarray]:
         gold = gold_spans(article, items)
-        present[qid] = bool(gold)
-        labels[qid] = np.array(
+        return bool(gold), np.array(
             [span is not None and any(is_hit(span, g) for g in gold) for span in spans], dtype=bool
         )
-    return LabelledDocument(article.id, document, spans, labels, present)
+
+    labels, present, item_labels = {}, {}, {}
+    for qid, items in mapping.questions.items():
+        present[qid], labels[qid] = hits(items)
+    for item in sorted({i for items in mapping.questions.values() for i in items}):
+        item_labels[item] = hits((item,))[1]  # one model per item feeds the questions' models
+    return LabelledDocument(article.id, document, spans, labels, present, item_labels)
 
 
 def text_document(article: Article) -> Document:

@@ -122,6 +122,33 @@ def _in_sections(sections: list[str], expected: tuple[str, ...]) -> tuple[np.nda
             np.array([top_of[s] for s in sections], dtype=float))
 
 
+def neighbour_max(values: np.ndarray, width: int = NEIGHBOUR_WINDOW) -> np.ndarray:
+    """Per row, the largest value among the ``width`` sentences before and after (not itself)."""
+    out = np.zeros_like(values)
+    for by in range(1, width + 1):
+        out = np.maximum(out, np.maximum(_shift(values, by), _shift(values, -by)))
+    return out
+
+
+STACK_PARTS = ("score", "previous", "next", "window")
+
+
+def stacked_features(item_scores: np.ndarray) -> np.ndarray:
+    """(n, 4 * n_items): each CONSORT item model's score (0..1) of the sentence, of the previous
+    and next sentences, and the best within two sentences either side (item-major order).
+
+    Computed for one document at a time, at training and when ranking alike.
+    """
+    n, k = item_scores.shape
+    out = np.zeros((n, len(STACK_PARTS) * k))
+    for j in range(k):
+        v = item_scores[:, j]
+        out[:, 4 * j : 4 * j + 4] = np.column_stack(
+            [v, _shift(v, 1), _shift(v, -1), neighbour_max(v)]
+        )
+    return out
+
+
 def question_features(
     doc: DocumentFeatures, key: str, entry: CueEntry | None, matcher: CueMatcher,
     similarity: np.ndarray,

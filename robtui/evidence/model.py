@@ -47,6 +47,17 @@ class RankerWeights:
     provenance: dict = field(default_factory=dict)
     generic_no_evidence_threshold: float | None = None  # None: use no_evidence_threshold
     warm_words: list[str] = field(default_factory=list)  # frequent words, cached at load
+    # Stacking (optional): one model per CONSORT item over the same lexical and layout
+    # features; its scores (sigmoid) and their neighbours feed the questions' models.
+    item_keys: list[str] = field(default_factory=list)
+    item_lexical: np.ndarray | None = None  # (len(item_keys), n_word + n_char)
+    item_shared: np.ndarray | None = None  # (len(item_keys), len(SHARED_NAMES))
+    item_intercept: np.ndarray | None = None  # (len(item_keys),)
+    stacked: np.ndarray | None = None  # (len(keys), 4 * len(item_keys)); zero: item not used
+
+    @property
+    def n_items(self) -> int:
+        return len(self.item_keys)
 
 
 def save_weights(weights: RankerWeights, path: Path) -> None:
@@ -81,6 +92,14 @@ def save_weights(weights: RankerWeights, path: Path) -> None:
             json.dumps(weights.question_texts, sort_keys=True).encode(), dtype=np.uint8
         ),
     }
+    if weights.n_items:
+        arrays.update({
+            "item_keys": np.frombuffer("\n".join(weights.item_keys).encode(), dtype=np.uint8),
+            "item_lexical": weights.item_lexical.astype(np.float32),
+            "item_shared": weights.item_shared.astype(np.float64),
+            "item_intercept": weights.item_intercept.astype(np.float64),
+            "stacked": weights.stacked.astype(np.float64),
+        })
     buffer = io.BytesIO()
     np.savez_compressed(buffer, **arrays)
     write_bytes_atomic(path, buffer.getvalue())
@@ -145,6 +164,19 @@ def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
     _check(data["generic"].shape == (len(GENERIC_NAMES),), "generic weights shape")
     for name in ("lexical", "shared", "question", "generic", "platt"):
         _check(bool(np.all(np.isfinite(data[name]))), f"{name} holds non-finite values")
+    item_keys, items = [], {}
+    if "item_keys" in data:
+        item_keys = [k for k in data["item_keys"].tobytes().decode().split("\n") if k]
+        m = len(item_keys)
+        items = {name: data[name] for name in ("item_lexical", "item_shared", "item_intercept",
+                                                "stacked")}
+        _check(items["item_lexical"].shape == (m, lexical.shape[1]), "item lexical weights shape")
+        _check(items["item_shared"].shape == (m, len(SHARED_NAMES)), "item shared weights shape")
+        _check(items["item_intercept"].shape == (m,), "item intercepts shape")
+        _check(items["stacked"].shape == (n, 4 * m), "stacked weights shape")
+        for name, values in items.items():
+            _check(bool(np.all(np.isfinite(values))), f"{name} holds non-finite values")
+        items["item_lexical"] = items["item_lexical"].astype(np.float32)
     provenance = {}
     prov_file = provenance_path(path)
     if prov_file.is_file():
@@ -172,4 +204,6 @@ def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
         ),
         warm_words=[w for w in data["warm_words"].tobytes().decode().split("\n") if w]
         if "warm_words" in data else [],
+        item_keys=item_keys,
+        **items,
     )

@@ -25,6 +25,7 @@ from robtui.evidence.features import (
     DocumentFeatures,
     document_features,
     question_features,
+    stacked_features,
 )
 from robtui.evidence.model import RankerWeights, load_weights
 from robtui.reading.document import Document
@@ -87,7 +88,14 @@ class Ranker:
         self.no_evidence_threshold = weights.no_evidence_threshold
         self._row = {key: i for i, key in enumerate(weights.keys)}
         self._n_word = len(weights.word.idf)
-        self._lexical_t = np.ascontiguousarray(weights.lexical.T, dtype=np.float32)
+        # question and item models share one product with the sentences' TF-IDF rows
+        lexical = weights.lexical
+        if weights.n_items:
+            lexical = np.vstack([lexical, weights.item_lexical])
+        self._lexical_t = np.ascontiguousarray(lexical.T, dtype=np.float32)
+        self._shared_t = np.ascontiguousarray(
+            np.vstack([weights.shared, weights.item_shared]) if weights.n_items else weights.shared
+        ).T
         self._question_cache: dict[tuple[str, ...], np.ndarray] = {}
         if weights.warm_words:  # fill the per-word caches now, so the first document is fast
             weights.char.transform([" ".join(weights.warm_words)])
@@ -160,9 +168,13 @@ class Ranker:
             base = (
                 doc.word.dot_columns(self._lexical_t[: self._n_word])
                 + doc.char.dot_columns(self._lexical_t[self._n_word :])
-                + doc.shared @ w.shared.T
+                + doc.shared @ self._shared_t
             )
-            lexical = {row: base[:, row] for row in range(len(w.keys))}
+            n_keys = len(w.keys)
+            if w.n_items:
+                stacked = stacked_features(sigmoid(base[:, n_keys:] + w.item_intercept))
+                base = base[:, :n_keys] + stacked @ w.stacked.T
+            lexical = {row: base[:, row] for row in range(n_keys)}
         out = {}
         for key in keys:
             qf = blocks[key]

@@ -53,6 +53,12 @@ class Settings:
     char_min_df: int = 3
     calibration_folds: int = 3
     seed: int = SEED
+    # Stacking: per-item models (C=item_C, balanced), scored out of fold on the training
+    # articles (item_folds, grouped), feed each question's model the scores of its own RoB 2
+    # domain's items ("domain"), or nothing ("none").
+    stacking: str = "domain"
+    item_C: float = 1.0
+    item_folds: int = 3
 
 
 GRID: tuple[dict, ...] = tuple(
@@ -164,20 +170,78 @@ def _fit_platt(z: np.ndarray, y: np.ndarray, seed: int) -> tuple[float, float]:
     return float(model.coef_[0, 0]), float(model.intercept_[0])
 
 
-def _out_of_fold(prep: Prepared, key: str, settings: Settings, folds: int) -> np.ndarray:
+def _out_of_fold(X, y: np.ndarray, groups: np.ndarray, settings: Settings,
+                 folds: int) -> np.ndarray:
     """Out-of-fold decision values, folds grouped by document (vocabulary shared; see notes)."""
     from sklearn.model_selection import GroupKFold
 
-    z = np.zeros(len(prep.y[key]))
-    n_groups = len(set(prep.groups.tolist()))
-    for train, test in GroupKFold(n_splits=min(folds, n_groups)).split(
-        prep.y[key], groups=prep.groups
-    ):
-        if prep.y[key][train].sum() == 0:
+    z = np.zeros(len(y))
+    n_groups = len(set(groups.tolist()))
+    for train, test in GroupKFold(n_splits=min(folds, n_groups)).split(y, groups=groups):
+        if y[train].sum() == 0:
             continue
-        coef, intercept = fit_key(prep.X[key][train], prep.y[key][train], settings)
-        z[test] = prep.X[key][test] @ coef + intercept
+        coef, intercept = fit_key(X[train], y[train], settings)
+        z[test] = X[test] @ coef + intercept
     return z
+
+
+def stack_plan(keys: Sequence[str], item_map: dict[str, Sequence[str]] | None,
+               settings: Settings) -> dict[str, list[str]]:
+    """Per question, the CONSORT items whose models feed it: those mapped to the questions of
+    its own RoB 2 domain (1.2 thus sees the sequence-generation items of 1.1)."""
+    if not item_map or settings.stacking == "none":
+        return {k: [] for k in keys}
+    if settings.stacking != "domain":
+        raise ValueError(f"unknown stacking {settings.stacking!r}: use domain or none")
+    domain = {k: k.split(".")[0] for k in keys}
+    return {k: sorted({i for o in keys if domain[o] == domain[k] for i in item_map.get(o, ())})
+            for k in keys}
+
+
+@dataclass
+class ItemModels:
+    keys: list[str]
+    coef: np.ndarray  # (len(keys), n_lex + n_shared)
+    intercept: np.ndarray
+    oof_stacked: np.ndarray  # (rows, 4 * len(keys)): stacked features from out-of-fold scores
+
+
+def _per_document(values: np.ndarray, groups: np.ndarray) -> np.ndarray:
+    """stacked_features of each document's rows (rows of a document are contiguous)."""
+    from robtui.evidence.features import stacked_features
+
+    out = np.zeros((values.shape[0], 4 * values.shape[1]))
+    for g in np.unique(groups):
+        rows = np.nonzero(groups == g)[0]
+        out[rows] = stacked_features(values[rows])
+    return out
+
+
+def fit_items(prep: Prepared, items: list[str], settings: Settings) -> ItemModels:
+    """One model per CONSORT item over lexical and layout features, with out-of-fold scores."""
+    X = prep.X[prep.keys[0]][:, : -len(QUESTION_NAMES)]
+    item_settings = Settings(**{**asdict(settings), "C": settings.item_C,
+                                "class_weight": "balanced"})
+    coef = np.zeros((len(items), X.shape[1]))
+    intercept = np.zeros(len(items))
+    oof = np.zeros((X.shape[0], len(items)))
+    for j, item in enumerate(items):
+        y = np.concatenate([d.items[item] for d in prep.docs]).astype(int)
+        coef[j], intercept[j] = fit_key(X, y, item_settings)
+        oof[:, j] = sigmoid(_out_of_fold(X, y, prep.groups, item_settings, settings.item_folds))
+    return ItemModels(items, coef, intercept, _per_document(oof, prep.groups))
+
+
+def _with_stack(X, stacked: np.ndarray | None, columns: list[int]):
+    from scipy.sparse import csr_matrix, hstack
+
+    if stacked is None or not columns:
+        return X
+    return hstack([X, csr_matrix(stacked[:, columns])]).tocsr()
+
+
+def _stack_columns(plan_items: list[str], item_keys: list[str]) -> list[int]:
+    return [4 * item_keys.index(i) + p for i in plan_items if i in item_keys for p in range(4)]
 
 
 def _youden_threshold(top_scores: list[float], present: list[bool]) -> float:
@@ -197,9 +261,20 @@ def _youden_threshold(top_scores: list[float], present: list[bool]) -> float:
 def fit_weights(
     docs: list[LabelledDocument], keys: list[str], settings: Settings, texts: dict[str, str],
     *, calibrate: bool = True, prepared: Prepared | None = None, provenance: dict | None = None,
+    item_map: dict[str, Sequence[str]] | None = None,
 ) -> RankerWeights:
-    """Train every mapped question's model (and the transfer model) on ``docs``."""
+    """Train every mapped question's model (and the transfer model) on ``docs``.
+
+    With ``item_map`` (question -> CONSORT items) and stacking on, per-item models are trained
+    first and their out-of-fold scores feed the questions' models (see stack_plan).
+    """
     prep = prepared or prepare(docs, keys, settings, texts)
+    plan = stack_plan(keys, item_map, settings)
+    wanted = sorted({i for its in plan.values() for i in its})
+    y_of = {i: np.concatenate([d.items.get(i, np.zeros(0, bool)) for d in prep.docs])
+            for i in wanted}
+    usable = [i for i in wanted if len(y_of[i]) == len(prep.groups) and y_of[i].sum() > 0]
+    items = fit_items(prep, usable, settings) if usable else None
     space = prep.space.weights
     n_lex = len(space.word.idf) + len(space.char.idf)
     n_sh = len(SHARED_NAMES)
@@ -209,14 +284,20 @@ def fit_weights(
     question = np.zeros((len(trained), len(QUESTION_NAMES)))
     intercept = np.zeros(len(trained))
     platt = np.tile([1.0, 0.0], (len(trained), 1))
+    item_keys = items.keys if items else []
+    stacked = np.zeros((len(trained), 4 * len(item_keys)))
     tops: list[float] = []
     present: list[bool] = []
+    n_q = len(QUESTION_NAMES)
     for r, key in enumerate(trained):
-        coef, b = fit_key(prep.X[key], prep.y[key], settings)
+        columns = _stack_columns(plan[key], item_keys)
+        X = _with_stack(prep.X[key], items.oof_stacked if items else None, columns)
+        coef, b = fit_key(X, prep.y[key], settings)
         lexical[r], shared[r] = coef[:n_lex], coef[n_lex : n_lex + n_sh]
-        question[r], intercept[r] = coef[n_lex + n_sh :], b
+        question[r], intercept[r] = coef[n_lex + n_sh : n_lex + n_sh + n_q], b
+        stacked[r, columns] = coef[n_lex + n_sh + n_q :]
         if calibrate:
-            z = _out_of_fold(prep, key, settings, settings.calibration_folds)
+            z = _out_of_fold(X, prep.y[key], prep.groups, settings, settings.calibration_folds)
             platt[r] = _fit_platt(z, prep.y[key], settings.seed)
             p = sigmoid(platt[r, 0] * z + platt[r, 1])
             for number, doc in enumerate(prep.docs):
@@ -234,6 +315,11 @@ def fit_weights(
         question_texts=dict(texts), provenance=provenance or {},
         generic_no_evidence_threshold=generic_cut,
         warm_words=_frequent_words(prep.docs),
+        item_keys=list(item_keys),
+        item_lexical=items.coef[:, :n_lex] if items else None,
+        item_shared=items.coef[:, n_lex:] if items else None,
+        item_intercept=items.intercept if items else None,
+        stacked=stacked if items else None,
     )
 
 
@@ -368,13 +454,20 @@ def train(
                              "selection": "macro recall@1, then MRR", "grid": table},
         "calibration": f"Platt scaling on {settings.calibration_folds}-fold grouped "
                        "out-of-fold scores (vocabulary of the full training set)",
+        "stacking": (f"{settings.stacking}: per-CONSORT-item logistic regressions (C="
+                     f"{settings.item_C}, balanced) over the same lexical and layout features; "
+                     f"their {settings.item_folds}-fold grouped out-of-fold scores (sentence, "
+                     "previous, next, best within 2) feed each question's model, the items of "
+                     "the questions of its own RoB 2 domain; the settings grid above is scored "
+                     "without stacking"),
         "untrained_questions": "transfer model over question-relative features "
                                "(cue lexicon, question wording similarity, expected section)",
         "libraries": _versions(),
         "date": dt.date.today().isoformat(),
         "seed": settings.seed,
     }
-    weights = fit_weights(docs, keys, settings, texts, provenance=provenance)
+    weights = fit_weights(docs, keys, settings, texts, provenance=provenance,
+                          item_map=mapping.questions)
     save_weights(weights, out)
     log(f"wrote {out} (no-evidence threshold {weights.no_evidence_threshold:.3f})")
     return weights

@@ -22,7 +22,9 @@ def test_rerun_reproduces_identical_weights(tmp_path):
     a, b = (load_weights(p) for p in paths)
     assert a.keys == b.keys and len(a.keys) >= 5
     assert a.word.vocabulary == b.word.vocabulary and a.char.vocabulary == b.char.vocabulary
-    for name in ("lexical", "shared", "question", "intercept", "platt", "generic"):
+    assert a.item_keys == b.item_keys and a.n_items >= 2  # stacking on CONSORT item models
+    for name in ("lexical", "shared", "question", "intercept", "platt", "generic",
+                 "item_lexical", "item_shared", "item_intercept", "stacked"):
         np.testing.assert_array_equal(getattr(a, name), getattr(b, name))
     assert np.abs(a.lexical).sum() > 0
     assert a.no_evidence_threshold == b.no_evidence_threshold
