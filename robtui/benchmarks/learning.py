@@ -41,19 +41,21 @@ def _figures(ranks: list[dict[str, int | None]]) -> tuple[float, float]:
     return float(np.mean(r1)), float(np.mean(mrr))
 
 
-def simulate(train_docs, review_docs, keys, texts, settings, window: int, step: int):
+def simulate(train_docs, review_docs, keys, texts, settings, window: int, step: int,
+             item_map=None):
     """Curve of (articles learned, examples, shipped r@1, blended r@1, shipped MRR, blended MRR)."""
     from robtui.evidence.metrics import first_hit_rank
     from robtui.evidence.ranker import Ranker
     from robtui.evidence.review_model import (
         PASSED_OVER,
         PASSED_OVER_WEIGHT,
+        QUOTE_WEIGHT,
         LearnedExample,
         update_review_model,
     )
     from robtui.evidence.train import fit_weights
 
-    ranker = Ranker(fit_weights(train_docs, keys, settings, texts))
+    ranker = Ranker(fit_weights(train_docs, keys, settings, texts, item_map=item_map))
     shipped = []
     for doc in review_docs:
         feats = ranker.features(doc.document)
@@ -99,7 +101,7 @@ def simulate(train_docs, review_docs, keys, texts, settings, window: int, step: 
                 negatives.append(LearnedExample(key, sentence_texts[learned][i], False, 1.0,
                                                 float(base[i])))
             gold = np.nonzero(doc.labels[key])[0][:3]
-            positives.extend(LearnedExample(key, sentence_texts[learned][i], True, 1.0,
+            positives.extend(LearnedExample(key, sentence_texts[learned][i], True, QUOTE_WEIGHT,
                                             float(base[i])) for i in gold)
             if len(gold):  # the reviewer found the evidence: what else scored high was passed over
                 passed = [int(i) for i in np.argsort(-base, kind="stable")
@@ -142,8 +144,10 @@ def main(argv: list[str] | None = None) -> int:
     print(f"{len(docs)} articles read in {time.perf_counter() - t0:.1f} s; each half in turn is "
           f"the review, the other half trains the 'shipped' model; figures on the next "
           f"{args.window} unseen articles, averaged over the two turns\n")
-    curves = [simulate(second, first, keys, texts, settings, args.window, args.step),
-              simulate(first, second, keys, texts, settings, args.window, args.step)]
+    curves = [simulate(second, first, keys, texts, settings, args.window, args.step,
+                       mapping.questions),
+              simulate(first, second, keys, texts, settings, args.window, args.step,
+                       mapping.questions)]
     steps = min(len(c) for c in curves)
     print("articles  examples   recall@1 shipped  recall@1 blended   MRR shipped  MRR blended")
     table = []

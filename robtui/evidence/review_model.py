@@ -29,7 +29,11 @@ FILE_NAME = "evidence-review-model.json"
 SCHEMA_VERSION = 1
 HASH_BITS = 18
 L2 = 0.3  # penalty; 0.03-3 tried in `robtui bench learning`: differences within noise there
-BLEND = 1.0  # weight of the review model's decision value in the blended log-odds
+BLEND = 1.0  # largest weight of the review model's decision value in the blended log-odds
+# The weight grows with the question's full-weight examples (quotes, dismissals): n / (n + HALF),
+# so a handful of marks cannot overturn the shipped model (tried in `robtui bench learning`).
+BLEND_HALF = 10.0
+QUOTE_WEIGHT = 2.0  # a quoted sentence counts as this many examples (a deliberate mark)
 # A sentence the reviewer already marked for this question (same words) is moved by this much
 # log-odds: a dismissed suggestion should not come back first, a quoted one should stay on top.
 MEMORY = 4.0
@@ -56,6 +60,11 @@ class ReviewModel:
     def count(self, key: str) -> int:
         return sum(1 for e in self.examples if e.key == key)
 
+    def blend(self, key: str) -> float:
+        """Weight of the review model for ``key``: grows with its quotes and dismissals."""
+        n = sum(1 for e in self.examples if e.key == key and e.weight >= 1.0)
+        return BLEND * n / (n + BLEND_HALF) if BLEND_HALF > 0 else BLEND
+
     def logit(self, key: str, texts: Sequence[str]) -> np.ndarray:
         """The review model's contribution to each text's log-odds for ``key`` (0 if untrained)."""
         out = np.zeros(len(texts))
@@ -63,10 +72,11 @@ class ReviewModel:
         if not marked:
             return out
         w = self.weights.get(key, {})
+        blend = self.blend(key)
         for i, text in enumerate(texts):
             feats = hashed_features(text)
             if w and feats:
-                out[i] = BLEND * sum(w.get(j, 0.0) for j in feats) / np.sqrt(len(feats))
+                out[i] = blend * sum(w.get(j, 0.0) for j in feats) / np.sqrt(len(feats))
             seen = marked.get(_normal(text))
             if seen is not None:
                 out[i] += MEMORY if seen else -MEMORY
@@ -172,7 +182,8 @@ def examples_from_assessment(assessment, documents: Mapping[str, object], ranker
         for spans, out, positive in ((spans_q, positives, True), (spans_d, negatives, False)):
             for start, end, text in spans:
                 if text.strip():
-                    out.append(LearnedExample(key, text, positive, 1.0,
+                    out.append(LearnedExample(key, text, positive,
+                                              QUOTE_WEIGHT if positive else 1.0,
                                               _offset_at(doc, base, start, end)))
         if spans_q and doc is not None and base is not None:
             marked = [(a, b) for a, b, _ in spans_q + spans_d]

@@ -126,3 +126,20 @@ def test_learn_from_assessment_saves_and_reloads(tmp_path, ranker):
     assert reloaded.examples == model.examples and reloaded.count("1.2") >= 2
     again = learn_from_assessment(learned, assessment, {doc.sha256: doc}, ranker)
     assert len(again.examples) == len(model.examples)  # the same marks are not counted twice
+
+
+def test_blend_weight_grows_with_the_questions_marks_and_ignores_weak_negatives():
+    from robtui.evidence.review_model import BLEND, BLEND_HALF
+
+    few = update_review_model(None, [("1.2", "zorblat box")], [("1.2", "weather mild")])
+    more = update_review_model(
+        few, [("1.2", f"zorblat token {i}") for i in range(8)],
+        [("1.2", f"height measured {i}") for i in range(8)],
+    )
+    weak = update_review_model(
+        few, [], [LearnedExample("1.2", f"passed over {i}", False, 0.3) for i in range(30)]
+    )
+    assert few.blend("1.2") == pytest.approx(BLEND * 2 / (2 + BLEND_HALF))
+    assert few.blend("1.2") < more.blend("1.2") < BLEND
+    assert weak.blend("1.2") == few.blend("1.2")  # passed-over sentences do not count
+    assert few.blend("2.1") == 0.0
