@@ -34,14 +34,28 @@ class SparseRows:
         """``self @ weights.T`` for a dense (n_models, n_cols) weight matrix -> (n_rows, n_models)."""
         return self.dot_columns(np.ascontiguousarray(weights.T))
 
-    def dot_columns(self, columns: np.ndarray) -> np.ndarray:
-        """``self @ columns`` for a dense (n_cols, n_models) matrix (rows gathered contiguously)."""
+    def dot_columns(self, columns: np.ndarray, chunk: int = 8192) -> np.ndarray:
+        """``self @ columns`` for a dense (n_cols, n_models) matrix (rows gathered contiguously).
+
+        Rows are taken in blocks of about ``chunk`` stored values, so the gathered block stays
+        small (in cache) however many models there are.
+        """
         out = np.zeros((self.n_rows, columns.shape[1]), dtype=np.float64)
         if len(self.indices) == 0:
             return out
-        products = columns[self.indices] * self.data[:, None].astype(columns.dtype)
-        nonempty = np.diff(self.indptr) > 0
-        out[nonempty] = np.add.reduceat(products, self.indptr[:-1][nonempty], axis=0)
+        indptr = self.indptr
+        row = 0
+        while row < self.n_rows:
+            end = int(np.searchsorted(indptr, indptr[row] + chunk, side="right")) - 1
+            end = min(max(end, row + 1), self.n_rows)
+            lo, hi = int(indptr[row]), int(indptr[end])
+            if hi > lo:
+                products = columns[self.indices[lo:hi]]
+                products *= self.data[lo:hi, None].astype(columns.dtype)
+                starts = indptr[row:end] - lo
+                nonempty = np.diff(indptr[row : end + 1]) > 0
+                out[row:end][nonempty] = np.add.reduceat(products, starts[nonempty], axis=0)
+            row = end
         return out
 
     def to_scipy(self):
