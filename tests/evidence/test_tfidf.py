@@ -48,3 +48,20 @@ def test_sparse_dot_matches_dense():
     rows = table.transform(SAMPLE)
     weights = np.random.default_rng(0).normal(size=(3, rows.n_cols))
     np.testing.assert_allclose(rows.dot(weights), rows.to_scipy().toarray() @ weights.T)
+
+
+def test_dot_columns_in_row_blocks_equals_scipy():
+    import numpy as np
+    from scipy.sparse import random as sparse_random
+
+    from robtui.evidence.tfidf import SparseRows
+
+    matrix = sparse_random(60, 300, density=0.05, format="lil", random_state=3)
+    matrix[4, :] = 0  # an empty row
+    matrix = matrix.tocsr()
+    rows = SparseRows(matrix.indptr.astype(np.int64), matrix.indices.astype(np.int64),
+                      matrix.data, 300)
+    columns = np.random.default_rng(3).normal(size=(300, 7)).astype(np.float32)
+    for chunk in (1, 5, 64, 10**6):
+        np.testing.assert_allclose(rows.dot_columns(columns, chunk=chunk), matrix @ columns,
+                                   rtol=1e-5, atol=1e-5)
