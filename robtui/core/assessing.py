@@ -158,9 +158,13 @@ def set_response(
                 f"{question_id} is not asked with the answers so far ({condition}): "
                 "answer or change the earlier questions first"
             )
+    return _with_answer(a, qset, question_id, response=response)
+
+
+def _with_answer(a: Assessment, qset: QuestionSet, question_id: str, **update) -> Assessment:
+    """A copy of ``a`` whose answer to ``question_id`` has the fields in ``update`` changed."""
     answers = dict(a.answers)
-    old = answers.get(question_id, Answer())
-    answers[question_id] = old.model_copy(update={"response": response})
+    answers[question_id] = answers.get(question_id, Answer()).model_copy(update=update)
     return _changed(a, qset, answers=answers, last_question=question_id)
 
 
@@ -168,23 +172,18 @@ def set_justification(a: Assessment, qset: QuestionSet, question_id: str, text: 
     """Set the free-text justification of an answer."""
     _editable(a)
     _question(a, qset, question_id)
-    answers = dict(a.answers)
-    old = answers.get(question_id, Answer())
-    answers[question_id] = old.model_copy(update={"justification": text})
-    return _changed(a, qset, answers=answers, last_question=question_id)
+    return _with_answer(a, qset, question_id, justification=text)
 
 
 def add_quote(a: Assessment, qset: QuestionSet, question_id: str, quote: Quote) -> Assessment:
     """Attach a supporting quote to an answer (a quote already attached is not repeated)."""
     _editable(a)
     _question(a, qset, question_id)
-    answers = dict(a.answers)
-    old = answers.get(question_id, Answer())
+    old = a.answers.get(question_id, Answer())
     if quote in old.quotes:
         return a
     quotes = [*old.quotes, Quote.model_validate(quote.model_dump())]
-    answers[question_id] = old.model_copy(update={"quotes": quotes})
-    return _changed(a, qset, answers=answers, last_question=question_id)
+    return _with_answer(a, qset, question_id, quotes=quotes)
 
 
 def remove_quote(a: Assessment, qset: QuestionSet, question_id: str, index: int) -> Assessment:
@@ -196,11 +195,8 @@ def remove_quote(a: Assessment, qset: QuestionSet, question_id: str, index: int)
         raise InputError(
             f"{question_id} has {len(old.quotes)} quote(s); there is no quote number {index + 1}"
         )
-    answers = dict(a.answers)
-    answers[question_id] = old.model_copy(
-        update={"quotes": [q for i, q in enumerate(old.quotes) if i != index]}
-    )
-    return _changed(a, qset, answers=answers, last_question=question_id)
+    quotes = [q for i, q in enumerate(old.quotes) if i != index]
+    return _with_answer(a, qset, question_id, quotes=quotes)
 
 
 def set_effect(a: Assessment, qset: QuestionSet, effect: str) -> Assessment:
