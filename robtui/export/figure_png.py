@@ -34,6 +34,11 @@ def _rgb(colour: str) -> tuple[int, int, int]:
     return tuple(round(c * 255) for c in hex_to_rgb(colour))  # type: ignore[return-value]
 
 
+def _mix(top, below, t: float) -> tuple[int, int, int]:
+    """``top`` over ``below`` at coverage t (0..1), as anti-aliasing blends them."""
+    return tuple(round(b + (f - b) * t) for f, b in zip(top, below))  # type: ignore[return-value]
+
+
 def _font_path(bold: bool) -> Path | None:
     name = _FONT_FILES[bold]
     spec = find_spec("matplotlib")  # finds the package without importing it
@@ -245,17 +250,80 @@ def _solid(colour: tuple[int, int, int], w: int, h: int):
     return Image.new("RGB", (w, h), colour)
 
 
-class _Canvas:
-    """The image being painted, and which colour was blended over which (for the palette)."""
+RGB = tuple[int, int, int]
 
-    def __init__(self, fig: Figure):
+
+def _figure_colours(fig: Figure) -> set[RGB]:
+    found = {fig.background}
+    for item in fig.items:
+        if isinstance(item, Box):
+            found |= {c for c in (item.fill, item.stroke) if c}
+            if item.hatch is not None:
+                found.add(item.hatch.colour)
+        elif isinstance(item, Label | Line):
+            found.add(item.colour)
+        elif isinstance(item, Dot):
+            found.add(item.fill)
+    return {_rgb(c) for c in found}
+
+
+def _palette_indices(entries: list[RGB]) -> list[int]:
+    """The palette entry Pillow picks for a pixel of each colour of ``entries``."""
+    from PIL import Image
+
+    holder = Image.new("P", (1, 1))
+    holder.putpalette([v for c in entries for v in c])
+    probe = Image.new("RGB", (len(entries), 1))
+    probe.putdata(entries)
+    found = probe.quantize(palette=holder, dither=Image.Dither.NONE)
+    return [found.getpixel((i, 0)) for i in range(len(entries))]
+
+
+def _stand_ins(colours: set[RGB], keep: RGB) -> dict[RGB, RGB] | None:
+    """A colour to paint for each figure colour, such that each finds its own palette entry.
+
+    The image is painted in these and stored with the true colours in the palette. Pillow
+    finds a pixel's palette entry through a cache of 64 levels per channel (the entry nearest
+    to the cache cell's corner, not to the pixel), so two colours as close as white and the
+    near-white of "not judged" (5 levels apart) would share one; the one that is not ``keep``
+    (the background) is moved away from the other in steps of 4 levels until each has its
+    own. None when that does not settle (then the image is stored in RGB)."""
+    stand = {c: c for c in colours}
+    for _ in range(32):
+        base = sorted(stand.values())
+        wrong = [(base[i], base[j]) for i, j in enumerate(_palette_indices(base)) if i != j]
+        if not wrong:
+            return stand
+        for c, taken in wrong:
+            mover, other = (taken, c) if c == stand[keep] else (c, taken)
+            moved = tuple(
+                min(255, max(0, m + 4 * ((m > o) - (m < o)))) for m, o in zip(mover, other)
+            )
+            if moved == mover:
+                return None
+            owner = next(t for t, p in stand.items() if p == mover)
+            stand[owner] = moved  # type: ignore[assignment]
+    return None
+
+
+class _Canvas:
+    """The image being painted (in stand-in colours, see _stand_ins), and which colour was
+    blended over which (for the palette)."""
+
+    def __init__(self, fig: Figure, stand_ins: dict[RGB, RGB]):
         from PIL import Image, ImageDraw
 
+        self.true = stand_ins
+        self.back = {p: t for t, p in self.true.items()}
         size = (math.ceil(fig.width * SCALE), math.ceil(fig.height * SCALE))
-        self.im = Image.new("RGB", size, _rgb(fig.background))
+        self.im = Image.new("RGB", size, self.ink(fig.background))
         self.draw = ImageDraw.Draw(self.im)
-        self.colours = {_rgb(fig.background)}
-        self.blends: set[tuple[tuple[int, int, int], tuple[int, int, int]]] = set()
+        self.colours = {self.ink(fig.background)}
+        self.blends: set[tuple[RGB, RGB]] = set()
+
+    def ink(self, colour: str) -> RGB:
+        """The stand-in painted for a figure colour."""
+        return self.true[_rgb(colour)]
 
     def under(self, x: int, y: int) -> tuple[int, int, int]:
         x = min(max(x, 0), self.im.width - 1)
@@ -278,7 +346,7 @@ class _Canvas:
         outside = self.under(at[0], at[1])
         inside = outside
         if b.fill:
-            inside = _rgb(b.fill)
+            inside = self.ink(b.fill)
             self.paint(inside, at, fill, [outside])
         if b.hatch is not None:
             from PIL import ImageChops
@@ -286,15 +354,15 @@ class _Canvas:
             mask = _hatch_mask(b.hatch, x0, y0, w, h)
             if b.radius:
                 mask = ImageChops.multiply(mask, fill.crop((pad, pad, pad + w, pad + h)))
-            self.paint(_rgb(b.hatch.colour), (x0, y0, x0 + w, y0 + h), mask, [inside])
+            self.paint(self.ink(b.hatch.colour), (x0, y0, x0 + w, y0 + h), mask, [inside])
         if outline is not None:
-            self.paint(_rgb(b.stroke), at, outline, [outside, inside])
+            self.paint(self.ink(b.stroke), at, outline, [outside, inside])
 
     def dot(self, d: Dot) -> None:
         mask, half = _dot_mask(round(d.r * SCALE, 2))
         cx, cy = round(d.cx * SCALE), round(d.cy * SCALE)
         box = (cx - half, cy - half, cx + half, cy + half)
-        self.paint(_rgb(d.fill), box, mask, [self.under(box[0], box[1])])
+        self.paint(self.ink(d.fill), box, mask, [self.under(box[0], box[1])])
 
     def label(self, t: Label) -> None:
         if not t.text:
@@ -302,12 +370,12 @@ class _Canvas:
         mask, left, top = _text_mask(t.text, t.size, t.bold, t.anchor)
         x, y = round(t.x * SCALE) + left, round(t.y * SCALE) + top
         below = self.under(x + mask.width // 2, y + mask.height // 2)
-        self.paint(_rgb(t.colour), (x, y, x + mask.width, y + mask.height), mask, [below])
+        self.paint(self.ink(t.colour), (x, y, x + mask.width, y + mask.height), mask, [below])
 
     def line(self, line: Line) -> None:
         t = line.width * SCALE
         x1, y1, x2, y2 = (v * SCALE for v in (line.x1, line.y1, line.x2, line.y2))
-        colour = _rgb(line.colour)
+        colour = self.ink(line.colour)
         self.colours.add(colour)
         thick = max(1, round(t))
         if y1 == y2:  # axis-aligned lines sit on the pixel grid: sharp, nothing to blend
@@ -321,34 +389,46 @@ class _Canvas:
         else:
             self.draw.line((x1, y1, x2, y2), fill=colour, width=thick)
 
-    def palette(self) -> list[int]:
-        """The flat colours, then evenly spaced blends of each painted pair: at most 256."""
+    def palettes(self) -> tuple[list[RGB], list[RGB]]:
+        """(painted, true): the flat colours, then evenly spaced blends of each painted pair,
+        at most 256; the first list in stand-in colours, the second in the figure's own.
+        Blends within 10 levels of a flat colour are left out, so they cannot capture the
+        flat colour's pixels."""
         base = sorted(self.colours)
         levels = max(2, min(16, (256 - len(base)) // max(1, len(self.blends)) + 1))
-        entries, seen = list(base), set(base)
+        painted, true, seen = list(base), [self.back[c] for c in base], set(base)
         for top, below in sorted(self.blends):
             for i in range(1, levels):
-                c = tuple(round(b + (f - b) * i / levels) for f, b in zip(top, below))
-                if c not in seen:
-                    seen.add(c)
-                    entries.append(c)
-        return [v for c in entries[:256] for v in c]
+                c = _mix(top, below, i / levels)
+                if c in seen or any(max(abs(x - y) for x, y in zip(c, b)) < 10 for b in base):
+                    continue
+                seen.add(c)
+                painted.append(c)
+                true.append(_mix(self.back[top], self.back[below], i / levels))
+        return painted[:256], true[:256]
 
-    def encode(self) -> bytes:
+    def encode_indexed(self) -> bytes:
+        """The image as a palette PNG, the stand-ins replaced by the true colours."""
         from PIL import Image
 
+        painted, true = self.palettes()
         holder = Image.new("P", (1, 1))
-        holder.putpalette(self.palette())
-        # each pixel to its nearest palette colour: edges land on the blend of their pair
+        holder.putpalette([v for c in painted for v in c])
+        # each pixel to its nearest palette colour: edges land on a blend of their pair
         indexed = self.im.quantize(palette=holder, dither=Image.Dither.NONE)
+        indexed.putpalette([v for c in true for v in c])
         out = io.BytesIO()
         indexed.save(out, format="PNG", compress_level=COMPRESSION, dpi=(DPI, DPI))
         return out.getvalue()
 
+    def encode_rgb(self) -> bytes:
+        out = io.BytesIO()
+        self.im.save(out, format="PNG", compress_level=COMPRESSION, dpi=(DPI, DPI))
+        return out.getvalue()
 
-def render_png(fig: Figure) -> bytes:
-    """The figure as a PNG image at 300 ppi (its physical size is the figure's, in points)."""
-    canvas = _Canvas(fig)
+
+def _paint(fig: Figure, stand_ins: dict[RGB, RGB]) -> _Canvas:
+    canvas = _Canvas(fig, stand_ins)
     for item in fig.items:
         if isinstance(item, Box):
             canvas.box(item)
@@ -358,4 +438,14 @@ def render_png(fig: Figure) -> bytes:
             canvas.line(item)
         elif isinstance(item, Dot):
             canvas.dot(item)
-    return canvas.encode()
+    return canvas
+
+
+def render_png(fig: Figure) -> bytes:
+    """The figure as a PNG image at 300 ppi (its physical size is the figure's, in points):
+    with a palette, or in RGB when the figure's colours do not settle into one."""
+    colours = _figure_colours(fig)
+    stand_ins = _stand_ins(colours, _rgb(fig.background))
+    if stand_ins is None:
+        return _paint(fig, {c: c for c in colours}).encode_rgb()
+    return _paint(fig, stand_ins).encode_indexed()
