@@ -5,9 +5,12 @@ source). Rounded corners, dashed outlines, dots and hatching are drawn 4x larger
 masks and reduced, then painted in their colour through the mask; masks of repeated shapes
 (every tile of a judgement) are made once. Text is drawn by FreeType in DejaVu Sans (the copy
 that comes with matplotlib, else the system's, else Pillow's own font), scaled down where
-needed to the Helvetica width the layout planned. The image is stored with a palette (the
-figures use a few flat colours and their edge blends; Pillow maps each pixel to the nearest
-of the 256 most frequent colours), which makes it several times faster to encode than RGB.
+needed to the Helvetica width the layout planned.
+
+The image is stored with a palette: the figure's flat colours, then blends of each pair of
+colours painted over one another (the anti-aliased edges), each pixel mapped to its nearest
+entry. Flat colours stay exact; an edge pixel may move by a few levels. On the 100-study
+table this encodes in 45 ms instead of 278 ms for RGB, and the file is half the size.
 """
 
 from __future__ import annotations
@@ -26,7 +29,9 @@ from robtui.export.text_metrics import text_width
 DPI = 300
 SCALE = DPI / 72.0  # pixels per point
 SUPER = 4  # supersampling factor of shape masks
-COMPRESSION = 1  # zlib level: speed over size (level 6 makes files ~20% smaller, 4x slower)
+# zlib level: on the 100-study table level 3 took 45 ms for 564 kB, level 1 52 ms / 638 kB,
+# level 6 104 ms / 432 kB (measured here with Pillow 13)
+COMPRESSION = 3
 _FONT_FILES = {False: "DejaVuSans.ttf", True: "DejaVuSans-Bold.ttf"}
 
 

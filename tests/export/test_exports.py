@@ -193,8 +193,8 @@ def test_markup_escapes_quotes():
 
 
 def test_figures_take_awkward_user_text(tmp_path):
-    # "$" would start matplotlib mathematics; newlines, tabs and characters missing from the
-    # font must not break the figure
+    # "$", newlines, tabs and characters missing from the fonts (CJK, emoji) must not break a
+    # figure; the SVG keeps them as text
     f = build_synthetic_review(tmp_path / "r", studies=2, results=1, seed=1, disagreement=0.0)
     review = f.review.model_copy(deep=True)
     review.results[0].outcome = "Cost in $ (one $ sign)"
@@ -206,6 +206,8 @@ def test_figures_take_awkward_user_text(tmp_path):
         assert all(p.stat().st_size > 1000 for p in paths)
     svg = (f.exports_dir / "outcome-1-summary.svg").read_text(encoding="utf-8")
     assert "Cost in $ (one $ sign)" in svg
+    lights = (f.exports_dir / "outcome-1-lights.svg").read_text(encoding="utf-8")
+    assert ">Line one line two \u8bd5\u9a8c \U0001f600</text>" in lights
 
 
 def test_exports_folder_that_is_a_link_out_of_the_review_is_refused(tmp_path):
