@@ -9,6 +9,7 @@ are written, so the same figure gives the same bytes.
 
 from __future__ import annotations
 
+import math
 import zlib
 from functools import lru_cache
 
@@ -152,13 +153,26 @@ def _stream(extra: str, data: bytes) -> bytes:
     return head + packed + b"\nendstream"
 
 
+# Readers need not take a page side above 14,400 units (ISO 32000-1, Annex C, implementation
+# limits; from memory). A larger figure (a table of some 680 studies) is drawn at 1/k scale on
+# a page whose /UserUnit is k points, so it keeps its physical size.
+PAGE_LIMIT = 14400.0
+
+
 def render_pdf(fig: Figure) -> bytes:
     """The figure as a PDF document of one page, fig.width x fig.height points."""
     patterns: dict[Hatch, str] = {}
     for item in fig.items:
         if isinstance(item, Box) and item.hatch is not None and item.hatch not in patterns:
             patterns[item.hatch] = f"P{len(patterns) + 1}"
-    w, h = num(fig.width), num(fig.height)
+    k = max(1, math.ceil(max(fig.width, fig.height) / PAGE_LIMIT))
+    w, h = num(fig.width / k), num(fig.height / k)
+    content = _content(fig, patterns)
+    unit, scale = "", ""
+    if k > 1:
+        scale = f"{1 / k:.6f}"
+        content = f"q {scale} 0 0 {scale} 0 0 cm\n{content}Q\n"
+        unit = f" /UserUnit {k}"
     first_pattern = 8
     pattern_refs = " ".join(
         f"/{name} {first_pattern + i} 0 R" for i, name in enumerate(patterns.values())
@@ -167,24 +181,26 @@ def render_pdf(fig: Figure) -> bytes:
         b"<< /Type /Catalog /Pages 2 0 R >>",
         b"<< /Type /Pages /Kids [3 0 R] /Count 1 >>",
         (
-            f"<< /Type /Page /Parent 2 0 R /MediaBox [0 0 {w} {h}] /Contents 4 0 R "
+            f"<< /Type /Page /Parent 2 0 R /MediaBox [0 0 {w} {h}]{unit} /Contents 4 0 R "
             f"/Resources << /Font << /F1 5 0 R /F2 6 0 R >> /Pattern << {pattern_refs} >> >> >>"
         ).encode(),
-        _stream("", _content(fig, patterns).encode("latin-1")),
+        _stream("", content.encode("latin-1")),
         b"<< /Type /Font /Subtype /Type1 /BaseFont /Helvetica /Encoding /WinAnsiEncoding >>",
         b"<< /Type /Font /Subtype /Type1 /BaseFont /Helvetica-Bold /Encoding /WinAnsiEncoding >>",
         f"<< /Title {_utf16_hex(fig.title)} /Producer (robtui) >>".encode(),
     ]
+    matrix = f"1 0 0 -1 0 {h}" if k == 1 else f"{scale} 0 0 -{scale} 0 {h}"
     for hatch in patterns:
         s = num(hatch.spacing)
         objects.append(
             _stream(
                 f"/Type /Pattern /PatternType 1 /PaintType 1 /TilingType 1 /BBox [0 0 {s} {s}] "
-                f"/XStep {s} /YStep {s} /Matrix [1 0 0 -1 0 {h}] /Resources << >>",
+                f"/XStep {s} /YStep {s} /Matrix [{matrix}] /Resources << >>",
                 _pattern_stream(hatch).encode("latin-1"),
             )
         )
-    out = bytearray(b"%PDF-1.5\n%\xe2\xe3\xcf\xd3\n")
+    version = b"1.5" if k == 1 else b"1.6"  # /UserUnit came with PDF 1.6
+    out = bytearray(b"%PDF-" + version + b"\n%\xe2\xe3\xcf\xd3\n")
     offsets = []
     for number, body in enumerate(objects, start=1):
         offsets.append(len(out))

@@ -63,7 +63,7 @@ def _font(bold: bool, px: float):
     return ImageFont.truetype(str(path), px)
 
 
-@lru_cache(maxsize=4096)
+@lru_cache(maxsize=1024)
 def _text_mask(text: str, size: float, bold: bool, anchor: str):
     """(coverage mask, left, top) of a label drawn at a point: left/top place the mask
     relative to the anchor. The font is made smaller when the text would run wider than the
@@ -128,7 +128,7 @@ def _dashes(pts, on: float, off: float):
     return pieces
 
 
-@lru_cache(maxsize=4096)
+@lru_cache(maxsize=512)
 def _box_masks(w: int, h: int, r: float, sw: float, dash: tuple[float, float] | None):
     """(fill mask, outline mask or None, pad): coverage of a box of w x h pixels with corner
     radius r and an outline sw pixels wide, centred on the edge; masks are pad pixels larger
@@ -188,9 +188,23 @@ def _stretched(mask, w: int, h: int, corner: int):
     return along(along(mask, 0, w), 1, h)
 
 
-@lru_cache(maxsize=1024)
+SMALL = 100_000  # pixels: masks and plain images up to this size are kept for reuse
+
+
 def _masks(w: int, h: int, r: float, sw: float, dash: tuple[float, float] | None):
-    """(fill, outline, pad) masks of a box w x h pixels (see _box_masks), made once per size."""
+    """(fill, outline, pad) masks of a box w x h pixels (see _box_masks); small ones (tiles,
+    which repeat) are kept, large ones (a frame, a bar) made each time to bound memory."""
+    if w * h <= SMALL:
+        return _kept_masks(w, h, r, sw, dash)
+    return _make_masks(w, h, r, sw, dash)
+
+
+@lru_cache(maxsize=512)
+def _kept_masks(w: int, h: int, r: float, sw: float, dash: tuple[float, float] | None):
+    return _make_masks(w, h, r, sw, dash)
+
+
+def _make_masks(w: int, h: int, r: float, sw: float, dash: tuple[float, float] | None):
     pad = math.ceil(sw / 2) + 1
     corner = pad + math.ceil(r + sw / 2) + 1
     small = 2 * corner + 2
@@ -330,10 +344,14 @@ class _Canvas:
         """The stand-in painted for a figure colour."""
         return self.true[_rgb(colour)]
 
-    def under(self, x: int, y: int) -> tuple[int, int, int]:
+    def under(self, x: int, y: int) -> RGB:
+        """The flat colour painted at a pixel (the nearest one, should it be an edge)."""
         x = min(max(x, 0), self.im.width - 1)
         y = min(max(y, 0), self.im.height - 1)
-        return self.im.getpixel((x, y))
+        seen = self.im.getpixel((x, y))
+        if seen in self.back:
+            return seen
+        return min(self.back, key=lambda c: sum((a - b) ** 2 for a, b in zip(c, seen)))
 
     def paint(self, colour, box, mask, over) -> None:
         """Paint ``colour`` through ``mask`` at ``box``; its edges blend into ``over``."""
@@ -341,7 +359,8 @@ class _Canvas:
         for below in over:
             if below != colour:
                 self.blends.add((colour, below))
-        self.im.paste(_solid(colour, box[2] - box[0], box[3] - box[1]), box, mask)
+        w, h = box[2] - box[0], box[3] - box[1]
+        self.im.paste(_solid(colour, w, h) if w * h <= SMALL else colour, box, mask)
 
     def box(self, b: Box) -> None:
         x0, y0, w, h = _snap(b)
@@ -412,7 +431,7 @@ class _Canvas:
                 true.append(_mix(self.back[top], self.back[below], i / levels))
         return painted[:256], true[:256]
 
-    def encode_indexed(self) -> bytes:
+    def encode_indexed(self, ppi: float) -> bytes:
         """The image as a palette PNG, the stand-ins replaced by the true colours."""
         from PIL import Image
 
@@ -423,12 +442,12 @@ class _Canvas:
         indexed = self.im.quantize(palette=holder, dither=Image.Dither.NONE)
         indexed.putpalette([v for c in true for v in c])
         out = io.BytesIO()
-        indexed.save(out, format="PNG", compress_level=COMPRESSION, dpi=(DPI, DPI))
+        indexed.save(out, format="PNG", compress_level=COMPRESSION, dpi=(ppi, ppi))
         return out.getvalue()
 
-    def encode_rgb(self) -> bytes:
+    def encode_rgb(self, ppi: float) -> bytes:
         out = io.BytesIO()
-        self.im.save(out, format="PNG", compress_level=COMPRESSION, dpi=(DPI, DPI))
+        self.im.save(out, format="PNG", compress_level=COMPRESSION, dpi=(ppi, ppi))
         return out.getvalue()
 
 
@@ -446,11 +465,45 @@ def _paint(fig: Figure, stand_ins: dict[RGB, RGB]) -> _Canvas:
     return canvas
 
 
+MAX_PIXELS = 40_000_000  # ~160 MB of image in memory; a table of about 200 studies
+
+
+def _scaled(fig: Figure, f: float) -> Figure:
+    """The figure with every length multiplied by f (drawn at 300 ppi, it is then a figure at
+    300 * f ppi)."""
+    from dataclasses import replace
+
+    def one(item):
+        if isinstance(item, Box):
+            hatch = item.hatch and replace(
+                item.hatch, spacing=item.hatch.spacing * f, weight=item.hatch.weight * f
+            )
+            dash = item.dash and (item.dash[0] * f, item.dash[1] * f)
+            return replace(item, x=item.x * f, y=item.y * f, w=item.w * f, h=item.h * f,
+                           stroke_width=item.stroke_width * f, radius=item.radius * f,
+                           dash=dash, hatch=hatch)  # fmt: skip
+        if isinstance(item, Line):
+            return replace(item, x1=item.x1 * f, y1=item.y1 * f, x2=item.x2 * f, y2=item.y2 * f,
+                           width=item.width * f)  # fmt: skip
+        if isinstance(item, Dot):
+            return replace(item, cx=item.cx * f, cy=item.cy * f, r=item.r * f)
+        return replace(item, x=item.x * f, y=item.y * f, size=item.size * f)
+
+    items = tuple(one(i) for i in fig.items)
+    return replace(fig, width=fig.width * f, height=fig.height * f, items=items)
+
+
 def render_png(fig: Figure) -> bytes:
     """The figure as a PNG image at 300 ppi (its physical size is the figure's, in points):
-    with a palette, or in RGB when the figure's colours do not settle into one."""
+    with a palette, or in RGB when the figure's colours do not settle into one. A figure that
+    would exceed MAX_PIXELS is drawn at the resolution that fits (stated in the file)."""
+    pixels = fig.width * SCALE * fig.height * SCALE
+    ppi = DPI
+    if pixels > MAX_PIXELS:
+        f = math.sqrt(MAX_PIXELS / pixels)
+        fig, ppi = _scaled(fig, f), DPI * f
     colours = _figure_colours(fig)
     stand_ins = _stand_ins(colours, _rgb(fig.background))
     if stand_ins is None:
-        return _paint(fig, {c: c for c in colours}).encode_rgb()
-    return _paint(fig, stand_ins).encode_indexed()
+        return _paint(fig, {c: c for c in colours}).encode_rgb(ppi)
+    return _paint(fig, stand_ins).encode_indexed(ppi)

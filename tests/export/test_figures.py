@@ -259,7 +259,7 @@ def test_png_summary_carries_hatching(summary):
 @pytest.mark.parametrize("fmt", ["svg", "pdf", "png"])
 def test_same_figure_same_bytes(lights, summary, fmt):
     first = [render(f, fmt) for f in (lights, summary)]
-    figure_png._masks.cache_clear()  # cached masks must not change the result
+    figure_png._kept_masks.cache_clear()  # cached masks must not change the result
     figure_png._text_mask.cache_clear()
     assert [render(f, fmt) for f in (lights, summary)] == first
 
@@ -277,3 +277,43 @@ def test_png_keeps_every_flat_colour_exact(lights, summary):
         fills = {b.fill for b in fig.items if isinstance(b, Box) and b.fill} | {fig.background}
         for fill in fills:
             assert tuple(round(c * 255) for c in hex_to_rgb(fill)) in present, fill
+
+
+def test_a_figure_too_large_for_300_ppi_is_drawn_at_the_resolution_that_fits(summary, monkeypatch):
+    monkeypatch.setattr(figure_png, "MAX_PIXELS", 400_000)
+    with Image.open(io.BytesIO(render(summary, "png"))) as im:
+        assert im.width * im.height <= 400_000 * 1.01
+        ppi = im.info["dpi"][0]
+        assert 100 < ppi < 300
+        assert im.width == pytest.approx(summary.width / 72 * ppi, abs=2)  # same physical size
+
+
+def test_a_page_beyond_the_pdf_size_limit_gets_a_user_unit():
+    from robtui.export.figure_primitives import Figure, Hatch
+
+    hatch = Hatch("diagonal", "#CFC4D8", 6.0, 1.0)
+    fig = Figure(
+        300.0,
+        30000.0,
+        "tall",
+        (
+            Box(10, 29900, 100, 20, fill="#3D1A4F", hatch=hatch),
+            Label(10, 29990, "Bottom row", 7.0),
+        ),
+    )
+    data = render(fig, "pdf")
+    assert data.startswith(b"%PDF-1.6") and b"/UserUnit 3" in data
+    with pdfplumber.open(io.BytesIO(data)) as pdf:
+        page = pdf.pages[0]
+        assert page.height == pytest.approx(10000, abs=0.01)
+        assert "Bottom row" in page.extract_text()
+
+
+def test_a_result_without_studies_still_draws(export):
+    from dataclasses import replace
+
+    empty = replace(export, rows=[])
+    for make in (lights_figure, summary_figure):
+        fig = make(empty, QSET)
+        assert render(fig, "svg").startswith(b"<?xml") and render(fig, "pdf").startswith(b"%PDF")
+        assert render(fig, "png").startswith(b"\x89PNG")
