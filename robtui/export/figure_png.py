@@ -264,6 +264,25 @@ RGB = tuple[int, int, int]
 LEVELS = 12  # coverage steps of an anti-aliased edge (11 blends between two colours)
 
 
+_LEVEL = [round(m * LEVELS / 255) for m in range(256)]  # coverage -> step of a ramp
+_PAINTS = [0 if level == 0 else 255 for level in _LEVEL]  # coverage -> painted at all
+_CUTS: dict[int, tuple[object, object]] = {}  # id(mask) -> (mask, its 0/255 mask)
+
+
+def _cut(mask):
+    """The 0/255 mask of the pixels a coverage mask paints at all; kept for small masks (the
+    repeated ones), which this dict keeps alive so their ids stay theirs."""
+    entry = _CUTS.get(id(mask))
+    if entry is not None:
+        return entry[1]
+    cut = mask.point(_PAINTS)
+    if mask.width * mask.height <= 20_000:  # tiles and letters; at most ~80 MB in all
+        if len(_CUTS) >= 2048:
+            _CUTS.clear()
+        _CUTS[id(mask)] = (mask, cut)
+    return cut
+
+
 class _Canvas:
     """The image as palette indices (mode "L" until the palette is attached), painted through
     coverage masks. Each flat colour gets an entry; each pair of a colour painted over
@@ -276,9 +295,8 @@ class _Canvas:
         self.entries: list[RGB] = []
         self.flat: dict[RGB, int] = {}
         self.ramps: dict[tuple[int, int], list[int]] = {}
-        self.binary: dict[int, tuple[object, object]] = {}  # id(mask) -> (mask, 0/255 mask)
-        self.indexed: dict[tuple[int, int, int], object] = {}
-        self.split: dict[tuple[int, int], tuple] = {}  # keeps its masks alive, as binary does
+        self.indexed: dict[tuple[int, int, int], tuple] = {}  # (mask, index image)
+        self.split: dict[tuple[int, int], tuple] = {}  # keeps its masks alive, as indexed does
         background = self.index(_rgb(fig.background))
         size = (math.ceil(fig.width * SCALE), math.ceil(fig.height * SCALE))
         self.im = Image.new("L", size, background)
@@ -320,14 +338,12 @@ class _Canvas:
         """Paint ``colour`` through the coverage ``mask`` with its top-left corner at ``at``;
         partly covered pixels take the blend with the flat colour ``below``."""
         top = self.index(colour)
-        if id(mask) not in self.binary:
-            cut = [0 if round(m * LEVELS / 255) == 0 else 255 for m in range(256)]
-            self.binary[id(mask)] = (mask, mask.point(cut))
         key = (id(mask), top, below)
         if key not in self.indexed:
             ramp = self.ramp(top, below) if top != below else [top] * (LEVELS + 1)
-            self.indexed[key] = mask.point([ramp[round(m * LEVELS / 255)] for m in range(256)])
-        self.im.paste(self.indexed[key], at, self.binary[id(mask)][1])
+            # the mask is kept with its image, so its id is not reused while the canvas lives
+            self.indexed[key] = (mask, mask.point([ramp[level] for level in _LEVEL]))
+        self.im.paste(self.indexed[key][1], at, _cut(mask))
 
     def box(self, b: Box) -> None:
         if not b.radius and not b.dash:

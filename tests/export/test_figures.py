@@ -277,6 +277,8 @@ def test_png_keeps_every_flat_colour_exact(lights, summary):
         fills = {b.fill for b in fig.items if isinstance(b, Box) and b.fill} | {fig.background}
         for fill in fills:
             assert tuple(round(c * 255) for c in hex_to_rgb(fill)) in present, fill
+        flat = {c for c in (*fills, *(i.colour for i in fig.items if isinstance(i, Label)))}
+        assert len(present) > len(flat) + 20  # anti-aliased edges: blends between colours
 
 
 def test_a_figure_too_large_for_300_ppi_is_drawn_at_the_resolution_that_fits(summary, monkeypatch):
