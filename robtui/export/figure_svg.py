@@ -6,7 +6,6 @@ from robtui.export.figure_primitives import Box, Dot, Figure, Hatch, Label, Line
 from robtui.export.safety import markup
 
 FONT_FAMILY = "Helvetica, Arial, 'Liberation Sans', 'DejaVu Sans', sans-serif"
-_ANCHORS = {"start": "start", "middle": "middle", "end": "end"}
 
 
 def _pattern(pid: str, hatch: Hatch) -> str:
@@ -49,7 +48,7 @@ def _box(b: Box, patterns: dict[Hatch, str]) -> str:
 
 def _label(t: Label) -> str:
     weight = ' font-weight="bold"' if t.bold else ""
-    anchor = "" if t.anchor == "start" else f' text-anchor="{_ANCHORS[t.anchor]}"'
+    anchor = "" if t.anchor == "start" else f' text-anchor="{t.anchor}"'
     return (
         f'<text x="{num(t.x)}" y="{num(t.y)}" font-size="{num(t.size)}" fill="{t.colour}"'
         f"{weight}{anchor}>{markup(t.text)}</text>"
