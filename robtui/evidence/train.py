@@ -59,6 +59,13 @@ class Settings:
     stacking: str = "domain"
     item_C: float = 1.0
     item_folds: int = 3
+    # Ranking objective: each question's pointwise coefficients plus those of a pairwise
+    # logistic regression on (positive - negative) differences within an article, against
+    # the pointwise model's pair_hard best-scored negatives and pair_random others.
+    pairwise: bool = True
+    pair_C: float = 1.0
+    pair_hard: int = 30
+    pair_random: int = 30
 
 
 GRID: tuple[dict, ...] = tuple(
@@ -162,6 +169,52 @@ def fit_key(X, y: np.ndarray, settings: Settings) -> tuple[np.ndarray, float]:
     return model.coef_[0].astype(np.float64), float(model.intercept_[0])
 
 
+def article_pairs(z: np.ndarray, y: np.ndarray, groups: np.ndarray, settings: Settings,
+                  rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+    """(positive rows, negative rows) paired within each article: every positive against the
+    article's ``pair_hard`` best-scored negatives (by ``z``) and ``pair_random`` others."""
+    pos_rows: list[np.ndarray] = []
+    neg_rows: list[np.ndarray] = []
+    for g in np.unique(groups):
+        rows = np.nonzero(groups == g)[0]
+        pos, neg = rows[y[rows] == 1], rows[y[rows] == 0]
+        if not len(pos) or not len(neg):
+            continue
+        hard = neg[np.argsort(-z[neg], kind="stable")[: settings.pair_hard]]
+        rest = np.setdiff1d(neg, hard)
+        drawn = rng.choice(rest, size=min(settings.pair_random, len(rest)), replace=False)
+        chosen = np.concatenate([hard, np.sort(drawn)])
+        pos_rows.append(np.repeat(pos, len(chosen)))
+        neg_rows.append(np.tile(chosen, len(pos)))
+    if not pos_rows:
+        return np.zeros(0, int), np.zeros(0, int)
+    return np.concatenate(pos_rows), np.concatenate(neg_rows)
+
+
+def fit_question(X, y: np.ndarray, groups: np.ndarray,
+                 settings: Settings) -> tuple[np.ndarray, float]:
+    """A question's model: pointwise logistic regression, plus (``settings.pairwise``) the
+    coefficients of a pairwise one that orders each article's evidence above its other
+    sentences. The sum stays one linear model; its intercept is the pointwise one."""
+    from scipy.sparse import diags
+    from sklearn.linear_model import LogisticRegression
+
+    coef, intercept = fit_key(X, y, settings)
+    if not settings.pairwise:
+        return coef, intercept
+    rng = np.random.default_rng(settings.seed)
+    pos, neg = article_pairs(X @ coef + intercept, y, groups, settings, rng)
+    if not len(pos):
+        return coef, intercept
+    # half the differences flipped, so both classes are present and the model stays symmetric
+    flip = rng.random(len(pos)) < 0.5
+    diffs = diags(np.where(flip, -1.0, 1.0)) @ (X[pos] - X[neg])
+    model = LogisticRegression(C=settings.pair_C, fit_intercept=False, solver="liblinear",
+                               dual=True, max_iter=5000, random_state=settings.seed)
+    model.fit(diffs, (~flip).astype(int))
+    return coef + model.coef_[0].astype(np.float64), intercept
+
+
 def _fit_platt(z: np.ndarray, y: np.ndarray, seed: int) -> tuple[float, float]:
     from sklearn.linear_model import LogisticRegression
 
@@ -171,8 +224,9 @@ def _fit_platt(z: np.ndarray, y: np.ndarray, seed: int) -> tuple[float, float]:
 
 
 def _out_of_fold(X, y: np.ndarray, groups: np.ndarray, settings: Settings,
-                 folds: int) -> np.ndarray:
-    """Out-of-fold decision values, folds grouped by document (vocabulary shared; see notes)."""
+                 folds: int, *, question: bool = False) -> np.ndarray:
+    """Out-of-fold decision values, folds grouped by document (vocabulary shared; see notes).
+    ``question``: the question models' fit (fit_question), else the plain one (fit_key)."""
     from sklearn.model_selection import GroupKFold
 
     z = np.zeros(len(y))
@@ -180,7 +234,10 @@ def _out_of_fold(X, y: np.ndarray, groups: np.ndarray, settings: Settings,
     for train, test in GroupKFold(n_splits=min(folds, n_groups)).split(y, groups=groups):
         if y[train].sum() == 0:
             continue
-        coef, intercept = fit_key(X[train], y[train], settings)
+        if question:
+            coef, intercept = fit_question(X[train], y[train], groups[train], settings)
+        else:
+            coef, intercept = fit_key(X[train], y[train], settings)
         z[test] = X[test] @ coef + intercept
     return z
 
@@ -292,12 +349,13 @@ def fit_weights(
     for r, key in enumerate(trained):
         columns = _stack_columns(plan[key], item_keys)
         X = _with_stack(prep.X[key], items.oof_stacked if items else None, columns)
-        coef, b = fit_key(X, prep.y[key], settings)
+        coef, b = fit_question(X, prep.y[key], prep.groups, settings)
         lexical[r], shared[r] = coef[:n_lex], coef[n_lex : n_lex + n_sh]
         question[r], intercept[r] = coef[n_lex + n_sh : n_lex + n_sh + n_q], b
         stacked[r, columns] = coef[n_lex + n_sh + n_q :]
         if calibrate:
-            z = _out_of_fold(X, prep.y[key], prep.groups, settings, settings.calibration_folds)
+            z = _out_of_fold(X, prep.y[key], prep.groups, settings, settings.calibration_folds,
+                             question=True)
             platt[r] = _fit_platt(z, prep.y[key], settings.seed)
             p = sigmoid(platt[r, 0] * z + platt[r, 1])
             for number, doc in enumerate(prep.docs):
