@@ -100,22 +100,37 @@ class TfidfTable:
     vocabulary: dict[str, int]
     idf: np.ndarray
     sublinear_tf: bool = True
-    _word_cache: dict[str, list[int]] = field(default_factory=dict, repr=False)
+    _word_cache: dict[str, np.ndarray] = field(default_factory=dict, repr=False)
 
-    def _indices(self, text: str) -> list[int]:
+    def _word_hits(self, texts: list[str]) -> tuple[np.ndarray, list[int]]:
+        """Vocabulary indices of every text's word n-grams, flat, and how many per text."""
         vocab = self.vocabulary
-        if self.analyzer == "word":
-            return [vocab[g] for g in word_ngrams(text, self.ngram_range) if g in vocab]
+        flat: list[int] = []
+        lengths = []
+        for text in texts:
+            found = [vocab[g] for g in word_ngrams(text, self.ngram_range) if g in vocab]
+            lengths.append(len(found))
+            flat.extend(found)
+        return np.fromiter(flat, dtype=np.int64, count=len(flat)), lengths
+
+    def _char_wb_hits(self, texts: list[str]) -> tuple[np.ndarray, list[int]]:
+        """The same for char_wb n-grams, gathered per word from a cache of index arrays."""
         cache = self._word_cache
-        found: list[int] = []
-        for word in text.lower().split():
-            hit = cache.get(word)
-            if hit is None:
-                hit = self._char_hits(word)
-                if len(cache) < 200_000:
-                    cache[word] = hit
-            found.extend(hit)
-        return found
+        pieces: list[np.ndarray] = []
+        lengths = []
+        for text in texts:
+            n = 0
+            for word in text.lower().split():
+                hit = cache.get(word)
+                if hit is None:
+                    hit = np.asarray(self._char_hits(word), dtype=np.int64)
+                    if len(cache) < 200_000:
+                        cache[word] = hit
+                pieces.append(hit)
+                n += len(hit)
+            lengths.append(n)
+        flat = np.concatenate(pieces) if pieces else np.zeros(0, dtype=np.int64)
+        return flat, lengths
 
     def _char_hits(self, word: str) -> list[int]:
         """Vocabulary indices of a word's char_wb n-grams (same n-grams as scikit-learn's)."""
@@ -132,16 +147,16 @@ class TfidfTable:
     def transform(self, texts: list[str]) -> SparseRows:
         """TF-IDF rows (sublinear tf, idf, l2-normalised) for ``texts``."""
         n_cols = len(self.idf)
-        lengths = []
-        flat: list[int] = []
-        for text in texts:
-            found = self._indices(text)
-            lengths.append(len(found))
-            flat.extend(found)
-        rows = np.repeat(np.arange(len(texts), dtype=np.int64), lengths)
-        keys, counts = np.unique(rows * n_cols + np.asarray(flat, dtype=np.int64),
+        if self.analyzer == "word":
+            flat, lengths = self._word_hits(texts)
+        else:
+            flat, lengths = self._char_wb_hits(texts)
+        # (row, column) pairs as one integer key; 32 bits sort about twice as fast when they fit
+        key_type = np.int32 if len(texts) * n_cols < 2**31 else np.int64
+        rows = np.repeat(np.arange(len(texts), dtype=key_type), lengths)
+        keys, counts = np.unique(rows * key_type(n_cols) + flat.astype(key_type),
                                  return_counts=True)
-        row_of, col_of = np.divmod(keys, n_cols) if len(keys) else (keys, keys)
+        row_of, col_of = np.divmod(keys.astype(np.int64), n_cols)
         tf = counts.astype(np.float64)
         if self.sublinear_tf:
             tf = np.log(tf) + 1.0
@@ -151,7 +166,7 @@ class TfidfTable:
             values = values / norms[row_of]
         indptr = np.zeros(len(texts) + 1, dtype=np.int64)
         np.cumsum(np.bincount(row_of, minlength=len(texts)), out=indptr[1:])
-        return SparseRows(indptr, col_of.astype(np.int64), values, n_cols)
+        return SparseRows(indptr, col_of, values, n_cols)
 
 
 def vocabulary_to_bytes(vocabulary: dict[str, int]) -> np.ndarray:
