@@ -512,6 +512,10 @@ def train(
                              "selection": "macro recall@1, then MRR", "grid": table},
         "calibration": f"Platt scaling on {settings.calibration_folds}-fold grouped "
                        "out-of-fold scores (vocabulary of the full training set)",
+        "ranking": ("pointwise plus pairwise (within-article) logistic regressions summed; "
+                    f"pairs: each positive against {settings.pair_hard} best-scored and "
+                    f"{settings.pair_random} random negatives, pair_C={settings.pair_C}"
+                    if settings.pairwise else "pointwise"),
         "stacking": (f"{settings.stacking}: per-CONSORT-item logistic regressions (C="
                      f"{settings.item_C}, balanced) over the same lexical and layout features; "
                      f"their {settings.item_folds}-fold grouped out-of-fold scores (sentence, "
