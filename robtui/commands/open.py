@@ -21,15 +21,36 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         "folder", nargs="?", type=Path, metavar="DIR", help="review folder (default: here)"
     )
     parser.add_argument("--reviewer", metavar="NAME", help="who is assessing (e.g. maria)")
+    parser.add_argument(
+        "--add-reviewer",
+        action="store_true",
+        help="NAME is not on the review yet: list them as a reviewer and open",
+    )
     parser.set_defaults(func=run)
 
 
 def run(args: argparse.Namespace) -> int:
+    from robtui.errors import InputError
     from robtui.store.review_folder import ReviewFolder
     from robtui.tui.app import run_workbench
+    from robtui.tui.session import check_reviewer_name
 
     if args.folder is None:
         folder = ReviewFolder.find(Path.cwd()).root
     else:
         folder = args.folder
+    if args.reviewer is not None:
+        name = check_reviewer_name(args.reviewer)
+        opened = ReviewFolder.open(Path(folder))
+        review = opened.review
+        known = [*review.reviewers, *([review.lead] if review.lead else [])]
+        # As in `robtui assess`: a misspelt name would start a new reviewer's files unnoticed.
+        if name not in known and known:
+            if not args.add_reviewer:
+                raise InputError(
+                    f"reviewer {name!r} is not on this review (reviewers: "
+                    f"{', '.join(review.reviewers) or 'none'}): check the spelling, or add "
+                    "--add-reviewer to list them"
+                )
+            opened.add_reviewer(name)
     return run_workbench(folder, args.reviewer)

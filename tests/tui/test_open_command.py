@@ -28,6 +28,29 @@ def test_open_from_inside_a_review_finds_it(demo_dir, monkeypatch):
     opened = []
     monkeypatch.setattr(app_module.Workbench, "run", lambda self: opened.append(self) or 0)
     monkeypatch.chdir(demo_dir / "reports")
-    assert main(["open", "--reviewer", "tess"]) == 0
+    assert main(["open", "--reviewer", "maren"]) == 0
     assert opened[0].folder.root.resolve() == demo_dir.resolve()
+    assert opened[0].reviewer == "maren"
+
+
+def test_open_refuses_a_name_not_on_the_review(demo_dir, capsys, monkeypatch):
+    import robtui.tui.app as app_module
+
+    opened = []
+    monkeypatch.setattr(app_module.Workbench, "run", lambda self: opened.append(self) or 0)
+    before = (demo_dir / "review.toml").read_bytes()
+    assert main(["open", str(demo_dir), "--reviewer", "marne"]) == 2
+    err = capsys.readouterr().err
+    assert "'marne' is not on this review" in err and "maren" in err and "--add-reviewer" in err
+    assert not opened and (demo_dir / "review.toml").read_bytes() == before
+
+
+def test_open_with_add_reviewer_lists_the_new_name(demo_dir, monkeypatch):
+    import robtui.tui.app as app_module
+    from robtui.store.review_folder import ReviewFolder
+
+    opened = []
+    monkeypatch.setattr(app_module.Workbench, "run", lambda self: opened.append(self) or 0)
+    assert main(["open", str(demo_dir), "--reviewer", "tess", "--add-reviewer"]) == 0
     assert opened[0].reviewer == "tess"
+    assert "tess" in ReviewFolder.open(demo_dir).review.reviewers
