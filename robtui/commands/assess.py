@@ -196,7 +196,6 @@ def run(args: argparse.Namespace) -> int:
     from robtui.core import assessing
     from robtui.core.questions import builtin_question_set
     from robtui.core.rules import stamp_rules_version
-    from robtui.errors import InputError
     from robtui.store.records import record_to_json
     from robtui.store.review_folder import ReviewFolder, check_id
     from robtui.store.rules_file import load_rules_safely
@@ -208,12 +207,8 @@ def run(args: argparse.Namespace) -> int:
     known = [*folder.review.reviewers, *([folder.review.lead] if folder.review.lead else [])]
     add_reviewer = args.reviewer not in known
     # A review that names its reviewers refuses a misspelt one; an open review takes anyone.
-    if add_reviewer and known and not args.add_reviewer:
-        raise InputError(
-            f"reviewer {args.reviewer!r} is not on this review (reviewers: "
-            f"{', '.join(folder.review.reviewers) or 'none'}): check the spelling, or add "
-            "--add-reviewer to list them"
-        )
+    if not args.add_reviewer:
+        folder.refuse_unlisted_reviewer(args.reviewer)
     qset = builtin_question_set(folder.review.question_set)
     stored = folder.load_assessment(args.reviewer, args.study, args.result)
     a = stored or assessing.new_assessment(

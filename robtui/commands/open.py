@@ -30,7 +30,6 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from robtui.errors import InputError
     from robtui.store.review_folder import ReviewFolder
     from robtui.tui.app import run_workbench
     from robtui.tui.session import check_reviewer_name
@@ -42,15 +41,9 @@ def run(args: argparse.Namespace) -> int:
     if args.reviewer is not None:
         name = check_reviewer_name(args.reviewer)
         opened = ReviewFolder.open(Path(folder))
-        review = opened.review
-        known = [*review.reviewers, *([review.lead] if review.lead else [])]
-        # As in `robtui assess`: a misspelt name would start a new reviewer's files unnoticed.
-        if name not in known and known:
-            if not args.add_reviewer:
-                raise InputError(
-                    f"reviewer {name!r} is not on this review (reviewers: "
-                    f"{', '.join(review.reviewers) or 'none'}): check the spelling, or add "
-                    "--add-reviewer to list them"
-                )
-            opened.add_reviewer(name)
+        if args.add_reviewer:
+            if opened.is_unlisted_reviewer(name):
+                opened.add_reviewer(name)
+        else:
+            opened.refuse_unlisted_reviewer(name)
     return run_workbench(folder, args.reviewer)

@@ -224,6 +224,20 @@ class ReviewFolder:
             raise
 
     # -- reviewers, studies, results -------------------------------------------------------------
+    def is_unlisted_reviewer(self, name: str) -> bool:
+        """True when the review names its reviewers (or a lead) and ``name`` is not one."""
+        known = [*self.review.reviewers, *([self.review.lead] if self.review.lead else [])]
+        return bool(known) and name not in known
+
+    def refuse_unlisted_reviewer(self, name: str) -> None:
+        """Refuse a name the review does not list: a misspelt one would start new files."""
+        if self.is_unlisted_reviewer(name):
+            raise InputError(
+                f"reviewer {name!r} is not on this review (reviewers: "
+                f"{', '.join(self.review.reviewers) or 'none'}): check the spelling, or add "
+                "--add-reviewer to list them"
+            )
+
     def add_reviewer(self, name: str) -> None:
         """List a reviewer in review.toml (no change when already listed)."""
         check_id(name, "reviewer")
