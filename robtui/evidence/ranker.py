@@ -24,6 +24,7 @@ from robtui.evidence.features import (
     SHARED_NAMES,
     DocumentFeatures,
     document_features,
+    lexical_text,
     question_features,
     stacked_features,
 )
@@ -98,7 +99,7 @@ class Ranker:
         ).T
         self._question_cache: dict[tuple[str, ...], np.ndarray] = {}
         if weights.warm_words:  # fill the per-word caches now, so the first document is fast
-            weights.char.transform([" ".join(weights.warm_words)])
+            weights.char.transform([lexical_text(" ".join(weights.warm_words))])
             self.matcher.coverage([tokens(" ".join(weights.warm_words))])
 
     @property
@@ -134,7 +135,7 @@ class Ranker:
         key = tuple(texts)
         cached = self._question_cache.get(key)
         if cached is None:
-            rows = self.weights.word.transform(list(texts))
+            rows = self.weights.word.transform([lexical_text(t) for t in texts])
             cached = np.zeros((rows.n_cols, rows.n_rows))
             for r in range(rows.n_rows):
                 sl = slice(rows.indptr[r], rows.indptr[r + 1])

@@ -27,7 +27,7 @@ from pathlib import Path
 import numpy as np
 
 from robtui.evidence.corpus_docs import LabelledDocument
-from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
+from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
 from robtui.evidence.metrics import QuestionFigures, first_hit_rank, macro
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
 from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid
@@ -66,6 +66,14 @@ class Settings:
     pair_C: float = 1.0
     pair_hard: int = 30
     pair_random: int = 30
+    # Feature block scales for the questions' models: a column multiplied by s is penalised
+    # 1/s**2 as much by the L2 term, so a few dense, informative features (cue coverage,
+    # stacked item scores) need not compete on equal terms with tens of thousands of n-grams.
+    # Training only: the stored coefficients are on the unscaled features.
+    # 0.5 chosen by grouped 5-fold CV on two partitions of the articles (docs/evidence-ranker.md).
+    scale_shared: float = 0.5
+    scale_question: float = 0.5
+    scale_stacked: float = 0.5
 
 
 GRID: tuple[dict, ...] = tuple(
@@ -135,7 +143,8 @@ def prepare(
     from scipy.sparse import csr_matrix, hstack
 
     if space is None:
-        word, char = fit_tables([s.text for d in docs for s in d.document.sentences], settings)
+        texts_seen = [lexical_text(s.text) for d in docs for s in d.document.sentences]
+        word, char = fit_tables(texts_seen, settings)
         space = empty_space(word, char, texts)
     parts: dict[str, list] = {k: [] for k in keys}
     generic_parts: dict[str, list] = {k: [] for k in keys}
@@ -301,6 +310,28 @@ def _stack_columns(plan_items: list[str], item_keys: list[str]) -> list[int]:
     return [4 * item_keys.index(i) + p for i in plan_items if i in item_keys for p in range(4)]
 
 
+def block_scale(n_lex: int, n_stacked: int, settings: Settings) -> np.ndarray:
+    """Column scales of a question's design matrix: lexical | shared | question | stacked."""
+    return np.concatenate([
+        np.ones(n_lex), np.full(len(SHARED_NAMES), settings.scale_shared),
+        np.full(len(QUESTION_NAMES), settings.scale_question),
+        np.full(n_stacked, settings.scale_stacked),
+    ])
+
+
+def scaled(X, scale: np.ndarray):
+    """``X`` with column j multiplied by ``scale[j]``."""
+    from scipy.sparse import diags
+
+    return X if np.all(scale == 1.0) else (X @ diags(scale)).tocsr()
+
+
+def fit_scaled(fit, X, scale: np.ndarray, *args) -> tuple[np.ndarray, float]:
+    """``fit(scaled(X, scale), *args)`` with its coefficients mapped back to the unscaled X."""
+    coef, intercept = fit(scaled(X, scale), *args)
+    return coef * scale, intercept
+
+
 def _youden_threshold(top_scores: list[float], present: list[bool]) -> float:
     """The top-score cut with the best sensitivity + specificity - 1 (ties: the lower cut)."""
     s = np.asarray(top_scores)
@@ -349,7 +380,9 @@ def fit_weights(
     for r, key in enumerate(trained):
         columns = _stack_columns(plan[key], item_keys)
         X = _with_stack(prep.X[key], items.oof_stacked if items else None, columns)
-        coef, b = fit_question(X, prep.y[key], prep.groups, settings)
+        scale = block_scale(n_lex, len(columns), settings)
+        coef, b = fit_scaled(fit_question, X, scale, prep.y[key], prep.groups, settings)
+        X = scaled(X, scale)  # calibration below: out-of-fold fits on the same design
         lexical[r], shared[r] = coef[:n_lex], coef[n_lex : n_lex + n_sh]
         question[r], intercept[r] = coef[n_lex + n_sh : n_lex + n_sh + n_q], b
         stacked[r, columns] = coef[n_lex + n_sh + n_q :]
@@ -453,7 +486,9 @@ def select_settings(
         prep_test = prepare([docs[i] for i in test], keys, base, texts, space=prep_train.space)
         for g, params in enumerate(grid):
             settings = Settings(**{**asdict(base), **params})
-            coefs = {k: fit_key(prep_train.X[k], prep_train.y[k], settings)
+            scale = block_scale(prep_train.X[keys[0]].shape[1] - len(SHARED_NAMES)
+                                - len(QUESTION_NAMES), 0, settings)
+            coefs = {k: fit_scaled(fit_key, prep_train.X[k], scale, prep_train.y[k], settings)
                      for k in keys if prep_train.y[k].sum() > 0}
             for key, ranks in _fold_ranks(prep_test, coefs).items():
                 results[g].setdefault(key, []).extend(ranks)

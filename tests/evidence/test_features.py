@@ -80,3 +80,41 @@ def test_question_features_of_a_document(ranker, report_text):
     cue = QUESTION_NAMES.index("cue_best")
     assert qf[envelope, cue] == qf[:, cue].max() > 0.9
     assert qf[envelope + 1, QUESTION_NAMES.index("cue_previous")] == qf[envelope, cue]
+
+
+def test_registry_identifier_and_after_heading_features():
+    from robtui.evidence.features import REGISTRY_ID
+
+    texts = [
+        ("Trial registration", "heading"),
+        ("The trial was registered (NCT01234567) before enrolment.", "body"),
+        ("Registered as ISRCTN12345678 and EudraCT 2011-001234-56.", "body"),
+        ("We enrolled 120 participants between 2011 and 2013.", "body"),
+    ]
+    sentences = [Sentence(index=i, start=0, end=len(t), text=t, section="registration", block=b)
+                 for i, (t, b) in enumerate(texts)]
+    X = shared_features(sentences)
+    assert X[:, SHARED_NAMES.index("registry_id")].tolist() == [0.0, 1.0, 1.0, 0.0]
+    assert X[:, SHARED_NAMES.index("after_heading")].tolist() == [0.0, 1.0, 0.0, 0.0]
+    # formats as registries print them (from memory); a year or a count is not an identifier
+    for text in ("ACTRN12610000123456", "DRKS00012345", "UMIN000012345", "CTRI/2015/03/005678"):
+        assert REGISTRY_ID.search(text), text
+    for text in ("NCT123", "in 2011-2013", "12345678 participants"):
+        assert not REGISTRY_ID.search(text), text
+
+
+def test_under_heading_carries_the_nearest_heading_above():
+    from robtui.evidence.features import under_heading
+
+    values = np.array([0.1, 0.9, 0.2, 0.3, 0.8, 0.4])
+    heading = np.array([False, True, False, False, True, False])
+    # the heading row itself sees the heading above it, not its own value
+    assert under_heading(values, heading).tolist() == [0.0, 0.0, 0.9, 0.9, 0.9, 0.8]
+    assert under_heading(np.zeros(0), np.zeros(0, bool)).tolist() == []
+
+
+def test_digits_fold_before_tfidf():
+    from robtui.evidence.features import lexical_text
+
+    assert lexical_text("n = 30 (NCT01234567)") == "n = 00 (NCT00000000)"
+    assert lexical_text("no digits") == "no digits"
