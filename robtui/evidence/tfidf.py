@@ -71,7 +71,8 @@ def word_ngrams(text: str, ngram_range: tuple[int, int]) -> list[str]:
     low, high = ngram_range
     grams: list[str] = list(tokens) if low == 1 else []
     for n in range(max(low, 2), min(high, len(tokens)) + 1):
-        grams.extend(" ".join(tokens[i : i + n]) for i in range(len(tokens) - n + 1))
+        # zip of n shifted views joins each window in C (a generator of slices is 3x slower)
+        grams.extend(map(" ".join, zip(*(tokens[i:] for i in range(n)))))
     return grams
 
 
@@ -104,11 +105,11 @@ class TfidfTable:
 
     def _word_hits(self, texts: list[str]) -> tuple[np.ndarray, list[int]]:
         """Vocabulary indices of every text's word n-grams, flat, and how many per text."""
-        vocab = self.vocabulary
+        get = self.vocabulary.get
         flat: list[int] = []
         lengths = []
         for text in texts:
-            found = [vocab[g] for g in word_ngrams(text, self.ngram_range) if g in vocab]
+            found = [i for i in map(get, word_ngrams(text, self.ngram_range)) if i is not None]
             lengths.append(len(found))
             flat.extend(found)
         return np.fromiter(flat, dtype=np.int64, count=len(flat)), lengths
