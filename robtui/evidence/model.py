@@ -143,7 +143,9 @@ def _check(condition: bool, what: str) -> None:
 
 
 def _from_arrays(data: dict[str, np.ndarray], path: Path) -> RankerWeights:
-    _check(int(data["format_version"][0]) == FORMAT_VERSION, "unknown format version")
+    version = int(data["format_version"][0])
+    _check(version == FORMAT_VERSION,
+           f"weights format {version}, this robtui reads format {FORMAT_VERSION}")
     word_vocab = vocabulary_from_bytes(data["word_vocabulary"])
     char_vocab = vocabulary_from_bytes(data["char_vocabulary"])
     word = TfidfTable("word", tuple(int(x) for x in data["word_ngram_range"]), word_vocab,

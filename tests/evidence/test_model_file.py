@@ -35,6 +35,25 @@ def test_inconsistent_weights_file(tmp_path):
         load_ranker(path)
 
 
+def test_weights_of_another_format_version_are_refused_with_both_versions(tmp_path):
+    import io
+    import zipfile
+
+    from robtui.evidence.model import FORMAT_VERSION
+
+    with np.load(DEFAULT_WEIGHTS, allow_pickle=False) as npz:
+        arrays = {name: npz[name] for name in npz.files}
+    arrays["format_version"] = np.array([FORMAT_VERSION - 1])
+    buffer = io.BytesIO()
+    np.savez(buffer, **arrays)
+    path = tmp_path / "old.npz"
+    path.write_bytes(buffer.getvalue())
+    assert zipfile.is_zipfile(path)
+    with pytest.raises(ModelFileError, match=rf"format {FORMAT_VERSION - 1}, this robtui reads "
+                                             rf"format {FORMAT_VERSION}.*train-ranker"):
+        load_ranker(path)
+
+
 def test_shipped_weights_round_trip_and_provenance(tmp_path):
     weights = load_weights()
     prov = weights.provenance
