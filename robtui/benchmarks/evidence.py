@@ -60,7 +60,8 @@ def _scores_for(ranker, doc, keys, texts):
     logits = ranker.logits(feats, keys, [texts.get(k, "") for k in keys])
     qvec = ranker._question_vectors([texts.get(k, "") for k in keys])
     baseline = feats.word.dot_columns(qvec) if feats.n else np.zeros((0, len(keys)))
-    return {k: sigmoid(logits[k]) for k in keys}, {k: baseline[:, j] for j, k in enumerate(keys)}
+    scores = {k: sigmoid(logits[k]) for k in keys}
+    return scores, {k: baseline[:, j] for j, k in enumerate(keys)}, logits
 
 
 class Tally:
@@ -69,10 +70,10 @@ class Tally:
     def __init__(self):
         self.rows: dict[str, list[tuple]] = {}
 
-    def add(self, key, scores, labels, present):
+    def add(self, key, scores, labels, present, order=None):
         from robtui.evidence.metrics import first_hit_rank
 
-        rank = first_hit_rank(scores, labels) if present else None
+        rank = first_hit_rank(scores, labels, order) if present else None
         top = float(scores.max()) if len(scores) else 0.0
         self.rows.setdefault(key, []).append((rank, len(scores), top, present))
 
@@ -138,7 +139,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
 
     from robtui.benchmarks.corpus import load_corpus, load_mapping
     from robtui.evidence.corpus_docs import labelled_documents
-    from robtui.evidence.ranker import Ranker, generic_block, sigmoid
+    from robtui.evidence.ranker import Ranker, generic_block, reading_order, sigmoid
     from robtui.evidence.train import fit_weights, prepare, question_texts
 
     mapping = load_mapping(corpus_dir)
@@ -160,8 +161,8 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         print(f"rendered and read {len(pdf_docs)} two-column PDFs in "
               f"{time.perf_counter() - t0:.1f} s ({lost} of {total} PDF sentences not aligned "
               "to the source text; they count as non-hits)")
-    tallies = {name: Tally() for name in ("model txt", "model pdf", "baseline txt", "baseline pdf",
-                                          "transfer txt")}
+    tallies = {name: Tally() for name in ("model txt", "model pdf", "spread txt", "spread pdf",
+                                          "baseline txt", "baseline pdf", "transfer txt")}
     calib: list[tuple[float, bool]] = []
     thresholds = []
     flagged = {"with": [0, 0], "without": [0, 0]}  # [flagged as no evidence, total]
@@ -189,9 +190,15 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                 if docs is None:
                     continue
                 doc = docs[i]
-                scores, base = _scores_for(ranker, doc, keys, texts)
+                scores, base, logits = _scores_for(ranker, doc, keys, texts)
+                sections = [s.section for s in doc.document.sentences]
+                headings = [s.block == "heading" for s in doc.document.sentences]
                 for key in keys:
                     tallies[f"model {route}"].add(key, scores[key], doc.labels[key], doc.present[key])
+                    tallies[f"spread {route}"].add(key, scores[key], doc.labels[key],
+                                                   doc.present[key],
+                                                   reading_order(logits[key], sections,
+                                                                 headings))
                     tallies[f"baseline {route}"].add(key, base[key], doc.labels[key],
                                                      doc.present[key])
                     if route == "txt":
@@ -297,7 +304,10 @@ def main(argv: list[str] | None = None) -> int:
     figs = result["figures"]
     keys = result["keys"]
     cols = {n: figs[n] for n in ("model txt", "model pdf") if n in figs}
-    _print_table("Ranker (trained on the other folds)", cols, keys)
+    _print_table("Ranker (trained on the other folds), sentences by score", cols, keys)
+    cols = {n: figs[n] for n in ("spread txt", "spread pdf") if n in figs}
+    _print_table("The same ranker in reading order (spread over sections, as the workbench and "
+                 "`suggest --spread` show it)", cols, keys)
     cols = {n: figs[n] for n in ("baseline txt", "baseline pdf") if n in figs}
     _print_table("Baseline: TF-IDF cosine of question wording and sentence (same run)", cols, keys)
     _print_table("Transfer model (used for questions without training data), leave-one-question-out",
@@ -317,7 +327,7 @@ def main(argv: list[str] | None = None) -> int:
 
     m = {n: {a: macro(figs[n], a) for a in ("recall1", "recall3")} for n in figs}
     print(f"\nTargets: {TARGETS}")
-    for name in ("model txt", "model pdf"):
+    for name in ("model txt", "model pdf", "spread txt", "spread pdf"):
         if name in m:
             print(f"  {name}: macro recall@1 {m[name]['recall1']:.3f}, recall@3 {m[name]['recall3']:.3f}")
     if "model pdf" in m:

@@ -4,7 +4,7 @@ A simulated reviewer works through development articles in article order. The "s
 is trained on the other half of the articles (so it has never seen the simulated review's);
 after each article the reviewer's quotes (the article's gold sentences for each mapped
 question, up to three) become positives, the suggestions they read and rejected (non-hits
-ranked above the first hit in the top five) negatives, and the other best-scored sentences
+shown above the first hit in the top five, in the workbench's reading order) negatives, and the other best-scored sentences
 they passed over weak negatives, each with the shipped model's log-odds as offset (as
 robtui.evidence.review_model.examples_from_assessment does in a real review). After every few
 articles the figure (macro recall@1 and MRR on the next unseen articles, judged by the simulated
@@ -101,6 +101,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     reviewer's notion of evidence (see with_practice).
     """
     from robtui.evidence.metrics import first_hit_rank
+    from robtui.evidence.ranker import reading_order
     from robtui.evidence.review_model import (
         PASSED_OVER,
         PASSED_OVER_WEIGHT,
@@ -115,6 +116,11 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     def texts_of(doc):
         return [s.text for s in doc.document.sentences]
 
+    def shown(z, doc) -> np.ndarray:  # the order the workbench shows
+        sentences = doc.document.sentences
+        return reading_order(z, [s.section for s in sentences],
+                             [s.block == "heading" for s in sentences])
+
     evaluated = [(doc, shipped_logits(doc), texts_of(doc)) for doc in eval_docs]
 
     def ranks(model) -> tuple[list[dict], list[dict]]:
@@ -124,9 +130,10 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
             for key in keys:
                 if doc.present[key]:
                     z = z_of[key]
-                    p[key] = first_hit_rank(z, doc.labels[key])
-                    extra = model.logit(key, sentences) if model else 0.0
-                    b[key] = first_hit_rank(z + extra, doc.labels[key])
+                    p[key] = first_hit_rank(z, doc.labels[key], shown(z, doc))
+                    if model:
+                        z = z + model.logit(key, sentences)
+                    b[key] = first_hit_rank(z, doc.labels[key], shown(z, doc))
             plain.append(p)
             blended.append(b)
         return plain, blended
@@ -141,7 +148,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
         for key in keys:
             base = shipped[key]
             z = base + model.logit(key, sentences) if model else base
-            order = np.argsort(-z, kind="stable")[:5]
+            order = shown(z, doc)[:5]
             dismissed = set()
             for i in order:
                 if doc.labels[key][i]:

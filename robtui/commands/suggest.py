@@ -28,6 +28,10 @@ def register(subparsers: argparse._SubParsersAction) -> None:
                         help="comma-separated question ids, e.g. 1.1,1.2 (default: all)")
     parser.add_argument("--threshold", type=float, default=None, metavar="T",
                         help="drop suggestions scoring below T (0..1); lists may then be empty")
+    parser.add_argument("--spread", action="store_true",
+                        help="reading order, as the workbench shows: after the best sentence, "
+                             "one from another section takes a place when it scores nearly as "
+                             "well (scores then need not fall steadily)")
     parser.add_argument("--effect", choices=("assignment", "adhering"), default="assignment",
                         help="domain 2 variant (default: effect of assignment)")
     parser.add_argument("--model", type=Path, default=None, help=argparse.SUPPRESS)
@@ -60,7 +64,7 @@ def run(args: argparse.Namespace) -> int:
     ranker = load_ranker(args.model)
     document = read_document(args.file)
     ranking = ranker.rank(document, questions, effect=args.effect, top=args.top,
-                          threshold=args.threshold)
+                          threshold=args.threshold, spread=args.spread)
     if not document.sentences:
         why = "; ".join(document.warnings) or "the reader found no text"
         print(f"robtui: {args.file}: no sentences to rank ({why})", file=sys.stderr)

@@ -8,11 +8,14 @@ from dataclasses import dataclass
 import numpy as np
 
 
-def first_hit_rank(scores: np.ndarray, labels: np.ndarray) -> int | None:
-    """1-based rank of the best-scored positive sentence (stable order on ties); None if none."""
+def first_hit_rank(scores: np.ndarray, labels: np.ndarray,
+                   order: np.ndarray | None = None) -> int | None:
+    """1-based rank of the first positive sentence in ``order`` (default: by score, stable on
+    ties); None if there is none."""
     if not labels.any():
         return None
-    order = np.argsort(-scores, kind="stable")
+    if order is None:
+        order = np.argsort(-scores, kind="stable")
     return int(np.nonzero(labels[order])[0][0]) + 1
 
 

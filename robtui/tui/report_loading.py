@@ -123,7 +123,8 @@ def rank_document(
         notes.append(f"your learned model was not used: {error}")
     try:
         return ranker.rank(
-            document, effect=effect, top=SUGGESTIONS_PER_QUESTION, review_model=review_model
+            document, effect=effect, top=SUGGESTIONS_PER_QUESTION, review_model=review_model,
+            spread=True,
         )
     except RobtuiError as error:
         notes.append(f"no suggestions: {error}")

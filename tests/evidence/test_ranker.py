@@ -81,3 +81,47 @@ def test_scores_are_platt_calibrated_logits(ranker, report_text):
     by_index = {s.sentence_index: s.score for s in ranking}
     expected = np.round(sigmoid(logits), 4)
     assert [by_index[i] for i in range(len(doc.sentences))] == expected.tolist()
+
+
+def test_reading_order_spreads_the_first_places_over_sections():
+    from robtui.evidence.ranker import reading_order
+
+    z = np.array([5.0, 4.8, 4.6, 4.0, 1.0, 0.5])
+    sections = ["methods", "methods", "methods", "discussion", "results", "methods"]
+    # 0 is best; 3 (another section, 1.0 below the best remaining) takes second place; then
+    # no unseen section is within 1.5 of the best remaining (4.8 vs results 1.0)
+    assert reading_order(z, sections, margin=1.5, slots=5).tolist() == [0, 3, 1, 2, 4, 5]
+    # a margin of 0 is the score order; a huge one takes every unseen section first
+    assert reading_order(z, sections, margin=0.0).tolist() == [0, 1, 2, 3, 4, 5]
+    assert reading_order(z, sections, margin=1e9).tolist()[:3] == [0, 3, 4]
+    # only the first `slots` places are spread; the rest follow the score
+    assert reading_order(z, sections, margin=1.5, slots=1).tolist() == [0, 1, 2, 3, 4, 5]
+    # a permutation, and filtered sentences (-inf) never move up
+    z2 = np.array([2.0, -np.inf, 1.9, -np.inf])
+    order = reading_order(z2, ["a", "b", "a", "c"], margin=10.0)
+    assert sorted(order.tolist()) == [0, 1, 2, 3] and order.tolist()[:2] == [0, 2]
+    assert reading_order(np.zeros(0), []).tolist() == []
+
+
+def test_spread_ranking_keeps_the_best_first_and_respects_the_threshold(ranker, report_text):
+    doc = document_from_text(report_text)
+    plain = ranker.rank(doc, top=5)
+    spread = ranker.rank(doc, top=5, spread=True)
+    for qid in plain:
+        assert spread[qid][0] == plain[qid][0], qid
+        assert len(spread[qid]) == len(plain[qid])
+    kept = ranker.rank(doc, threshold=0.3, top=None, spread=True)
+    by_score = ranker.rank(doc, threshold=0.3, top=None)
+    for qid in kept:
+        assert {s.sentence_index for s in kept[qid]} == {s.sentence_index for s in by_score[qid]}
+
+
+def test_a_heading_shown_does_not_count_as_showing_its_section():
+    from robtui.evidence.ranker import reading_order
+
+    z = np.array([5.0, 4.9, 4.5, 4.4])
+    sections = ["randomisation", "concealment", "concealment", "interventions"]
+    headings = [False, True, False, False]
+    # without the heading rule the concealment paragraph loses its place to another section
+    assert reading_order(z, sections, margin=1.0).tolist() == [0, 1, 3, 2]
+    assert reading_order(z, sections, headings, margin=1.0).tolist() == [0, 1, 2, 3]

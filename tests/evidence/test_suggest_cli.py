@@ -98,3 +98,12 @@ def test_damaged_model_file_message(capsys, report, tmp_path):
     assert main(["suggest", str(report), "--model", str(bad)]) == 2
     err = capsys.readouterr().err
     assert "ranker.npz" in err and "train-ranker" in err and "Traceback" not in err
+
+
+def test_spread_keeps_the_shape_and_the_best_sentence_first(capsys, report):
+    plain = _json(capsys, str(report))
+    spread = _json(capsys, str(report), "--spread")
+    assert list(spread["questions"]) == list(plain["questions"])
+    for qid, items in spread["questions"].items():
+        assert items[0] == plain["questions"][qid][0]
+        assert items[0]["score"] == max(i["score"] for i in items)
