@@ -44,7 +44,8 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "j / k", "next / previous question"),
     KeyHelp("assessment", "1 … 5", "go to domain 1 … 5"),
     KeyHelp("assessment", "tab", "move between the report and the questions"),
-    KeyHelp("assessment", "] / [", "next / previous suggested sentence for the focused question"),
+    KeyHelp("assessment", "] / [", "next / previous suggested sentence for the focused question "
+            "(best first, then spread over the report's sections)"),
     KeyHelp(
         "assessment", "q", "attach the report's highlighted sentence as a quote (again: detach)"
     ),
