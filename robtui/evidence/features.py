@@ -71,6 +71,16 @@ class DocumentFeatures:
         return self.shared.shape[0]
 
 
+DIGIT = re.compile(r"\d")
+
+
+def lexical_text(text: str) -> str:
+    """A sentence as the TF-IDF tables see it: every digit folded to 0, so "n = 30" and
+    "n = 45", or two registry numbers, share their n-grams (grouped CV: macro recall@3 up
+    0.005 with the rest unchanged; see docs/evidence-ranker.md)."""
+    return DIGIT.sub("0", text)
+
+
 def shared_features(
     sentences: Sequence[Sentence], words: Sequence[list[str]] | None = None,
     folded: Sequence[str] | None = None,
@@ -107,16 +117,6 @@ def shared_features(
         after = row > 0 and sentences[row - 1].block == "heading" and sentence.block != "heading"
         out[row, base + POSITION_BINS + 4] = 1.0 if after else 0.0
     return out
-
-
-DIGIT = re.compile(r"\d")
-
-
-def lexical_text(text: str) -> str:
-    """A sentence as the TF-IDF tables see it: every digit folded to 0, so "n = 30" and
-    "n = 45", or two registry numbers, share their n-grams (grouped CV: macro recall@3 up
-    0.005 with the rest unchanged; see docs/evidence-ranker.md)."""
-    return DIGIT.sub("0", text)
 
 
 def document_features(
