@@ -557,6 +557,11 @@ def train(
                      "previous, next, best within 2) feed each question's model, the items of "
                      "the questions of its own RoB 2 domain; the settings grid above is scored "
                      "without stacking"),
+        "text": "digits folded to 0 before the TF-IDF tables (features.lexical_text); cues "
+                "matched on the text as written",
+        "block_scales": (f"layout x{settings.scale_shared}, question x{settings.scale_question}, "
+                         f"stacked x{settings.scale_stacked} in training (heavier L2 on them); "
+                         "coefficients stored for the unscaled features"),
         "untrained_questions": "transfer model over question-relative features "
                                "(cue lexicon, question wording similarity, expected section)",
         "libraries": _versions(),
