@@ -48,3 +48,15 @@ def test_consort_practice_changes_nothing():
     same = with_practice(doc, article, PRACTICES["consort"])
     assert all((same.labels[k] == doc.labels[k]).all() for k in doc.labels)
     assert same.present == doc.present
+
+
+def test_rotations_evaluate_each_part_once_and_learn_the_rest_in_order():
+    from robtui.benchmarks.learning import rotations
+
+    review = list(range(10))
+    turns = rotations(review, 4)
+    assert len(turns) == 4
+    assert sorted(i for _, evaluated in turns for i in evaluated) == review
+    for learned, evaluated in turns:
+        assert learned == [i for i in review if i not in evaluated]  # article order kept
+        assert evaluated == sorted(evaluated) and evaluated
