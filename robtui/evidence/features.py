@@ -2,7 +2,9 @@
 
 Blocks, in the order the weights are stored:
 - word TF-IDF (uni- and bigrams) and character TF-IDF (char_wb 3-5 grams) of the sentence;
-- shared layout features: canonical section (full label and top level), block kind, position;
+- shared layout features: canonical section (full label and top level), block kind, length,
+  registry identifier, first sentence after a heading (no position in the document: it stands in
+  for the section in articles and misleads on protocols, registry records and short texts);
 - per-question features: cue-lexicon coverage of the sentence and of its neighbours, TF-IDF
   cosine between the question's wording and the sentence (and its neighbours), and whether the
   sentence sits in a section where the question's evidence usually sits.
@@ -22,7 +24,6 @@ from robtui.reading.document import SECTION_LABELS, Sentence, top_section
 
 BLOCKS = ("body", "heading", "caption", "table")
 TOP_SECTIONS = tuple(dict.fromkeys(top_section(label) for label in SECTION_LABELS))
-POSITION_BINS = 10
 NEIGHBOUR_WINDOW = 2
 # A trial registry's identifier as registries print it (formats from memory, no source):
 # ClinicalTrials.gov NCT + 8 digits, ISRCTN + 8, ANZCTR ACTRN + 14, DRKS + 8, UMIN + 9,
@@ -39,8 +40,7 @@ SHARED_NAMES: tuple[str, ...] = (
     tuple(f"section={label}" for label in SECTION_LABELS)
     + tuple(f"top={label}" for label in TOP_SECTIONS)
     + tuple(f"block={b}" for b in BLOCKS)
-    + tuple(f"position_bin={i}" for i in range(POSITION_BINS))
-    + ("relative_position", "log_length", "short_sentence", "registry_id", "after_heading")
+    + ("log_length", "short_sentence", "registry_id", "after_heading")
 )
 QUESTION_NAMES: tuple[str, ...] = (
     "cue_best",
@@ -85,7 +85,7 @@ def shared_features(
     sentences: Sequence[Sentence], words: Sequence[list[str]] | None = None,
     folded: Sequence[str] | None = None,
 ) -> np.ndarray:
-    """Layout features: section one-hots, block kind, position bins, length, registry number,
+    """Layout features: section one-hots, block kind, length, registry number,
     first sentence after a heading. ``words`` (cues.tokens) and ``folded`` (lexical_text) of
     each sentence may be passed when already computed."""
     n = len(sentences)
@@ -105,17 +105,14 @@ def shared_features(
         out[row, section_col[label]] = 1.0
         out[row, top_col[top_section(label)]] = 1.0
         out[row, block_col.get(sentence.block, block_col["body"])] = 1.0
-        relative = row / max(n - 1, 1)
-        out[row, base + min(int(relative * POSITION_BINS), POSITION_BINS - 1)] = 1.0
         count = len(words[row])
-        out[row, base + POSITION_BINS] = relative
-        out[row, base + POSITION_BINS + 1] = np.log1p(count) / 5.0
-        out[row, base + POSITION_BINS + 2] = 1.0 if count < 5 else 0.0
+        out[row, base] = np.log1p(count) / 5.0
+        out[row, base + 1] = 1.0 if count < 5 else 0.0
         # every identifier has four digits in a row: a substring test spares most regex runs
         has_id = "0000" in folded[row] and REGISTRY_ID.search(sentence.text)
-        out[row, base + POSITION_BINS + 3] = 1.0 if has_id else 0.0
+        out[row, base + 2] = 1.0 if has_id else 0.0
         after = row > 0 and sentences[row - 1].block == "heading" and sentence.block != "heading"
-        out[row, base + POSITION_BINS + 4] = 1.0 if after else 0.0
+        out[row, base + 3] = 1.0 if after else 0.0
     return out
 
 

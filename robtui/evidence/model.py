@@ -22,7 +22,8 @@ from robtui.evidence.tfidf import TfidfTable, vocabulary_from_bytes, vocabulary_
 
 WEIGHTS_DIR = Path(__file__).with_name("weights")
 DEFAULT_WEIGHTS = WEIGHTS_DIR / "ranker.npz"
-FORMAT_VERSION = 2  # 2: digits folded before TF-IDF, registry and heading features
+# 2: digits folded before TF-IDF, registry and heading features; 3: no position features
+FORMAT_VERSION = 3
 RETRAIN_HINT = "retrain it with `robtui train-ranker` (needs ../shared/corpus) or reinstall robtui"
 GENERIC_NAMES: tuple[str, ...] = QUESTION_NAMES + ("block=heading", "log_length")
 
