@@ -139,7 +139,13 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
 
     from robtui.benchmarks.corpus import load_corpus, load_mapping
     from robtui.evidence.corpus_docs import labelled_documents
-    from robtui.evidence.ranker import Ranker, generic_block, reading_order, sigmoid
+    from robtui.evidence.ranker import (
+        Ranker,
+        generic_block,
+        layout_of,
+        reading_order,
+        sigmoid,
+    )
     from robtui.evidence.train import fit_weights, prepare, question_texts
 
     mapping = load_mapping(corpus_dir)
@@ -191,8 +197,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                     continue
                 doc = docs[i]
                 scores, base, logits = _scores_for(ranker, doc, keys, texts)
-                sections = [s.section for s in doc.document.sentences]
-                headings = [s.block == "heading" for s in doc.document.sentences]
+                sections, headings = layout_of(doc.document.sentences)
                 for key in keys:
                     tallies[f"model {route}"].add(key, scores[key], doc.labels[key], doc.present[key])
                     tallies[f"spread {route}"].add(key, scores[key], doc.labels[key],

@@ -101,7 +101,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     reviewer's notion of evidence (see with_practice).
     """
     from robtui.evidence.metrics import first_hit_rank
-    from robtui.evidence.ranker import reading_order
+    from robtui.evidence.ranker import layout_of, reading_order
     from robtui.evidence.review_model import (
         PASSED_OVER,
         PASSED_OVER_WEIGHT,
@@ -117,9 +117,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
         return [s.text for s in doc.document.sentences]
 
     def shown(z, doc) -> np.ndarray:  # the order the workbench shows
-        sentences = doc.document.sentences
-        return reading_order(z, [s.section for s in sentences],
-                             [s.block == "heading" for s in sentences])
+        return reading_order(z, *layout_of(doc.document.sentences))
 
     evaluated = [(doc, shipped_logits(doc), texts_of(doc)) for doc in eval_docs]
 

@@ -80,6 +80,11 @@ def reading_order(log_odds: np.ndarray, sections: Sequence[str],
                            np.asarray(head, dtype=np.int64), order[pool:]]).astype(np.int64)
 
 
+def layout_of(sentences: Sequence) -> tuple[list[str], list[bool]]:
+    """Each sentence's section and whether it is a heading: what reading_order needs."""
+    return [s.section for s in sentences], [s.block == "heading" for s in sentences]
+
+
 def sigmoid(z: np.ndarray) -> np.ndarray:
     return 1.0 / (1.0 + np.exp(-np.clip(z, -40, 40)))
 
@@ -265,8 +270,7 @@ class Ranker:
             for key in keys:
                 logits[key] = logits[key] + review_model.logit(key, sentence_texts)
         result: dict[str, list[Suggestion]] = {}
-        sections = [s.section for s in document.sentences]
-        headings = [s.block == "heading" for s in document.sentences]
+        sections, headings = layout_of(document.sentences)
         for qid, key in zip(wanted, keys):
             scores = sigmoid(logits[key])
             if spread:

@@ -382,7 +382,9 @@ def fit_weights(
         X = _with_stack(prep.X[key], items.oof_stacked if items else None, columns)
         scale = block_scale(n_lex, len(columns), settings)
         coef, b = fit_scaled(fit_question, X, scale, prep.y[key], prep.groups, settings)
-        X = scaled(X, scale)  # calibration below: out-of-fold fits on the same design
+        # a fresh scaled copy for the calibration below: reusing the one the fit was given
+        # changes the Platt values in the 15th digit, and the shipped weights reproduce to the bit
+        X = scaled(X, scale)
         lexical[r], shared[r] = coef[:n_lex], coef[n_lex : n_lex + n_sh]
         question[r], intercept[r] = coef[n_lex + n_sh : n_lex + n_sh + n_q], b
         stacked[r, columns] = coef[n_lex + n_sh + n_q :]
@@ -486,8 +488,8 @@ def select_settings(
         prep_test = prepare([docs[i] for i in test], keys, base, texts, space=prep_train.space)
         for g, params in enumerate(grid):
             settings = Settings(**{**asdict(base), **params})
-            scale = block_scale(prep_train.X[keys[0]].shape[1] - len(SHARED_NAMES)
-                                - len(QUESTION_NAMES), 0, settings)
+            space = prep_train.space.weights
+            scale = block_scale(len(space.word.idf) + len(space.char.idf), 0, settings)
             coefs = {k: fit_scaled(fit_key, prep_train.X[k], scale, prep_train.y[k], settings)
                      for k in keys if prep_train.y[k].sum() > 0}
             for key, ranks in _fold_ranks(prep_test, coefs).items():
