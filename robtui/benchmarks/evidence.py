@@ -35,6 +35,8 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--articles", type=int, default=None, help="first N articles only (quick runs)")
     p.add_argument("--no-pdf", action="store_true", help="skip the PDF route")
     p.add_argument("--no-speed", action="store_true", help="skip the timings")
+    p.add_argument("--speed-only", action="store_true",
+                   help="only the timings (no cross-validation; about a minute)")
     p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
     return p
 
@@ -293,6 +295,20 @@ def _speed(corpus_dir: Path | None) -> dict:
     return out
 
 
+def _print_speed(speed: dict) -> None:
+    print("\nSpeed (targets: load <= 0.3 s; rank 400 sentences <= 0.05 s; cold suggest on a "
+          "15-page PDF <= 2.5 s)")
+    print(f"  model load, load_ranker() in a fresh process: {speed['load_s_median_of_3']:.3f} s "
+          f"({speed['load_with_imports_s_median_of_3']:.3f} s with importing numpy, pydantic "
+          "and the ranker's modules)")
+    print(f"  rank every question, {speed['rank_400_sentences']} sentences: first call "
+          f"{speed['rank_400_first_call_s'] * 1000:.1f} ms, then median "
+          f"{speed['rank_400_median_of_15_s'] * 1000:.1f} ms of 15 (fastest "
+          f"{speed['rank_400_fastest_s'] * 1000:.1f} ms)")
+    print(f"  `robtui suggest --json` on a {speed['suggest_pdf_pages']}-page PDF, cold "
+          f"(new process, empty reader cache): {speed['suggest_pdf_cold_s_median_of_3']:.2f} s")
+
+
 def main(argv: list[str] | None = None) -> int:
     from robtui.benchmarks.corpus import default_corpus_dir
     from robtui.errors import InputError
@@ -303,6 +319,16 @@ def main(argv: list[str] | None = None) -> int:
         raise InputError("no corpus found: pass --corpus PATH (the folder holding consort-tm/)")
     if args.folds < 2:
         raise InputError("--folds must be at least 2")
+    if args.speed_only and args.no_speed:
+        raise InputError("--speed-only and --no-speed exclude each other: give one of them")
+    if args.speed_only:
+        speed = _speed(Path(corpus))
+        _print_speed(speed)
+        if args.json:
+            from robtui.store.atomic import write_text_atomic
+
+            write_text_atomic(args.json, json.dumps({"speed": speed}, indent=2) + "\n")
+        return 0
     print("Evidence ranking on unseen articles (grouped cross-validation by article)")
     print("Corpus: CONSORT-TM development split; Kilicoglu et al., J Biomed Inform 2021;116:103717")
     result = cross_validate(Path(corpus), args.folds, args.articles, not args.no_pdf)
@@ -342,20 +368,9 @@ def main(argv: list[str] | None = None) -> int:
         if key in figs["model txt"]:
             print(f"  AUROC {key}: txt {_fmt(figs['model txt'][key].auroc)}"
                   + (f", pdf {_fmt(figs['model pdf'][key].auroc)}" if "model pdf" in figs else ""))
-    speed = {}
-    if not args.no_speed:
-        speed = _speed(Path(corpus))
-        print("\nSpeed (targets: load <= 0.3 s; rank 400 sentences <= 0.05 s; cold suggest on a "
-              "15-page PDF <= 2.5 s)")
-        print(f"  model load, load_ranker() in a fresh process: {speed['load_s_median_of_3']:.3f} s "
-              f"({speed['load_with_imports_s_median_of_3']:.3f} s with importing numpy, pydantic "
-              "and the ranker's modules)")
-        print(f"  rank every question, {speed['rank_400_sentences']} sentences: first call "
-              f"{speed['rank_400_first_call_s'] * 1000:.1f} ms, then median "
-              f"{speed['rank_400_median_of_15_s'] * 1000:.1f} ms of 15 (fastest "
-              f"{speed['rank_400_fastest_s'] * 1000:.1f} ms)")
-        print(f"  `robtui suggest --json` on a {speed['suggest_pdf_pages']}-page PDF, cold "
-              f"(new process, empty reader cache): {speed['suggest_pdf_cold_s_median_of_3']:.2f} s")
+    speed = {} if args.no_speed else _speed(Path(corpus))
+    if speed:
+        _print_speed(speed)
     if args.json:
         from robtui.store.atomic import write_text_atomic
 

@@ -65,6 +65,8 @@ class DocumentFeatures:
     shared: np.ndarray  # (n, len(SHARED_NAMES))
     coverage: np.ndarray  # (n, n_cues) cue coverage
     sections: list[str]
+    section_names: tuple[str, ...]  # the distinct sections, in order of first appearance
+    section_codes: np.ndarray  # (n,) each sentence's index into section_names
 
     @property
     def n(self) -> int:
@@ -121,12 +123,17 @@ def document_features(
 ) -> DocumentFeatures:
     folded = [lexical_text(s.text) for s in sentences]
     words = [tokens(s.text) for s in sentences]  # cues are matched on the text as written
+    names: dict[str, int] = {}
+    codes = np.fromiter((names.setdefault(s.section, len(names)) for s in sentences),
+                        dtype=np.int64, count=len(sentences))
     return DocumentFeatures(
         word=word.transform(folded),
         char=char.transform(folded),
         shared=shared_features(sentences, words, folded),
         coverage=matcher.coverage(words),
         sections=[s.section for s in sentences],
+        section_names=tuple(names),
+        section_codes=codes,
     )
 
 
@@ -146,14 +153,18 @@ def _window_max(values: np.ndarray, width: int) -> np.ndarray:
     return out
 
 
-def _in_sections(sections: list[str], expected: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
+def _in_sections(
+    names: Sequence[str], codes: np.ndarray, expected: tuple[str, ...]
+) -> tuple[np.ndarray, np.ndarray]:
+    """Per sentence, 1 when its section (``names[codes]``) is one of ``expected`` (or under
+    one), and 1 when its top-level section is one of theirs."""
     wanted_tops = {top_section(e) for e in expected}
-    exact_of, top_of = {}, {}
-    for label in set(sections):
-        exact_of[label] = float(any(label == e or label.startswith(e + ".") for e in expected))
-        top_of[label] = float(top_section(label) in wanted_tops)
-    return (np.array([exact_of[s] for s in sections], dtype=float),
-            np.array([top_of[s] for s in sections], dtype=float))
+    exact = np.array([float(any(label == e or label.startswith(e + ".") for e in expected))
+                      for label in names])
+    top = np.array([float(top_section(label) in wanted_tops) for label in names])
+    if not len(names):
+        return np.zeros(len(codes)), np.zeros(len(codes))
+    return exact[codes], top[codes]
 
 
 def neighbour_max(values: np.ndarray, width: int = NEIGHBOUR_WINDOW) -> np.ndarray:
@@ -174,21 +185,21 @@ def stacked_features(item_scores: np.ndarray) -> np.ndarray:
     Computed for one document at a time, at training and when ranking alike.
     """
     n, k = item_scores.shape
-    out = np.zeros((n, len(STACK_PARTS) * k))
-    for j in range(k):
-        v = item_scores[:, j]
-        out[:, 4 * j : 4 * j + 4] = np.column_stack(
-            [v, _shift(v, 1), _shift(v, -1), neighbour_max(v)]
-        )
-    return out
+    parts = np.stack(
+        [item_scores, _shift(item_scores, 1), _shift(item_scores, -1), neighbour_max(item_scores)],
+        axis=2,
+    )  # (n, items, parts): item-major once flattened
+    return parts.reshape(n, len(STACK_PARTS) * k)
 
 
 def under_heading(values: np.ndarray, is_heading: np.ndarray) -> np.ndarray:
-    """Per row, the value of the nearest heading above it (0 before the first heading)."""
+    """Per row, the value (or row of values) of the nearest heading above it (0 before the
+    first heading)."""
     n = len(values)
     last = np.where(is_heading, np.arange(n), -1)
     last = np.maximum.accumulate(_shift(last + 1, 1)) - 1  # nearest heading strictly above
-    return np.where(last >= 0, values[np.maximum(last, 0)], 0.0)
+    above = values[np.maximum(last, 0)]
+    return np.where((last >= 0).reshape((-1,) + (1,) * (values.ndim - 1)), above, 0.0)
 
 
 def question_features(
@@ -199,19 +210,41 @@ def question_features(
 
     ``similarity`` is the cosine of each sentence with the question's wording.
     """
-    best, full = matcher.key_features(doc.coverage, key)
-    expected = entry.sections if entry else ()
-    in_exact, in_top = _in_sections(doc.sections, expected)
-    columns = [
-        best,
-        full,
-        _shift(best, 1),
-        _shift(best, -1),
-        _window_max(best, NEIGHBOUR_WINDOW),
-        under_heading(best, doc.shared[:, SHARED_NAMES.index("block=heading")] > 0),
-        similarity,
-        _window_max(similarity, NEIGHBOUR_WINDOW),
-        in_exact,
-        in_top,
-    ]
-    return np.column_stack(columns) if doc.n else np.zeros((0, len(QUESTION_NAMES)))
+    return question_feature_blocks(doc, [key], [entry], matcher, similarity[:, None])[key]
+
+
+def question_feature_blocks(
+    doc: DocumentFeatures, keys: Sequence[str], entries: Sequence[CueEntry | None],
+    matcher: CueMatcher, similarity: np.ndarray,
+) -> dict[str, np.ndarray]:
+    """Per key, the (n, len(QUESTION_NAMES)) features of every sentence, computed for all
+    keys at once (one shift per neighbour for the whole (n, keys) matrix).
+
+    ``similarity`` is (n, len(keys)): each sentence's cosine with each question's wording.
+    """
+    n, k = doc.n, len(keys)
+    if n == 0:
+        return {key: np.zeros((0, len(QUESTION_NAMES))) for key in keys}
+    best, full = np.zeros((n, k)), np.zeros((n, k))
+    in_exact, in_top = np.zeros((n, k)), np.zeros((n, k))
+    for j, (key, entry) in enumerate(zip(keys, entries)):
+        best[:, j], full[:, j] = matcher.key_features(doc.coverage, key)
+        in_exact[:, j], in_top[:, j] = _in_sections(
+            doc.section_names, doc.section_codes, entry.sections if entry else ())
+    is_heading = doc.shared[:, SHARED_NAMES.index("block=heading")] > 0
+    stacked = np.stack(
+        [
+            best,
+            full,
+            _shift(best, 1),
+            _shift(best, -1),
+            _window_max(best, NEIGHBOUR_WINDOW),
+            under_heading(best, is_heading),
+            similarity,
+            _window_max(similarity, NEIGHBOUR_WINDOW),
+            in_exact,
+            in_top,
+        ],
+        axis=2,
+    )  # (n, keys, features)
+    return {key: stacked[:, j, :] for j, key in enumerate(keys)}

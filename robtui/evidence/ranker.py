@@ -25,7 +25,7 @@ from robtui.evidence.features import (
     DocumentFeatures,
     document_features,
     lexical_text,
-    question_features,
+    question_feature_blocks,
     stacked_features,
 )
 from robtui.evidence.model import RankerWeights, load_weights
@@ -191,10 +191,8 @@ class Ranker:
         if doc.n == 0:
             return {key: np.zeros((0, len(QUESTION_NAMES))) for key in keys}
         similarity = doc.word.dot_columns(self._question_vectors(list(texts)))  # (n, keys)
-        return {
-            key: question_features(doc, key, self.cues.get(key), self.matcher, similarity[:, j])
-            for j, key in enumerate(keys)
-        }
+        entries = [self.cues.get(key) for key in keys]
+        return question_feature_blocks(doc, keys, entries, self.matcher, similarity)
 
     def logits(
         self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]

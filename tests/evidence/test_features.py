@@ -117,3 +117,25 @@ def test_digits_fold_before_tfidf():
 
     assert lexical_text("n = 30 (NCT01234567)") == "n = 00 (NCT00000000)"
     assert lexical_text("no digits") == "no digits"
+
+
+def test_question_blocks_of_many_keys_equal_each_key_alone(ranker, report_text):
+    """The features of all questions are computed together; no question's columns leak into
+    another's (each key is recomputed alone and compared)."""
+    from robtui.evidence.features import question_features
+    from robtui.reading.text import document_from_text
+
+    doc = document_from_text(report_text)
+    feats = ranker.features(doc)
+    keys = ["1.1", "1.2", "2.1", "4.3", "5.1"]
+    texts = [f"wording of {k}" for k in keys]
+    together = ranker.question_blocks(feats, keys, texts)
+    similarity = feats.word.dot_columns(ranker._question_vectors(texts))
+    for j, key in enumerate(keys):
+        alone = question_features(feats, key, ranker.cues.get(key), ranker.matcher,
+                                  similarity[:, j])
+        np.testing.assert_array_equal(together[key], alone)
+    # and the questions do differ, so the comparison can tell them apart
+    assert not np.array_equal(together["1.2"], together["5.1"])
+    sections = QUESTION_NAMES.index("in_expected_section")
+    assert together["5.1"][:, sections].tolist() != together["1.2"][:, sections].tolist()

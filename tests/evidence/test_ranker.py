@@ -125,3 +125,11 @@ def test_a_heading_shown_does_not_count_as_showing_its_section():
     # without the heading rule the concealment paragraph loses its place to another section
     assert reading_order(z, sections, margin=1.0).tolist() == [0, 1, 3, 2]
     assert reading_order(z, sections, headings, margin=1.0).tolist() == [0, 1, 2, 3]
+
+
+def test_evidence_benchmark_refuses_contradictory_speed_flags():
+    from robtui.benchmarks.evidence import main as bench
+    from robtui.errors import InputError
+
+    with pytest.raises(InputError, match="exclude each other"):
+        bench(["--corpus", ".", "--speed-only", "--no-speed"])

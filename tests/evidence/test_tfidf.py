@@ -65,3 +65,25 @@ def test_dot_columns_in_row_blocks_equals_scipy():
     for chunk in (1, 5, 64, 10**6):
         np.testing.assert_allclose(rows.dot_columns(columns, chunk=chunk), matrix @ columns,
                                    rtol=1e-5, atol=1e-5)
+
+
+def test_word_tokens_are_scikit_learns():
+    """Our faster token pattern finds exactly what scikit-learn's default pattern finds."""
+    import random
+    import re
+
+    from sklearn.feature_extraction.text import TfidfVectorizer
+
+    from robtui.evidence.tfidf import WORD_TOKEN
+
+    theirs = re.compile(TfidfVectorizer().token_pattern)
+    alphabet = "ab1_ -.,'é\u0301ß中\n(0)·"  # letters, digits, underscore, combining mark, CJK
+    rng = random.Random(7)
+    texts = SAMPLE + UNSEEN + ["".join(rng.choice(alphabet) for _ in range(rng.randint(0, 40)))
+                               for _ in range(2000)]
+    found = 0
+    for text in texts:
+        expected = theirs.findall(text.lower())
+        assert WORD_TOKEN.findall(text.lower()) == expected, text
+        found += len(expected)
+    assert found > 1000  # the comparison saw many tokens
