@@ -76,7 +76,10 @@ class Tally:
         from robtui.evidence.metrics import first_hit_rank
 
         rank = first_hit_rank(scores, labels, order) if present else None
-        top = float(scores.max()) if len(scores) else 0.0
+        if order is not None:  # the best suggestion (the order holds only suggestible ones)
+            top = float(scores[order[0]]) if len(order) else 0.0
+        else:
+            top = float(scores.max()) if len(scores) else 0.0
         self.rows.setdefault(key, []).append((rank, len(scores), top, present))
 
     def figures(self):
@@ -143,10 +146,11 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     from robtui.evidence.corpus_docs import labelled_documents
     from robtui.evidence.ranker import (
         Ranker,
+        candidate_order,
         generic_block,
         layout_of,
-        reading_order,
         sigmoid,
+        suggestible,
     )
     from robtui.evidence.train import fit_weights, prepare, question_texts
 
@@ -199,19 +203,23 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                     continue
                 doc = docs[i]
                 scores, base, logits = _scores_for(ranker, doc, keys, texts)
-                sections, headings = layout_of(doc.document.sentences)
+                # every column ranks the same candidates as `suggest`: no bare topic headings
+                keep = suggestible(doc.document.sentences)
+                layout = layout_of(doc.document.sentences)
                 for key in keys:
-                    tallies[f"model {route}"].add(key, scores[key], doc.labels[key], doc.present[key])
-                    tallies[f"spread {route}"].add(key, scores[key], doc.labels[key],
-                                                   doc.present[key],
-                                                   reading_order(logits[key], sections,
-                                                                 headings))
-                    tallies[f"baseline {route}"].add(key, base[key], doc.labels[key],
-                                                     doc.present[key])
+                    labels, present = doc.labels[key], doc.present[key]
+                    by_score = candidate_order(logits[key], keep, *layout, spread=False)
+                    tallies[f"model {route}"].add(key, scores[key], labels, present, by_score)
+                    tallies[f"spread {route}"].add(
+                        key, scores[key], labels, present,
+                        candidate_order(logits[key], keep, *layout, spread=True))
+                    tallies[f"baseline {route}"].add(
+                        key, base[key], labels, present,
+                        candidate_order(base[key], keep, *layout, spread=False))
                     if route == "txt":
-                        calib.extend(zip(scores[key].tolist(), doc.labels[key].tolist()))
-                        top = float(scores[key].max()) if len(scores[key]) else 0.0
-                        side = "with" if doc.present[key] else "without"
+                        calib.extend(zip(scores[key].tolist(), labels.tolist()))
+                        top = float(scores[key][by_score[0]]) if len(by_score) else 0.0
+                        side = "with" if present else "without"
                         flagged[side][0] += top < weights.no_evidence_threshold
                         flagged[side][1] += 1
                 if route == "txt":
@@ -220,8 +228,9 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                     for key in keys:
                         gx = generic_block(blocks[key], feats.shared)
                         z = transfer[key].decision_function(gx) if len(gx) else np.zeros(0)
-                        tallies["transfer txt"].add(key, sigmoid(z), doc.labels[key],
-                                                    doc.present[key])
+                        tallies["transfer txt"].add(
+                            key, sigmoid(z), doc.labels[key], doc.present[key],
+                            candidate_order(z, keep, *layout, spread=False))
         print(f"fold {fold + 1}/{folds}: trained on {len(train)} articles, evaluated on "
               f"{len(test)} ({time.perf_counter() - t0:.1f} s)")
     return {

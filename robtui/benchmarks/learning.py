@@ -101,7 +101,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     reviewer's notion of evidence (see with_practice).
     """
     from robtui.evidence.metrics import first_hit_rank
-    from robtui.evidence.ranker import layout_of, reading_order
+    from robtui.evidence.ranker import candidate_order, layout_of, suggestible
     from robtui.evidence.review_model import (
         PASSED_OVER,
         PASSED_OVER_WEIGHT,
@@ -117,7 +117,8 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
         return [s.text for s in doc.document.sentences]
 
     def shown(z, doc) -> np.ndarray:  # the order the workbench shows
-        return reading_order(z, *layout_of(doc.document.sentences))
+        sentences = doc.document.sentences
+        return candidate_order(z, suggestible(sentences), *layout_of(sentences), spread=True)
 
     evaluated = [(doc, shipped_logits(doc), texts_of(doc)) for doc in eval_docs]
 

@@ -2,7 +2,8 @@
 
 Blocks, in the order the weights are stored:
 - word TF-IDF (uni- and bigrams) and character TF-IDF (char_wb 3-5 grams) of the sentence;
-- shared layout features: canonical section (full label and top level), block kind, length,
+- shared layout features: canonical section (full label, its parent for a three-level label,
+  and top level), block kind, length,
   registry identifier, first sentence after a heading (no position in the document: it stands in
   for the section in articles and misleads on protocols, registry records and short texts);
 - per-question features: cue-lexicon coverage of the sentence and of its neighbours, TF-IDF
@@ -105,6 +106,8 @@ def shared_features(
     for row, sentence in enumerate(sentences):
         label = sentence.section if sentence.section in section_col else "other"
         out[row, section_col[label]] = 1.0
+        if label.count(".") == 2:  # a randomisation sub-item's section is also randomisation's
+            out[row, section_col[label.rsplit(".", 1)[0]]] = 1.0
         out[row, top_col[top_section(label)]] = 1.0
         out[row, block_col.get(sentence.block, block_col["body"])] = 1.0
         count = len(words[row])

@@ -11,6 +11,7 @@ Scores are calibrated (Platt scaling on grouped out-of-fold scores), so a best s
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -78,6 +79,42 @@ def reading_order(log_odds: np.ndarray, sections: Sequence[str],
         head.remove(take)
     return np.concatenate([np.asarray(picked, dtype=np.int64),
                            np.asarray(head, dtype=np.int64), order[pool:]]).astype(np.int64)
+
+
+TOPIC_HEADING_MAX_WORDS = 4
+_LETTERS = re.compile(r"[^\W\d_]+")
+_CAPTION_WORDS = frozenset({"table", "figure", "fig"})
+
+
+def suggestible(sentences: Sequence) -> np.ndarray:
+    """Per sentence, False for a bare topic heading ("Allocation concealment.", "Masking"):
+    a heading of at most four words, without a digit, that is not a table or figure title.
+    It tells where evidence may be but holds none a reviewer could quote, so it is never
+    suggested; the sentences under it are. (In the corpus no such heading carries a mapped
+    item; headings that do are titles of tables and figures or hold a registry number.)
+    If a document has nothing else, every sentence stays suggestible."""
+    keep = np.ones(len(sentences), dtype=bool)
+    for i, s in enumerate(sentences):
+        if s.block != "heading" or any(ch.isdigit() for ch in s.text):
+            continue
+        words = _LETTERS.findall(s.text)
+        if len(words) <= TOPIC_HEADING_MAX_WORDS and (
+            not words or words[0].lower() not in _CAPTION_WORDS
+        ):
+            keep[i] = False
+    return keep if keep.any() else np.ones(len(sentences), dtype=bool)
+
+
+def candidate_order(log_odds: np.ndarray, keep: np.ndarray, sections: Sequence[str],
+                    headings: Sequence[bool], *, spread: bool) -> np.ndarray:
+    """Indices of the sentences to suggest (``keep``, from :func:`suggestible`), best first:
+    by score, or (``spread``) in reading order. Sentences at -inf come last."""
+    shown = np.where(keep, log_odds, -np.inf)
+    if spread:
+        order = reading_order(shown, sections, headings)
+    else:
+        order = np.argsort(-shown, kind="stable")
+    return order[keep[order]]
 
 
 def layout_of(sentences: Sequence) -> tuple[list[str], list[bool]]:
@@ -244,6 +281,7 @@ class Ranker:
         """Suggested sentences per question id, best first (every requested question present).
 
         ``spread``: in reading order (see :func:`reading_order`) rather than by score alone.
+        Bare topic headings are never suggested (see :func:`suggestible`).
         """
         active = active_questions(effect, question_set)
         wording = dict(active)
@@ -268,15 +306,13 @@ class Ranker:
             for key in keys:
                 logits[key] = logits[key] + review_model.logit(key, sentence_texts)
         result: dict[str, list[Suggestion]] = {}
+        keep = suggestible(document.sentences)
         sections, headings = layout_of(document.sentences)
         for qid, key in zip(wanted, keys):
             scores = sigmoid(logits[key])
-            if spread:
-                shown = logits[key] if threshold is None else np.where(
-                    scores >= threshold, logits[key], -np.inf)
-                order = reading_order(shown, sections, headings)
-            else:
-                order = np.argsort(-scores, kind="stable")
+            shown = logits[key] if threshold is None else np.where(
+                scores >= threshold, logits[key], -np.inf)
+            order = candidate_order(shown, keep, sections, headings, spread=spread)
             picked = []
             for i in order:
                 if threshold is not None and scores[i] < threshold:

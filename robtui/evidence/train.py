@@ -30,7 +30,7 @@ from robtui.evidence.corpus_docs import LabelledDocument
 from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
 from robtui.evidence.metrics import QuestionFigures, first_hit_rank, macro
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
-from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid
+from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid, suggestible
 from robtui.evidence.tfidf import TfidfTable
 
 CITATION = (
@@ -395,8 +395,8 @@ def fit_weights(
             p = sigmoid(platt[r, 0] * z + platt[r, 1])
             for number, doc in enumerate(prep.docs):
                 rows = prep.groups == number
-                if rows.any():
-                    tops.append(float(p[rows].max()))
+                if rows.any():  # the best suggestion, as `suggest` would show it
+                    tops.append(float(p[rows][suggestible(doc.document.sentences)].max()))
                     present.append(doc.present[key])
     generic, generic_b, generic_platt, generic_cut = _fit_generic(prep, trained, settings,
                                                                   calibrate)
@@ -455,7 +455,7 @@ def _fit_generic(prep: Prepared, keys: list[str], settings: Settings, calibrate:
             for number, doc in enumerate(prep.docs):
                 rows = np.nonzero(prep.groups == number)[0] + offset
                 if len(rows):
-                    tops.append(float(p[rows].max()))
+                    tops.append(float(p[rows][suggestible(doc.document.sentences)].max()))
                     present.append(doc.present[key])
             offset += n
         cut = _youden_threshold(tops, present)

@@ -139,3 +139,22 @@ def test_question_blocks_of_many_keys_equal_each_key_alone(ranker, report_text):
     assert not np.array_equal(together["1.2"], together["5.1"])
     sections = QUESTION_NAMES.index("in_expected_section")
     assert together["5.1"][:, sections].tolist() != together["1.2"][:, sections].tolist()
+
+
+def test_a_randomisation_sub_item_also_counts_as_the_randomisation_section():
+    """The corpus never yields the sub-item sections (8a/9/10 headings), so their own columns
+    have no weight; they also set their parent's column, which has."""
+    rows = [("Allocation was concealed.", "methods.randomisation.allocation_concealment"),
+            ("Participants were randomly assigned.", "methods.randomisation"),
+            ("Pain was scored 0 to 10.", "methods.outcomes")]
+    sentences = [Sentence(index=i, start=0, end=len(t), text=t, section=sec)
+                 for i, (t, sec) in enumerate(rows)]
+    X = shared_features(sentences)
+
+    def col(name):
+        return X[:, SHARED_NAMES.index(name)].tolist()
+
+    assert col("section=methods.randomisation.allocation_concealment") == [1.0, 0.0, 0.0]
+    assert col("section=methods.randomisation") == [1.0, 1.0, 0.0]
+    assert col("section=methods") == [0.0, 0.0, 0.0]  # only the direct parent
+    assert col("section=methods.outcomes") == [0.0, 0.0, 1.0]

@@ -72,7 +72,7 @@ def test_unknown_question_and_bad_top_are_input_errors(ranker, report_text):
 
 def test_scores_are_platt_calibrated_logits(ranker, report_text):
     # The calibrated score is sigmoid(a*z+b) of the linear score: check against the arrays.
-    from robtui.evidence.ranker import sigmoid
+    from robtui.evidence.ranker import sigmoid, suggestible
 
     doc = document_from_text(report_text)
     feats = ranker.features(doc)
@@ -80,7 +80,11 @@ def test_scores_are_platt_calibrated_logits(ranker, report_text):
     ranking = ranker.rank(doc, ["1.2"], top=None)["1.2"]
     by_index = {s.sentence_index: s.score for s in ranking}
     expected = np.round(sigmoid(logits), 4)
-    assert [by_index[i] for i in range(len(doc.sentences))] == expected.tolist()
+    kept = np.nonzero(suggestible(doc.sentences))[0]  # bare topic headings are left out
+    left_out = set(range(len(doc.sentences))) - set(kept.tolist())
+    assert left_out and all(doc.sentences[i].block == "heading" for i in left_out)
+    assert sorted(by_index) == kept.tolist()
+    assert [by_index[i] for i in kept] == expected[kept].tolist()
 
 
 def test_reading_order_spreads_the_first_places_over_sections():
@@ -133,3 +137,39 @@ def test_evidence_benchmark_refuses_contradictory_speed_flags():
 
     with pytest.raises(InputError, match="exclude each other"):
         bench(["--corpus", ".", "--speed-only", "--no-speed"])
+
+
+def test_bare_topic_headings_are_never_suggested():
+    from robtui.evidence.ranker import candidate_order, layout_of, suggestible
+    from robtui.reading.document import Sentence
+
+    rows = [
+        ("Allocation concealment.", "heading"),   # a topic: left out
+        ("Randomisation and masking", "heading"),  # three words: left out
+        ("Table 2 Baseline characteristics", "heading"),  # a table title: kept
+        ("Figure Trial profile", "heading"),  # a figure title without a number: kept
+        ("Registration NCT01234567", "heading"),  # holds a registry number: kept
+        ("Outcome assessors and participants were masked to the allocated group", "heading"),
+        ("Envelopes were opened by a nurse not involved in recruitment.", "body"),
+    ]
+    sentences = [Sentence(index=i, start=0, end=len(t), text=t, section="methods", block=b)
+                 for i, (t, b) in enumerate(rows)]
+    keep = suggestible(sentences)
+    assert keep.tolist() == [False, False, True, True, True, True, True]
+    z = np.array([9.0, 8.0, 1.0, 0.5, 0.2, 2.0, 3.0])
+    for spread in (False, True):
+        order = candidate_order(z, keep, *layout_of(sentences), spread=spread)
+        assert order.tolist()[:2] == [6, 5] and 0 not in order and 1 not in order
+    # a document of nothing but bare headings still gets suggestions
+    only = sentences[:2]
+    assert suggestible(only).tolist() == [True, True]
+
+
+def test_the_ranker_leaves_a_topic_heading_out_of_its_suggestions(ranker):
+    text = ("Methods\n\nAllocation concealment.\n"
+            "Allocation was concealed with sequentially numbered, sealed, opaque envelopes.\n")
+    doc = document_from_text(text)
+    for spread in (False, True):
+        texts = [s.text for s in ranker.rank(doc, ["1.2"], spread=spread)["1.2"]]
+        assert texts and texts[0].startswith("Allocation was concealed")
+        assert "Allocation concealment." not in texts and "Methods" not in texts

@@ -37,4 +37,24 @@ def test_rerun_reproduces_identical_weights(tmp_path):
 
     doc = document_from_text("Methods\nThe weather was mild.\n"
                              "Allocation was concealed in sealed opaque envelopes.\n")
-    assert len(Ranker(a).rank(doc, ["1.2"])["1.2"]) == 3
+    ranked = Ranker(a).rank(doc, ["1.2"])["1.2"]
+    # the bare heading "Methods" is never suggested; the concealment sentence comes first
+    assert ranked[0].text.startswith("Allocation was concealed")
+    assert len(ranked) == 2 and all(s.text != "Methods" for s in ranked)
+
+
+@needs_corpus
+def test_evidence_benchmark_small_run_ranks_better_than_its_baseline():
+    """`robtui bench evidence` end to end on six articles, two folds, text only (about 10 s)."""
+    from robtui.benchmarks.evidence import cross_validate
+    from robtui.evidence.metrics import macro
+
+    result = cross_validate(CORPUS, 2, 6, False)
+    figs = result["figures"]
+    assert {"model txt", "spread txt", "baseline txt", "transfer txt"} <= set(figs)
+    assert set(figs["model txt"]) == set(result["keys"])
+    model, baseline = macro(figs["model txt"], "recall1"), macro(figs["baseline txt"], "recall1")
+    assert 0.0 <= baseline < model <= 1.0
+    # reading order keeps the first place: recall@1 is the same in both orders
+    assert macro(figs["spread txt"], "recall1") == model
+    assert len(result["thresholds"]) == 2
