@@ -132,6 +132,10 @@ class ArticleFigures:
     methods_total: int
     methods_right_txt: int
     methods_right_pdf: int
+    abstract_total: int = 0  # gold sentences of the abstract ...
+    abstract_right_txt: int = 0  # ... that the reader also places in the abstract
+    abstract_right_pdf: int = 0
+    abstract_right_pdf_columns: int = 0  # the same, abstract set in two columns
 
 
 def _prf(predicted: set, gold: set) -> float:
@@ -165,6 +169,15 @@ def gold_label(article: Article, offset: int) -> tuple[bool, tuple[str, ...] | N
         if accepted is not None:
             return True, accepted
     return True, None
+
+
+def in_gold_abstract(article: Article, offset: int) -> bool:
+    """True when the gold sentence at ``offset`` lies in the article's abstract."""
+    return any(
+        section.start <= offset < section.end and len(section.path) >= 1
+        and section.path[0].strip().lower() in ("abstract", "summary")
+        for section in article.sections
+    )
 
 
 def label_ok(predicted: str, accepted: tuple[str, ...] | None) -> bool:
@@ -237,6 +250,7 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
     single = [_squash(s.text) for s in pdf.sentences]
     recovered = recovered_sentence = 0
     methods_total = right_txt = right_pdf = 0
+    abstract_total = abstract_txt = abstract_pdf = 0
     gold_texts = [_squash(article.text[a:b]) for a, b in gold]
     # Exact sentence matches between the PDF's and the gold sentences measure boundaries.
     pdf_f1 = _prf(set(single), set(gold_texts))
@@ -246,6 +260,15 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
         recovered += found
         one = process.extractOne(gtext, single, scorer=fuzz.ratio)
         recovered_sentence += one is not None and one[1] >= RECOVERY_CUTOFF
+        if in_gold_abstract(article, a):
+            abstract_total += 1
+            hit = txt.sentence_at(a)
+            abstract_txt += hit is not None and hit.section == "abstract"
+            if found:
+                index = _nearest_match(
+                    gtext, cand_texts, candidates, a / len(article.text), len(single)
+                )
+                abstract_pdf += pdf.sentences[index].section == "abstract"
         in_methods, accepted = gold_label(article, a)
         if not in_methods:
             continue
@@ -267,7 +290,34 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
         methods_total,
         right_txt,
         right_pdf,
+        abstract_total,
+        abstract_txt,
+        abstract_pdf,
+        _abstract_kept_in_columns(article, workdir),
     )
+
+
+def _abstract_kept_in_columns(article: Article, workdir: Path) -> int:
+    """Gold abstract sentences the PDF reader places in the abstract when the abstract is set
+    in two columns below a full-width title (as `bench evidence` renders the articles): its
+    heading and first subheading then stand on consecutive lines of one column."""
+    from rapidfuzz import process
+
+    from robtui.devtools.pdf_writer import render_text_as_pdf
+    from robtui.evidence.corpus_docs import PDF_FULL_WIDTH_LINES
+    from robtui.reading.reader import read_document
+
+    path = workdir / f"{article.id}-columns.pdf"
+    render_text_as_pdf(article.text, path, full_width_lines=PDF_FULL_WIDTH_LINES)
+    pdf = read_document(path, use_cache=False)
+    single = [_squash(s.text) for s in pdf.sentences]
+    kept = 0
+    for a, b in (_stripped(article.text, s.start, s.end) for s in article.sentences):
+        if b > a and in_gold_abstract(article, a):
+            best = process.extractOne(_squash(article.text[a:b]), single, scorer=fuzz.ratio)
+            kept += (best is not None and best[1] >= RECOVERY_CUTOFF
+                     and pdf.sentences[best[2]].section == "abstract")
+    return kept
 
 
 # -- speed and memory ------------------------------------------------------------------------
@@ -414,6 +464,13 @@ def _print_corpus(articles: list[Article], workdir: Path, corpus: Path) -> None:
         f"  section accuracy, methods sentences pdf  "
         f"{sum(r.methods_right_pdf for r in rows) / max(1, total):.3f}"
     )
+    in_abstract = sum(r.abstract_total for r in rows)
+    for route, right in (("txt", [r.abstract_right_txt for r in rows]),
+                         ("pdf", [r.abstract_right_pdf for r in rows]),
+                         ("pdf, abstract in two columns", [r.abstract_right_pdf_columns
+                                                           for r in rows])):
+        print(f"  abstract sentences kept in the abstract, {route}: "
+              f"{sum(right) / max(1, in_abstract):.3f}  (n={in_abstract})")
     worst = min(range(len(rows)), key=lambda i: rows[i].recovered)
     print(f"  lowest recovery: {articles[worst].id} {rows[worst].recovered:.3f}")
 

@@ -344,6 +344,20 @@ def bare_run_in(paragraph: str) -> str | None:
     return None
 
 
+def joined_abstract_subheading(title: str) -> str | None:
+    """For one heading that joins the abstract's own heading to its first subheading
+    ("Abstract Objectives", "Summary Background", "Abstract OBJECTIVES:"), that subheading;
+    else None. Two short heading lines in a row read as one heading in a PDF column."""
+    words = title.split()
+    if len(words) < 2 or TOP_LEVEL.get(normalise_heading(words[0])) != "abstract":
+        return None
+    rest = " ".join(words[1:])
+    norm = normalise_heading(rest)
+    if not norm or norm.split()[0] in {"and", "of", "the"}:  # "Summary of the findings"
+        return None
+    return rest if is_abstract_subheading(rest) else None
+
+
 @dataclass
 class SectionTracker:
     """Follows the headings of a document and says which section the text is in."""
@@ -363,7 +377,8 @@ class SectionTracker:
                 self.abstract_headings.add(norm)
                 return self.current
             self.in_abstract = False
-        label = match_heading(title, self.current)
+        joined = None if self.in_abstract else joined_abstract_subheading(title)
+        label = "abstract" if joined else match_heading(title, self.current)
         if label is None:
             # Unknown subheading: stay in the enclosing top-level section.
             self.current = top_section(self.current)
@@ -371,7 +386,7 @@ class SectionTracker:
         if label == "abstract":
             self.in_abstract = True
             self.abstract_words = 0
-            self.abstract_headings = set()
+            self.abstract_headings = {normalise_heading(joined)} if joined else set()
         elif self.in_abstract and top_section(label) != "abstract":
             self.in_abstract = False
         self.current = label

