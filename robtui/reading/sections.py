@@ -205,6 +205,11 @@ ABSTRACT_SUB = frozenset(
         "registration",
         "funding",
         "registration",
+        # also seen in journals' structured abstracts (common practice, no source)
+        "population",
+        "subjects",
+        "importance",
+        "outcomes",
     ]
 )
 _ABSTRACT_PHRASES = frozenset(
