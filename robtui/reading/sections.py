@@ -196,6 +196,7 @@ ABSTRACT_SUB = frozenset(
         "measures",
         "outcome",
         "measures",
+        "measure",
         "results",
         "findings",
         "conclusion",
@@ -215,6 +216,7 @@ ABSTRACT_SUB = frozenset(
 _ABSTRACT_PHRASES = frozenset(
     {
         "main outcome measures",
+        "main outcome measure",
         "design setting and participants",
         "trial registration",
         "trial registration number",

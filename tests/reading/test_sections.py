@@ -97,6 +97,16 @@ def test_abstract_heading_joined_to_its_first_subheading(joined: str) -> None:
     assert not again.in_abstract
 
 
+def test_journal_abstract_subheadings_keep_the_abstract_together() -> None:
+    # a structured abstract in the style of several journals (invented order of subheadings)
+    tracker = SectionTracker()
+    tracker.heading("Abstract")
+    for sub in ("Objective", "Design", "Setting", "Population", "Main outcome measure",
+                "Results", "Conclusions"):
+        assert tracker.heading(sub) == "abstract", sub
+    assert tracker.heading("Introduction") == "introduction"
+
+
 def test_a_heading_that_only_starts_with_summary_is_not_an_abstract() -> None:
     tracker = SectionTracker()
     tracker.heading("Methods")
