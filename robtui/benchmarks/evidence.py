@@ -72,14 +72,13 @@ class Tally:
     def __init__(self):
         self.rows: dict[str, list[tuple]] = {}
 
-    def add(self, key, scores, labels, present, order=None):
+    def add(self, key, scores, labels, present, order):
+        """One (article, question): ``order`` is the candidates' order (ranker.candidate_order),
+        so the top score is that of the first suggestion."""
         from robtui.evidence.metrics import first_hit_rank
 
         rank = first_hit_rank(scores, labels, order) if present else None
-        if order is not None:  # the best suggestion (the order holds only suggestible ones)
-            top = float(scores[order[0]]) if len(order) else 0.0
-        else:
-            top = float(scores.max()) if len(scores) else 0.0
+        top = float(scores[order[0]]) if len(order) else 0.0
         self.rows.setdefault(key, []).append((rank, len(scores), top, present))
 
     def figures(self):
@@ -333,10 +332,7 @@ def main(argv: list[str] | None = None) -> int:
     if args.speed_only:
         speed = _speed(Path(corpus))
         _print_speed(speed)
-        if args.json:
-            from robtui.store.atomic import write_text_atomic
-
-            write_text_atomic(args.json, json.dumps({"speed": speed}, indent=2) + "\n")
+        _write_json(args.json, {"speed": speed})
         return 0
     print("Evidence ranking on unseen articles (grouped cross-validation by article)")
     print("Corpus: CONSORT-TM development split; Kilicoglu et al., J Biomed Inform 2021;116:103717")
@@ -380,11 +376,17 @@ def main(argv: list[str] | None = None) -> int:
     speed = {} if args.no_speed else _speed(Path(corpus))
     if speed:
         _print_speed(speed)
-    if args.json:
-        from robtui.store.atomic import write_text_atomic
-
-        payload = {"figures": {n: {k: asdict(v) for k, v in f.items()} for n, f in figs.items()},
-                   "calibration": result["calibration"], "speed": speed,
-                   "settings": result["settings"]}
-        write_text_atomic(args.json, json.dumps(payload, indent=2) + "\n")
+    _write_json(args.json, {
+        "figures": {n: {k: asdict(v) for k, v in f.items()} for n, f in figs.items()},
+        "calibration": result["calibration"], "speed": speed, "settings": result["settings"],
+    })
     return 0
+
+
+def _write_json(path: Path | None, payload: dict) -> None:
+    """The figures as JSON at ``path`` (atomically), when one was asked for."""
+    if path is None:
+        return
+    from robtui.store.atomic import write_text_atomic
+
+    write_text_atomic(path, json.dumps(payload, indent=2) + "\n")

@@ -116,9 +116,13 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     def texts_of(doc):
         return [s.text for s in doc.document.sentences]
 
+    layouts: dict[str, tuple] = {}  # per article: suggestible sentences, sections, headings
+
     def shown(z, doc) -> np.ndarray:  # the order the workbench shows
-        sentences = doc.document.sentences
-        return candidate_order(z, suggestible(sentences), *layout_of(sentences), spread=True)
+        if doc.article_id not in layouts:
+            sentences = doc.document.sentences
+            layouts[doc.article_id] = (suggestible(sentences), *layout_of(sentences))
+        return candidate_order(z, *layouts[doc.article_id], spread=True)
 
     evaluated = [(doc, shipped_logits(doc), texts_of(doc)) for doc in eval_docs]
 

@@ -255,31 +255,22 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
     # Exact sentence matches between the PDF's and the gold sentences measure boundaries.
     pdf_f1 = _prf(set(single), set(gold_texts))
     for (a, b), gtext in zip(gold, gold_texts, strict=True):
-        best = process.extractOne(gtext, cand_texts, scorer=fuzz.ratio)
-        found = best is not None and best[1] >= RECOVERY_CUTOFF
-        recovered += found
+        index = _pdf_sentence_of(gtext, a / len(article.text), pdf, candidates, cand_texts)
+        recovered += index is not None
         one = process.extractOne(gtext, single, scorer=fuzz.ratio)
         recovered_sentence += one is not None and one[1] >= RECOVERY_CUTOFF
+        hit = txt.sentence_at(a)
+        pdf_section = pdf.sentences[index].section if index is not None else None
         if in_gold_abstract(article, a):
             abstract_total += 1
-            hit = txt.sentence_at(a)
             abstract_txt += hit is not None and hit.section == "abstract"
-            if found:
-                index = _nearest_match(
-                    gtext, cand_texts, candidates, a / len(article.text), len(single)
-                )
-                abstract_pdf += pdf.sentences[index].section == "abstract"
+            abstract_pdf += pdf_section == "abstract"
         in_methods, accepted = gold_label(article, a)
         if not in_methods:
             continue
         methods_total += 1
-        hit = txt.sentence_at(a)
         right_txt += hit is not None and label_ok(hit.section, accepted)
-        if found:
-            index = _nearest_match(
-                gtext, cand_texts, candidates, a / len(article.text), len(single)
-            )
-            right_pdf += label_ok(pdf.sentences[index].section, accepted)
+        right_pdf += pdf_section is not None and label_ok(pdf_section, accepted)
     n = max(1, len(gold))
     return ArticleFigures(
         txt_f1,
@@ -293,28 +284,38 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
         abstract_total,
         abstract_txt,
         abstract_pdf,
-        _abstract_kept_in_columns(article, workdir),
+        _abstract_kept_in_columns(article, gold, gold_texts, workdir / "columns"),
     )
 
 
-def _abstract_kept_in_columns(article: Article, workdir: Path) -> int:
+def _pdf_sentence_of(gold_text: str, where: float, pdf: Document,
+                     candidates: list[tuple[str, int]], cand_texts: list[str]) -> int | None:
+    """Index of the PDF sentence that recovers ``gold_text`` (at relative position ``where``),
+    or None when no sentence (or run of them) matches it well enough."""
+    from rapidfuzz import process
+
+    best = process.extractOne(gold_text, cand_texts, scorer=fuzz.ratio)
+    if best is None or best[1] < RECOVERY_CUTOFF:
+        return None
+    return _nearest_match(gold_text, cand_texts, candidates, where, len(pdf.sentences))
+
+
+def _abstract_kept_in_columns(article: Article, gold: list[tuple[int, int]],
+                              gold_texts: list[str], folder: Path) -> int:
     """Gold abstract sentences the PDF reader places in the abstract when the abstract is set
     in two columns below a full-width title (as `bench evidence` renders the articles): its
     heading and first subheading then stand on consecutive lines of one column."""
     from rapidfuzz import process
 
-    from robtui.devtools.pdf_writer import render_text_as_pdf
-    from robtui.evidence.corpus_docs import PDF_FULL_WIDTH_LINES
-    from robtui.reading.reader import read_document
+    from robtui.evidence.corpus_docs import pdf_document
 
-    path = workdir / f"{article.id}-columns.pdf"
-    render_text_as_pdf(article.text, path, full_width_lines=PDF_FULL_WIDTH_LINES)
-    pdf = read_document(path, use_cache=False)
+    folder.mkdir(exist_ok=True)
+    pdf = pdf_document(article, folder)
     single = [_squash(s.text) for s in pdf.sentences]
     kept = 0
-    for a, b in (_stripped(article.text, s.start, s.end) for s in article.sentences):
-        if b > a and in_gold_abstract(article, a):
-            best = process.extractOne(_squash(article.text[a:b]), single, scorer=fuzz.ratio)
+    for (a, _), gtext in zip(gold, gold_texts, strict=True):
+        if in_gold_abstract(article, a):
+            best = process.extractOne(gtext, single, scorer=fuzz.ratio)
             kept += (best is not None and best[1] >= RECOVERY_CUTOFF
                      and pdf.sentences[best[2]].section == "abstract")
     return kept

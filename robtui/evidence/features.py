@@ -65,7 +65,6 @@ class DocumentFeatures:
     char: SparseRows
     shared: np.ndarray  # (n, len(SHARED_NAMES))
     coverage: np.ndarray  # (n, n_cues) cue coverage
-    sections: list[str]
     section_names: tuple[str, ...]  # the distinct sections, in order of first appearance
     section_codes: np.ndarray  # (n,) each sentence's index into section_names
 
@@ -134,7 +133,6 @@ def document_features(
         char=char.transform(folded),
         shared=shared_features(sentences, words, folded),
         coverage=matcher.coverage(words),
-        sections=[s.section for s in sentences],
         section_names=tuple(names),
         section_codes=codes,
     )
@@ -150,10 +148,8 @@ def _shift(values: np.ndarray, by: int) -> np.ndarray:
 
 
 def _window_max(values: np.ndarray, width: int) -> np.ndarray:
-    out = values.copy()
-    for by in range(1, width + 1):
-        out = np.maximum(out, np.maximum(_shift(values, by), _shift(values, -by)))
-    return out
+    """Per row, the largest value within ``width`` rows either side, itself included."""
+    return np.maximum(values, neighbour_max(values, width))
 
 
 def _in_sections(
@@ -165,8 +161,6 @@ def _in_sections(
     exact = np.array([float(any(label == e or label.startswith(e + ".") for e in expected))
                       for label in names])
     top = np.array([float(top_section(label) in wanted_tops) for label in names])
-    if not len(names):
-        return np.zeros(len(codes)), np.zeros(len(codes))
     return exact[codes], top[codes]
 
 

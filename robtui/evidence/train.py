@@ -22,6 +22,7 @@ import platform
 import sys
 from collections.abc import Sequence
 from dataclasses import asdict, dataclass, field
+from functools import cached_property
 from pathlib import Path
 
 import numpy as np
@@ -92,6 +93,11 @@ class Prepared:
     generic_X: dict[str, np.ndarray]
     groups: np.ndarray  # document number of each row
     docs: list[LabelledDocument] = field(default_factory=list)
+
+    @cached_property
+    def suggestible(self) -> list[np.ndarray]:
+        """Per document, the sentences `suggest` may show (ranker.suggestible)."""
+        return [suggestible(d.document.sentences) for d in self.docs]
 
 
 def fit_tables(texts: list[str], settings: Settings) -> tuple[TfidfTable, TfidfTable]:
@@ -396,7 +402,7 @@ def fit_weights(
             for number, doc in enumerate(prep.docs):
                 rows = prep.groups == number
                 if rows.any():  # the best suggestion, as `suggest` would show it
-                    tops.append(float(p[rows][suggestible(doc.document.sentences)].max()))
+                    tops.append(float(p[rows][prep.suggestible[number]].max()))
                     present.append(doc.present[key])
     generic, generic_b, generic_platt, generic_cut = _fit_generic(prep, trained, settings,
                                                                   calibrate)
@@ -455,7 +461,7 @@ def _fit_generic(prep: Prepared, keys: list[str], settings: Settings, calibrate:
             for number, doc in enumerate(prep.docs):
                 rows = np.nonzero(prep.groups == number)[0] + offset
                 if len(rows):
-                    tops.append(float(p[rows][suggestible(doc.document.sentences)].max()))
+                    tops.append(float(p[rows][prep.suggestible[number]].max()))
                     present.append(doc.present[key])
             offset += n
         cut = _youden_threshold(tops, present)

@@ -194,8 +194,6 @@ ABSTRACT_SUB = frozenset(
         "main",
         "outcome",
         "measures",
-        "outcome",
-        "measures",
         "measure",
         "results",
         "findings",
@@ -205,7 +203,6 @@ ABSTRACT_SUB = frozenset(
         "trial",
         "registration",
         "funding",
-        "registration",
         # also seen in journals' structured abstracts (common practice, no source)
         "population",
         "subjects",
@@ -216,7 +213,6 @@ ABSTRACT_SUB = frozenset(
 _ABSTRACT_PHRASES = frozenset(
     {
         "main outcome measures",
-        "main outcome measure",
         "design setting and participants",
         "trial registration",
         "trial registration number",
