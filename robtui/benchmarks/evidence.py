@@ -387,6 +387,6 @@ def _write_json(path: Path | None, payload: dict) -> None:
     """The figures as JSON at ``path`` (atomically), when one was asked for."""
     if path is None:
         return
-    from robtui.store.atomic import write_text_atomic
+    from robtui.files import write_text_atomic
 
     write_text_atomic(path, json.dumps(payload, indent=2) + "\n")

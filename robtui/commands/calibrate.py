@@ -243,7 +243,7 @@ def run_report(args: argparse.Namespace) -> int:
         calibration_markdown,
     )
     from robtui.export.safety import export_path
-    from robtui.store.atomic import write_text_atomic
+    from robtui.files import write_text_atomic
     from robtui.store.calibration_rounds import load_round, round_numbers
     from robtui.store.rules_file import load_folder_rules
 
@@ -315,7 +315,7 @@ def run_trend(args: argparse.Namespace) -> int:
     from robtui.errors import InputError
     from robtui.export.agreement_trend import render_trend_plot, trend_html, trend_markdown
     from robtui.export.safety import export_path
-    from robtui.store.atomic import write_bytes_atomic, write_text_atomic
+    from robtui.files import write_bytes_atomic, write_text_atomic
 
     folder, qset = _open(args.folder)
     reviewers = _reviewers(folder, args.reviewers)

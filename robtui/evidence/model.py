@@ -63,7 +63,7 @@ class RankerWeights:
 
 def save_weights(weights: RankerWeights, path: Path) -> None:
     """Write the NPZ and its provenance JSON beside it, both atomically."""
-    from robtui.store.atomic import write_bytes_atomic, write_text_atomic
+    from robtui.files import write_bytes_atomic, write_text_atomic
 
     arrays = {
         "format_version": np.array([FORMAT_VERSION]),

@@ -244,7 +244,7 @@ def load_review_model(folder_learned_dir: Path) -> ReviewModel:
 
 def save_review_model(model: ReviewModel, learned_dir: Path) -> Path:
     """Write the model atomically to ``learned_dir``; returns the file written."""
-    from robtui.store.atomic import write_text_atomic
+    from robtui.files import write_text_atomic
 
     path = Path(learned_dir) / FILE_NAME
     payload = {

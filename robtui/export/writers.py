@@ -17,7 +17,7 @@ from robtui.core.model import JUDGEMENTS, Assessment, Consensus
 from robtui.export.palette import OUTLINE, SWATCHES, swatch
 from robtui.export.safety import csv_cell, export_path, markup, md, tex
 from robtui.export.tables import OutcomeExport, build_outcome_export, column_titles
-from robtui.store.atomic import write_bytes_atomic, write_text_atomic
+from robtui.files import write_bytes_atomic, write_text_atomic
 
 TEXT_FORMATS = ("csv", "md", "html", "tex")
 PLOT_FORMATS = ("svg", "png", "pdf")

@@ -13,8 +13,8 @@ from pathlib import Path
 
 from pydantic import ValidationError
 
+from robtui.files import write_text_atomic
 from robtui.reading.document import DOCUMENT_SCHEMA_VERSION, Document
-from robtui.store.atomic import write_text_atomic
 
 CACHE_ENV = "ROBTUI_CACHE_DIR"
 # Bump when a reader change alters the output for the same bytes, so old entries are not used.

@@ -19,7 +19,7 @@ from robtui.core.calibration import CalibrationRound, MissingAssessment
 from robtui.core.comparison import AssessmentPair
 from robtui.core.model import SCHEMA_VERSION, Assessment, Review
 from robtui.errors import DataFileError, InputError
-from robtui.store.atomic import write_text_atomic
+from robtui.files import write_text_atomic
 from robtui.store.records import check_schema, describe_validation, record_to_json
 
 ROUNDS_DIR = "calibration"

@@ -30,7 +30,7 @@ from robtui.core.model import (
     Study,
 )
 from robtui.errors import DataFileError, InputError
-from robtui.store.atomic import write_bytes_atomic, write_text_atomic
+from robtui.files import write_bytes_atomic, write_text_atomic
 from robtui.store.records import (
     describe_validation,
     read_json_record,

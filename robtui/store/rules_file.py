@@ -44,7 +44,7 @@ from robtui.core.rules import (
     validate_rulebook,
 )
 from robtui.errors import DataFileError, InputError
-from robtui.store.atomic import write_text_atomic
+from robtui.files import write_text_atomic
 from robtui.store.records import _read_text as read_text
 from robtui.store.records import check_schema
 

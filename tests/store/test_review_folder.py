@@ -8,6 +8,7 @@ from pathlib import Path
 
 import pytest
 
+from robtui import files as atomic
 from robtui.core.model import (
     Answer,
     Assessment,
@@ -19,7 +20,6 @@ from robtui.core.model import (
     ResultSpec,
 )
 from robtui.errors import DataFileError, InputError, NewerSchemaError
-from robtui.store import atomic
 from robtui.store.review_folder import ReviewFolder
 
 SHA = "a" * 64

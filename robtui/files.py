@@ -1,4 +1,7 @@
-"""Atomic file writes: a reader sees the old file or the new one, never half of either."""
+"""Atomic file writes: a leaf module every package may use.
+
+A reader sees the old file or the new one, never half of either (temp file, fsync, rename).
+"""
 
 from __future__ import annotations
 
