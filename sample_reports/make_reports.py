@@ -19,7 +19,7 @@ HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE.parent))
 
 from robtui.devtools.pdf_writer import PdfBlock, render_blocks_as_pdf
-from robtui.store.atomic import write_text_atomic
+from robtui.files import write_text_atomic
 
 JOURNAL = "Journal of Invented Clinical Trials"
 
