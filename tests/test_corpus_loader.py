@@ -2,7 +2,7 @@
 
 import pytest
 
-from robtui.benchmarks.corpus import default_corpus_dir, is_hit, load_corpus, load_mapping
+from robtui.evidence.training.corpus import default_corpus_dir, is_hit, load_corpus, load_mapping
 
 CORPUS = default_corpus_dir()
 needs_corpus = pytest.mark.skipif(CORPUS is None, reason="../shared/corpus is not present")

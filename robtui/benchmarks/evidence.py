@@ -44,7 +44,7 @@ def _parser() -> argparse.ArgumentParser:
 def _settings_from_shipped():
     from robtui.errors import ModelFileError
     from robtui.evidence.model import load_weights
-    from robtui.evidence.train import Settings
+    from robtui.evidence.training.train import Settings
 
     try:
         shipped = load_weights().provenance.get("settings", {})
@@ -75,14 +75,14 @@ class Tally:
     def add(self, key, scores, labels, present, order):
         """One (article, question): ``order`` is the candidates' order (ranker.candidate_order),
         so the top score is that of the first suggestion."""
-        from robtui.evidence.metrics import first_hit_rank
+        from robtui.evidence.training.metrics import first_hit_rank
 
         rank = first_hit_rank(scores, labels, order) if present else None
         top = float(scores[order[0]]) if len(order) else 0.0
         self.rows.setdefault(key, []).append((rank, len(scores), top, present))
 
     def figures(self):
-        from robtui.evidence.metrics import QuestionFigures
+        from robtui.evidence.training.metrics import QuestionFigures
 
         return {
             k: QuestionFigures.from_ranks([r[0] for r in v], [r[1] for r in v],
@@ -96,7 +96,7 @@ def _fmt(x) -> str:
 
 
 def _print_table(title: str, columns: dict[str, dict], keys: list[str]) -> None:
-    from robtui.evidence.metrics import macro
+    from robtui.evidence.training.metrics import macro
 
     print(f"\n{title}")
     names = list(columns)
@@ -141,8 +141,7 @@ def _calibration(pairs: list[tuple[float, bool]]) -> dict:
 def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool) -> dict:
     from sklearn.model_selection import GroupKFold
 
-    from robtui.benchmarks.corpus import load_corpus, load_mapping
-    from robtui.evidence.corpus_docs import labelled_documents
+    from robtui.benchmarks._corpus_pdf import labelled_pdf_documents
     from robtui.evidence.ranker import (
         Ranker,
         candidate_order,
@@ -151,7 +150,9 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         sigmoid,
         suggestible,
     )
-    from robtui.evidence.train import fit_weights, prepare, question_texts
+    from robtui.evidence.training.corpus import load_corpus, load_mapping
+    from robtui.evidence.training.corpus_docs import labelled_documents
+    from robtui.evidence.training.train import fit_weights, prepare, question_texts
 
     mapping = load_mapping(corpus_dir)
     corpus = load_corpus(corpus_dir)
@@ -166,7 +167,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     if pdf:
         t0 = time.perf_counter()
         with tempfile.TemporaryDirectory() as tmp:
-            pdf_docs = labelled_documents(corpus, mapping, "pdf", pdf_folder=Path(tmp))
+            pdf_docs = labelled_pdf_documents(corpus, mapping, Path(tmp))
         lost = sum(s is None for d in pdf_docs for s in d.spans)
         total = sum(len(d.spans) for d in pdf_docs)
         print(f"rendered and read {len(pdf_docs)} two-column PDFs in "
@@ -244,8 +245,8 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
 
 def _speed(corpus_dir: Path | None) -> dict:
     """Model load, ranking a 400-sentence document, and a cold whole-process suggest on a PDF."""
-    from robtui.benchmarks.corpus import load_corpus
     from robtui.devtools.pdf_writer import render_text_as_pdf
+    from robtui.evidence.training.corpus import load_corpus
     from robtui.reading.text import document_from_text
 
     out: dict[str, float] = {}
@@ -318,8 +319,8 @@ def _print_speed(speed: dict) -> None:
 
 
 def main(argv: list[str] | None = None) -> int:
-    from robtui.benchmarks.corpus import default_corpus_dir
     from robtui.errors import InputError
+    from robtui.evidence.training.corpus import default_corpus_dir
 
     args = _parser().parse_args(argv)
     corpus = args.corpus or default_corpus_dir()
@@ -359,7 +360,7 @@ def main(argv: list[str] | None = None) -> int:
     print(f"No-evidence threshold per fold: {', '.join(f'{t:.3f}' for t in result['thresholds'])}; "
           f"flagged 'no sentence found' for {f['without'][0]}/{f['without'][1]} (article, question) "
           f"pairs without gold evidence and {f['with'][0]}/{f['with'][1]} with it")
-    from robtui.evidence.metrics import macro
+    from robtui.evidence.training.metrics import macro
 
     m = {n: {a: macro(figs[n], a) for a in ("recall1", "recall3")} for n in figs}
     print(f"\nTargets: {TARGETS}")

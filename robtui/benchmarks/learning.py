@@ -52,7 +52,7 @@ PRACTICES: dict[str, dict[str, tuple[tuple[str, ...], re.Pattern]]] = {
 
 def with_practice(doc, article, practice: dict[str, tuple[tuple[str, ...], re.Pattern]]):
     """``doc`` (a LabelledDocument) with labels widened by a reviewer's quoting practice."""
-    from robtui.benchmarks.corpus import is_hit
+    from robtui.evidence.training.corpus import is_hit
 
     labels, present = dict(doc.labels), dict(doc.present)
     for key, (items, pattern) in practice.items():
@@ -100,7 +100,6 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     the "shipped" model (trained on other articles); the documents' labels are the simulated
     reviewer's notion of evidence (see with_practice).
     """
-    from robtui.evidence.metrics import first_hit_rank
     from robtui.evidence.ranker import candidate_order, layout_of, suggestible
     from robtui.evidence.review_model import (
         PASSED_OVER,
@@ -109,6 +108,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
         LearnedExample,
         update_review_model,
     )
+    from robtui.evidence.training.metrics import first_hit_rank
 
     def shipped_logits(doc):
         return ranker.logits(ranker.features(doc.document), keys, [texts.get(k, "") for k in keys])
@@ -183,11 +183,11 @@ def rotations(review: list, parts: int) -> list[tuple[list, list]]:
 
 
 def main(argv: list[str] | None = None) -> int:
-    from robtui.benchmarks.corpus import default_corpus_dir, load_corpus, load_mapping
     from robtui.benchmarks.evidence import _settings_from_shipped
     from robtui.errors import InputError
-    from robtui.evidence.corpus_docs import labelled_documents
-    from robtui.evidence.train import question_texts
+    from robtui.evidence.training.corpus import default_corpus_dir, load_corpus, load_mapping
+    from robtui.evidence.training.corpus_docs import labelled_documents
+    from robtui.evidence.training.train import question_texts
 
     args = _parser().parse_args(argv)
     corpus_dir = args.corpus or default_corpus_dir()
@@ -211,7 +211,7 @@ def main(argv: list[str] | None = None) -> int:
           f"{args.parts} parts in turn stays unseen and is evaluated while the reviewer works "
           "through the other articles in order. Figures pool every article's evaluation.\n")
     from robtui.evidence.ranker import Ranker
-    from robtui.evidence.train import fit_weights
+    from robtui.evidence.training.train import fit_weights
 
     # the "shipped" model of each turn, trained on the other half with the corpus labels
     shipped = [Ranker(fit_weights(train, keys, settings, texts, item_map=mapping.questions))

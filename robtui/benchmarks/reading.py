@@ -28,7 +28,7 @@ from pathlib import Path
 
 from rapidfuzz import fuzz
 
-from robtui.benchmarks.corpus import Article, default_corpus_dir, load_corpus
+from robtui.evidence.training.corpus import Article, default_corpus_dir, load_corpus
 from robtui.reading.document import Document, top_section
 
 RECOVERY_CUTOFF = 90.0
@@ -307,7 +307,7 @@ def _abstract_kept_in_columns(article: Article, gold: list[tuple[int, int]],
     heading and first subheading then stand on consecutive lines of one column."""
     from rapidfuzz import process
 
-    from robtui.evidence.corpus_docs import pdf_document
+    from robtui.benchmarks._corpus_pdf import pdf_document
 
     folder.mkdir(exist_ok=True)
     pdf = pdf_document(article, folder)

@@ -62,7 +62,7 @@ def _spread(values: list[float]) -> str:
 
 
 def _text_source() -> tuple[list[str], str]:
-    from robtui.benchmarks.corpus import default_corpus_dir, load_corpus
+    from robtui.evidence.training.corpus import default_corpus_dir, load_corpus
 
     corpus = default_corpus_dir()
     if corpus:

@@ -24,7 +24,7 @@ def available() -> list[str]:
     import robtui.benchmarks as pkg
 
     return sorted(
-        m.name for m in pkgutil.iter_modules(pkg.__path__) if not m.name.startswith("_") and m.name != "corpus"
+        m.name for m in pkgutil.iter_modules(pkg.__path__) if not m.name.startswith("_")
     )
 
 

@@ -12,16 +12,16 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         description=(
             "Train the evidence ranker from the annotated corpus (default ../shared/corpus) "
             "with settings chosen by cross-validation grouped by article; writes the weights "
-            "and their provenance. Same as `python -m robtui.evidence.train`."
+            "and their provenance. Same as `python -m robtui.evidence.training.train`."
         ),
     )
-    from robtui.evidence.train_cli import add_arguments
+    from robtui.evidence.training.cli import add_arguments
 
     add_arguments(parser)
     parser.set_defaults(func=run)
 
 
 def run(args: argparse.Namespace) -> int:
-    from robtui.evidence.train import run_from_args
+    from robtui.evidence.training.train import run_from_args
 
     return run_from_args(args)

@@ -4,7 +4,14 @@ import numpy as np
 from scipy.sparse import csr_matrix
 
 from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
-from robtui.evidence.train import Settings, block_scale, fit_key, fit_question, fit_scaled, scaled
+from robtui.evidence.training.train import (
+    Settings,
+    block_scale,
+    fit_key,
+    fit_question,
+    fit_scaled,
+    scaled,
+)
 
 
 def test_block_scale_layout():

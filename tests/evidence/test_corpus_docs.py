@@ -1,6 +1,6 @@
 """Aligning PDF-read sentences back to the source text, and labelling by the hit rule."""
 
-from robtui.evidence.corpus_docs import align_to_source
+from robtui.evidence.training.corpus_docs import align_to_source
 
 
 def test_alignment_ignores_spacing_hyphenation_and_case():

@@ -3,9 +3,9 @@ it names (corpus sentences of the listed items whose wording matches), nothing e
 
 import numpy as np
 
-from robtui.benchmarks.corpus import Article, GoldSentence
 from robtui.benchmarks.learning import PRACTICES, with_practice
-from robtui.evidence.corpus_docs import LabelledDocument
+from robtui.evidence.training.corpus import Article, GoldSentence
+from robtui.evidence.training.corpus_docs import LabelledDocument
 from robtui.reading.text import document_from_text
 
 SENTENCES = [

@@ -4,7 +4,7 @@ and the pairwise part moves a planted evidence sentence to the top of its articl
 import numpy as np
 from scipy.sparse import csr_matrix
 
-from robtui.evidence.train import Settings, article_pairs, fit_key, fit_question
+from robtui.evidence.training.train import Settings, article_pairs, fit_key, fit_question
 
 
 def test_pairs_stay_within_articles_and_take_the_hardest_negatives():

@@ -3,10 +3,10 @@
 import numpy as np
 import pytest
 
-from robtui.benchmarks.corpus import default_corpus_dir
 from robtui.errors import ModelFileError
 from robtui.evidence.features import QUESTION_NAMES, stacked_features
-from robtui.evidence.train import Settings, stack_plan
+from robtui.evidence.training.corpus import default_corpus_dir
+from robtui.evidence.training.train import Settings, stack_plan
 
 CORPUS = default_corpus_dir()
 needs_corpus = pytest.mark.skipif(CORPUS is None, reason="../shared/corpus is not present")
@@ -36,9 +36,9 @@ def test_stack_plan_uses_the_items_of_the_questions_own_domain():
 @pytest.fixture(scope="module")
 def tiny():
     """A model trained with stacking on four corpus articles, and those articles."""
-    from robtui.benchmarks.corpus import load_corpus, load_mapping
-    from robtui.evidence.corpus_docs import labelled_documents
-    from robtui.evidence.train import fit_weights, prepare, question_texts
+    from robtui.evidence.training.corpus import load_corpus, load_mapping
+    from robtui.evidence.training.corpus_docs import labelled_documents
+    from robtui.evidence.training.train import fit_weights, prepare, question_texts
 
     mapping = load_mapping(CORPUS)
     docs = labelled_documents(load_corpus(CORPUS)[:4], mapping, "txt")
@@ -53,7 +53,7 @@ def tiny():
 def test_suggest_time_stacking_equals_the_training_code_path(tiny):
     """The ranker's numpy-only log-odds equal those built with the training code (scipy)."""
     from robtui.evidence.ranker import Ranker, sigmoid
-    from robtui.evidence.train import _per_document, _stack_columns, _with_stack
+    from robtui.evidence.training.train import _per_document, _stack_columns, _with_stack
 
     weights, docs, prep, keys, texts, mapping = tiny
     assert weights.n_items >= 2 and np.abs(weights.stacked).sum() > 0

@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 
-from robtui.benchmarks.corpus import default_corpus_dir
+from robtui.evidence.training.corpus import default_corpus_dir
 
 CORPUS = default_corpus_dir()
 needs_corpus = pytest.mark.skipif(CORPUS is None, reason="../shared/corpus is not present")
@@ -14,7 +14,7 @@ ONE_SETTING = ({"C": 1.0, "class_weight": None},)
 def test_rerun_reproduces_identical_weights(tmp_path):
     from robtui.evidence.model import load_weights
     from robtui.evidence.ranker import Ranker
-    from robtui.evidence.train import train
+    from robtui.evidence.training.train import train
 
     paths = [tmp_path / "a.npz", tmp_path / "b.npz"]
     for path in paths:
@@ -47,7 +47,7 @@ def test_rerun_reproduces_identical_weights(tmp_path):
 def test_evidence_benchmark_small_run_ranks_better_than_its_baseline():
     """`robtui bench evidence` end to end on six articles, two folds, text only (about 10 s)."""
     from robtui.benchmarks.evidence import cross_validate
-    from robtui.evidence.metrics import macro
+    from robtui.evidence.training.metrics import macro
 
     result = cross_validate(CORPUS, 2, 6, False)
     figs = result["figures"]

@@ -8,8 +8,8 @@ import statistics
 
 import pytest
 
-from robtui.benchmarks.corpus import default_corpus_dir, load_corpus
 from robtui.benchmarks.reading import GOLD_METHODS_SUBHEADINGS, label_ok, measure_article
+from robtui.evidence.training.corpus import default_corpus_dir, load_corpus
 
 CORPUS = default_corpus_dir()
 pytestmark = pytest.mark.skipif(CORPUS is None, reason="shared corpus (../shared/corpus) absent")

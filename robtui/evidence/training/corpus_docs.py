@@ -2,24 +2,21 @@
 
 Training and benchmarks only. The text route passes the article's text to
 ``robtui.reading.text.document_from_text`` (offsets are the article's own); the PDF route
-renders the text as a two-column PDF and reads it back with ``read_document``, then aligns each
-sentence to the article text (letters and digits only), so gold spans can be compared.
+(benchmarks only: robtui.benchmarks._corpus_pdf) renders the text as a two-column PDF and reads
+it back with ``read_document``, then aligns each sentence to the article text (letters and
+digits only), so gold spans can be compared.
 Corpus: Kilicoglu et al., J Biomed Inform 2021;116:103717 (CONSORT-TM).
 """
 
 from __future__ import annotations
 
-import tempfile
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
-from robtui.benchmarks.corpus import Article, ItemMapping, gold_spans, is_hit
+from robtui.evidence.training.corpus import Article, ItemMapping, gold_spans, is_hit
 from robtui.reading.document import Document
-
-PDF_FULL_WIDTH_LINES = 3  # title and abstract heading run across the page
 
 
 @dataclass
@@ -96,30 +93,11 @@ def text_document(article: Article) -> Document:
     return document_from_text(article.text, path=f"{article.id}.txt", kind="txt")
 
 
-def pdf_document(article: Article, folder: Path | None = None) -> Document:
-    """Render the article as a two-column PDF and read it with robtui's PDF reader."""
-    from robtui.devtools.pdf_writer import render_text_as_pdf
-    from robtui.reading.reader import read_document
-
-    with tempfile.TemporaryDirectory() as tmp:
-        out = Path(folder or tmp) / f"{article.id}.pdf"
-        if not out.is_file():
-            render_text_as_pdf(article.text, out, full_width_lines=PDF_FULL_WIDTH_LINES)
-        return read_document(out, use_cache=False)
-
-
 def labelled_documents(
-    articles: Sequence[Article], mapping: ItemMapping, source: str = "txt",
-    pdf_folder: Path | None = None,
+    articles: Sequence[Article], mapping: ItemMapping, source: str = "txt"
 ) -> list[LabelledDocument]:
-    """Read and label every article through the text or the PDF route."""
-    out = []
-    for article in articles:
-        if source == "txt":
-            out.append(label_document(article, text_document(article), mapping, aligned=False))
-        elif source == "pdf":
-            doc = pdf_document(article, pdf_folder)
-            out.append(label_document(article, doc, mapping, aligned=True))
-        else:
-            raise ValueError(f"unknown source {source!r}")
-    return out
+    """Read and label every article through the text route (benchmarks add the PDF route:
+    robtui.benchmarks._corpus_pdf.labelled_pdf_documents)."""
+    if source != "txt":
+        raise ValueError(f"unknown source {source!r}")
+    return [label_document(a, text_document(a), mapping, aligned=False) for a in articles]

@@ -1,6 +1,6 @@
 """Train the shipped evidence ranker from the development corpus (scikit-learn, fixed seeds).
 
-    python -m robtui.evidence.train [--corpus PATH] [--out FILE] [--folds 5] [--articles N]
+    python -m robtui.evidence.training.train [--corpus PATH] [--out FILE] [--folds 5] [--articles N]
     robtui train-ranker ...   (the same)
 
 Articles are read with robtui's own text reader (what the ranker sees in use) and labelled by
@@ -27,12 +27,12 @@ from pathlib import Path
 
 import numpy as np
 
-from robtui.evidence.corpus_docs import LabelledDocument
 from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
-from robtui.evidence.metrics import QuestionFigures, first_hit_rank, macro
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
 from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid, suggestible
 from robtui.evidence.tfidf import TfidfTable
+from robtui.evidence.training.corpus_docs import LabelledDocument
+from robtui.evidence.training.metrics import QuestionFigures, first_hit_rank, macro
 
 CITATION = (
     "Kilicoglu H, Rosemblat G, Hoang L, Wadhwa S, Peng Z, Malicki M, Schneider J, ter Riet G. "
@@ -526,8 +526,8 @@ def train(
     grid: Sequence[dict] = GRID, log=print,
 ) -> RankerWeights:
     """Train on the corpus (optionally its first ``articles`` articles) and save to ``out``."""
-    from robtui.benchmarks.corpus import load_corpus, load_mapping
-    from robtui.evidence.corpus_docs import labelled_documents
+    from robtui.evidence.training.corpus import load_corpus, load_mapping
+    from robtui.evidence.training.corpus_docs import labelled_documents
 
     mapping = load_mapping(corpus_dir)
     corpus = load_corpus(corpus_dir)[:articles] if articles else load_corpus(corpus_dir)
@@ -584,15 +584,15 @@ def train(
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from robtui.evidence.train_cli import add_arguments
+    from robtui.evidence.training.cli import add_arguments
 
     return add_arguments(argparse.ArgumentParser(
-        prog="python -m robtui.evidence.train", description=__doc__.split("\n\n")[0]))
+        prog="python -m robtui.evidence.training.train", description=__doc__.split("\n\n")[0]))
 
 
 def run_from_args(args: argparse.Namespace) -> int:
-    from robtui.benchmarks.corpus import default_corpus_dir
     from robtui.errors import InputError
+    from robtui.evidence.training.corpus import default_corpus_dir
 
     corpus = args.corpus or default_corpus_dir()
     if corpus is None:
