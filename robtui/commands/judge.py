@@ -99,6 +99,7 @@ def _parse_pairs(pairs: list[str]) -> dict[str, str]:
 
 def run_single(args: argparse.Namespace) -> int:
     from robtui.core.algorithm import explain_domain, validate_answers
+    from robtui.core.explaining import explain_in_words
     from robtui.core.questions import builtin_question_set
     from robtui.errors import InputError
 
@@ -109,17 +110,18 @@ def run_single(args: argparse.Namespace) -> int:
     if problems:
         raise InputError("; ".join(problems))
     result = explain_domain(domain, answers)
+    words = explain_in_words(domain, answers)
     variant = f", effect of {domain.effect}" if domain.effect else ""
-    print(f"Domain {domain.id} ({domain.name}{variant}): {_LABELS[result.judgement]}")
+    verdict = _LABELS[result.judgement]
+    if words.early:
+        verdict = f"{_LABELS[words.determined]} (already decided by the answers given)"
+    print(f"Domain {domain.id} ({domain.name}{variant}): {verdict}")
     print("path: " + " ".join(result.path()))
     if result.missing:
         still = ", ".join(f"{q.id} ({q.short})" for q in result.missing)
         print(f"still to answer: {still}")
-    for part in result.parts:
-        if part.rule is not None:
-            row = part.table.rows.index(part.rule) + 1
-            print(f"rule: {part.table.name}, row {row}: {_LABELS[part.rule.judgement]}, "
-                  f"{part.rule.because}")
+    for line in words.lines():
+        print(f"why: {line}")
     return 0
 
 

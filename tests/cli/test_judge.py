@@ -82,7 +82,10 @@ def test_single_use_prints_judgement_and_path(capsys):
     out = capsys.readouterr().out.splitlines()
     assert out[0] == "Domain 4 (Bias in measurement of the outcome): Low"
     assert out[1] == "path: 4.1=N 4.2=N 4.3=Y 4.4=N"
-    assert out[2].startswith("rule: ") and "row 4: Low" in out[2]
+    assert out[2] == (
+        "why: 4.2 answered N, 4.4 answered N: comparable measurement that knowledge of the "
+        "intervention could not sway → Low"
+    )
 
 
 def test_single_use_adhering_and_incomplete(capsys):
@@ -93,13 +96,28 @@ def test_single_use_adhering_and_incomplete(capsys):
     assert "effect of adhering): Incomplete" in out
     assert "path: 2.1=Y 2.2=N 2.3=NA 2.4=N 2.5=Y 2.6=?" in out
     assert "still to answer: 2.6" in out
+    assert "why: 1 question still to answer before a judgement: 2.6" in out
+
+
+def test_single_use_says_a_judgement_the_answers_already_decide(capsys):
+    # RoB 2 domain 4 algorithm (Sterne et al. BMJ 2019;366:l4898): an inappropriate
+    # measurement method (4.1 Y/PY) gives High whatever the other answers.
+    assert main(["judge", "--domain", "4", "4.1=Y"]) == 0
+    out = capsys.readouterr().out.splitlines()
+    assert out[0] == (
+        "Domain 4 (Bias in measurement of the outcome): High (already decided by the answers given)"
+    )
+    assert "still to answer: 4.2 (" in out[2]
+    assert out[3] == "why: 4.1 answered Y: inappropriate method of measuring the outcome → High"
+    assert out[4].startswith("why: High whatever the remaining answers (4.2)")
 
 
 def test_single_use_domain2_both_parts_shown(capsys):
     assert main(["judge", "--domain", "2", "2.1=Y", "2.2=Y", "2.3=NI", "2.6=N", "2.7=PN"]) == 0
     out = capsys.readouterr().out
     assert "): Some concerns" in out
-    assert out.count("rule: ") == 2
+    assert out.count("why: ") == 2  # one reason per part of the domain's algorithm
+    assert "why: 2.7 answered PN: analysis not appropriate" in out
 
 
 @pytest.mark.parametrize(
