@@ -33,7 +33,6 @@ def main(argv: Sequence[str] | None = None) -> int:
         pair_complete,
         round_agreement,
     )
-    from robtui.core.questions import builtin_question_set
     from robtui.core.rules import RuleBook, add_rule, rules_for, stale_assessments
     from robtui.export.agreement_trend import render_trend_plot, trend_markdown
     from robtui.export.calibration_report import (
@@ -43,6 +42,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         calibration_markdown,
     )
     from robtui.store.calibration_rounds import save_round, set_calibration_set
+    from robtui.store.question_sets import builtin_question_set
     from robtui.store.rules_file import load_folder_rules, save_rulebook
 
     qset = builtin_question_set()

@@ -59,7 +59,7 @@ def build_synthetic_review(
     """An invented review with both reviewers' assessments of every study x result."""
     from robtui.core import assessing
     from robtui.core.model import Quote, ResultSpec, Study
-    from robtui.core.questions import builtin_question_set
+    from robtui.store.question_sets import builtin_question_set
     from robtui.store.review_folder import ReviewFolder
 
     rng = random.Random(seed)
@@ -136,8 +136,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     args = parser.parse_args(list(argv or []))
 
     from robtui.core.comparison import compare_pair, pair_assessments, review_agreement
-    from robtui.core.questions import builtin_question_set
     from robtui.export.writers import export_outcome
+    from robtui.store.question_sets import builtin_question_set
 
     qset = builtin_question_set()
     with tempfile.TemporaryDirectory(prefix="robtui-bench-review-") as tmp:

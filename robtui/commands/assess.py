@@ -194,8 +194,8 @@ def question_lines(a, qset) -> list[str]:
 
 def run(args: argparse.Namespace) -> int:
     from robtui.core import assessing
-    from robtui.core.questions import builtin_question_set
     from robtui.core.rules import stamp_rules_version
+    from robtui.store.question_sets import builtin_question_set
     from robtui.store.records import record_to_json
     from robtui.store.review_folder import ReviewFolder, check_id
     from robtui.store.rules_file import load_rules_safely

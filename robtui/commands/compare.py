@@ -47,7 +47,7 @@ def add_reviewer_options(parser: argparse.ArgumentParser) -> None:
 # -- shared helpers ------------------------------------------------------------------------------
 def open_review(folder_path: Path):
     """(ReviewFolder, QuestionSet) for a review folder."""
-    from robtui.core.questions import builtin_question_set
+    from robtui.store.question_sets import builtin_question_set
     from robtui.store.review_folder import ReviewFolder
 
     folder = ReviewFolder.open(folder_path)

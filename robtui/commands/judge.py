@@ -66,8 +66,8 @@ def run(args: argparse.Namespace) -> int:
 
 def run_overall(args: argparse.Namespace) -> int:
     from robtui.core.algorithm import judge_overall, may_raise_overall
-    from robtui.core.questions import builtin_question_set
     from robtui.errors import InputError
+    from robtui.store.question_sets import builtin_question_set
 
     qset = builtin_question_set(args.question_set)
     judgements = [j.strip().lower() for j in args.overall.split(",")]
@@ -100,8 +100,8 @@ def _parse_pairs(pairs: list[str]) -> dict[str, str]:
 def run_single(args: argparse.Namespace) -> int:
     from robtui.core.algorithm import explain_domain, validate_answers
     from robtui.core.explaining import explain_in_words
-    from robtui.core.questions import builtin_question_set
     from robtui.errors import InputError
+    from robtui.store.question_sets import builtin_question_set
 
     qset = builtin_question_set(args.question_set)
     domain = qset.domain(str(args.domain), args.effect)
@@ -145,8 +145,8 @@ def judge_line(line: str) -> dict[str, str]:
 
 def _judge_request(request: dict) -> str:
     from robtui.core.algorithm import judge_domain, judge_overall, validate_answers
-    from robtui.core.questions import builtin_question_set
     from robtui.errors import InputError
+    from robtui.store.question_sets import builtin_question_set
 
     tool = request.get("tool")
     if tool is None:

@@ -14,7 +14,7 @@ from pathlib import Path
 
 from robtui.core import assessing
 from robtui.core.model import Assessment, ResultSpec
-from robtui.core.questions import builtin_question_set
+from robtui.store.question_sets import builtin_question_set
 
 REVIEWERS = ("ana", "ben")
 LEAD = "lea"

@@ -139,7 +139,7 @@ def active_questions(effect: str = "assignment", question_set=None) -> list[tupl
         raise InputError(f"unknown effect {effect!r}: use assignment or adhering")
     if question_set is None:
         try:
-            from robtui.core.questions import builtin_question_set
+            from robtui.store.question_sets import builtin_question_set
 
             question_set = builtin_question_set()
         except ImportError:

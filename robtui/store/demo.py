@@ -37,9 +37,10 @@ from robtui.core.comparison import (
     start_consensus,
 )
 from robtui.core.model import ResultSpec
-from robtui.core.questions import QuestionSet, builtin_question_set
+from robtui.core.questions import QuestionSet
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.paths import bundled_dir
+from robtui.store.question_sets import builtin_question_set
 from robtui.store.quotes import find_quote
 from robtui.store.review_folder import ReviewFolder
 

@@ -6,7 +6,8 @@ from dataclasses import asdict, dataclass
 
 from robtui.core import assessing
 from robtui.core.model import OVERALL, Assessment
-from robtui.core.questions import QuestionSet, builtin_question_set
+from robtui.core.questions import QuestionSet
+from robtui.store.question_sets import builtin_question_set
 from robtui.store.review_folder import ReviewFolder
 
 

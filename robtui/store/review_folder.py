@@ -466,6 +466,6 @@ def _check_names(path: Path, record, reviewer: str | None = None) -> None:
 
 
 def _question_set_version(set_id: str) -> str:
-    from robtui.core.questions import builtin_question_set
+    from robtui.store.question_sets import builtin_question_set
 
     return builtin_question_set(set_id).version  # InputError names the sets available

@@ -290,7 +290,7 @@ def _with_updated(book: RuleBook) -> RuleBook:
 
 def review_question_set(folder) -> QuestionSetLike:
     """The question set a review folder uses (DataFileError when it cannot be loaded)."""
-    from robtui.core.questions import builtin_question_set
+    from robtui.store.question_sets import builtin_question_set
 
     name = folder.review.question_set
     try:

@@ -18,7 +18,7 @@ from pathlib import Path
 
 from robtui.core import algorithm, assessing
 from robtui.core.model import Assessment, Consensus, DismissedSuggestion, Quote, ReportFile
-from robtui.core.questions import Domain, Question, QuestionSet, builtin_question_set
+from robtui.core.questions import Domain, Question, QuestionSet
 from robtui.core.rules import (
     AnsweringRule,
     RuleBook,
@@ -28,6 +28,7 @@ from robtui.core.rules import (
 )
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.store.progress import assessment_progress
+from robtui.store.question_sets import builtin_question_set
 from robtui.store.review_folder import ReviewFolder
 from robtui.store.rules_file import load_rules_safely
 

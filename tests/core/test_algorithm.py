@@ -35,8 +35,9 @@ from robtui.core.algorithm import (
     propose_all,
     validate_answers,
 )
-from robtui.core.questions import answer_paths, builtin_question_set
+from robtui.core.question_paths import answer_paths
 from robtui.errors import InputError
+from robtui.store.question_sets import builtin_question_set
 
 ANY5 = "Y/PY/PN/N/NI"
 ANY6 = "NA/Y/PY/PN/N/NI"

@@ -13,8 +13,8 @@ import pytest
 
 from robtui.core import assessing
 from robtui.core.model import Quote, ResultSpec, Review, Study
-from robtui.core.questions import builtin_question_set
 from robtui.errors import InputError
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 LOW_PATH = {

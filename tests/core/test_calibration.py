@@ -22,7 +22,6 @@ from robtui.core.calibration import (
     rules_versions_used,
 )
 from robtui.core.comparison import review_agreement
-from robtui.core.questions import builtin_question_set
 from robtui.core.rules import add_rule, conditions_from_result
 from robtui.devtools.calibration_scenario import REVIEWERS, RULE_QUESTION, run_scripted_calibration
 from robtui.errors import InputError
@@ -32,6 +31,7 @@ from robtui.store.calibration_rounds import (
     save_round,
     set_calibration_set,
 )
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 

@@ -22,8 +22,8 @@ from robtui.core.comparison import (
     start_consensus,
 )
 from robtui.core.model import Quote, ResultSpec, Review, Study
-from robtui.core.questions import builtin_question_set
 from robtui.errors import InputError
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 SHA = "a" * 64

@@ -16,14 +16,14 @@ import pytest
 from robtui.core import questions as qmod
 from robtui.core.algorithm import judge_domain
 from robtui.core.model import JUDGEMENTS, RESPONSES
-from robtui.core.questions import (
-    answer_paths,
+from robtui.core.question_paths import answer_paths, representative_codes
+from robtui.errors import DataFileError, InputError
+from robtui.store import question_sets
+from robtui.store.question_sets import (
     available_question_sets,
     builtin_question_set,
     load_question_set,
-    representative_codes,
 )
-from robtui.errors import DataFileError, InputError
 
 FIXTURES = Path(__file__).resolve().parents[1] / "data" / "question_sets"
 ANY5 = ("Y", "PY", "PN", "N", "NI")
@@ -222,7 +222,7 @@ def test_missing_and_non_utf8_files(tmp_path):
 
 def test_bundled_file_round_trip_from_a_copy(tmp_path):
     # The loader reads any path the caller gives; the copy behaves like the bundled set.
-    src = Path(qmod._bundled_folder()) / "rob2-parallel.toml"
+    src = Path(question_sets._bundled_folder()) / "rob2-parallel.toml"
     copy = tmp_path / "copy.toml"
     shutil.copy(src, copy)
     assert load_question_set(copy) == builtin_question_set()

@@ -13,7 +13,6 @@ from robtui.core.calibration import (
 )
 from robtui.core.comparison import AssessmentPair
 from robtui.core.model import Quote
-from robtui.core.questions import builtin_question_set
 from robtui.devtools.calibration_scenario import REVIEWERS, RULE_TEXT, run_scripted_calibration
 from robtui.export.agreement_trend import render_trend_plot, trend_html, trend_markdown
 from robtui.export.calibration_report import (
@@ -24,6 +23,7 @@ from robtui.export.calibration_report import (
     rules_from_calibration,
 )
 from robtui.store.calibration_rounds import load_round
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 NAMES = {d: QSET.domain(d).name for d in QSET.domain_ids()}

@@ -12,10 +12,10 @@ import pytest
 from robtui.benchmarks.review import answer_everything, build_synthetic_review
 from robtui.core import assessing
 from robtui.core.comparison import complete_consensus, pair_assessments, settle, start_consensus
-from robtui.core.questions import builtin_question_set
 from robtui.errors import InputError
 from robtui.export.safety import csv_cell, export_path, markup, tex
 from robtui.export.writers import export_outcome
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 NASTY = '<script>alert("x")</script> & co'

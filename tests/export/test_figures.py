@@ -14,7 +14,6 @@ import pytest
 from PIL import Image
 
 from robtui.benchmarks.review import build_synthetic_review
-from robtui.core.questions import builtin_question_set
 from robtui.export import figure_png
 from robtui.export.figure_layout import SLACK, lights_figure, summary_figure
 from robtui.export.figure_primitives import Box, Dot, Label
@@ -22,6 +21,7 @@ from robtui.export.palette import SWATCHES, hex_to_rgb
 from robtui.export.plot import render
 from robtui.export.tables import build_outcome_export
 from robtui.export.text_metrics import one_line, text_width, winansi_byte
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 SVG = "{http://www.w3.org/2000/svg}"

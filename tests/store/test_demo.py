@@ -12,9 +12,9 @@ from robtui.core import assessing
 from robtui.core.algorithm import propose_all
 from robtui.core.comparison import differences, pair_assessments, path_answers, pending_questions
 from robtui.core.model import Consensus
-from robtui.core.questions import builtin_question_set
 from robtui.errors import DataFileError, InputError
 from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir
+from robtui.store.question_sets import builtin_question_set
 from robtui.store.quotes import report_document
 from robtui.store.review_folder import ReviewFolder
 

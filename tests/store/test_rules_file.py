@@ -2,9 +2,9 @@
 
 import pytest
 
-from robtui.core.questions import builtin_question_set
 from robtui.core.rules import RuleBook, add_rule, retire_rule
 from robtui.errors import DataFileError, InputError, NewerSchemaError
+from robtui.store.question_sets import builtin_question_set
 from robtui.store.review_folder import ReviewFolder
 from robtui.store.rules_file import (
     hand_edit_warning,

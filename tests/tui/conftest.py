@@ -43,8 +43,8 @@ class FixedRanker:
     no_evidence_threshold = 0.3
 
     def rank(self, document, questions=None, *, effect="assignment", top=5, **_):
-        from robtui.core.questions import builtin_question_set
         from robtui.evidence.ranker import Suggestion
+        from robtui.store.question_sets import builtin_question_set
 
         result = {}
         for question in builtin_question_set().questions(effect):

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from robtui.core.comparison import compare_pair
-from robtui.core.questions import builtin_question_set
+from robtui.store.question_sets import builtin_question_set
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
 from robtui.tui.screens.compare import CompareScreen
