@@ -17,7 +17,7 @@ from robtui.core.explaining import (
     explain_in_words,
     explain_overall,
 )
-from robtui.core.questions import builtin_question_set
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 
