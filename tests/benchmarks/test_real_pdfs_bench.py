@@ -1,0 +1,106 @@
+"""The real-PDF benchmark: its hit rule and normalising (invented strings), and one real article
+end to end when ../shared/real-pdfs and poppler's pdftotext are present."""
+
+import shutil
+
+import numpy as np
+import pytest
+
+from robtui.benchmarks.real_pdfs import (
+    baseline_sentences,
+    contains_snippet,
+    default_folder,
+    first_hit,
+    hit_labels,
+    load_gold,
+    looks_like_table_cell,
+    normalise,
+    pdftotext,
+    recall,
+)
+
+FOLDER = default_folder()
+needs_real = pytest.mark.skipif(FOLDER is None, reason="../shared/real-pdfs is not present")
+needs_poppler = pytest.mark.skipif(shutil.which("pdftotext") is None,
+                                   reason="poppler's pdftotext is not installed")
+
+
+def test_normalise_spells_out_ligatures_quotes_dashes_hyphens_and_space():
+    raw = "The e\ufb03cacy of \u2018gel\u2019 \u2013 was partici\u00adpant-\n  based\u00a0and  FAIR"
+    assert normalise(raw) == "the efficacy of 'gel' was participantbased and fair"
+
+
+def test_a_split_word_is_not_the_same_text_as_the_whole_word():
+    assert normalise("partici pant") != normalise("participant")
+
+
+def test_hit_rule_fuzzy_containment_with_a_length_floor():
+    snippet = normalise("Allocation was concealed in sealed opaque envelopes")
+    longer = normalise("In this invented trial, allocation was concealed in sealed, opaque "
+                       "envelopes held by the pharmacy.")
+    assert contains_snippet(longer, snippet)
+    # a fragment shorter than 0.6 of the snippet is never a hit, however well it matches
+    assert not contains_snippet(normalise("sealed opaque envelopes"), snippet)
+    # unrelated text is no hit
+    assert not contains_snippet(normalise("The gel was well tolerated by most adults in "
+                                          "the clinic."), snippet)
+    labels = hit_labels([longer, normalise("Nothing here at all, just words.")], [snippet])
+    assert labels.tolist() == [True, False]
+
+
+def test_first_hit_and_recall():
+    labels = np.array([False, True, False, True])
+    assert first_hit([0, 2, 3, 1], labels) == 3
+    assert first_hit([0, 2], labels) is None
+    assert recall([1, 3, None, 5], 3) == 0.5
+
+
+def test_baseline_split_and_table_cell_check():
+    text = "Methods were simple. Allo-\ncation was random!\nThen (n = 3) came."
+    assert baseline_sentences(text) == ["Methods were simple.", "Allocation was random!",
+                                        "Then (n = 3) came."]
+    assert looks_like_table_cell("12.3 (4.5) 0.02 17")
+    assert not looks_like_table_cell("Outcome assessors were masked to treatment allocation.")
+
+
+@needs_real
+@needs_poppler
+def test_every_gold_snippet_is_found_in_pdftotexts_reading():
+    """The gold was copied from pdftotext: the normaliser and hit rule must find each one there
+    (so a miss of robtui's is robtui's, not the scoring's)."""
+    gold = load_gold(FOLDER)
+    assert len(gold) >= 10
+    lost = []
+    for name, questions in gold.items():
+        text, _ = pdftotext(FOLDER / name)
+        sentences = [normalise(s) for s in baseline_sentences(text)]
+        for q, items in questions.items():
+            for item in items:
+                if not hit_labels(sentences, [normalise(item.snippet)]).any():
+                    lost.append((name, q, item.snippet))
+    assert lost == []
+
+
+@needs_real
+@needs_poppler
+def test_bench_runs_on_one_real_article(capsys, tmp_path):
+    import json
+
+    from robtui.benchmarks.real_pdfs import main
+
+    out = tmp_path / "figures.json"
+    assert main(["--articles", "trials2015_oral", "--no-process", "--misses",
+                 "--json", str(out)]) == 0
+    printed = capsys.readouterr().out
+    assert "Pooled over" in printed and "baseline: pdftotext + TF-IDF" in printed
+    figures = json.loads(out.read_text())
+    gold = load_gold(FOLDER)["trials2015_oral_malodor_hygiene_rct.pdf"]
+    pairs = figures["pairs"]
+    assert [p["question"] for p in pairs] == list(gold)
+    assert [p["answerable"] for p in pairs] == [bool(v) for v in gold.values()]
+    answerable = figures["figures"]["answerable"]
+    assert answerable == sum(bool(v) for v in gold.values())
+    ranks = [p["rank"] for p in pairs if p["answerable"]]
+    assert figures["figures"]["rank"]["recall@3"] == recall(ranks, 3)
+    assert 0.0 < figures["figures"]["per_article"]["trials2015_oral_malodor_hygiene_rct.pdf"][
+        "integrity"] <= 1.0
