@@ -1,4 +1,7 @@
-"""robtui suggest FILE: candidate sentences per signalling question, best first.
+"""robtui suggest FILE...: candidate sentences per signalling question, best first.
+
+Many files (several FILEs, a folder, or --list) are ranked in a pool of worker processes and
+written as JSON Lines, one object per file in the order given.
 
 Suggestions are candidates for the reviewer to read, never answers: the reviewer decides.
 """
@@ -18,10 +21,17 @@ def register(subparsers: argparse._SubParsersAction) -> None:
             "Read a trial report (PDF, text, Markdown, HTML) and print, for each signalling "
             "question, the sentences most likely to answer it, best first, with a calibrated "
             "score (0..1). A best score below the ranker's no-evidence threshold is flagged "
-            "'no sentence found'."
+            "'no sentence found'. Several files, a folder (its report files, recursively) or "
+            "--list give JSON Lines: one object per file, in the order given, ranked on all "
+            "cores; a file that cannot be ranked gives {\"path\", \"error\"} and the rest go on."
         ),
     )
-    parser.add_argument("file", type=Path, metavar="FILE")
+    parser.add_argument("files", type=Path, metavar="FILE", nargs="*",
+                        help="report files or folders")
+    parser.add_argument("--list", dest="lists", type=Path, action="append", default=[],
+                        metavar="LISTFILE", help="a text file naming one report file per line")
+    parser.add_argument("--workers", type=int, default=None, metavar="N",
+                        help="worker processes for many files (default: all cores)")
     parser.add_argument("--json", action="store_true", help="print exactly one JSON object")
     parser.add_argument("--top", type=int, default=5, metavar="K", help="suggestions per question (5)")
     parser.add_argument("--questions", default=None, metavar="IDS",
@@ -54,38 +64,67 @@ def run(args: argparse.Namespace) -> int:
 
     from robtui.errors import InputError
     from robtui.evidence.ranker import load_ranker
-    from robtui.reading.reader import read_document
+    from robtui.workspace.suggesting import SuggestRequest, files_to_suggest, payload, rank_file
 
     if args.top < 1:
         raise InputError(f"--top must be at least 1 (got {args.top})")
     if args.threshold is not None and not 0.0 <= args.threshold <= 1.0:
         raise InputError(f"--threshold must be between 0 and 1 (got {args.threshold})")
+    if args.workers is not None and args.workers < 0:
+        raise InputError(f"--workers must be 0 (in this process) or more (got {args.workers})")
     questions = _parse_questions(args.questions)
-    ranker = load_ranker(args.model)
-    document = read_document(args.file)
-    ranking = ranker.rank(document, questions, effect=args.effect, top=args.top,
-                          threshold=args.threshold, spread=args.spread)
+    if not args.files and not args.lists:
+        raise InputError("name a report file, a folder or --list LISTFILE")
+    files = files_to_suggest(args.files, args.lists)
+    options = {"questions": tuple(questions) if questions else None, "effect": args.effect,
+               "top": args.top, "threshold": args.threshold, "spread": args.spread}
+    ranker = load_ranker(args.model)  # checks the weights (and the question ids) up front
+    if questions:  # checked once here rather than once per file
+        from robtui.evidence.ranker import active_questions
+
+        known = [qid for qid, _ in active_questions(args.effect)]
+        unknown = [q for q in questions if q not in known]
+        if unknown:
+            raise InputError(f"unknown question id(s) for the {args.effect} effect: "
+                             f"{', '.join(unknown)}; known: {', '.join(known)}")
+    many = len(files) > 1 or args.lists or any(Path(f).is_dir() for f in args.files)
+    if many:
+        return _run_many([SuggestRequest(str(f), **options) for f in files], args, ranker)
+    document, ranking = rank_file(SuggestRequest(str(files[0]), **options), ranker)
     if not document.sentences:
         why = "; ".join(document.warnings) or "the reader found no text"
-        print(f"robtui: {args.file}: no sentences to rank ({why})", file=sys.stderr)
+        print(f"robtui: {files[0]}: no sentences to rank ({why})", file=sys.stderr)
     if args.json:
-        payload = {
-            "document": {"path": document.path, "sha256": document.sha256},
-            "questions": {
-                qid: [
-                    {"start": s.start, "end": s.end, "page": s.page, "section": s.section,
-                     "score": s.score, "text": s.text}
-                    for s in items
-                ]
-                for qid, items in ranking.items()
-            },
-        }
-        print(json.dumps(payload, ensure_ascii=False))
+        print(json.dumps(payload(document, ranking), ensure_ascii=False))
         return 0
     thresholds = {qid: ranker.threshold_for(qid, args.effect) for qid in ranking}
     untrained = {qid for qid in ranking if not ranker.is_trained(qid, args.effect)}
     print(_render(ranking, thresholds, untrained, document.path))
     return 0
+
+
+def _run_many(requests, args, ranker) -> int:
+    """JSON Lines, one object per file in the given order; 1 when any file failed."""
+    import json
+
+    from robtui.workspace.suggesting import suggest_many
+
+    if args.model is not None:
+        from robtui.errors import InputError
+
+        raise InputError("--model works with one file at a time")
+    failed = 0
+
+    def emit(obj: dict) -> None:
+        nonlocal failed
+        failed += "error" in obj
+        print(json.dumps(obj, ensure_ascii=False), flush=True)
+
+    interrupted = suggest_many(requests, emit, workers=args.workers)
+    if failed:
+        print(f"robtui: {failed} of {len(requests)} file(s) could not be ranked (see their "
+              "\"error\")", file=sys.stderr)
+    return 1 if failed or interrupted else 0
 
 
 def _render(ranking: dict, thresholds: dict[str, float], untrained: set[str], path: str) -> str:

@@ -44,6 +44,11 @@ def _entry(sha256: str, kind: str) -> Path:
     return cache_dir() / f"{sha256}-{kind}-{reader_fingerprint()}-s{DOCUMENT_SCHEMA_VERSION}.json"
 
 
+def has_cached(sha256: str, kind: str) -> bool:
+    """True when an entry for these bytes exists (it may still prove damaged on loading)."""
+    return _entry(sha256, kind).is_file()
+
+
 def load_cached(sha256: str, kind: str, path: str) -> Document | None:
     """The cached Document for these bytes, re-pointed at ``path``; None on a miss or damage."""
     entry = _entry(sha256, kind)
