@@ -73,7 +73,7 @@ def _better(a: MapCell, b: MapCell) -> MapCell:
 
 def evidence_map(folder, effect: str = "assignment", question_set=None) -> EvidenceMap:
     """The map for ``effect`` over every study of the review (reads the caches only)."""
-    from robtui.core.questions import builtin_question_set
+    from robtui.store.question_sets import builtin_question_set
 
     qset = question_set or builtin_question_set()
     questions = [(q.id, q.short or q.text) for q in qset.questions(effect)]
