@@ -68,6 +68,7 @@ class PreparedRanking(BaseModel):
     ranker: str  # ranker_fingerprint() at preparation
     pages: int | None = None
     sentences: int = 0
+    no_evidence_threshold: float  # the ranker's (trained questions)
     questions: dict[str, PreparedQuestion] = Field(default_factory=dict)
 
 
@@ -141,7 +142,8 @@ def rank_for_preparation(ranker, document, effect: str) -> PreparedRanking:
         )
     return PreparedRanking(
         sha256=document.sha256, effect=effect, ranker=ranker_fingerprint(),
-        pages=document.pages, sentences=len(document.sentences), questions=questions,
+        pages=document.pages, sentences=len(document.sentences),
+        no_evidence_threshold=float(ranker.no_evidence_threshold), questions=questions,
     )
 
 

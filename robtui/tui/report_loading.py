@@ -16,6 +16,7 @@ from typing import Any
 
 from robtui.core.model import ReportFile
 from robtui.errors import RobtuiError
+from robtui.evidence.prepared import suggestions_of
 from robtui.reading.document import Document
 from robtui.store.review_folder import ReviewFolder
 
@@ -81,6 +82,12 @@ def load_report(
     loaded.seconds["read"] = time.perf_counter() - started
     loaded.notes.extend(loaded.document.warnings)
     started = time.perf_counter()
+    prepared = _prepared_suggestions(loaded.document, effect, ranker_factory, learned_dir)
+    if prepared is not None:  # `robtui prepare` (or the workbench in the background) ranked it
+        loaded.suggestions = suggestions_of(prepared)
+        loaded.no_evidence_threshold = prepared.no_evidence_threshold
+        loaded.seconds["rank"] = time.perf_counter() - started
+        return loaded
     loaded.suggestions = rank_document(
         folder, loaded.document, effect, stage, ranker_factory, loaded.notes,
         learned_dir=learned_dir,
@@ -91,6 +98,24 @@ def load_report(
     except (RobtuiError, AttributeError, TypeError, ValueError):
         loaded.no_evidence_threshold = None
     return loaded
+
+
+def _prepared_suggestions(document: Document, effect: str, ranker_factory, learned_dir):
+    """The prepared entry for this document when it is what ranking would give: the shipped
+    model's suggestions, and the reviewer has no learned model yet; else None."""
+    from robtui.evidence.prepared import load_prepared
+
+    if ranker_factory is not shared_ranker:
+        return None
+    if learned_dir is not None:
+        from robtui.evidence.review_model import load_review_model
+
+        try:
+            if load_review_model(learned_dir).weights:
+                return None
+        except RobtuiError:
+            return None  # ranking says why the learned model was not used
+    return load_prepared(document.sha256, effect)
 
 
 def rank_document(

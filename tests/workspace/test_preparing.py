@@ -167,3 +167,30 @@ def test_bad_worker_count_is_refused(tmp_path, capsys, argv):
     root = _review(tmp_path, capsys)
     assert main([a.format(root=root) for a in argv]) == 2
     assert "workers must be 0" in capsys.readouterr().err
+
+
+def test_the_workbench_opens_prepared_suggestions_without_ranking(tmp_path, capsys,
+                                                                   monkeypatch):
+    from robtui.evidence.ranker import Ranker
+    from robtui.evidence.review_model import ReviewModel, save_review_model
+    from robtui.store.review_folder import ReviewFolder
+    from robtui.tui.report_loading import load_report
+
+    root = _review(tmp_path, capsys)
+    folder = ReviewFolder.open(root)
+    report = folder.review.study("A1").reports[0]
+    ranked = load_report(folder, report, "assignment")  # not prepared yet: ranked here
+    assert main(["prepare", str(root), "--workers", "0", "--quiet"]) == 0
+
+    def no_ranking(*_args, **_kwargs):
+        raise AssertionError("a prepared report must not be ranked again")
+
+    monkeypatch.setattr(Ranker, "rank", no_ranking)
+    prepared = load_report(folder, report, "assignment")
+    assert prepared.suggestions == ranked.suggestions
+    assert prepared.no_evidence_threshold == ranked.no_evidence_threshold
+    # a reviewer's own learned model changes the order: then it is ranked afresh
+    learned = tmp_path / "learned"
+    save_review_model(ReviewModel(weights={"1.1": {0: 0.5}}), learned)
+    with pytest.raises(AssertionError, match="must not be ranked"):
+        load_report(folder, report, "assignment", learned_dir=learned)
