@@ -1,0 +1,61 @@
+"""Suggestions for the questions of the cluster-randomised and crossover sets.
+
+The new questions have no training data: each has cues in robtui/evidence/cues.toml (transfer
+model) or borrows a trained question's model with `same_as`. The sample report
+sample_reports/fir-handwashing (an invented cluster trial) states when pupils joined and how
+many clusters gave data; those sentences should come near the top for the new questions.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from robtui.store.question_sets import available_question_sets, builtin_question_set
+from robtui.evidence.cues import load_cues
+from robtui.reading.reader import read_document
+
+SAMPLES = Path(__file__).resolve().parents[2] / "sample_reports"
+
+
+@pytest.mark.parametrize("set_id", available_question_sets())
+def test_every_question_of_every_bundled_set_has_a_model_or_cues(ranker, set_id):
+    cues = load_cues()
+    qset = builtin_question_set(set_id)
+    for effect in qset.effects():
+        for q in qset.questions(effect):
+            key = q.id if effect == "assignment" or q.domain != "2" else f"adhering:{q.id}"
+            entry = cues.get(key)
+            assert ranker.is_trained(q.id, effect) or (entry and entry.cues), (set_id, key)
+
+
+def test_borrowed_models_are_for_questions_that_ask_the_same():
+    cues = load_cues()
+    cluster = builtin_question_set("rob2-cluster")
+    parallel = builtin_question_set("rob2-parallel")
+    for qid, base in (("2.1b", "2.1"), ("3.1b", "3.1"), ("4.3b", "4.3")):
+        assert cues[qid].same_as == base
+        # same wording (2.1b, 4.3b) or the same question narrowed to participants in clusters
+        assert cluster.question(qid).text.split()[:4] == parallel.question(base).text.split()[:4]
+
+
+@pytest.fixture(scope="module")
+def fir_ranking():
+    from robtui.evidence.ranker import load_ranker
+
+    document = read_document(SAMPLES / "fir-handwashing.txt")
+    ranking = load_ranker().rank(
+        document, ["1b.1", "1b.2", "3.1a"], question_set=builtin_question_set("rob2-cluster"),
+        top=3,
+    )
+    return {qid: [s.text for s in items] for qid, items in ranking.items()}
+
+
+def test_recruitment_after_allocation_is_suggested_first(fir_ranking):
+    assert "after the allocation of their school was known" in fir_ranking["1b.1"][0]
+    assert any("learned of their school's allocation" in t for t in fir_ranking["1b.2"])
+
+
+def test_data_from_every_cluster_is_suggested(fir_ranking):
+    assert fir_ranking["3.1a"][0] == "All 24 schools provided register data."
