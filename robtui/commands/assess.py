@@ -147,7 +147,8 @@ def apply_changes(a, qset, folder, args):
 def describe(a, qset) -> list[str]:
     """Lines showing the judgements per domain and overall, and what is still missing."""
     from robtui.core import assessing
-    from robtui.core.model import JUDGEMENT_LABELS, OVERALL
+    from robtui.core.model import OVERALL
+    from robtui.core.questions import JUDGEMENT_LABELS
 
     lines = [
         f"{a.study_id} / {a.result_id} by {a.reviewer}: {a.status}, effect of {a.effect}",

@@ -127,7 +127,7 @@ def _quotes(quotes) -> list[str]:
 
 def format_comparison(comparison, all_questions: bool = False) -> list[str]:
     """Human-readable lines for one pair."""
-    from robtui.core.comparison import judgement_label
+    from robtui.core.questions import judgement_label
 
     pair = comparison.pair
     a, b = pair.reviewer_a, pair.reviewer_b

@@ -100,7 +100,8 @@ def _pair_of(folder, record):
 
 
 def _summary(record, qset) -> list[str]:
-    from robtui.core.comparison import judgement_label, pending_questions
+    from robtui.core.comparison import pending_questions
+    from robtui.core.questions import judgement_label
 
     pending = pending_questions(record, qset)
     a, b = record.reviewers

@@ -13,8 +13,7 @@ import argparse
 
 TOOLS = {"rob2": "rob2-parallel"}  # batch "tool" value -> bundled question set id
 
-_LABELS = {"low": "Low", "some_concerns": "Some concerns", "high": "High",
-           "incomplete": "Incomplete"}
+from robtui.core.questions import JUDGEMENT_LABELS as _LABELS
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:

@@ -25,7 +25,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 def run(args: argparse.Namespace) -> int:
     import json
 
-    from robtui.core.model import JUDGEMENT_LABELS
+    from robtui.core.questions import JUDGEMENT_LABELS
     from robtui.store.progress import progress_json, review_progress
     from robtui.store.review_folder import ReviewFolder, check_id
 

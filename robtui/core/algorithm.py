@@ -71,6 +71,15 @@ def effective_answers(domain: Domain, answers: Mapping[str, str]) -> dict[str, s
     return {q.id: answers[q.id] for q in asked_questions(domain, answers) if q.id in answers}
 
 
+def path_answers(qset: QuestionSet, effect: str, answers: Mapping[str, str]) -> dict[str, str]:
+    """Only the answers to questions asked on the current path, over every domain of ``qset``
+    as asked for ``effect`` (answers off the path, or of the other effect's variant, ignored)."""
+    result: dict[str, str] = {}
+    for domain_id in qset.domain_ids():
+        result.update(effective_answers(qset.domain(domain_id, effect), answers))
+    return result
+
+
 def validate_answers(domain: Domain, answers: Mapping[str, str]) -> list[str]:
     """Problems with ``answers`` for ``domain``: unknown code or question, option not allowed,
     or an answer to a question whose condition is not met. Empty when all is well."""

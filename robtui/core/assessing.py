@@ -12,9 +12,10 @@ effect is switched back.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 from robtui.core import algorithm
 from robtui.core.model import (
-    JUDGEMENT_LABELS,
     JUDGEMENTS,
     OVERALL,
     RESPONSES,
@@ -25,11 +26,9 @@ from robtui.core.model import (
     Review,
     utc_now,
 )
-from robtui.core.questions import Domain, Question, QuestionSet
+from robtui.core.questions import JUDGEMENT_LABELS, Domain, Question, QuestionSet, effect_key
 from robtui.errors import InputError
 
-EFFECTS = ("assignment", "adhering")
-STASH_SEPARATOR = ":"
 _SEVERITY = {"low": 0, "some_concerns": 1, "high": 2}
 
 
@@ -60,16 +59,20 @@ def domain_of(a: Assessment, qset: QuestionSet, domain_id: str) -> Domain:
     return qset.domain(domain_id, a.effect)
 
 
+def responses(answers: Mapping[str, Answer]) -> dict[str, str]:
+    """The response codes given, by question id (answers without a response left out)."""
+    return {qid: ans.response for qid, ans in answers.items() if ans.response is not None}
+
+
+def path_answers(qset: QuestionSet, effect: str, answers: Mapping[str, Answer]) -> dict[str, str]:
+    """Responses to the questions asked on the current path of every domain (answers off the
+    path ignored): the one "answers on the path" for assessments and consensus records alike."""
+    return algorithm.path_answers(qset, effect, responses(answers))
+
+
 def effective_answers(a: Assessment, qset: QuestionSet, domain_id: str) -> dict[str, str]:
     """Responses of the questions asked on the current path of one domain."""
-    domain = domain_of(a, qset, domain_id)
-    ids = {q.id for q in domain.questions}
-    given = {
-        qid: ans.response
-        for qid, ans in a.answers.items()
-        if qid in ids and ans.response is not None
-    }
-    return algorithm.effective_answers(domain, given)
+    return algorithm.effective_answers(domain_of(a, qset, domain_id), responses(a.answers))
 
 
 def asked_questions(a: Assessment, qset: QuestionSet, domain_id: str) -> list[Question]:
@@ -200,20 +203,26 @@ def remove_quote(a: Assessment, qset: QuestionSet, question_id: str, index: int)
 
 
 def set_effect(a: Assessment, qset: QuestionSet, effect: str) -> Assessment:
-    """Switch domain 2 to the given effect of interest; the other variant's answers are kept."""
+    """Switch the domains with effect variants to ``effect``; the other variant's answers are
+    kept under ``"<effect>:<id>"`` keys (questions.effect_key) and come back on switching back."""
     _editable(a)
-    if effect not in EFFECTS:
-        raise InputError(f"unknown effect {effect!r}: use assignment or adhering")
+    if effect not in qset.effects():
+        raise InputError(
+            f"unknown effect {effect!r}: use {' or '.join(qset.effects()) or 'none (this set has none)'}"
+        )
     if effect == a.effect:
         return a
     answers = dict(a.answers)
-    for q in qset.domain("2", a.effect).questions:
-        if q.id in answers:
-            answers[f"{a.effect}{STASH_SEPARATOR}{q.id}"] = answers.pop(q.id)
-    for q in qset.domain("2", effect).questions:
-        stashed = answers.pop(f"{effect}{STASH_SEPARATOR}{q.id}", None)
-        if stashed is not None:
-            answers[q.id] = stashed
+    varying = [d for d in qset.domain_ids() if qset.has_effect_variants(d)]
+    for domain_id in varying:
+        for q in qset.domain(domain_id, a.effect).questions:
+            if q.id in answers:
+                answers[effect_key(q.id, a.effect)] = answers.pop(q.id)
+    for domain_id in varying:
+        for q in qset.domain(domain_id, effect).questions:
+            stashed = answers.pop(effect_key(q.id, effect), None)
+            if stashed is not None:
+                answers[q.id] = stashed
     return _changed(a, qset, answers=answers, effect=effect)
 
 

@@ -21,7 +21,8 @@ from datetime import datetime
 from typing import Any
 
 from robtui.core.agreement import AgreementStats, agreement
-from robtui.core.comparison import AssessmentPair, pair_assessments, path_answers
+from robtui.core.assessing import path_answers
+from robtui.core.comparison import AssessmentPair, pair_assessments
 from robtui.core.model import JUDGEMENTS, OVERALL, RESPONSES, Answer, Assessment, Review
 
 NOT_ASKED = "not asked"  # category for a question one reviewer's path did not ask
@@ -209,13 +210,6 @@ def domain_agreement(pairs: Sequence[AssessmentPair], domain_ids: Sequence[str])
     return stats, skipped
 
 
-def question_key(question_id: str, domain_id: str, effect: str) -> str:
-    """Key of a question in agreement tables: domain 2 questions of the effect of adhering are
-    ``"2.x@adhering"`` (they differ from the effect of assignment ones), as in
-    robtui.core.comparison.review_agreement."""
-    return f"{question_id}@{effect}" if effect != "assignment" and domain_id == "2" else question_id
-
-
 def round_agreement(pairs: Sequence[AssessmentPair], qset: Any) -> RoundAgreement:
     """Agreement per domain and per signalling question, questions ranked by disagreement.
 
@@ -235,7 +229,7 @@ def round_agreement(pairs: Sequence[AssessmentPair], qset: Any) -> RoundAgreemen
             xa, xb = ra.get(q.id), rb.get(q.id)
             if xa is None and xb is None:
                 continue
-            key = question_key(q.id, q.domain, effect)
+            key = qset.question_key(q.id, effect)
             info.setdefault(key, q)
             if xa is not None and xb is not None:
                 values.setdefault(key, []).append((xa, xb))
@@ -273,9 +267,7 @@ def round_agreement(pairs: Sequence[AssessmentPair], qset: Any) -> RoundAgreemen
 
 
 def _question_order(qset: Any) -> list[str]:
-    keys = [question_key(q.id, q.domain, "assignment") for q in qset.questions("assignment")]
-    keys += [question_key(q.id, q.domain, "adhering") for q in qset.questions("adhering")]
-    return list(dict.fromkeys(keys))
+    return qset.question_keys()
 
 
 def compare_agreement(before: RoundAgreement, after: RoundAgreement) -> list[AgreementChange]:

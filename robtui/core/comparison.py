@@ -9,13 +9,13 @@ judgements are recomputed by the algorithm from the agreed answers.
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 from robtui.core.agreement import agreement
 from robtui.core.algorithm import asked_questions, propose_all
+from robtui.core.assessing import path_answers
 from robtui.core.model import (
-    JUDGEMENT_LABELS,
     JUDGEMENTS,
     OVERALL,
     RESPONSES,
@@ -193,20 +193,6 @@ def pair_assessments(
     ]
 
 
-# -- answers on the current path -------------------------------------------------------------------
-def path_answers(qset, effect: str, answers: Mapping[str, Answer]) -> dict[str, str]:
-    """Responses to the questions asked on the current path (answers off the path ignored)."""
-    responses = {qid: a.response for qid, a in answers.items() if a.response is not None}
-    result: dict[str, str] = {}
-    for domain_id in qset.domain_ids():
-        domain = qset.domain(domain_id, effect)
-        own = {q.id: responses[q.id] for q in domain.questions if q.id in responses}
-        for question in asked_questions(domain, own):
-            if question.id in own:
-                result[question.id] = own[question.id]
-    return result
-
-
 def _answer(record, qid: str) -> Answer:
     return record.answers.get(qid) or Answer()
 
@@ -305,14 +291,10 @@ def review_agreement(pairs: Sequence[AssessmentPair], qset) -> dict:
         for question in qset.questions(effect):
             if question.id not in eff_a or question.id not in eff_b:
                 continue  # asked of one reviewer only: shows in the comparison, not in kappa
-            key = (
-                question.id
-                if effect == "assignment" or question.domain != "2"
-                else (f"{question.id}@{effect}")
-            )
+            key = qset.question_key(question.id, effect)
             question_pairs.setdefault(key, []).append((eff_a[question.id], eff_b[question.id]))
             question_cats.setdefault(key, list(question.options))
-    order = [q.id for q in qset.questions("assignment")]
+    order = qset.question_keys()
     order += [k for k in question_pairs if k not in order]
     questions = {}
     for key in [k for k in order if k in question_pairs]:
@@ -520,5 +502,3 @@ def reopen_consensus(consensus: Consensus) -> Consensus:
     return consensus.model_copy(update={"status": "draft", "updated": utc_now()})
 
 
-def judgement_label(code: str | None) -> str:
-    return JUDGEMENT_LABELS.get(code or "incomplete", "Incomplete")

@@ -16,14 +16,9 @@ from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
 
 from robtui.core import algorithm
+from robtui.core.questions import JUDGEMENT_LABELS as LABELS
 from robtui.core.questions import AnswerIs, Condition, Domain, Question, Rule, RuleTable
 
-LABELS = {
-    "low": "Low",
-    "some_concerns": "Some concerns",
-    "high": "High",
-    "incomplete": "not judged yet",
-}
 ARROW = "→"
 # Stop looking at ways to finish a domain after this many (no bundled domain comes near it:
 # the largest, domain 2 for adhering, has about 21,000 completions from no answers at all).

@@ -23,13 +23,6 @@ Effect = Literal["assignment", "adhering"]
 Status = Literal["draft", "complete"]
 OVERALL = "overall"
 
-JUDGEMENT_LABELS = {
-    "low": "Low",
-    "some_concerns": "Some concerns",
-    "high": "High",
-    "incomplete": "Incomplete",
-}
-
 _ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$"
 
 

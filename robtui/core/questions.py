@@ -19,6 +19,33 @@ from robtui.errors import InputError
 RESPONSE_CODES: tuple[str, ...] = ("Y", "PY", "PN", "N", "NI", "NA")
 JUDGEMENT_CODES: tuple[str, ...] = ("low", "some_concerns", "high")
 EFFECTS: tuple[str, ...] = ("assignment", "adhering")
+INCOMPLETE = "incomplete"  # a domain whose asked questions are not all answered
+# The one table of judgement labels (words for every screen, export and message).
+JUDGEMENT_LABELS: dict[str, str] = {
+    "low": "Low",
+    "some_concerns": "Some concerns",
+    "high": "High",
+    INCOMPLETE: "Not judged",
+}
+# An answer that belongs to one effect's variant of a domain is keyed "<effect>:<question id>"
+# wherever both variants meet (stashed answers, agreement tables, the ranker's models).
+EFFECT_KEY_SEPARATOR = ":"
+
+
+def judgement_label(code: str | None) -> str:
+    """Words for a judgement code; anything not judged (None, incomplete) reads "Not judged"."""
+    return JUDGEMENT_LABELS.get(code or INCOMPLETE, JUDGEMENT_LABELS[INCOMPLETE])
+
+
+def effect_key(question_id: str, effect: str) -> str:
+    """``"adhering:2.3"``: a question of one effect's variant, spelled the one way."""
+    return f"{effect}{EFFECT_KEY_SEPARATOR}{question_id}"
+
+
+def split_effect_key(key: str) -> tuple[str | None, str]:
+    """``"adhering:2.3"`` -> ("adhering", "2.3"); a plain id -> (None, id)."""
+    effect, sep, question_id = key.partition(EFFECT_KEY_SEPARATOR)
+    return (effect, question_id) if sep else (None, key)
 
 
 # --- conditions -------------------------------------------------------------------------------
@@ -136,6 +163,30 @@ class QuestionSet:
             if d.id not in seen:
                 seen.append(d.id)
         return seen
+
+    def has_effect_variants(self, domain_id: str) -> bool:
+        """True when the domain is asked differently for each effect of interest."""
+        return any(d.id == domain_id and d.effect is not None for d in self.domains)
+
+    def question_key(self, question_id: str, effect: str) -> str:
+        """The key of a question across effects: the plain id, or ``"adhering:2.3"`` for a
+        question of a domain with effect variants under any effect but the first."""
+        domain_id = self._domain_of_question(question_id)
+        effects = self.effects()
+        if self.has_effect_variants(domain_id) and effects and effect != effects[0]:
+            return effect_key(question_id, effect)
+        return question_id
+
+    def question_keys(self) -> list[str]:
+        """Every question's key (see question_key), in the set's order, effect by effect."""
+        keys = [self.question_key(q.id, e) for e in self.effects() or [None] for q in self.questions(e)]
+        return list(dict.fromkeys(keys))
+
+    def _domain_of_question(self, question_id: str) -> str:
+        for d in self.domains:
+            if any(q.id == question_id for q in d.questions):
+                return d.id
+        raise InputError(f"question set {self.id} has no question {question_id!r}")
 
     def effects(self) -> list[str]:
         """Effects of interest the set offers variants for (e.g. assignment, adhering)."""

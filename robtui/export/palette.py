@@ -13,6 +13,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from robtui.core.questions import JUDGEMENT_LABELS
+
 CODES: tuple[str, ...] = ("low", "some_concerns", "high", "incomplete")
 
 
@@ -21,15 +23,20 @@ class Swatch:
     fill: str  # "#rrggbb"
     ink: str  # text colour on the fill
     letter: str  # one-letter label inside a cell
-    label: str  # words for legends and tooltips
     hatch: str  # matplotlib hatch for bars, so the plot reads in greyscale too
+    code: str = "incomplete"
+
+    @property
+    def label(self) -> str:
+        """Words for legends and tooltips (the one judgement label table)."""
+        return JUDGEMENT_LABELS[self.code]
 
 
 SWATCHES: dict[str, Swatch] = {
-    "low": Swatch("#6FA8DC", "#111111", "L", "Low", ""),
-    "some_concerns": Swatch("#F2C078", "#111111", "S", "Some concerns", ".."),
-    "high": Swatch("#3D1A4F", "#FFFFFF", "H", "High", "//"),
-    "incomplete": Swatch("#FAFAFA", "#111111", "\u00b7", "Not judged", ""),
+    "low": Swatch("#6FA8DC", "#111111", "L", "", "low"),
+    "some_concerns": Swatch("#F2C078", "#111111", "S", "..", "some_concerns"),
+    "high": Swatch("#3D1A4F", "#FFFFFF", "H", "//", "high"),
+    "incomplete": Swatch("#FAFAFA", "#111111", "\u00b7", "", "incomplete"),
 }
 OUTLINE = "#5A5A5A"  # dashed outline of "not judged" cells
 

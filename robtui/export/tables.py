@@ -14,7 +14,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
-from robtui.core.comparison import path_answers
+from robtui.core.assessing import path_answers
 from robtui.core.grade import GradeSuggestion, suggest_rob_rating
 from robtui.core.model import JUDGEMENTS, OVERALL, Assessment, Consensus, Quote, Review
 

@@ -10,15 +10,11 @@ from __future__ import annotations
 
 from rich.text import Text
 
+from robtui.core.questions import JUDGEMENT_LABELS as LABELS
 from robtui.export.palette import swatch
 
-SHORT_LABELS = {"low": "Low", "some_concerns": "Some", "high": "High", "incomplete": "—"}
-LABELS = {
-    "low": "Low",
-    "some_concerns": "Some concerns",
-    "high": "High",
-    "incomplete": "Not judged",
-}
+# Narrow table cells: the first word of each label, a dash for not judged.
+SHORT_LABELS = {code: label.split()[0] for code, label in LABELS.items()} | {"incomplete": "—"}
 
 
 def badge(code: str | None, *, short: bool = False) -> Text:

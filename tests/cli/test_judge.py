@@ -93,7 +93,7 @@ def test_single_use_adhering_and_incomplete(capsys):
             "2.4=N", "2.5=Y"]
     assert main(args) == 0
     out = capsys.readouterr().out
-    assert "effect of adhering): Incomplete" in out
+    assert "effect of adhering): Not judged" in out  # the one label table (core.questions)
     assert "path: 2.1=Y 2.2=N 2.3=NA 2.4=N 2.5=Y 2.6=?" in out
     assert "still to answer: 2.6" in out
     assert "why: 1 question still to answer before a judgement: 2.6" in out

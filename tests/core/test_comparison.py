@@ -8,13 +8,13 @@ from sklearn.metrics import cohen_kappa_score
 from robtui.benchmarks.review import FAVOURABLE, answer_everything
 from robtui.core import assessing
 from robtui.core.algorithm import propose_all
+from robtui.core.assessing import path_answers
 from robtui.core.comparison import (
     compare_pair,
     complete_consensus,
     differences,
     judgement_rows,
     pair_assessments,
-    path_answers,
     pending_questions,
     review_agreement,
     set_consensus_override,

@@ -10,7 +10,8 @@ import pytest
 from robtui.cli import main
 from robtui.core import assessing
 from robtui.core.algorithm import propose_all
-from robtui.core.comparison import differences, pair_assessments, path_answers, pending_questions
+from robtui.core.assessing import path_answers
+from robtui.core.comparison import differences, pair_assessments, pending_questions
 from robtui.core.model import Consensus
 from robtui.errors import DataFileError, InputError
 from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir

@@ -23,12 +23,12 @@ from textual.screen import Screen
 from textual.widgets import OptionList, Static
 from textual.widgets.option_list import Option
 
+from robtui.core.assessing import path_answers
 from robtui.core.comparison import (
     AssessmentPair,
     compare_pair,
     complete_consensus,
     differences,
-    path_answers,
     pending_questions,
     reopen_consensus,
     settle,
