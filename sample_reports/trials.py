@@ -714,6 +714,113 @@ FIR = Trial(
 )
 
 
+HAZEL = Trial(
+    id="hazel-cough",
+    title="Nocturnel nasal spray for night-time cough in adults with chronic cough: a randomised, "
+    "double-blind, placebo-controlled, two-period crossover trial (HAZEL)",
+    authors="Odile Brannock, Kwame Asante-Viljoen, Petra Lindgard, Samir Hallowell",
+    affiliation="Respiratory Unit, Wexmoor General Hospital, Wexmoor (fictional); "
+    "Wexmoor Trials Unit",
+    issue="2031; 6: 212-217",
+    condition="chronic night-time cough",
+    intervention="Nocturnel",
+    comparator="placebo spray",
+    abstract={
+        "Background": "Nocturnel is an invented nasal spray proposed to calm night-time cough.",
+        "Methods": "In a two-period crossover trial, adults with chronic cough received "
+        "Nocturnel and placebo spray for 14 nights each, in random order, separated by a "
+        "washout of 7 days. The primary outcome was the number of coughs per night, counted "
+        "by an acoustic monitor in the last three nights of each period.",
+        "Results": "Of 64 participants randomised, 58 completed both periods. Coughs per night "
+        "were 21% lower with Nocturnel (ratio 0.79, 95% CI 0.70 to 0.89).",
+        "Conclusions": "Nocturnel reduced counted night-time coughs.",
+        "Registration": "Registry of Invented Trials RIT-2030-05233.",
+    },
+    background=_background(
+        "chronic night-time cough",
+        "Nocturnel",
+        "No randomised comparison within the same patients has been reported.",
+    ),
+    design=[
+        "HAZEL was a randomised, double-blind, two-period, two-sequence crossover trial at "
+        "the respiratory clinic of Wexmoor General Hospital. Each participant received both "
+        "treatments, one in each period, so that participants served as their own controls."
+    ],
+    participants=[
+        "Adults with a cough lasting more than eight weeks that woke them at least three "
+        "nights a week, and a stable condition over the previous month, were eligible."
+    ],
+    interventions=[
+        "Participants used two puffs of Nocturnel or of an identical placebo spray in each "
+        "nostril at bedtime for 14 nights. The two treatment periods were separated by a "
+        "washout period of 7 days, chosen because the active ingredient has a half-life of "
+        "about 6 hours and its effect on cough had faded within two days in earlier studies."
+    ],
+    outcomes=[
+        "The primary outcome was the number of coughs per night, counted automatically by an "
+        "acoustic monitor worn during the last three nights of each period and checked by "
+        "staff who did not know the order of treatments."
+    ],
+    sample_size=[
+        "Sixty participants completing both periods gave 90% power to detect a 20% reduction, "
+        "assuming a within-participant coefficient of variation of 0.35."
+    ],
+    randomisation_heading="Randomisation",
+    randomisation=[
+        (
+            "",
+            "Participants were randomly assigned to one of two sequences (Nocturnel then "
+            "placebo, or placebo then Nocturnel) by a central web service, with a sequence "
+            "prepared by the trials unit statistician in randomly varying blocks.",
+        )
+    ],
+    statistics=[
+        "Log-transformed cough counts were analysed with a mixed model with fixed effects for "
+        "treatment, period and sequence and a random effect for participant. Participants "
+        "with data from one period only were included in the mixed model. A test for "
+        "carryover was not planned."
+    ],
+    flow=[
+        "Thirty-four participants were randomised to Nocturnel first and thirty to placebo "
+        "first. Fifty-eight completed both periods; four withdrew during the first period and "
+        "two during the second, all for reasons unrelated to cough (moving away, a hip "
+        "operation)."
+    ],
+    baseline_table=_table(
+        "Nocturnel first (n=34)",
+        "Placebo first (n=30)",
+        [
+            ("Age, years, mean", "58", "61"),
+            ("Women, n", "19", "17"),
+            ("Coughs per night at entry, median", "96", "102"),
+        ],
+    ),
+    primary=[
+        "Coughs per night were 64 with Nocturnel and 81 with placebo (geometric means; ratio "
+        "0.79, 95% CI 0.70 to 0.89). The period effect was small (ratio 0.97 for the second "
+        "period), and results in the first period alone were similar."
+    ],
+    figure_caption="Figure 1. Coughs per night in each period, by sequence.",
+    secondary=[
+        "Cough-related sleep disturbance scores improved by 1.1 points on a 10-point scale "
+        "(95% CI 0.4 to 1.8)."
+    ],
+    harms=["Nasal stinging was reported by six participants while using Nocturnel."],
+    discussion=_discussion(
+        "Nocturnel",
+        "night-time coughs were fewer while participants used Nocturnel than while they used "
+        "placebo spray.",
+        "The washout of 7 days rested on the half-life of the active ingredient; slower "
+        "effects on the airways cannot be excluded.",
+    ),
+    registration="Registry of Invented Trials RIT-2030-05233.",
+    funding="Funded by the Wexmoor Respiratory Research Fund (fictional).",
+    references=_refs("chronic cough"),
+    reviewer_meets="two-period crossover: nearly equal sequences, period in the analysis, a "
+    "washout argued from the half-life",
+)
+
+
 def _long_trial() -> Trial:
     """A longer report (about 15 pages) for speed benchmarks and the workbench."""
     methods = [
@@ -1092,4 +1199,4 @@ def _complete(t: Trial) -> Trial:
     )
 
 
-TRIALS = [_complete(t) for t in (ALDER, BIRCH, CEDAR, DOGWOOD, ELM, FIR, _long_trial())]
+TRIALS = [_complete(t) for t in (ALDER, BIRCH, CEDAR, DOGWOOD, ELM, FIR, HAZEL, _long_trial())]

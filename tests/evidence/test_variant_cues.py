@@ -3,7 +3,9 @@
 The new questions have no training data: each has cues in robtui/evidence/cues.toml (transfer
 model) or borrows a trained question's model with `same_as`. The sample report
 sample_reports/fir-handwashing (an invented cluster trial) states when pupils joined and how
-many clusters gave data; those sentences should come near the top for the new questions.
+many clusters gave data, and sample_reports/hazel-cough (an invented crossover trial) how many
+were randomised to each sequence, how period was analysed and how long the washout was; those
+sentences should come first for the new questions.
 """
 
 from __future__ import annotations
@@ -59,3 +61,18 @@ def test_recruitment_after_allocation_is_suggested_first(fir_ranking):
 
 def test_data_from_every_cluster_is_suggested(fir_ranking):
     assert fir_ranking["3.1a"][0] == "All 24 schools provided register data."
+
+
+@pytest.mark.parametrize("name", ["hazel-cough.txt", "hazel-cough.pdf"])
+def test_crossover_questions_find_sequences_period_and_washout(name):
+    from robtui.evidence.ranker import load_ranker
+
+    document = read_document(SAMPLES / name)
+    ranking = load_ranker().rank(
+        document, ["S.1", "S.2", "S.3"], question_set=builtin_question_set("rob2-crossover"),
+        top=1,
+    )
+    first = {qid: " ".join(items[0].text.split()) for qid, items in ranking.items()}
+    assert first["S.1"].startswith("Thirty-four participants were randomised to Nocturnel first")
+    assert "fixed effects for treatment, period and sequence" in first["S.2"]
+    assert "separated by a washout period of 7 days" in first["S.3"]

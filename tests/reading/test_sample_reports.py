@@ -17,6 +17,7 @@ SHORT = [
     "dogwood-eczema",
     "elm-copd",
     "fir-handwashing",
+    "hazel-cough",
 ]
 
 # What a reviewer should find in each report, and the section it should be found in.
@@ -30,6 +31,7 @@ SIGNALS = {
         "cluster randomised trial with schools as clusters",
         "methods.trial_design",
     ),
+    "hazel-cough": ("two-period, two-sequence crossover trial", "methods.trial_design"),
 }
 
 
