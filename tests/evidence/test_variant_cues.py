@@ -27,7 +27,7 @@ def test_every_question_of_every_bundled_set_has_a_model_or_cues(ranker, set_id)
     qset = builtin_question_set(set_id)
     for effect in qset.effects():
         for q in qset.questions(effect):
-            key = q.id if effect == "assignment" or q.domain != "2" else f"adhering:{q.id}"
+            key = qset.question_key(q.id, effect)
             entry = cues.get(key)
             assert ranker.is_trained(q.id, effect) or (entry and entry.cues), (set_id, key)
 
