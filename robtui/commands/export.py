@@ -40,6 +40,12 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         metavar="NAME",
         help="file name (without extension) inside DIR/exports/; default: the result id",
     )
+    parser.add_argument(
+        "--figure-width",
+        choices=("page", "column"),
+        default="page",
+        help="figure width: a journal page's text block (174 mm, default) or one column (84 mm)",
+    )
     parser.set_defaults(func=run)
 
 
@@ -78,6 +84,7 @@ def run(args: argparse.Namespace) -> int:
                     name=name,
                     assessments=assessments,
                     consensus=consensus,
+                    figure_width=args.figure_width,
                 )
             except OSError as error:
                 raise InputError(

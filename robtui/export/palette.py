@@ -1,7 +1,8 @@
 """The colours, labels and glyphs of robtui's exports, and the arithmetic to check them.
 
-Our own scheme: sky blue (low), sand (some concerns), aubergine (high) and near-white with a
-dashed outline (not judged). Every cell also carries a letter, so a table reads in greyscale.
+Our own scheme: light sky blue (low), ochre (some concerns), aubergine (high) and near-white
+with a dashed outline (not judged); the fills darken with severity, so greyscale keeps the
+order, and every cell also carries a letter.
 The checks (tests/export/test_palette.py) simulate protanopia, deuteranopia and tritanopia
 with the Machado, Oliveira & Fernandes (2009) model (IEEE TVCG 15(6):1291-1298, severity 100,
 as implemented by colorspacious) and require a CIEDE2000 distance >= 20 between every pair;
@@ -33,8 +34,8 @@ class Swatch:
 
 
 SWATCHES: dict[str, Swatch] = {
-    "low": Swatch("#6FA8DC", "#111111", "L", "", "low"),
-    "some_concerns": Swatch("#F2C078", "#111111", "S", "..", "some_concerns"),
+    "low": Swatch("#86BCE6", "#111111", "L", "", "low"),
+    "some_concerns": Swatch("#C8812A", "#111111", "S", "..", "some_concerns"),
     "high": Swatch("#3D1A4F", "#FFFFFF", "H", "//", "high"),
     "incomplete": Swatch("#FAFAFA", "#111111", "\u00b7", "", "incomplete"),
 }

@@ -352,6 +352,7 @@ def export_outcome(
     name: str | None = None,
     assessments: Sequence[Assessment] | None = None,
     consensus: Sequence[Consensus] | None = None,
+    figure_width: str = "page",
 ) -> tuple[list[Path], OutcomeExport]:
     """Write one result's export in ``fmt`` under exports/; returns the paths and the data."""
     from robtui.errors import InputError
@@ -385,8 +386,8 @@ def export_outcome(
     elif fmt == "tex":
         put(".tex", to_tex(ex, qset))
     else:
-        from robtui.export.plot import render_lights, render_summary
+        from robtui.export.figures import figure_files
 
-        put(f"-lights.{fmt}", render_lights(ex, qset, fmt))
-        put(f"-summary.{fmt}", render_summary(ex, qset, fmt))
+        for suffix, data in figure_files(ex, qset, fmt, figure_width).items():
+            put(suffix, data)
     return written, ex

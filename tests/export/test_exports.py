@@ -7,6 +7,7 @@ import csv
 import io
 import os
 
+import pdfplumber
 import pytest
 
 from robtui.benchmarks.review import answer_everything, build_synthetic_review
@@ -150,7 +151,7 @@ def test_png_and_pdf_figures(folder):
 def test_tex_escapes_and_colours(folder):
     [path], _ = _export(folder, "tex")
     text = path.read_text(encoding="utf-8")
-    assert r"\definecolor{rtlow}{HTML}{6FA8DC}" in text
+    assert r"\definecolor{rtlow}{HTML}{86BCE6}" in text
     assert r"\& co" in text and "\\cellcolor" in text
     assert tex("50% of #1_a") == r"50\% of \#1\_a"
 
@@ -193,8 +194,8 @@ def test_markup_escapes_quotes():
 
 
 def test_figures_take_awkward_user_text(tmp_path):
-    # "$", newlines, tabs and characters missing from the fonts (CJK, emoji) must not break a
-    # figure; the SVG keeps them as text
+    # "$", newlines, tabs and characters missing from the font (CJK, emoji) must not break a
+    # figure; "$" is text, never mathematics
     f = build_synthetic_review(tmp_path / "r", studies=2, results=1, seed=1, disagreement=0.0)
     review = f.review.model_copy(deep=True)
     review.results[0].outcome = "Cost in $ (one $ sign)"
@@ -204,10 +205,8 @@ def test_figures_take_awkward_user_text(tmp_path):
     for fmt in ("png", "svg", "pdf"):
         paths, _ = export_outcome(f, QSET, "outcome-1", fmt)
         assert all(p.stat().st_size > 1000 for p in paths)
-    svg = (f.exports_dir / "outcome-1-summary.svg").read_text(encoding="utf-8")
-    assert "Cost in $ (one $ sign)" in svg
-    lights = (f.exports_dir / "outcome-1-lights.svg").read_text(encoding="utf-8")
-    assert ">Line one line two \u8bd5\u9a8c \U0001f600</text>" in lights
+    with pdfplumber.open(f.exports_dir / "outcome-1-summary.pdf") as pdf:
+        assert "Cost in $ (one $ sign)" in pdf.pages[0].extract_text()
 
 
 def test_exports_folder_that_is_a_link_out_of_the_review_is_refused(tmp_path):

@@ -87,6 +87,14 @@ def test_wcag_reference_values():
     assert relative_luminance("#FFFFFF") == pytest.approx(1.0)
 
 
+def test_fills_get_darker_with_severity_for_greyscale_print():
+    # In greyscale a reader orders the fills by lightness: not judged (white) > low > some
+    # concerns > high, CIE L* computed by colorspacious, at least 10 apart (our own threshold).
+    order = ("incomplete", "low", "some_concerns", "high")
+    lightness = [_lab(SWATCHES[code].fill, None)[0] for code in order]
+    assert all(a - b >= 10 for a, b in itertools.pairwise(lightness)), lightness
+
+
 def test_fills_differ_in_lightness_for_greyscale_print():
     # Our own threshold: CIE L* of any two fills at least 10 apart, so a greyscale print
     # still separates them (the letters carry the meaning anyway).
