@@ -8,7 +8,7 @@ from pathlib import Path
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
-    from robtui.commands.compare import add_reviewer_options
+    from robtui.commands._common import add_reviewer_options
 
     parser = subparsers.add_parser(
         "agreement",
@@ -64,12 +64,13 @@ def format_table(stats: dict, qset) -> list[str]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import choose_reviewers, load_pairs, open_review, warn
+    from robtui.commands._common import open_workspace, warn
     from robtui.core.comparison import review_agreement
 
-    folder, qset = open_review(args.folder)
-    reviewers = choose_reviewers(folder, args.reviewers)
-    pairs, problems = load_pairs(folder, reviewers, result=args.result)
+    ws = open_workspace(args.folder)
+    qset = ws.qset
+    reviewers = ws.choose_reviewers(args.reviewers)
+    pairs, problems = ws.pairs(reviewers, result=args.result)
     stats = review_agreement(pairs, qset)
     stats["reviewers"] = list(reviewers)
     if args.json:

@@ -196,12 +196,12 @@ def question_lines(a, qset) -> list[str]:
 def run(args: argparse.Namespace) -> int:
     from robtui.core import assessing
     from robtui.core.rules import stamp_rules_version
-    from robtui.store.question_sets import builtin_question_set
     from robtui.store.records import record_to_json
-    from robtui.store.review_folder import ReviewFolder, check_id
-    from robtui.store.rules_file import load_rules_safely
+    from robtui.store.review_folder import check_id
+    from robtui.workspace import Workspace
 
-    folder = ReviewFolder.open(args.folder)
+    ws = Workspace.open(args.folder)
+    folder = ws.folder
     check_id(args.reviewer, "reviewer")
     folder.study_or_error(args.study)
     folder.result_or_error(args.result)
@@ -210,7 +210,7 @@ def run(args: argparse.Namespace) -> int:
     # A review that names its reviewers refuses a misspelt one; an open review takes anyone.
     if not args.add_reviewer:
         folder.refuse_unlisted_reviewer(args.reviewer)
-    qset = builtin_question_set(folder.review.question_set)
+    qset = ws.qset
     stored = folder.load_assessment(args.reviewer, args.study, args.result)
     a = stored or assessing.new_assessment(
         folder.review, args.study, args.result, args.reviewer, qset
@@ -221,7 +221,7 @@ def run(args: argparse.Namespace) -> int:
         if add_reviewer:
             folder.add_reviewer(args.reviewer)
         # Record the answering-rules version the change was made under (None: unreadable).
-        changed = stamp_rules_version(changed, load_rules_safely(folder)[0])
+        changed = stamp_rules_version(changed, ws.rules_safely()[0])
         path = folder.save_assessment(changed)
         saved = f"saved {path}"
     else:

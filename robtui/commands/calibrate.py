@@ -12,6 +12,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.commands._common import add_reviewer_options, open_workspace
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -32,7 +34,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         "record", help="record a round: snapshot both reviewers' complete assessments of the set"
     )
     record.add_argument("folder", type=Path, metavar="DIR")
-    _reviewers_option(record)
+    add_reviewer_options(record)
     record.set_defaults(func=run_record)
 
     discuss = actions.add_parser(
@@ -65,7 +67,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         "trend", help="kappa per domain by batches of studies in assessment order (table + plot)"
     )
     trend.add_argument("folder", type=Path, metavar="DIR")
-    _reviewers_option(trend)
+    add_reviewer_options(trend)
     trend.add_argument("--batch", type=int, default=5, metavar="N", help="studies per batch (5)")
     trend.add_argument("--format", choices=("md", "html"), default="md")
     trend.add_argument("--plot", choices=("png", "svg", "pdf", "none"), default="png")
@@ -73,37 +75,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     trend.set_defaults(func=run_trend)
 
 
-def _reviewers_option(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument(
-        "--reviewers", metavar="A,B", help="the two reviewers (default: the review's two)"
-    )
-
-
 # --- shared ------------------------------------------------------------------------------------
-
-
-def _reviewers(folder, given: str | None) -> tuple[str, str]:
-    from robtui.errors import InputError
-
-    if given:
-        names = [n.strip() for n in given.split(",") if n.strip()]
-    else:
-        names = list(folder.review.reviewers) if len(folder.review.reviewers) == 2 else []
-        names = names or folder.reviewers_on_disk()
-    if len(names) != 2 or names[0] == names[1]:
-        raise InputError(
-            f"name the two reviewers to compare with --reviewers A,B (found: "
-            f"{', '.join(names) or 'none'})"
-        )
-    return names[0], names[1]
-
-
-def _open(path: Path):
-    from robtui.store.review_folder import ReviewFolder
-    from robtui.store.rules_file import review_question_set
-
-    folder = ReviewFolder.open(path)
-    return folder, review_question_set(folder)
 
 
 def _domain_names(qset) -> dict[str, str]:
@@ -149,11 +121,11 @@ def run_record(args: argparse.Namespace) -> int:
     from robtui.core.model import utc_now
     from robtui.errors import InputError
     from robtui.store.calibration_rounds import next_round_number, save_round
-    from robtui.store.rules_file import load_folder_rules
 
-    folder, _ = _open(args.folder)
-    reviewers = _reviewers(folder, args.reviewers)
-    book = load_folder_rules(folder)  # a round records the rules version: they must be readable
+    ws = open_workspace(args.folder)
+    folder = ws.folder
+    reviewers = ws.choose_reviewers(args.reviewers)
+    book = ws.rules()  # a round records the rules version: they must be readable
     found, problems = folder.assessments()
     try:
         r = build_round(
@@ -197,7 +169,8 @@ def run_discuss(args: argparse.Namespace) -> int:
     from robtui.core.calibration import format_figure, round_agreement
     from robtui.store.calibration_rounds import load_round
 
-    folder, qset = _open(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     r = load_round(folder.root, _latest(folder, args.round))
     ag = round_agreement(r.pairs, qset)
     ra, rb = r.reviewers
@@ -245,9 +218,9 @@ def run_report(args: argparse.Namespace) -> int:
     from robtui.export.safety import export_path
     from robtui.files import write_text_atomic
     from robtui.store.calibration_rounds import load_round, round_numbers
-    from robtui.store.rules_file import load_folder_rules
 
-    folder, qset = _open(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     after_no = _latest(folder, args.round)
     after = load_round(folder.root, after_no)
     earlier = [n for n in round_numbers(folder.root) if n < after_no]
@@ -259,7 +232,7 @@ def run_report(args: argparse.Namespace) -> int:
         review=folder.review,
         after=RoundFigures(after, round_agreement(after.pairs, qset)),
         before=RoundFigures(before, round_agreement(before.pairs, qset)) if before else None,
-        rules=load_folder_rules(folder),
+        rules=ws.rules(),
         review_dir=str(args.folder),
         domain_names=_domain_names(qset),
     )
@@ -277,10 +250,11 @@ def run_report(args: argparse.Namespace) -> int:
 def run_stale(args: argparse.Namespace) -> int:
     from robtui.core.rules import stale_assessments
     from robtui.errors import InputError
-    from robtui.store.rules_file import hand_edit_warning, load_rules_safely
+    from robtui.store.rules_file import hand_edit_warning
 
-    folder, _ = _open(args.folder)
-    book, message = load_rules_safely(folder)
+    ws = open_workspace(args.folder)
+    folder = ws.folder
+    book, message = ws.rules_safely()
     if book is None:
         raise InputError(f"cannot tell which assessments are stale: {message}")
     found, problems = folder.assessments(args.reviewer)
@@ -317,8 +291,9 @@ def run_trend(args: argparse.Namespace) -> int:
     from robtui.export.safety import export_path
     from robtui.files import write_bytes_atomic, write_text_atomic
 
-    folder, qset = _open(args.folder)
-    reviewers = _reviewers(folder, args.reviewers)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
+    reviewers = ws.choose_reviewers(args.reviewers)
     if args.batch < 1:
         raise InputError(f"--batch must be 1 or more, not {args.batch}")
     found, problems = folder.assessments()

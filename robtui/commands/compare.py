@@ -8,8 +8,9 @@ from __future__ import annotations
 
 import argparse
 import json
-import sys
 from pathlib import Path
+
+from robtui.commands._common import add_reviewer_options, open_workspace, warn
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
@@ -33,85 +34,6 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     )
     parser.add_argument("--json", action="store_true", help="print JSON")
     parser.set_defaults(func=run)
-
-
-def add_reviewer_options(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument(
-        "--reviewers",
-        nargs=2,
-        metavar=("A", "B"),
-        help="the two reviewers to compare (default: the review's two reviewers)",
-    )
-
-
-# -- shared helpers ------------------------------------------------------------------------------
-def open_review(folder_path: Path):
-    """(ReviewFolder, QuestionSet) for a review folder."""
-    from robtui.store.question_sets import builtin_question_set
-    from robtui.store.review_folder import ReviewFolder
-
-    folder = ReviewFolder.open(folder_path)
-    return folder, builtin_question_set(folder.review.question_set)
-
-
-def choose_reviewers(folder, named: list[str] | None) -> tuple[str, str]:
-    """The two reviewers: as named (each must be in the review), else the review's two."""
-    from robtui.errors import InputError
-
-    known = list(dict.fromkeys([*folder.review.reviewers, *folder.reviewers_on_disk()]))
-    if named:
-        a, b = named
-        if a == b:
-            raise InputError(f"--reviewers names {a} twice: name two different reviewers")
-        unknown = [r for r in (a, b) if r not in known]
-        if unknown:
-            raise InputError(
-                f"reviewer {', '.join(unknown)} is not in this review (reviewers: "
-                f"{', '.join(known) or 'none yet'}): check the spelling"
-            )
-        return a, b
-    lead = folder.review.lead
-    listed = [r for r in folder.review.reviewers if r != lead]
-    candidates = listed if len(listed) >= 2 else [r for r in known if r != lead]
-    if len(candidates) != 2:
-        raise InputError(
-            f"this review has {len(candidates)} reviewers ({', '.join(candidates) or 'none'}): "
-            "name the two to compare with --reviewers A B"
-        )
-    return candidates[0], candidates[1]
-
-
-def load_pairs(
-    folder, reviewers: tuple[str, str], study: str | None = None, result: str | None = None
-):
-    """Pairs of the two reviewers' assessments for every study x result (filtered),
-    plus problems with unreadable files (reported, never hidden)."""
-    from robtui.core.comparison import pair_assessments
-
-    if study is not None:
-        folder.study_or_error(study)
-    if result is not None:
-        folder.result_or_error(result)
-    a, problems_a = folder.assessments(reviewers[0])
-    b, problems_b = folder.assessments(reviewers[1])
-    expected = [
-        (s.id, r.id)
-        for s in folder.review.studies
-        for r in folder.review.results
-        if (study is None or s.id == study) and (result is None or r.id == result)
-    ]
-    wanted = set(expected)
-    a = [x for x in a if (x.study_id, x.result_id) in wanted]
-    b = [x for x in b if (x.study_id, x.result_id) in wanted]
-    pairs = pair_assessments(
-        a, b, reviewer_a=reviewers[0], reviewer_b=reviewers[1], expected=expected
-    )
-    return pairs, problems_a + problems_b
-
-
-def warn(lines: list[str]) -> None:
-    for line in lines:
-        print(f"robtui: {line}", file=sys.stderr)
 
 
 def _response(code: str | None) -> str:
@@ -180,9 +102,10 @@ def format_comparison(comparison, all_questions: bool = False) -> list[str]:
 def run(args: argparse.Namespace) -> int:
     from robtui.core.comparison import compare_pair
 
-    folder, qset = open_review(args.folder)
-    reviewers = choose_reviewers(folder, args.reviewers)
-    pairs, problems = load_pairs(folder, reviewers, args.study, args.result)
+    ws = open_workspace(args.folder)
+    qset = ws.qset
+    reviewers = ws.choose_reviewers(args.reviewers)
+    pairs, problems = ws.pairs(reviewers, args.study, args.result)
     comparisons = [compare_pair(p, qset) for p in pairs if p.comparable]
     skipped = [
         f"{p.study_id} / {p.result_id} not compared: {p.problem}" for p in pairs if not p.comparable

@@ -13,7 +13,7 @@ from pathlib import Path
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
-    from robtui.commands.compare import add_reviewer_options
+    from robtui.commands._common import add_reviewer_options
 
     parser = subparsers.add_parser(
         "consensus",
@@ -129,12 +129,13 @@ def _summary(record, qset) -> list[str]:
 
 
 def run_start(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import choose_reviewers, load_pairs, open_review
+    from robtui.commands._common import open_workspace
     from robtui.core.comparison import start_consensus
     from robtui.errors import InputError
 
-    folder, qset = open_review(args.folder)
-    reviewers = choose_reviewers(folder, args.reviewers)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
+    reviewers = ws.choose_reviewers(args.reviewers)
     lead = args.lead or folder.review.lead
     if not lead:
         raise InputError("the review names no lead: give --lead NAME")
@@ -144,7 +145,7 @@ def run_start(args: argparse.Namespace) -> int:
             f"a consensus record for {args.study} / {args.result} exists already "
             f"({existing.status}): see it with `robtui consensus show`"
         )
-    [pair], problems = load_pairs(folder, reviewers, args.study, args.result)
+    [pair], problems = ws.pairs(reviewers, args.study, args.result)
     if problems:
         raise InputError("; ".join(problems))
     record = start_consensus(pair, lead, qset)
@@ -155,11 +156,12 @@ def run_start(args: argparse.Namespace) -> int:
 
 
 def run_settle(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review
+    from robtui.commands._common import open_workspace
     from robtui.core.comparison import settle
     from robtui.errors import InputError
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     record = _existing(folder, args)
     if args.take is not None:
         side = {"a": "a", "b": "b", record.reviewers[0]: "a", record.reviewers[1]: "b"}.get(
@@ -180,10 +182,11 @@ def run_settle(args: argparse.Namespace) -> int:
 
 
 def run_override(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review
+    from robtui.commands._common import open_workspace
     from robtui.core.comparison import set_consensus_override
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     record = _existing(folder, args)
     record = set_consensus_override(record, qset, args.domain, args.judgement, args.reason)
     folder.save_consensus(record)
@@ -192,10 +195,11 @@ def run_override(args: argparse.Namespace) -> int:
 
 
 def run_show(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review
+    from robtui.commands._common import open_workspace
     from robtui.core.comparison import pending_questions
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     record = _existing(folder, args)
     if args.json:
         data = record.model_dump(mode="json")
@@ -207,10 +211,11 @@ def run_show(args: argparse.Namespace) -> int:
 
 
 def run_complete(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review
+    from robtui.commands._common import open_workspace
     from robtui.core.comparison import complete_consensus
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     record = complete_consensus(_existing(folder, args), qset)
     folder.save_consensus(record)
     print("\n".join(_summary(record, qset)))
@@ -218,10 +223,11 @@ def run_complete(args: argparse.Namespace) -> int:
 
 
 def run_reopen(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review
+    from robtui.commands._common import open_workspace
     from robtui.core.comparison import reopen_consensus
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     record = reopen_consensus(_existing(folder, args))
     folder.save_consensus(record)
     print("\n".join(_summary(record, qset)))
@@ -229,10 +235,11 @@ def run_reopen(args: argparse.Namespace) -> int:
 
 
 def run_list(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review, warn
+    from robtui.commands._common import open_workspace, warn
     from robtui.core.comparison import pending_questions
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     records, problems = folder.consensus_records()
     for r in records:
         pending = pending_questions(r, qset)

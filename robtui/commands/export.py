@@ -50,11 +50,12 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from robtui.commands.compare import open_review, warn
+    from robtui.commands._common import open_workspace, warn
     from robtui.errors import InputError
     from robtui.export.writers import export_outcome
 
-    folder, qset = open_review(args.folder)
+    ws = open_workspace(args.folder)
+    folder, qset = ws.folder, ws.qset
     if args.result:
         results = [folder.result_or_error(args.result).id]
     else:

@@ -32,7 +32,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 def run(args: argparse.Namespace) -> int:
     from robtui.store.review_folder import ReviewFolder
     from robtui.tui.app import run_workbench
-    from robtui.tui.session import check_reviewer_name
+    from robtui.workspace import check_reviewer_name
 
     if args.folder is None:
         folder = ReviewFolder.find(Path.cwd()).root

@@ -85,11 +85,10 @@ def describe_rule(rule) -> str:
 
 
 def _open(folder_path: Path):
-    from robtui.store.review_folder import ReviewFolder
-    from robtui.store.rules_file import load_folder_rules, review_question_set
+    from robtui.workspace import Workspace
 
-    folder = ReviewFolder.open(folder_path)
-    return folder, review_question_set(folder), load_folder_rules(folder)
+    ws = Workspace.open(folder_path)
+    return ws.folder, ws.qset, ws.rules()
 
 
 def _save(folder, qset, book, new) -> None:

@@ -14,7 +14,7 @@ from pathlib import Path
 
 from robtui.core import assessing
 from robtui.core.model import Assessment, ResultSpec
-from robtui.store.question_sets import builtin_question_set
+from robtui.store.question_sets import review_question_set
 
 REVIEWERS = ("ana", "ben")
 LEAD = "lea"
@@ -90,7 +90,7 @@ def scripted_assessment(
     complete: bool = True,
 ) -> Assessment:
     """Answer every asked question from LOW_PATH with ``departures``, justify, mark complete."""
-    qset = builtin_question_set(folder.review.question_set)
+    qset = review_question_set(folder)
     wanted = {**LOW_PATH, **departures}
     a = assessing.new_assessment(folder.review, study_id, "mort", reviewer, qset)
     a = a.model_copy(update={"created": START + timedelta(minutes=minutes)})
@@ -113,7 +113,7 @@ def assess_round(
     as a draft (never completed)."""
     from robtui.core.rules import stamp_rules_version
 
-    qset = builtin_question_set(folder.review.question_set)
+    qset = review_question_set(folder)
 
     saved = []
     for r_index, reviewer in enumerate(REVIEWERS):
@@ -148,7 +148,8 @@ def run_scripted_calibration(root: Path):
     from robtui.core.calibration import build_round
     from robtui.core.rules import add_rule, conditions_from_result
     from robtui.store.calibration_rounds import save_round
-    from robtui.store.rules_file import load_folder_rules, review_question_set, save_rulebook
+    from robtui.store.question_sets import review_question_set
+    from robtui.store.rules_file import load_folder_rules, save_rulebook
 
     folder = build_calibration_review(root)
     book = load_folder_rules(folder)

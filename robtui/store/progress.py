@@ -7,7 +7,7 @@ from dataclasses import asdict, dataclass
 from robtui.core import assessing
 from robtui.core.model import OVERALL, Assessment
 from robtui.core.questions import QuestionSet
-from robtui.store.question_sets import builtin_question_set
+from robtui.store.question_sets import review_question_set
 from robtui.store.review_folder import ReviewFolder
 
 
@@ -35,7 +35,7 @@ def review_progress(
     folder: ReviewFolder, reviewer: str | None = None, qset: QuestionSet | None = None
 ) -> tuple[list[ProgressRow], list[str]]:
     """One row per study × result × reviewer (the review's reviewers and those on disk)."""
-    qset = qset or builtin_question_set(folder.review.question_set)
+    qset = qset or review_question_set(folder)
     found, problems = folder.assessments(reviewer)
     by_key = {(a.reviewer, a.study_id, a.result_id): a for a in found}
     if reviewer is not None:

@@ -50,3 +50,15 @@ def builtin_question_set(set_id: str = "rob2-parallel") -> QuestionSet:
             f"no bundled question set named {set_id!r}; available: {', '.join(names) or 'none'}"
         )
     return load_question_set(_bundled_folder() / f"{set_id}.toml")
+
+
+def review_question_set(folder) -> QuestionSet:
+    """The question set a review folder uses (DataFileError naming review.toml when unknown).
+
+    ``folder`` is a ReviewFolder (only its ``review`` and ``review_path`` are used).
+    """
+    name = folder.review.question_set
+    try:
+        return builtin_question_set(name)
+    except InputError as error:
+        raise DataFileError(f"{folder.review_path}: unknown question set {name!r}: {error}") from None

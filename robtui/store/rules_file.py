@@ -288,25 +288,17 @@ def _with_updated(book: RuleBook) -> RuleBook:
     return replace(book, updated=utc_now().isoformat().replace("+00:00", "Z"))
 
 
-def review_question_set(folder) -> QuestionSetLike:
-    """The question set a review folder uses (DataFileError when it cannot be loaded)."""
-    from robtui.store.question_sets import builtin_question_set
+def load_folder_rules(folder, qset: QuestionSetLike | None = None) -> RuleBook:
+    """The validated rules of a ReviewFolder (raises DataFileError when they are unusable);
+    ``qset`` is the review's question set when the caller holds it already."""
+    from robtui.store.question_sets import review_question_set
 
-    name = folder.review.question_set
-    try:
-        return builtin_question_set(name)
-    except (KeyError, ValueError, FileNotFoundError) as error:
-        raise DataFileError(
-            f"{folder.review_path}: unknown question set {name!r}: {error}"
-        ) from None
+    return load_rulebook(folder.rules_path, qset or review_question_set(folder))
 
 
-def load_folder_rules(folder) -> RuleBook:
-    """The validated rules of a ReviewFolder (raises DataFileError when they are unusable)."""
-    return load_rulebook(folder.rules_path, review_question_set(folder))
-
-
-def load_rules_safely(folder) -> tuple[RuleBook | None, str | None]:
+def load_rules_safely(
+    folder, qset: QuestionSetLike | None = None
+) -> tuple[RuleBook | None, str | None]:
     """For the workbench: ``(rules, None)``, or ``(None, message)`` when they are unavailable.
 
     Never raises: a rules file that fails validation must not block opening the review.
@@ -317,6 +309,6 @@ def load_rules_safely(folder) -> tuple[RuleBook | None, str | None]:
             from robtui.store.review_folder import ReviewFolder
 
             folder = ReviewFolder.open(Path(folder))
-        return load_folder_rules(folder), None
+        return load_folder_rules(folder, qset), None
     except Exception as error:  # noqa: BLE001 - the app must open whatever is wrong here
         return None, f"answering rules unavailable: {error}"

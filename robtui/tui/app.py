@@ -167,7 +167,7 @@ def run_workbench(folder: Path, reviewer: str | None = None) -> int:
     """
     opened = ReviewFolder.open(Path(folder))
     if reviewer is not None:
-        from robtui.tui.session import check_reviewer_name
+        from robtui.workspace import check_reviewer_name
 
         reviewer = check_reviewer_name(reviewer)
     result = Workbench(opened, reviewer).run()

@@ -11,7 +11,6 @@ robtui.core.assessing and is saved at once (``ReviewFolder.save_assessment`` is 
 
 from __future__ import annotations
 
-import re
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -28,11 +27,8 @@ from robtui.core.rules import (
 )
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.store.progress import assessment_progress
-from robtui.store.question_sets import builtin_question_set
 from robtui.store.review_folder import ReviewFolder
-from robtui.store.rules_file import load_rules_safely
-
-REVIEWER_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
+from robtui.workspace import Workspace, check_reviewer_name
 
 STATUS_NOT_STARTED = "not started"
 STATUS_DRAFT = "draft"
@@ -47,17 +43,6 @@ STATUS_FILTERS: tuple[str, ...] = (
     "problems",
     SECOND_LOOK,
 )
-
-
-def check_reviewer_name(name: str) -> str:
-    """The reviewer name, stripped; InputError when it cannot name an assessment folder."""
-    name = name.strip()
-    if not REVIEWER_PATTERN.match(name):
-        raise InputError(
-            f"reviewer name {name!r} is not usable: use 1-64 letters, digits, '.', '_' or '-', "
-            "starting with a letter or digit (e.g. --reviewer maria)"
-        )
-    return name
 
 
 @dataclass(frozen=True)
@@ -84,14 +69,15 @@ class ResultRow:
 class ReviewSession:
     """One reviewer's session on a review folder."""
 
-    def __init__(self, folder: ReviewFolder, reviewer: str) -> None:
-        self.folder = folder
+    def __init__(self, folder: ReviewFolder | Workspace, reviewer: str) -> None:
+        self.workspace = folder if isinstance(folder, Workspace) else Workspace(folder)
+        self.folder = self.workspace.folder
         self.reviewer = check_reviewer_name(reviewer)
-        self.qset: QuestionSet = builtin_question_set(folder.review.question_set)
+        self.qset: QuestionSet = self.workspace.qset
         # Read once: the rules shown are the ones every save of this session is stamped with.
         self.rules: RuleBook | None
         self.rules_unavailable: str | None
-        self.rules, self.rules_unavailable = load_rules_safely(folder)
+        self.rules, self.rules_unavailable = self.workspace.rules_safely()
 
     @property
     def review(self):
@@ -202,19 +188,7 @@ class ReviewSession:
         (``AssessmentPair.problem``); only complete pairs are compared.
         """
         self.require_lead()
-        from robtui.core.comparison import pair_assessments
-
-        lists = []
-        problems: list[str] = []
-        for name in (reviewer_a, reviewer_b):
-            found, trouble = self.folder.assessments(name)
-            problems += trouble
-            lists.append(found)
-        expected = [(s.id, r.id) for s in self.review.studies for r in self.review.results]
-        pairs = pair_assessments(
-            lists[0], lists[1], reviewer_a=reviewer_a, reviewer_b=reviewer_b, expected=expected
-        )
-        return pairs, problems
+        return self.workspace.pairs((reviewer_a, reviewer_b))
 
     def require_lead(self) -> None:
         if not self.is_lead:

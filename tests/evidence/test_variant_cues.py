@@ -14,9 +14,9 @@ from pathlib import Path
 
 import pytest
 
-from robtui.store.question_sets import available_question_sets, builtin_question_set
 from robtui.evidence.cues import load_cues
 from robtui.reading.reader import read_document
+from robtui.store.question_sets import available_question_sets, builtin_question_set
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_reports"
 

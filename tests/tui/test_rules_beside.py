@@ -3,8 +3,9 @@
 from __future__ import annotations
 
 from robtui.core.rules import add_rule
+from robtui.store.question_sets import review_question_set
 from robtui.store.review_folder import ReviewFolder
-from robtui.store.rules_file import load_folder_rules, review_question_set, save_rulebook
+from robtui.store.rules_file import load_folder_rules, save_rulebook
 from robtui.tui.app import Workbench
 
 from .conftest import SIZE

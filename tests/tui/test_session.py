@@ -7,7 +7,8 @@ import pytest
 from robtui.core.model import Quote
 from robtui.errors import InputError
 from robtui.store.review_folder import ReviewFolder
-from robtui.tui.session import ReviewSession, check_reviewer_name
+from robtui.tui.session import ReviewSession
+from robtui.workspace import check_reviewer_name
 
 
 def test_reviewer_names_are_checked():

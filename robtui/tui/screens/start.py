@@ -14,8 +14,8 @@ from textual.widgets import Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from robtui.errors import InputError
-from robtui.tui.session import check_reviewer_name
 from robtui.tui.widgets.key_hints import KeyHints
+from robtui.workspace import check_reviewer_name
 
 
 class ReviewerScreen(Screen[str]):
