@@ -27,13 +27,16 @@ from robtui.core.model import (
     Quote,
     utc_now,
 )
+from robtui.core.questions import QuestionSet
+from robtui.core.review_sets import ReviewSets, review_sets
 from robtui.errors import InputError
 
 SOURCES = ("a", "b", "new")
 AGREEMENT_METHOD = {
     "pairs": "assessments marked complete by both reviewers; domain and overall judgements are "
     "the final ones (overrides included); a signalling question counts only where both "
-    "reviewers were asked it on their answer path",
+    "reviewers were asked it on their answer path; in a review mixing designs a domain counts "
+    "only over the studies whose question set has it",
     "percent_agreement": "share of pairs with the same answer, in percent",
     "kappa": "Cohen (1960)",
     "kappa_ci": "kappa +/- 1.96 SE, large-sample SE of Fleiss, Cohen & Everitt (1969), "
@@ -267,18 +270,23 @@ def _require_comparable(pair: AssessmentPair) -> None:
 
 
 # -- agreement over the review ---------------------------------------------------------------------
-def review_agreement(pairs: Sequence[AssessmentPair], qset) -> dict:
+def review_agreement(pairs: Sequence[AssessmentPair], sets: QuestionSet | ReviewSets) -> dict:
     """Agreement per domain, overall and per signalling question (the agreement JSON shape).
 
-    Only comparable pairs count; the others are listed under "not_compared".
+    Only comparable pairs count; the others are listed under "not_compared". ``sets`` gives
+    each study's question set (one QuestionSet: the same for all); in a review mixing designs a
+    domain, or a question, counts only over the studies whose set has it.
     """
+    sets = review_sets(sets)
     usable = [p for p in pairs if p.comparable]
     reviewers = [pairs[0].reviewer_a, pairs[0].reviewer_b] if pairs else []
+    study_ids = list(dict.fromkeys(p.study_id for p in pairs))
     domains: dict[str, dict] = {}
-    for key, _label in _judgement_keys(qset):
+    for key in [*sets.domain_ids(study_ids), OVERALL]:
         judged = [
             (p.a.final.get(key), p.b.final.get(key))
             for p in usable
+            if key == OVERALL or key in sets.of(p.study_id).domain_ids()
             if p.a.final.get(key) in JUDGEMENTS and p.b.final.get(key) in JUDGEMENTS
         ]
         domains[key] = agreement(judged, JUDGEMENTS, ordered=True).to_dict()
@@ -286,6 +294,7 @@ def review_agreement(pairs: Sequence[AssessmentPair], qset) -> dict:
     question_cats: dict[str, list[str]] = {}
     for p in usable:
         effect = p.a.effect
+        qset = sets.of(p.study_id)
         eff_a = path_answers(qset, effect, p.a.answers)
         eff_b = path_answers(qset, effect, p.b.answers)
         for question in qset.questions(effect):
@@ -294,7 +303,7 @@ def review_agreement(pairs: Sequence[AssessmentPair], qset) -> dict:
             key = qset.question_key(question.id, effect)
             question_pairs.setdefault(key, []).append((eff_a[question.id], eff_b[question.id]))
             question_cats.setdefault(key, list(question.options))
-    order = qset.question_keys()
+    order = sets.question_keys(study_ids)
     order += [k for k in question_pairs if k not in order]
     questions = {}
     for key in [k for k in order if k in question_pairs]:

@@ -12,11 +12,13 @@ Which judgements a study's row uses (its ``source``):
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from robtui.core.assessing import path_answers
 from robtui.core.grade import GradeSuggestion, suggest_rob_rating
 from robtui.core.model import JUDGEMENTS, OVERALL, Assessment, Consensus, Quote, Review
+from robtui.core.questions import QuestionSet
+from robtui.core.review_sets import ReviewSets, review_sets
 
 
 @dataclass(frozen=True)
@@ -54,10 +56,11 @@ class OutcomeExport:
     supporting: list[SupportingRow]
     grade: GradeSuggestion
     problems: list[str] = field(default_factory=list)
+    coverage: dict[str, int] = field(default_factory=dict)  # key -> studies having the domain
 
 
-def _columns(qset) -> list[tuple[str, str]]:
-    cols = [(d, f"D{d}") for d in qset.domain_ids()]
+def _columns(domain_ids: Sequence[str]) -> list[tuple[str, str]]:
+    cols = [(d, f"D{d}") for d in domain_ids]
     return cols + [(OVERALL, "Overall")]
 
 
@@ -71,14 +74,20 @@ def column_titles(qset, effect: str | None = None) -> dict[str, str]:
 def build_outcome_export(
     review: Review,
     result_id: str,
-    qset,
+    sets: QuestionSet | ReviewSets,
     assessments: Sequence[Assessment],
     consensus: Sequence[Consensus],
 ) -> OutcomeExport:
-    """Assemble every table of one result's export from the stored records."""
+    """Assemble every table of one result's export from the stored records.
+
+    ``sets`` gives each study's question set (one QuestionSet: the same for all). In a review
+    mixing designs the columns are every domain of the sets in use; a study's row holds only
+    its own set's domains (no cell for the others), and each column's summary counts only the
+    studies that have the domain.
+    """
+    sets = review_sets(sets)
     spec = review.result(result_id)
-    columns = _columns(qset)
-    keys = [k for k, _ in columns]
+    columns = _columns(sets.domain_ids([s.id for s in review.studies]))
     rows: list[JudgementRow] = []
     supporting: list[SupportingRow] = []
     problems: list[str] = []
@@ -88,6 +97,8 @@ def build_outcome_export(
             by_study.setdefault(a.study_id, []).append(a)
     agreed = {c.study_id: c for c in consensus if c.result_id == result_id}
     for study in review.studies:
+        qset = sets.of(study.id)
+        keys = [*qset.domain_ids(), OVERALL]  # the study's own columns
         own = sorted(by_study.get(study.id, []), key=lambda a: a.reviewer)
         record, source, problem = _choose(study.id, own, agreed.get(study.id), review, keys)
         if problem:
@@ -101,7 +112,7 @@ def build_outcome_export(
             supporting += _supporting(study.id, whose, record, qset)
     if not review.studies:
         problems.append("no studies in the review yet: add them with `robtui study add`")
-    shares, basis = _shares(rows, keys, spec.weights if spec else {})
+    shares, basis = _shares(rows, [k for k, _ in columns], spec.weights if spec else {})
     if spec and spec.weights and basis == "studies":
         unweighted = [r.study_id for r in rows if r.study_id not in spec.weights]
         problems.append(
@@ -110,6 +121,18 @@ def build_outcome_export(
         )
     overall = {r.study_id: r.judgements[OVERALL] for r in rows}
     grade = suggest_rob_rating(overall, spec.weights if spec and spec.weights else None)
+    study_ids = [s.id for s in review.studies]
+    if sets.is_mixed(study_ids):
+        used = ", ".join(
+            f"{qset.id} ({', '.join(s for s in study_ids if sets.of(s).id == qset.id)})"
+            for qset in sets.in_use(study_ids)
+        )
+        note = (
+            f"Studies of different designs were assessed with different question sets: {used}. "
+            "Each overall judgement covers its own set's domains (an extra domain counts only "
+            "for the studies that have it); the rating pools the overall judgements."
+        )
+        grade = replace(grade, notes=[*grade.notes, note])
     return OutcomeExport(
         review_title=review.title,
         result_id=result_id,
@@ -123,6 +146,7 @@ def build_outcome_export(
         supporting=supporting,
         grade=grade,
         problems=problems,
+        coverage={k: sum(k in r.judgements for r in rows) for k, _ in columns},
     )
 
 
@@ -177,13 +201,16 @@ def _supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]
 
 
 def _shares(rows: list[JudgementRow], keys: list[str], weights: dict[str, float]):
-    """Per key, the share of studies (or of weight) at each judgement, incomplete included."""
+    """Per key, the share of studies (or of weight) at each judgement, incomplete included,
+    among the studies that have the domain."""
     use_weight = bool(weights) and all(r.study_id in weights for r in rows)
     basis = "weight" if use_weight else "studies"
     shares: dict[str, dict[str, float]] = {}
     for key in keys:
         counts = {code: 0.0 for code in (*JUDGEMENTS, "incomplete")}
         for row in rows:
+            if key not in row.judgements:
+                continue  # the study's design has no such domain
             w = weights[row.study_id] if use_weight else 1.0
             counts[row.judgements[key] or "incomplete"] += w
         total = sum(counts.values())

@@ -14,6 +14,7 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from robtui.core.model import JUDGEMENTS, Assessment, Consensus
+from robtui.core.review_sets import review_sets
 from robtui.export.palette import OUTLINE, SWATCHES, swatch
 from robtui.export.safety import csv_cell, export_path, markup, md, tex
 from robtui.export.tables import OutcomeExport, build_outcome_export, column_titles
@@ -55,7 +56,7 @@ def to_csv(ex: OutcomeExport) -> dict[str, str]:
                 for v in (
                     row.study_id,
                     row.study_label,
-                    *[row.judgements[k] or "not judged" for k, _ in ex.columns],
+                    *[_csv_judgement(row, k) for k, _ in ex.columns],
                     row.source,
                     "" if row.weight is None else f"{row.weight:g}",
                     notes.get(row.study_id, ""),
@@ -95,6 +96,13 @@ def to_csv(ex: OutcomeExport) -> dict[str, str]:
     return {"judgements.csv": out.getvalue(), "answers.csv": answers.getvalue()}
 
 
+def _csv_judgement(row, key: str) -> str:
+    """A cell of the judgements CSV: empty where the study's design has no such domain."""
+    if key not in row.judgements:
+        return ""
+    return row.judgements[key] or "not judged"
+
+
 def _notes_by_study(ex: OutcomeExport) -> dict[str, str]:
     notes = {}
     for problem in ex.problems:
@@ -114,7 +122,7 @@ def to_markdown(ex: OutcomeExport, qset) -> str:
         "|---" * (len(ex.columns) + 2) + "|",
     ]
     for row in ex.rows:
-        cells = [_md_mark(row.judgements[k]) for k, _ in ex.columns]
+        cells = [_md_mark(row.judgements[k]) if k in row.judgements else "" for k, _ in ex.columns]
         lines.append(f"| {md(row.study_label)} | " + " | ".join(cells) + f" | {md(row.source)} |")
     lines += ["", "Key: " + "; ".join(f"[{s.letter}] {s.label}" for s in SWATCHES.values()), ""]
     lines += _md_summary(ex, titles) + _md_grade(ex) + _md_not_judged(ex)
@@ -137,6 +145,12 @@ def _md_mark(code: str | None) -> str:
     return f"[{sw.letter}] {sw.label}"
 
 
+def _with_coverage(ex: OutcomeExport, key: str, title: str) -> str:
+    """A summary row's title, with how many studies have the domain when not all do."""
+    have = ex.coverage.get(key, len(ex.rows))
+    return title if have == len(ex.rows) else f"{title} ({have} of {len(ex.rows)} studies)"
+
+
 def _md_summary(ex: OutcomeExport, titles) -> list[str]:
     lines = [
         f"## Summary (share of {_basis_words(ex)})",
@@ -147,7 +161,8 @@ def _md_summary(ex: OutcomeExport, titles) -> list[str]:
     for key, _ in ex.columns:
         shares = ex.shares[key]
         lines.append(
-            f"| {md(titles[key])} | " + " | ".join(f"{shares[c]:.0%}" for c in SHARE_CODES) + " |"
+            f"| {md(_with_coverage(ex, key, titles[key]))} | "
+            + " | ".join(f"{shares[c]:.0%}" for c in SHARE_CODES) + " |"
         )
     return lines + [""]
 
@@ -205,6 +220,9 @@ def to_html(ex: OutcomeExport, qset) -> str:
     for row in ex.rows:
         parts.append(f"<tr><th>{markup(row.study_label)}</th>")
         for key, _ in ex.columns:
+            if key not in row.judgements:  # the study's design has no such domain
+                parts.append('<td class="j na"></td>')
+                continue
             code = row.judgements[key] or "incomplete"
             sw = swatch(code)
             extra = (" overall" if key == "overall" else "") + (
@@ -218,7 +236,7 @@ def to_html(ex: OutcomeExport, qset) -> str:
     parts.append("</table>")
     parts.append(f"<h2>Summary: share of {_basis_words(ex)} at each judgement</h2><table>")
     for key, _ in ex.columns:
-        parts.append(f'<tr><th>{markup(titles[key])}</th><td><div class="bar">')
+        parts.append(f'<tr><th>{markup(_with_coverage(ex, key, titles[key]))}</th><td><div class="bar">')
         for code in SHARE_CODES:
             share = ex.shares[key][code]
             if share <= 0:
@@ -294,6 +312,9 @@ def to_tex(ex: OutcomeExport, qset) -> str:
     for row in ex.rows:
         cells = []
         for key, _ in ex.columns:
+            if key not in row.judgements:  # the study's design has no such domain
+                cells.append("")
+                continue
             code = (row.judgements[key] or "incomplete").replace("_", "")
             sw = swatch(row.judgements[key])
             cells.append(f"\\cellcolor{{rt{code}}}\\textcolor{{rt{code}ink}}{{{tex(sw.letter)}}}")
@@ -309,7 +330,7 @@ def to_tex(ex: OutcomeExport, qset) -> str:
     ]
     for key, _ in ex.columns:
         lines.append(
-            tex(titles[key])
+            tex(_with_coverage(ex, key, titles[key]))
             + " & "
             + " & ".join(tex(f"{ex.shares[key][c]:.0%}") for c in SHARE_CODES)
             + r" \\"
@@ -364,7 +385,9 @@ def export_outcome(
         assessments, _ = folder.assessments()
     if consensus is None:
         consensus, _ = folder.consensus_records()
-    ex = build_outcome_export(folder.review, result_id, qset, assessments, consensus)
+    sets = review_sets(qset)
+    qset = sets.combined([s.id for s in folder.review.studies])  # names of every column
+    ex = build_outcome_export(folder.review, result_id, sets, assessments, consensus)
     stem = name or result_id
     written: list[Path] = []
 
