@@ -290,12 +290,18 @@ def lights_pages(ex: OutcomeExport, qset, width: str = "page") -> list[Canvas]:
 BAR_PITCH, BAR_H = 14.0, 9.0
 
 
+def _bar_label(ex: OutcomeExport, key: str, head: str) -> str:
+    """A bar's label; in a review mixing designs, how many studies have the domain."""
+    have = ex.coverage.get(key, len(ex.rows))
+    return head if have == len(ex.rows) else f"{head} ({have} of {len(ex.rows)})"
+
+
 def summary_page(ex: OutcomeExport, qset, width: str = "page") -> Canvas:
     """One 100% bar per domain (and overall): share of studies, or of weight, per judgement."""
     w = WIDTHS_MM[width] * PT_PER_MM
     inner = w - 2 * PAD
     keys = [k for k, _ in ex.columns]
-    heads = dict(ex.columns)
+    heads = {k: _bar_label(ex, k, head) for k, head in ex.columns}
     label_room = max(text_width(heads[k], TEXT, k == OVERALL) for k in keys) if keys else 20.0
     plot_x = PAD + label_room + 5
     plot_w = w - PAD - 6 - plot_x

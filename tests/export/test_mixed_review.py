@@ -177,3 +177,16 @@ def test_every_text_format_leaves_the_missing_domains_blank(export):
     assert html.count('<td class="j na"></td>') == 2 * 2 + 1 + 1  # P1, P2: 2; C1: S; X1: 1b
     tex_text = to_tex(export, SETS.combined())
     assert "D1b Recruitment timing (1 of 4 studies)" in tex_text
+
+
+def test_figures_have_the_extra_columns_and_say_how_many_studies_have_them(export):
+    from robtui.export.figures import figure_files
+
+    files = figure_files(export, SETS.combined(), "svg")
+    lights = files["-lights.svg"].decode()
+    summary = files["-summary.svg"].decode()
+    # fonts are drawn as outlines: the words sit in the SVG's text comments / ids
+    for text in (lights, summary):
+        assert "Bias arising from the timing of identification and recruitment" in text
+        assert "Bias arising from period and carryover effects" in text
+    assert "D1b (1 of 4)" in summary and "DS (1 of 4)" in summary
