@@ -7,10 +7,12 @@ DataFileError naming the file, the entry and the problem.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping
 
 from robtui.core.question_paths import answer_paths
 from robtui.core.questions import (
+    EFFECT_LABELS,
     EFFECTS,
     JUDGEMENT_CODES,
     RESPONSE_CODES,
@@ -34,8 +36,10 @@ class _Problem(Exception):
         self.problem = problem
 
 
-_SET_KEYS = {"id", "version", "title", "source", "licence"}
-_DOMAIN_KEYS = {"id", "name", "short_name", "effect", "question", "table"}
+_SET_KEYS = {"id", "version", "title", "source", "licence", "design"}
+_DOMAIN_KEYS = {"id", "name", "short_name", "effect", "key", "question", "table"}
+_EFFECT_KEYS = {"id", "label"}
+_DESIGN = re.compile(r"^[a-z][a-z0-9-]{0,31}$")
 _QUESTION_KEYS = {
     "id", "text", "short", "options", "if_applicable", "asked_if", "condition_text", "guidance",
 }
@@ -207,9 +211,59 @@ def _domain(raw: Mapping, index: int) -> Domain:
         effect=effect,
         questions=tuple(questions.values()),
         rules=_tables(_table_list(raw, "table", entry), entry, questions),
+        key=_domain_key(raw, did, entry),
     )
     _prove_total(domain, entry)
     return domain
+
+
+def _domain_key(raw: Mapping, domain_id: str, entry: str) -> str | None:
+    """The domain's workbench key: as given, else its id when that is one character."""
+    if "key" not in raw:
+        return domain_id if len(domain_id) == 1 else None
+    key = raw["key"]
+    if not isinstance(key, str) or len(key) != 1 or not key.isprintable() or key.isspace():
+        raise _Problem(f"{entry}, key", f"must be one printable character, got {key!r}")
+    return key
+
+
+def _check_keys_unique(domains: list[Domain]) -> None:
+    owner: dict[str, str] = {}
+    for d in domains:
+        if d.key is None:
+            continue
+        if owner.setdefault(d.key, d.id) != d.id:
+            raise _Problem(f"domain {d.id}, key",
+                           f"{d.key!r} already goes to domain {owner[d.key]}; give each its own key")
+
+
+def _effects(data: Mapping, domains: list[Domain]) -> dict[str, str]:
+    """Labels of the effects of interest ([[effect]] id, label), checked against the domains."""
+    labels: dict[str, str] = {}
+    for index, raw in enumerate(_table_list(data, "effect", "top level"), start=1):
+        entry = f"effect entry {index}"
+        _check_keys(raw, _EFFECT_KEYS, entry)
+        eid = raw.get("id")
+        if eid not in EFFECTS:
+            raise _Problem(f"{entry}, id", f"{eid!r} is not an effect (use {', '.join(EFFECTS)})")
+        if eid in labels:
+            raise _Problem(f"{entry}, id", f"effect {eid!r} is given twice")
+        labels[eid] = _text(raw, "label", entry)
+    used = {d.effect for d in domains if d.effect is not None}
+    if labels and not used <= set(labels):
+        missing = sorted(used - set(labels))
+        raise _Problem("[[effect]]", f"domains use effect {', '.join(missing)}, which has no entry")
+    return labels
+
+
+def _design(head: Mapping) -> str | None:
+    if "design" not in head:
+        return None
+    design = head["design"]
+    if not isinstance(design, str) or not _DESIGN.match(design):
+        raise _Problem("[set], design", "must be a short lower-case name such as \"cluster\" "
+                       f"(letters, digits, '-'), got {design!r}")
+    return design
 
 
 def _check_variants(domains: list[Domain]) -> None:
@@ -227,7 +281,7 @@ def _check_variants(domains: list[Domain]) -> None:
 def parse_question_set(data: Mapping, where: str) -> QuestionSet:
     """Build a QuestionSet from parsed TOML ``data``; ``where`` names the file in errors."""
     try:
-        _check_keys(data, {"set", "domain"}, "top level")
+        _check_keys(data, {"set", "domain", "effect"}, "top level")
         head = data.get("set")
         if not isinstance(head, dict):
             raise _Problem("[set]", "the file needs a [set] table with id, version, title, source,"
@@ -238,6 +292,8 @@ def parse_question_set(data: Mapping, where: str) -> QuestionSet:
             raise _Problem("top level", "the file has no [[domain]] entries")
         domains = [_domain(raw, i) for i, raw in enumerate(raw_domains, start=1)]
         _check_variants(domains)
+        _check_keys_unique(domains)
+        labels = _effects(data, domains)
         return QuestionSet(
             id=_text(head, "id", "[set]"),
             version=_text(head, "version", "[set]"),
@@ -245,6 +301,8 @@ def parse_question_set(data: Mapping, where: str) -> QuestionSet:
             source=_text(head, "source", "[set]"),
             licence=_text(head, "licence", "[set]"),
             domains=tuple(domains),
+            design=_design(head),
+            effect_labels={**EFFECT_LABELS, **labels},
         )
     except _Problem as problem:
         raise DataFileError(f"{where}: {problem.entry}: {problem.problem}") from None

@@ -10,7 +10,7 @@ Only the standard library is used here so that `robtui judge` starts fast.
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from robtui.errors import InputError
 
@@ -19,6 +19,11 @@ from robtui.errors import InputError
 RESPONSE_CODES: tuple[str, ...] = ("Y", "PY", "PN", "N", "NI", "NA")
 JUDGEMENT_CODES: tuple[str, ...] = ("low", "some_concerns", "high")
 EFFECTS: tuple[str, ...] = ("assignment", "adhering")
+# Default words for the effects of interest; a set may give its own ([[effect]] label = ...).
+EFFECT_LABELS: dict[str, str] = {
+    "assignment": "effect of assignment to intervention (the intention-to-treat effect)",
+    "adhering": "effect of adhering to intervention (the per-protocol effect)",
+}
 INCOMPLETE = "incomplete"  # a domain whose asked questions are not all answered
 # The one table of judgement labels (words for every screen, export and message).
 JUDGEMENT_LABELS: dict[str, str] = {
@@ -137,6 +142,7 @@ class Domain:
     questions: tuple[Question, ...]
     # The domain's judgement is the least favourable across its tables.
     rules: tuple[RuleTable, ...]
+    key: str | None = None  # the workbench key that goes to this domain (one character)
 
     def question(self, qid: str) -> Question:
         for q in self.questions:
@@ -156,6 +162,8 @@ class QuestionSet:
     source: str
     licence: str
     domains: tuple[Domain, ...]
+    design: str | None = None  # the study design this set serves ("parallel", "cluster", ...)
+    effect_labels: Mapping[str, str] = field(default_factory=lambda: dict(EFFECT_LABELS))
 
     def domain_ids(self) -> list[str]:
         seen: list[str] = []
@@ -187,6 +195,18 @@ class QuestionSet:
             if any(q.id == question_id for q in d.questions):
                 return d.id
         raise InputError(f"question set {self.id} has no question {question_id!r}")
+
+    def effect_label(self, effect: str) -> str:
+        """Words for an effect of interest (the set's own, else the default)."""
+        return self.effect_labels.get(effect) or EFFECT_LABELS.get(effect, effect)
+
+    def domain_keys(self) -> dict[str, str]:
+        """Workbench key -> domain id, for the domains that have a key, in the set's order."""
+        keys: dict[str, str] = {}
+        for d in self.domains:
+            if d.key is not None and d.key not in keys:
+                keys[d.key] = d.id
+        return keys
 
     def effects(self) -> list[str]:
         """Effects of interest the set offers variants for (e.g. assignment, adhering)."""

@@ -18,7 +18,6 @@ from matplotlib.patches import FancyBboxPatch
 from PIL import Image
 
 from robtui.benchmarks.review import build_synthetic_review
-from robtui.store.question_sets import builtin_question_set
 from robtui.export.figures import (
     MAX_HEIGHT_MM,
     PT_PER_MM,
@@ -29,6 +28,7 @@ from robtui.export.figures import (
 )
 from robtui.export.palette import SWATCHES, hex_to_rgb
 from robtui.export.tables import build_outcome_export
+from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 SVG = "{http://www.w3.org/2000/svg}"

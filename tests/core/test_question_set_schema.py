@@ -1,0 +1,93 @@
+"""The question-set file's optional fields: design, domain keys, effect labels (DEVELOPERS.md,
+"Adding a question set"). Each is checked on load with a message naming file, entry, problem."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from robtui.core.questions import EFFECT_LABELS
+from robtui.errors import DataFileError
+from robtui.store.question_sets import builtin_question_set, load_question_set
+
+MINIMAL = (Path(__file__).resolve().parents[1] / "data" / "question_sets" / "valid-minimal.toml")
+
+
+def _variant(tmp_path: Path, *, head: str = "", domain: str = "", tail: str = "") -> Path:
+    text = MINIMAL.read_text("utf-8")
+    text = text.replace('licence = "MIT"\n', f'licence = "MIT"\n{head}')
+    text = text.replace('short_name = "Mini"\n', f'short_name = "Mini"\n{domain}')
+    path = tmp_path / "variant.toml"
+    path.write_text(text + tail, "utf-8")
+    return path
+
+
+def _refused(path: Path, entry: str, problem: str) -> None:
+    with pytest.raises(DataFileError) as caught:
+        load_question_set(path)
+    assert str(caught.value).startswith(f"{path}: {entry}"), caught.value
+    assert problem in str(caught.value)
+
+
+def test_defaults_keep_old_files_loading():
+    mini = load_question_set(MINIMAL)
+    assert mini.design is None
+    assert mini.domain_keys() == {"1": "1"}  # a one-character id is its own key
+    assert mini.effect_label("assignment") == EFFECT_LABELS["assignment"]
+
+
+def test_design_key_and_effect_labels_are_read(tmp_path):
+    path = _variant(
+        tmp_path,
+        head='design = "stepped-wedge"\n',
+        domain='key = "w"\n',
+    )
+    mini = load_question_set(path)
+    assert mini.design == "stepped-wedge"
+    assert mini.domain_keys() == {"w": "1"}
+
+
+def test_a_long_domain_id_has_no_key_unless_given(tmp_path):
+    text = MINIMAL.read_text("utf-8").replace('id = "1"', 'id = "1b"').replace('"1.', '"1b.')
+    path = tmp_path / "long-id.toml"
+    path.write_text(text, "utf-8")
+    assert load_question_set(path).domain_keys() == {}
+
+
+def test_effect_labels_from_the_file(tmp_path):
+    tail = '\n[[effect]]\nid = "assignment"\nlabel = "our words for it"\n'
+    mini = load_question_set(_variant(tmp_path, tail=tail))
+    assert mini.effect_label("assignment") == "our words for it"
+    assert mini.effect_label("adhering") == EFFECT_LABELS["adhering"]
+
+
+@pytest.mark.parametrize(
+    ("head", "domain", "tail", "entry", "problem"),
+    [
+        ('design = "Cluster Trials"\n', "", "", "[set], design", "short lower-case name"),
+        ("", 'key = "ab"\n', "", "domain 1, key", "one printable character"),
+        ("", 'key = " "\n', "", "domain 1, key", "one printable character"),
+        ("", "", '\n[[effect]]\nid = "per-protocol"\nlabel = "x"\n', "effect entry 1, id",
+         "'per-protocol' is not an effect"),
+        ("", "", '\n[[effect]]\nid = "assignment"\nwords = "x"\n', "effect entry 1",
+         "unknown key 'words'"),
+    ],
+)
+def test_bad_optional_fields_are_named(tmp_path, head, domain, tail, entry, problem):
+    _refused(_variant(tmp_path, head=head, domain=domain, tail=tail), entry, problem)
+
+
+def test_two_domains_may_not_share_a_key(tmp_path):
+    text = MINIMAL.read_text("utf-8")
+    second = text[text.index("[[domain]]"):].replace('id = "1"', 'id = "2"').replace('"1.', '"2.')
+    path = tmp_path / "two.toml"
+    path.write_text(text + "\n" + second.replace('short_name = "Mini"\n',
+                                                  'short_name = "Mini"\nkey = "1"\n'), "utf-8")
+    _refused(path, "domain 2, key", "'1' already goes to domain 1")
+
+
+def test_bundled_sets_declare_their_design():
+    designs = {builtin_question_set(s).design for s in
+               ("rob2-parallel", "rob2-cluster", "rob2-crossover")}
+    assert designs == {"parallel", "cluster", "crossover"}
