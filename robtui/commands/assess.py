@@ -10,6 +10,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.core.questions import EFFECTS
+
 
 class _IntermixedParser(argparse.ArgumentParser):
     """Lets answers (Q=CODE) come before, between or after the options."""
@@ -60,7 +62,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         metavar="Q=N",
         help="remove quote N (1-based)",
     )
-    parser.add_argument("--effect", choices=("assignment", "adhering"), help="switch domain 2")
+    parser.add_argument("--effect", choices=EFFECTS, help="switch domain 2")
     parser.add_argument(
         "--override",
         action="append",

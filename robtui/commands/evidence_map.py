@@ -6,6 +6,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.core.questions import EFFECTS
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -19,7 +21,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         ),
     )
     parser.add_argument("folder", type=Path, metavar="DIR", help="review folder")
-    parser.add_argument("--effect", choices=("assignment", "adhering"), default=None,
+    parser.add_argument("--effect", choices=EFFECTS, default=None,
                         help="domain 2 variant (default: the first result's)")
     parser.add_argument("--export", choices=("csv", "md"), action="append", default=[],
                         help="also write the table to DIR/exports/ (repeat for several)")

@@ -13,6 +13,7 @@ import argparse
 
 TOOLS = {"rob2": "rob2-parallel"}  # batch "tool" value -> bundled question set id
 
+from robtui.core.questions import EFFECTS
 from robtui.core.questions import JUDGEMENT_LABELS as _LABELS
 
 
@@ -32,7 +33,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("--overall", metavar="J,J,J,J,J",
                         help="overall judgement from domain judgements in domain order, such as "
                         "low,some_concerns,high,low,low")
-    parser.add_argument("--effect", default="assignment", choices=("assignment", "adhering"),
+    parser.add_argument("--effect", default="assignment", choices=EFFECTS,
                         help="effect of interest; matters for domain 2 (default: assignment)")
     parser.add_argument("--question-set", default="rob2-parallel", metavar="ID",
                         help="bundled question set (default: rob2-parallel)")

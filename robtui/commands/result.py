@@ -5,6 +5,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.core.questions import EFFECTS
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -19,7 +21,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     add.add_argument("--time-point", default="", help="e.g. '12 weeks'")
     add.add_argument(
         "--effect",
-        choices=("assignment", "adhering"),
+        choices=EFFECTS,
         default="assignment",
         help="effect of interest: of assignment to (default) or of adhering to the intervention",
     )

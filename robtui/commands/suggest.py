@@ -12,6 +12,8 @@ import argparse
 import sys
 from pathlib import Path
 
+from robtui.core.questions import EFFECTS
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -42,7 +44,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
                         help="reading order, as the workbench shows: after the best sentence, "
                              "one from another section takes a place when it scores nearly as "
                              "well (scores then need not fall steadily)")
-    parser.add_argument("--effect", choices=("assignment", "adhering"), default="assignment",
+    parser.add_argument("--effect", choices=EFFECTS, default="assignment",
                         help="domain 2 variant (default: effect of assignment)")
     parser.add_argument("--model", type=Path, default=None, help=argparse.SUPPRESS)
     parser.set_defaults(func=run)

@@ -115,7 +115,10 @@ class Workbench(App[int]):
                 return
             self.push_screen(AssessmentScreen(started))
 
-        self.push_screen(EffectDialog(label, result.effect if result else "assignment"), chosen)
+        qset = session.qset
+        current = result.effect if result else qset.effects()[0]
+        labels = {e: qset.effect_label(e) for e in qset.effects()}
+        self.push_screen(EffectDialog(label, current, labels), chosen)
 
     def open_comparison(self) -> None:
         session = self.session

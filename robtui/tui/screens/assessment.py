@@ -639,7 +639,8 @@ class AssessmentScreen(Screen[None]):
                     self.rerank()
 
         label = s.result.outcome if s.result else s.assessment.result_id
-        self.app.push_screen(EffectDialog(label, s.effect), done)
+        labels = {e: s.qset.effect_label(e) for e in s.qset.effects()}
+        self.app.push_screen(EffectDialog(label, s.effect, labels), done)
 
     def action_complete(self) -> None:
         s = self.session

@@ -3,6 +3,7 @@ missing, a message."""
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import ClassVar
 
@@ -18,21 +19,18 @@ from textual.widgets.option_list import Option
 from robtui.tui.keys import RESPONSE_NAMES
 from robtui.tui.palette import badge
 
-EFFECTS = {
-    "assignment": "effect of assignment to intervention (the intention-to-treat effect)",
-    "adhering": "effect of adhering to intervention (the per-protocol effect)",
-}
-
 
 class EffectDialog(ModalScreen[str | None]):
     """Choose the effect of interest; domain 2's questions depend on it."""
 
     BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
 
-    def __init__(self, result_label: str, current: str) -> None:
+    def __init__(self, result_label: str, current: str, effects: Mapping[str, str]) -> None:
+        """``effects``: effect id -> words, from the question set (QuestionSet.effect_label)."""
         super().__init__()
         self.result_label = result_label
         self.current = current
+        self.effects = dict(effects)
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
@@ -43,14 +41,15 @@ class EffectDialog(ModalScreen[str | None]):
                 classes="dialog-note",
             )
             options = OptionList(
-                *[Option(f"{code}: {text}", id=code) for code, text in EFFECTS.items()],
+                *[Option(f"{code}: {text}", id=code) for code, text in self.effects.items()],
                 id="effect-options",
             )
             yield options
 
     def on_mount(self) -> None:
         options = self.query_one("#effect-options", OptionList)
-        options.highlighted = list(EFFECTS).index(self.current) if self.current in EFFECTS else 0
+        effects = list(self.effects)
+        options.highlighted = effects.index(self.current) if self.current in effects else 0
         options.focus()
 
     @on(OptionList.OptionSelected, "#effect-options")
