@@ -47,7 +47,7 @@ SECTION_LABELS: tuple[str, ...] = (
 )
 
 BlockKind = Literal["body", "heading", "caption", "table"]
-DocumentKind = Literal["pdf", "txt", "md", "html"]
+DocumentKind = Literal["pdf", "txt", "md", "html", "registry"]
 
 
 def top_section(label: str) -> str:

@@ -18,6 +18,8 @@ SUFFIX_KINDS = {
     ".html": "html",
     ".htm": "html",
     ".xhtml": "html",
+    ".json": "registry",  # registry records (reading/registry.py)
+    ".xml": "registry",
 }
 
 
@@ -68,6 +70,10 @@ def _parse(path: Path, kind: str, data: bytes, digest: str) -> Document:
             from robtui.reading.pdf import read_pdf
 
             return read_pdf(path, data, digest)
+        if kind == "registry":
+            from robtui.reading.registry import read_registry_document
+
+            return read_registry_document(path, data, digest)
         if kind == "txt":
             from robtui.reading.text import read_text_file
 

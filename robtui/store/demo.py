@@ -50,6 +50,8 @@ _TOP_KEYS = {
     "schema_version", "title", "lead", "reviewers", "assessed_at", "settled_at", "study", "result",
     "assessment", "consensus",
 }  # fmt: skip
+# [[study]] keys naming further files of a study, and the kind each is added as.
+_MORE_FILES = {"protocols": "protocol", "registry_records": "registry"}
 _BLOCK_KEYS = {"study", "results", "answers", "reviewer", "override"}
 _ANSWER_KEYS = {"code", "why", "quote", "quotes"}
 # Quotes from the PDF when the passage is found there (they then carry a page number).
@@ -119,6 +121,9 @@ def _build(dest: Path, source: Path, data: dict, path: Path) -> None:
     for study in data.get("study", []):
         files = [source / name for name in study.get("files", [])]
         folder.add_study(study["id"], study["label"], files)
+        for key, kind in _MORE_FILES.items():  # protocols and registry records
+            for name in study.get(key, []):
+                folder.add_report(study["id"], source / name, kind=kind)
     for result in data.get("result", []):
         folder.add_result(ResultSpec.model_validate(result))
     for reviewer in folder.review.reviewers:

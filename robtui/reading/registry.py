@@ -1,0 +1,430 @@
+"""Trial registry records as reviewers download them, read into one model.
+
+Formats read (parsed with the standard library's ``json`` and ``xml.etree``; Python's expat
+refuses entity-expansion attacks, see the "XML vulnerabilities" table of the Python docs):
+
+- ClinicalTrials.gov API v2 study JSON (one study, or a search response holding one):
+  ``protocolSection.identificationModule.nctId``, ``statusModule.studyFirstSubmitDate``,
+  ``startDateStruct{date,type}``, ``lastUpdateSubmitDate`` / ``lastUpdatePostDateStruct``,
+  ``outcomesModule.primaryOutcomes[]{measure,description,timeFrame}`` and secondary/other.
+  Source: the API's study data structure (clinicaltrials.gov/data-api/about-api/
+  study-data-structure, as listed by DesayoEm/Clinexa-ETL-ELT-Pipeline
+  documentation/data/single_fields.md) and the Protocol Registration Data Element Definitions
+  (clinicaltrials.gov/policy/protocol-definitions).
+- ClinicalTrials.gov classic record XML (``<clinical_study>``, public.xsd): ``id_info/nct_id``,
+  ``study_first_submitted``, ``start_date`` (type Actual/Anticipated), ``last_update_submitted``,
+  ``primary_outcome``/``secondary_outcome``/``other_outcome`` with ``measure``, ``time_frame``,
+  ``description``. Source: the element guide MoravianCollege/clashboard
+  ClinicalTrialXMLREADME.md (after public.xsd); ``last_update_submitted`` from memory.
+- WHO ICTRP export XML (``<Trials_downloaded_from_ICTRP>`` of ``<Trial>`` elements, or one
+  ``<Trial>``), the WHO Trial Registration Data Set (TRDS v1.3.1, who.int/clinical-trials-
+  registry-platform/network/who-data-set): items 1 (primary registry and trial identifying
+  number: ``TrialID``, ``Source_Register``), 2 (date of registration: ``Date_registration``),
+  16 (date of first enrolment: ``Date_enrollement``, the export's spelling, or
+  ``Date_enrollment``), 19 and 20 (primary and key secondary outcomes: ``Primary_outcome``,
+  ``Secondary_outcome``), ``Last_Refreshed_on``. The element names are from memory of the
+  ICTRP export (the field list of its CSV export, worcjamessmith/COVID-trial-characteristics
+  README, names ``Date_registration`` and ``Date_enrollment``); outcomes are free text there,
+  one per line or separated by semicolons, with any time frame written inside.
+
+History of changes: none of these single-record exports carries the registry's change log, so
+the history comes from comparing versions: several records of the same registration number
+(for example each version saved from the registry's history page) give, in update order, every
+outcome added, removed or changed and when (:func:`outcome_history`).
+"""
+
+from __future__ import annotations
+
+import calendar
+import hashlib
+import itertools
+import json
+import xml.etree.ElementTree as ET
+from datetime import date, datetime
+from pathlib import Path
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict, Field
+
+from robtui.errors import ReadingError
+
+OutcomeKind = Literal["primary", "secondary", "other"]
+REGISTRY_SUFFIXES = (".json", ".xml")
+
+
+class RecordDate(BaseModel):
+    """A date as precise as the record gives it (some registries give only month and year)."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    year: int
+    month: int | None = None
+    day: int | None = None
+    text: str = ""  # as written in the record
+
+    @property
+    def earliest(self) -> date:
+        return date(self.year, self.month or 1, self.day or 1)
+
+    @property
+    def latest(self) -> date:
+        month = self.month or 12
+        return date(self.year, month, self.day or calendar.monthrange(self.year, month)[1])
+
+    def __str__(self) -> str:
+        if self.day:
+            return f"{self.year:04d}-{self.month:02d}-{self.day:02d}"
+        if self.month:
+            return f"{self.year:04d}-{self.month:02d}"
+        return f"{self.year:04d}"
+
+
+class RegisteredOutcome(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    kind: OutcomeKind
+    measure: str
+    time_frame: str = ""
+    description: str = ""
+
+    def line(self, number: int) -> str:
+        """How the outcome reads in the record's text rendering (quotable)."""
+        frame = f" (time frame: {self.time_frame})" if self.time_frame else ""
+        return f"{self.kind.capitalize()} outcome {number}: {self.measure}{frame}"
+
+
+class RecordChange(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    date: RecordDate | None
+    what: str
+
+
+class RegistryRecord(BaseModel):
+    """What a reviewer needs from a registry record for domain 5 and the pre-specified plan."""
+
+    model_config = ConfigDict(extra="forbid")
+
+    source_format: Literal["ctgov-json", "ctgov-xml", "who-ictrp-xml"]
+    registry: str
+    registration_number: str
+    title: str = ""
+    registered: RecordDate | None = None
+    first_enrolment: RecordDate | None = None
+    first_enrolment_anticipated: bool | None = None  # True: a planned date, not the actual one
+    last_update: RecordDate | None = None
+    outcomes: list[RegisteredOutcome] = Field(default_factory=list)
+    history: list[RecordChange] = Field(default_factory=list)
+    path: str = ""
+    sha256: str = ""
+
+    def of_kind(self, kind: OutcomeKind) -> list[RegisteredOutcome]:
+        return [o for o in self.outcomes if o.kind == kind]
+
+
+# -- dates ------------------------------------------------------------------------------------
+_DAY_FORMATS = ("%Y-%m-%d", "%B %d, %Y", "%b %d, %Y", "%d %B %Y", "%d %b %Y", "%d/%m/%Y",
+                "%d.%m.%Y", "%Y%m%d", "%d-%m-%Y", "%Y/%m/%d")
+_MONTH_FORMATS = ("%Y-%m", "%B %Y", "%b %Y", "%m/%Y", "%Y/%m")
+
+
+def parse_record_date(text: str | None) -> RecordDate | None:
+    """A registry date in any of the formats registries write; None when empty or unknown.
+
+    Slashed day-first dates (``14/03/2031``) are read day first, as the ICTRP export writes
+    them (from memory). A time after the date (``2031-03-14T10:00``) is ignored.
+    """
+    if not text or not text.strip():
+        return None
+    raw = " ".join(text.split())
+    value = raw.split("T")[0] if raw[:4].isdigit() else raw
+    for fmt in _DAY_FORMATS:
+        try:
+            d = datetime.strptime(value, fmt)
+        except ValueError:
+            continue
+        return RecordDate(year=d.year, month=d.month, day=d.day, text=raw)
+    for fmt in _MONTH_FORMATS:
+        try:
+            d = datetime.strptime(value, fmt)
+        except ValueError:
+            continue
+        return RecordDate(year=d.year, month=d.month, text=raw)
+    if value.isdigit() and len(value) == 4:
+        return RecordDate(year=int(value), text=raw)
+    return None
+
+
+# -- reading ------------------------------------------------------------------------------------
+def read_registry_record(path: Path) -> RegistryRecord:
+    """Read one registry record file (JSON or XML); ReadingError names the file and problem."""
+    path = Path(path)
+    try:
+        data = path.read_bytes()
+    except OSError as error:
+        raise ReadingError(f"{path}: cannot be read ({error.strerror or error})") from error
+    return parse_registry_record(data, str(path))
+
+
+def parse_registry_record(data: bytes, name: str = "<record>") -> RegistryRecord:
+    """The record in ``data``, whichever supported format it is in."""
+    digest = hashlib.sha256(data).hexdigest()
+    head = data.lstrip()[:1]
+    if head in (b"{", b"["):
+        record = _from_ctgov_json(_json(data, name), name)
+    elif head == b"<":
+        record = _from_xml(_xml(data, name), name)
+    else:
+        raise ReadingError(f"{name}: not a registry record robtui reads (expected the JSON of "
+                           "a ClinicalTrials.gov study, its classic XML, or a WHO ICTRP XML "
+                           "export)")
+    return record.model_copy(update={"path": name, "sha256": digest})
+
+
+def is_registry_record(data: bytes) -> bool:
+    """True when ``data`` parses as one of the supported registry formats."""
+    try:
+        parse_registry_record(data)
+    except ReadingError:
+        return False
+    return True
+
+
+def _json(data: bytes, name: str):
+    try:
+        return json.loads(data.decode("utf-8-sig"))
+    except (UnicodeDecodeError, ValueError) as error:
+        raise ReadingError(f"{name}: not valid JSON ({error})") from error
+
+
+def _xml(data: bytes, name: str) -> ET.Element:
+    try:
+        return ET.fromstring(data)
+    except ET.ParseError as error:
+        raise ReadingError(f"{name}: not well-formed XML ({error})") from error
+
+
+def _get(obj, *keys, default=None):
+    for key in keys:
+        if not isinstance(obj, dict) or key not in obj:
+            return default
+        obj = obj[key]
+    return obj
+
+
+def _text(value) -> str:
+    return " ".join(str(value).split()) if value is not None else ""
+
+
+def _from_ctgov_json(raw, name: str) -> RegistryRecord:
+    studies = raw.get("studies") if isinstance(raw, dict) and "studies" in raw else None
+    if isinstance(raw, list):
+        studies = raw
+    if studies is not None:
+        if len(studies) != 1:
+            raise ReadingError(f"{name}: holds {len(studies)} study records; save one study "
+                               "per file")
+        raw = studies[0]
+    protocol = _get(raw, "protocolSection")
+    if not isinstance(protocol, dict):
+        raise ReadingError(f"{name}: JSON without protocolSection: not a ClinicalTrials.gov "
+                           "study record")
+    ident = _get(protocol, "identificationModule", default={})
+    status = _get(protocol, "statusModule", default={})
+    number = _text(ident.get("nctId"))
+    if not number:
+        raise ReadingError(f"{name}: the record has no identificationModule.nctId")
+    outcomes = []
+    for key, kind in (("primaryOutcomes", "primary"), ("secondaryOutcomes", "secondary"),
+                      ("otherOutcomes", "other")):
+        for item in _get(protocol, "outcomesModule", key, default=[]) or []:
+            measure = _text(item.get("measure"))
+            if measure:
+                outcomes.append(RegisteredOutcome(
+                    kind=kind, measure=measure, time_frame=_text(item.get("timeFrame")),
+                    description=_text(item.get("description"))))
+    start_type = _text(_get(status, "startDateStruct", "type")).upper()
+    return RegistryRecord(
+        source_format="ctgov-json", registry="ClinicalTrials.gov", registration_number=number,
+        title=_text(ident.get("officialTitle") or ident.get("briefTitle")),
+        registered=parse_record_date(status.get("studyFirstSubmitDate")),
+        first_enrolment=parse_record_date(_get(status, "startDateStruct", "date")),
+        first_enrolment_anticipated=(start_type in ("ESTIMATED", "ANTICIPATED")
+                                     if start_type else None),
+        last_update=parse_record_date(status.get("lastUpdateSubmitDate")
+                                      or _get(status, "lastUpdatePostDateStruct", "date")),
+        outcomes=outcomes,
+    )
+
+
+def _child_text(element: ET.Element, tag: str) -> str:
+    found = element.find(tag)
+    return _text("".join(found.itertext())) if found is not None else ""
+
+
+def _from_xml(root: ET.Element, name: str) -> RegistryRecord:
+    if root.tag == "clinical_study":
+        return _from_ctgov_xml(root, name)
+    if root.tag == "Trial":
+        return _from_ictrp(root, name)
+    if root.tag.startswith("Trials"):
+        trials = root.findall("Trial")
+        if len(trials) != 1:
+            raise ReadingError(f"{name}: holds {len(trials)} trials; export one trial per file")
+        return _from_ictrp(trials[0], name)
+    raise ReadingError(f"{name}: XML <{root.tag}> is not a registry record robtui reads "
+                       "(<clinical_study> of ClinicalTrials.gov or a WHO ICTRP <Trial> export)")
+
+
+def _from_ctgov_xml(root: ET.Element, name: str) -> RegistryRecord:
+    number = _child_text(root, "id_info/nct_id")
+    if not number:
+        raise ReadingError(f"{name}: <clinical_study> without id_info/nct_id")
+    outcomes = []
+    for tag, kind in (("primary_outcome", "primary"), ("secondary_outcome", "secondary"),
+                      ("other_outcome", "other")):
+        for item in root.findall(tag):
+            measure = _child_text(item, "measure")
+            if measure:
+                outcomes.append(RegisteredOutcome(
+                    kind=kind, measure=measure, time_frame=_child_text(item, "time_frame"),
+                    description=_child_text(item, "description")))
+    start = root.find("start_date")
+    start_type = (start.get("type") or "").lower() if start is not None else ""
+    return RegistryRecord(
+        source_format="ctgov-xml", registry="ClinicalTrials.gov", registration_number=number,
+        title=_child_text(root, "official_title") or _child_text(root, "brief_title"),
+        registered=parse_record_date(_child_text(root, "study_first_submitted")),
+        first_enrolment=parse_record_date(_child_text(root, "start_date")),
+        first_enrolment_anticipated=(start_type == "anticipated") if start_type else None,
+        last_update=parse_record_date(_child_text(root, "last_update_submitted")),
+        outcomes=outcomes,
+    )
+
+
+_TIME_LABELS = ("time frame:", "timeframe:", "timepoints:", "timepoint:", "time points:",
+                "time point:")
+
+
+def split_outcome_text(text: str) -> list[tuple[str, str]]:
+    """(measure, time frame) pairs of a free-text outcome field (ICTRP): one outcome per line
+    or per semicolon; a "time frame:" / "timepoint:" label inside an outcome starts its time
+    frame."""
+    out = []
+    for line in text.replace("<br>", "\n").replace("<br/>", "\n").splitlines():
+        for part in line.split(";"):
+            part = " ".join(part.split()).strip(" .")
+            if not part:
+                continue
+            lowered = part.lower()
+            label = next((lb for lb in _TIME_LABELS if lb in lowered), None)
+            if label is not None:
+                cut = lowered.index(label)
+                measure = part[:cut].strip(" ,.[]()")
+                frame = part[cut + len(label):].strip(" ,.[]()")
+                if not measure and out and not out[-1][1]:
+                    out[-1] = (out[-1][0], frame)  # "...; Time frame: 12 weeks"
+                else:
+                    out.append((measure, frame))
+            elif (out and not out[-1][1] and len(part.split()) <= 6
+                  and lowered.startswith(("at ", "over ", "during ", "after "))):
+                out[-1] = (out[-1][0], part)  # "...; at 12 weeks" belongs to the outcome
+            else:
+                out.append((part, ""))
+    return [(m, t) for m, t in out if m]
+
+
+def _from_ictrp(trial: ET.Element, name: str) -> RegistryRecord:
+    main = trial.find("Main")
+    fields = main if main is not None else trial
+
+    def field(*tags: str) -> str:
+        for tag in tags:
+            value = _child_text(fields, tag) or _child_text(trial, tag)
+            if value:
+                return value
+        return ""
+
+    def raw_field(tag: str) -> str:
+        found = fields.find(tag)
+        if found is None:
+            found = trial.find(tag)
+        return "".join(found.itertext()) if found is not None else ""
+
+    number = field("TrialID")
+    if not number:
+        raise ReadingError(f"{name}: WHO ICTRP <Trial> without TrialID")
+    outcomes = []
+    for tag, kind in (("Primary_outcome", "primary"), ("Secondary_outcome", "secondary")):
+        for measure, frame in split_outcome_text(raw_field(tag)):
+            outcomes.append(RegisteredOutcome(kind=kind, measure=measure, time_frame=frame))
+    return RegistryRecord(
+        source_format="who-ictrp-xml", registry=field("Source_Register") or "WHO ICTRP",
+        registration_number=number,
+        title=field("Scientific_title", "Public_title"),
+        registered=parse_record_date(field("Date_registration")),
+        first_enrolment=parse_record_date(field("Date_enrollement", "Date_enrollment")),
+        last_update=parse_record_date(field("Last_Refreshed_on")),
+        outcomes=outcomes,
+    )
+
+
+# -- versions ---------------------------------------------------------------------------------
+def outcome_history(records: list[RegistryRecord]) -> list[RecordChange]:
+    """Changes of the pre-specified outcomes between versions of one registration, oldest
+    first (see core.prespecification.outcome_changes). Records are ordered by their last update
+    (a record without one counts as oldest)."""
+    from robtui.core.prespecification import outcome_changes
+
+    numbers = {r.registration_number for r in records}
+    if len(numbers) > 1:
+        raise ReadingError(f"versions of different registrations cannot be compared: "
+                           f"{', '.join(sorted(numbers))}")
+    ordered = sorted(records, key=lambda r: r.last_update.earliest if r.last_update else date.min)
+    changes: list[RecordChange] = []
+    for before, after in itertools.pairwise(ordered):
+        for what in outcome_changes([(o.kind, o.measure, o.time_frame) for o in before.outcomes],
+                                    [(o.kind, o.measure, o.time_frame) for o in after.outcomes]):
+            changes.append(RecordChange(date=after.last_update, what=what))
+    return changes
+
+
+# -- as a document ------------------------------------------------------------------------------
+def record_text(record: RegistryRecord) -> str:
+    """The record as plain text, one fact per line, so its lines can be read and quoted."""
+    lines = [f"Registry record {record.registration_number} ({record.registry})"]
+    if record.title:
+        lines.append(f"Title: {record.title}")
+    lines += ["", "Registration"]
+    if record.registered:
+        lines.append(f"Date of registration: {record.registered}.")
+    if record.first_enrolment:
+        planned = {True: " (anticipated)", False: " (actual)"}.get(
+            record.first_enrolment_anticipated, "")
+        lines.append(f"Date of first enrolment: {record.first_enrolment}{planned}.")
+    if record.last_update:
+        lines.append(f"Last update: {record.last_update}.")
+    for kind, heading in (("primary", "Primary outcomes"), ("secondary", "Secondary outcomes"),
+                          ("other", "Other outcomes")):
+        items = record.of_kind(kind)
+        if not items:
+            continue
+        lines += ["", heading]
+        for number, outcome in enumerate(items, 1):
+            lines.append(outcome.line(number))
+            if outcome.description:
+                lines.append(f"Description: {outcome.description}")
+    if record.history:
+        lines += ["", "History of changes"]
+        lines += [f"{change.date or 'undated'}: {change.what}" for change in record.history]
+    return "\n".join(lines) + "\n"
+
+
+def read_registry_document(path: Path, data: bytes, digest: str):
+    """A registry record file as a Document of its text rendering (for the report pane,
+    suggestions and quotes); offsets are into that rendering."""
+    from robtui.reading.text import document_from_text
+
+    record = parse_registry_record(data, str(path))
+    return document_from_text(record_text(record), path=str(path), kind="registry",
+                              sha256=digest)
