@@ -107,6 +107,12 @@ def run(args: argparse.Namespace) -> int:
     reviewers = ws.choose_reviewers(args.reviewers)
     pairs, problems = ws.pairs(reviewers, args.study, args.result)
     comparisons = [compare_pair(p, qset) for p in pairs if p.comparable]
+    stale = ws.stale_consensus(pairs)
+    problems = problems + [
+        f"{study} / {result}: consensus is stale, built on answers since changed "
+        f"({'; '.join(changes)}): reopen it and review"
+        for (study, result), changes in stale.items()
+    ]
     skipped = [
         f"{p.study_id} / {p.result_id} not compared: {p.problem}" for p in pairs if not p.comparable
     ]

@@ -99,8 +99,8 @@ def _pair_of(folder, record):
     return pair
 
 
-def _summary(record, qset) -> list[str]:
-    from robtui.core.comparison import pending_questions
+def _summary(record, qset, pair=None) -> list[str]:
+    from robtui.core.comparison import changed_since, pending_questions
     from robtui.core.questions import judgement_label
 
     pending = pending_questions(record, qset)
@@ -125,6 +125,13 @@ def _summary(record, qset) -> list[str]:
             who = {"a": f"took {a}", "b": f"took {b}", "new": "new answer"}[decision.source]
             lines.append(f"  {qid}: {decision.response or 'not asked'} ({who}): {decision.note}")
     lines.append("  to settle: " + (", ".join(pending) if pending else "nothing"))
+    changes = changed_since(record, pair, qset)
+    if changes:
+        lines.append(
+            "  STALE: a reviewer changed answers this consensus was built on ("
+            + "; ".join(changes)
+            + "): reopen it, review, and complete it again"
+        )
     return lines
 
 
@@ -201,12 +208,16 @@ def run_show(args: argparse.Namespace) -> int:
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset
     record = _existing(folder, args)
+    pair = _pair_of(folder, record)
     if args.json:
+        from robtui.core.comparison import changed_since
+
         data = record.model_dump(mode="json")
         data["pending"] = pending_questions(record, qset)
+        data["changed_since"] = changed_since(record, pair, qset)
         print(json.dumps(data, indent=2, ensure_ascii=False))
     else:
-        print("\n".join(_summary(record, qset)))
+        print("\n".join(_summary(record, qset, pair)))
     return 0
 
 
@@ -216,9 +227,11 @@ def run_complete(args: argparse.Namespace) -> int:
 
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset
-    record = complete_consensus(_existing(folder, args), qset)
+    record = _existing(folder, args)
+    pair = _pair_of(folder, record)
+    record = complete_consensus(record, qset, pair)
     folder.save_consensus(record)
-    print("\n".join(_summary(record, qset)))
+    print("\n".join(_summary(record, qset, pair)))
     return 0
 
 

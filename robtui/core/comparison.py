@@ -354,6 +354,7 @@ def start_consensus(pair: AssessmentPair, lead: str, qset) -> Consensus:
         effect=effect,
         answers=answers,
         decisions=decisions,
+        built_on={pair.reviewer_a: eff_a, pair.reviewer_b: eff_b},
     )
     return recompute_consensus(consensus, qset)
 
@@ -392,7 +393,9 @@ def settle(
     """Settle one question: take A's answer, B's answer, or a new ``response``; with a note.
 
     Taking a side copies that side's response, justification and quotes (``pair`` needed);
-    a side that was not asked the question gives "not asked" (response None).
+    a side that was never asked the question cannot be taken. A new answer is the lead's own:
+    its justification is the note, and no reviewer's quotes are kept. Only questions asked on
+    the agreed path can be settled (settle earlier questions first).
     """
     if consensus.status == "complete":
         raise InputError(
@@ -404,6 +407,13 @@ def settle(
         raise InputError(f"source must be one of {', '.join(SOURCES)} (take A, take B, new)")
     if not note.strip():
         raise InputError(f"settling {question_id} needs a note saying why: add one")
+    if question_id not in asked_on_path(consensus, qset):
+        raise InputError(
+            f"{question_id} is not asked on the agreed path of {consensus.study_id} / "
+            f"{consensus.result_id} (its condition: {question.condition_text or 'none'}); "
+            f"settle the questions listed to settle first: "
+            f"{', '.join(pending_questions(consensus, qset)) or 'none left'}"
+        )
     if source in ("a", "b"):
         if response is not None:
             raise InputError("give a response only with source 'new'")
@@ -416,23 +426,23 @@ def settle(
             )
         side = pair.a if source == "a" else pair.b
         effective = path_answers(qset, consensus.effect, side.answers)
-        taken = _answer(side, question_id)
-        answer = (
-            Answer(
-                response=effective[question_id],
-                justification=taken.justification,
-                quotes=list(taken.quotes),
+        if question_id not in effective:
+            raise InputError(
+                f"{side.reviewer} was never asked {question_id} (it is off their answer path), "
+                "so there is no answer to take: take the other side or give a new answer"
             )
-            if question_id in effective
-            else Answer()
+        taken = _answer(side, question_id)
+        answer = Answer(
+            response=effective[question_id],
+            justification=taken.justification,
+            quotes=list(taken.quotes),
         )
     else:
         if response is None or response not in question.options:
             raise InputError(
                 f"a new answer to {question_id} must be one of {', '.join(question.options)}"
             )
-        old = consensus.answers.get(question_id) or Answer()
-        answer = Answer(response=response, justification=old.justification, quotes=old.quotes)
+        answer = Answer(response=response, justification=note.strip())
     answers = dict(consensus.answers)
     answers[question_id] = answer
     decisions = dict(consensus.decisions)
@@ -482,19 +492,46 @@ def recompute_consensus(consensus: Consensus, qset) -> Consensus:
     )
 
 
+def asked_on_path(consensus: Consensus, qset) -> list[str]:
+    """Questions asked on the consensus's current path, answered or not, in order."""
+    effective = path_answers(qset, consensus.effect, consensus.answers)
+    asked = []
+    for domain_id in qset.domain_ids():
+        domain = qset.domain(domain_id, consensus.effect)
+        asked += [q.id for q in asked_questions(domain, effective)]
+    return asked
+
+
 def pending_questions(consensus: Consensus, qset) -> list[str]:
     """Questions asked on the consensus's current path that have no agreed response yet."""
     effective = path_answers(qset, consensus.effect, consensus.answers)
-    pending = []
-    for domain_id in qset.domain_ids():
-        domain = qset.domain(domain_id, consensus.effect)
-        own = {q.id: effective[q.id] for q in domain.questions if q.id in effective}
-        pending += [q.id for q in asked_questions(domain, own) if q.id not in own]
-    return pending
+    return [qid for qid in asked_on_path(consensus, qset) if qid not in effective]
 
 
-def complete_consensus(consensus: Consensus, qset) -> Consensus:
-    """Mark complete; InputError lists the questions still to settle."""
+def changed_since(consensus: Consensus, pair: AssessmentPair | None, qset) -> list[str]:
+    """What a reviewer changed since the lead last took up their answers ("tobias: 2.3 N ->
+    PN"); empty when nothing changed or the record predates this check (no ``built_on``)."""
+    if pair is None or not consensus.built_on:
+        return []
+    changes = []
+    for side in (pair.a, pair.b):
+        if side is None or side.reviewer not in consensus.built_on:
+            continue
+        before = consensus.built_on[side.reviewer]
+        now = path_answers(qset, consensus.effect, side.answers)
+        for qid in dict.fromkeys([*before, *now]):
+            if before.get(qid) != now.get(qid):
+                was, is_ = before.get(qid) or "not asked", now.get(qid) or "not asked"
+                changes.append(f"{side.reviewer}: {qid} {was} -> {is_}")
+    return changes
+
+
+def complete_consensus(
+    consensus: Consensus, qset, pair: AssessmentPair | None = None
+) -> Consensus:
+    """Mark complete; InputError lists the questions still to settle. With ``pair``, the
+    reviewers' current answers become the ones the consensus is built on (the lead has
+    seen them)."""
     current = recompute_consensus(consensus, qset)
     pending = pending_questions(current, qset)
     incomplete = [k for k, v in current.final.items() if v == "incomplete"]
@@ -504,7 +541,13 @@ def complete_consensus(consensus: Consensus, qset) -> Consensus:
             f"settle {', '.join(pending) or 'the open questions'}"
             + (f" (domains still incomplete: {', '.join(incomplete)})" if incomplete else "")
         )
-    return current.model_copy(update={"status": "complete"})
+    update: dict = {"status": "complete"}
+    if pair is not None and pair.comparable:
+        update["built_on"] = {
+            side.reviewer: path_answers(qset, consensus.effect, side.answers)
+            for side in (pair.a, pair.b)
+        }
+    return current.model_copy(update=update)
 
 
 def reopen_consensus(consensus: Consensus) -> Consensus:

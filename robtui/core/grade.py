@@ -11,22 +11,28 @@ are given) among the judged studies,
 - "very serious" when results at high risk hold >= 50%;
 - "serious" when results at high risk hold >= 20%, or results at high risk or with some
   concerns together hold >= 50%;
-- "not serious" otherwise.
+- "not serious" otherwise;
+- no suggestion while less than half of the weight (or of the studies) is judged: the
+  judged part cannot stand for the body of evidence yet.
+Shares are shown to one decimal, rounded down, so a shown share never contradicts the rule
+(19.96% shows as 19.9%, not as 20%).
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 VERY_SERIOUS_HIGH = 0.5
 SERIOUS_HIGH = 0.2
 SERIOUS_CONCERNS = 0.5
+ENOUGH_JUDGED = 0.5
 
 RULE_OF_THUMB = (
     "Our own rule of thumb (not part of GRADE): very serious if >= 50% of the weight is at "
     "high risk; serious if >= 20% is at high risk or >= 50% is at high risk or some concerns; "
-    "otherwise not serious."
+    "otherwise not serious; no suggestion while less than half is judged."
 )
 SUGGESTION_LABEL = (
     "Suggestion for the panel (GRADE guidelines 4, Guyatt et al., J Clin Epidemiol "
@@ -105,26 +111,42 @@ def suggest_rob_rating(
         code: sum(w for s, w in use.items() if overall[s] == code) / total
         for code in ("low", "some_concerns", "high")
     }
+    judged_share = _judged_share(judged, not_judged, weights if basis == "weight" else None)
+    studies = f"{len(judged)} judged {'study' if len(judged) == 1 else 'studies'}"
+    so_far = (
+        f"low {_pct(share['low'])}, some concerns {_pct(share['some_concerns'])}, "
+        f"high {_pct(share['high'])} of the judged {basis}"
+    )
+    if judged_share < ENOUGH_JUDGED:
+        return GradeSuggestion(
+            None,
+            basis,
+            share["low"],
+            share["some_concerns"],
+            share["high"],
+            judged,
+            not_judged,
+            f"Only {_pct(judged_share)} of the {basis} is judged ({studies} of "
+            f"{len(overall)}): no suggestion until at least half is; so far {so_far}.",
+            notes,
+        )
     concerns = share["high"] + share["some_concerns"]
     if share["high"] >= VERY_SERIOUS_HIGH:
         rating = "very serious"
-        why = f"{share['high']:.0%} of the {basis} is at high risk (>= 50%)"
+        why = f"{_pct(share['high'])} of the {basis} is at high risk (>= 50%)"
     elif share["high"] >= SERIOUS_HIGH:
         rating = "serious"
-        why = f"{share['high']:.0%} of the {basis} is at high risk (>= 20%)"
+        why = f"{_pct(share['high'])} of the {basis} is at high risk (>= 20%)"
     elif concerns >= SERIOUS_CONCERNS:
         rating = "serious"
-        why = f"{concerns:.0%} of the {basis} is at high risk or some concerns (>= 50%)"
+        why = f"{_pct(concerns)} of the {basis} is at high risk or some concerns (>= 50%)"
     else:
         rating = "not serious"
         why = (
-            f"only {share['high']:.0%} of the {basis} is at high risk and "
-            f"{concerns:.0%} at high risk or some concerns"
+            f"{_pct(share['high'])} of the {basis} is at high risk (< 20%) and "
+            f"{_pct(concerns)} at high risk or some concerns (< 50%)"
         )
-    rationale = (
-        f"{len(judged)} judged studies; low {share['low']:.0%}, some concerns "
-        f"{share['some_concerns']:.0%}, high {share['high']:.0%} of the {basis}: {why}."
-    )
+    rationale = f"{studies}; {so_far}: {why}."
     return GradeSuggestion(
         rating,
         basis,
@@ -136,3 +158,16 @@ def suggest_rob_rating(
         rationale,
         notes,
     )
+
+
+def _pct(share: float) -> str:
+    """A share as a percentage to one decimal, rounded down (so 0.1996 never reads 20.0%)."""
+    return f"{math.floor(share * 1000 + 1e-9) / 10:.1f}%"
+
+
+def _judged_share(judged, not_judged, weights: Mapping[str, float] | None) -> float:
+    """The part of the body of evidence judged: by weight when every study has one."""
+    if weights and all(s in weights for s in [*judged, *not_judged]):
+        total = sum(float(weights[s]) for s in [*judged, *not_judged])
+        return sum(float(weights[s]) for s in judged) / total if total > 0 else 0.0
+    return len(judged) / max(1, len(judged) + len(not_judged))

@@ -202,4 +202,7 @@ class Consensus(Record):
     overrides: dict[str, Override] = Field(default_factory=dict)
     final: dict[str, Proposal] = Field(default_factory=dict)
     status: Status = "draft"
+    # each reviewer's responses on their answer path when the lead last took them up (at the
+    # start and at completion): a later change by a reviewer makes the consensus stale
+    built_on: dict[str, dict[str, str]] = Field(default_factory=dict)
     updated: datetime = Field(default_factory=utc_now)

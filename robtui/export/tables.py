@@ -2,6 +2,8 @@
 
 Which judgements a study's row uses (its ``source``):
 - "consensus": a consensus record marked complete (the final judgement of the result);
+  "consensus (stale)" when a reviewer has since changed an answer it was built on (listed in
+  ``problems`` with the changes, so the lead reopens and reviews it);
 - "agreed by A, B": no complete consensus, but every complete assessment has the same
   domain and overall judgements;
 - "A only": exactly one reviewer's assessment is complete;
@@ -15,9 +17,10 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 
 from robtui.core.assessing import path_answers
+from robtui.core.comparison import AssessmentPair, changed_since
 from robtui.core.grade import GradeSuggestion, suggest_rob_rating
 from robtui.core.model import JUDGEMENTS, OVERALL, Assessment, Consensus, Quote, Review
-from robtui.core.questions import QuestionSet
+from robtui.core.questions import QuestionSet, judgement_label
 from robtui.core.review_sets import ReviewSets, review_sets
 
 
@@ -26,8 +29,9 @@ class JudgementRow:
     study_id: str
     study_label: str
     judgements: dict[str, str | None]  # domain ids and "overall" -> code, None = not judged
-    source: str  # "consensus", "agreed by a, b", "a only", "not judged"
+    source: str  # "consensus", "consensus (stale)", "agreed by a, b", "a only", "not judged"
     weight: float | None
+    overrides: tuple[str, ...] = ()  # "D3 High (proposed Some concerns): reason"
 
 
 @dataclass(frozen=True)
@@ -40,6 +44,7 @@ class SupportingRow:
     response: str | None
     justification: str
     quotes: tuple[Quote, ...]
+    settled: str = ""  # how the lead settled a difference, with the note ("" when agreed)
 
 
 @dataclass(frozen=True)
@@ -101,14 +106,24 @@ def build_outcome_export(
         keys = [*qset.domain_ids(), OVERALL]  # the study's own columns
         own = sorted(by_study.get(study.id, []), key=lambda a: a.reviewer)
         record, source, problem = _choose(study.id, own, agreed.get(study.id), review, keys)
+        if source == "consensus":
+            changes = changed_since(record, _pair_of(record, own), qset)
+            if changes:
+                source = "consensus (stale)"
+                problem = (
+                    f"consensus built on answers a reviewer has since changed "
+                    f"({'; '.join(changes)}): reopen it in the comparison screen and review"
+                )
         if problem:
             problems.append(f"{study.id}: {problem}")
         judgements = {k: (record.final.get(k) if record else None) for k in keys}
         judgements = {k: (v if v in JUDGEMENTS else None) for k, v in judgements.items()}
         weight = spec.weights.get(study.id) if spec and spec.weights else None
-        rows.append(JudgementRow(study.id, study.label, judgements, source, weight))
+        overrides = _overrides(record, qset) if record is not None else ()
+        rows.append(JudgementRow(study.id, study.label, judgements, source, weight, overrides))
         if record is not None:
-            whose = source if source == "consensus" else f"answers of {record.reviewer}; {source}"
+            lead = source.startswith("consensus")
+            whose = source if lead else f"answers of {record.reviewer}; {source}"
             supporting += _supporting(study.id, whose, record, qset)
     if not review.studies:
         problems.append("no studies in the review yet: add them with `robtui study add`")
@@ -178,6 +193,35 @@ def _choose(study_id, own: list[Assessment], cons: Consensus | None, review: Rev
     return complete[0], source, ("; ".join(notes) if notes else None)
 
 
+def _pair_of(record: Consensus, own: list[Assessment]) -> AssessmentPair | None:
+    by_name = {a.reviewer: a for a in own}
+    a, b = record.reviewers
+    if a not in by_name and b not in by_name:
+        return None
+    return AssessmentPair(record.study_id, record.result_id, a, b, by_name.get(a), by_name.get(b))
+
+
+def _overrides(record, qset) -> tuple[str, ...]:
+    """Each overridden judgement in words, with the proposal it replaced and the reason."""
+    titles = column_titles(qset, record.effect)
+    return tuple(
+        f"{titles.get(key, key)}: {judgement_label(o.judgement)} "
+        f"(proposed {judgement_label(o.proposed)}): {o.reason}"
+        for key, o in record.overrides.items()
+    )
+
+
+def _settled(record, question_id: str) -> str:
+    decision = getattr(record, "decisions", {}).get(question_id)
+    if decision is None or decision.source == "agreed":
+        return ""
+    if decision.source == "new":
+        how = "new answer by the lead"
+    else:
+        how = f"took {record.reviewers[0 if decision.source == 'a' else 1]}'s answer"
+    return f"{how}: {decision.note}" if decision.note else how
+
+
 def _supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]:
     effective = path_answers(qset, record.effect, record.answers)
     rows = []
@@ -195,6 +239,7 @@ def _supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]
                 response=effective[question.id],
                 justification=answer.justification,
                 quotes=tuple(answer.quotes),
+                settled=_settled(record, question.id),
             )
         )
     return rows

@@ -24,6 +24,7 @@ TEXT_FORMATS = ("csv", "md", "html", "tex")
 PLOT_FORMATS = ("svg", "png", "pdf")
 FORMATS = TEXT_FORMATS + PLOT_FORMATS
 SHARE_CODES = (*JUDGEMENTS, "incomplete")
+BOM = "\ufeff"
 
 
 def _quotes_text(quotes) -> str:
@@ -33,9 +34,21 @@ def _quotes_text(quotes) -> str:
     )
 
 
-def _heading(ex: OutcomeExport) -> str:
+def _title(ex: OutcomeExport) -> str:
+    """Outcome, time point and effect, the effect named once (outcomes often name it)."""
     when = f", {ex.time_point}" if ex.time_point else ""
-    return f"{ex.outcome}{when} (result {ex.result_id}; effect of {ex.effect})"
+    effect = f"effect of {ex.effect}"
+    named = effect.lower() in ex.outcome.lower()
+    return f"{ex.outcome}{when}" + ("" if named else f" ({effect})")
+
+
+def _heading(ex: OutcomeExport) -> str:
+    return f"{_title(ex)}, result {ex.result_id}"
+
+
+def _override_lines(ex: OutcomeExport) -> list[str]:
+    """ "Study: D3 Missing outcome data: High (proposed Some concerns): reason", per override."""
+    return [f"{row.study_label}: {o}" for row in ex.rows for o in row.overrides]
 
 
 def _basis_words(ex: OutcomeExport) -> str:
@@ -47,7 +60,9 @@ def to_csv(ex: OutcomeExport) -> dict[str, str]:
     """Two CSV files: the judgements (one row per study) and the supporting answers."""
     out = io.StringIO()
     w = csv.writer(out, lineterminator="\n")
-    w.writerow(["study", "label", *[h for _, h in ex.columns], "source", "weight", "note"])
+    w.writerow(
+        ["study", "label", *[h for _, h in ex.columns], "source", "weight", "overrides", "note"]
+    )
     notes = _notes_by_study(ex)
     for row in ex.rows:
         w.writerow(
@@ -59,6 +74,7 @@ def to_csv(ex: OutcomeExport) -> dict[str, str]:
                     *[_csv_judgement(row, k) for k, _ in ex.columns],
                     row.source,
                     "" if row.weight is None else f"{row.weight:g}",
+                    " | ".join(row.overrides),
                     notes.get(row.study_id, ""),
                 )
             ]
@@ -75,6 +91,7 @@ def to_csv(ex: OutcomeExport) -> dict[str, str]:
             "response",
             "justification",
             "quotes",
+            "settled",
         ]
     )
     for s in ex.supporting:
@@ -90,10 +107,12 @@ def to_csv(ex: OutcomeExport) -> dict[str, str]:
                     s.response,
                     s.justification,
                     _quotes_text(s.quotes),
+                    s.settled,
                 )
             ]
         )
-    return {"judgements.csv": out.getvalue(), "answers.csv": answers.getvalue()}
+    # a byte-order mark tells spreadsheets the file is UTF-8 (curly quotes, accents)
+    return {"judgements.csv": BOM + out.getvalue(), "answers.csv": BOM + answers.getvalue()}
 
 
 def _csv_judgement(row, key: str) -> str:
@@ -125,17 +144,21 @@ def to_markdown(ex: OutcomeExport, qset) -> str:
         cells = [_md_mark(row.judgements[k]) if k in row.judgements else "" for k, _ in ex.columns]
         lines.append(f"| {md(row.study_label)} | " + " | ".join(cells) + f" | {md(row.source)} |")
     lines += ["", "Key: " + "; ".join(f"[{s.letter}] {s.label}" for s in SWATCHES.values()), ""]
+    overrides = _override_lines(ex)
+    if overrides:
+        lines += ["## Overridden judgements", ""] + [f"- {md(o)}" for o in overrides] + [""]
     lines += _md_summary(ex, titles) + _md_grade(ex) + _md_not_judged(ex)
     lines += [
         "## Supporting table",
         "",
-        "| Study | Source | Question | Answer | Justification | Quotes |",
-        "|---|---|---|---|---|---|",
+        "| Study | Source | Question | Answer | Justification | Quotes | Settled |",
+        "|---|---|---|---|---|---|---|",
     ]
     for s in ex.supporting:
         lines.append(
             f"| {md(s.study_id)} | {md(s.source)} | {md(s.question_id)} {md(s.question)} | "
-            f"{md(s.response)} | {md(s.justification)} | {md(_quotes_text(s.quotes))} |"
+            f"{md(s.response)} | {md(s.justification)} | {md(_quotes_text(s.quotes))} | "
+            f"{md(s.settled)} |"
         )
     return "\n".join(lines) + "\n"
 
@@ -162,7 +185,8 @@ def _md_summary(ex: OutcomeExport, titles) -> list[str]:
         shares = ex.shares[key]
         lines.append(
             f"| {md(_with_coverage(ex, key, titles[key]))} | "
-            + " | ".join(f"{shares[c]:.0%}" for c in SHARE_CODES) + " |"
+            + " | ".join(f"{shares[c]:.0%}" for c in SHARE_CODES)
+            + " |"
         )
     return lines + [""]
 
@@ -211,7 +235,7 @@ def to_html(ex: OutcomeExport, qset) -> str:
     )
     parts = [
         '<!DOCTYPE html><html lang="en"><head><meta charset="utf-8">',
-        f"<title>Risk of bias: {markup(_heading(ex))}</title><style>{css}{styles}</style></head>",
+        f"<title>Risk of bias: {markup(_title(ex))}</title><style>{css}{styles}</style></head>",
         f"<body><h1>Risk of bias: {markup(_heading(ex))}</h1>",
         f'<p class="note">Review: {markup(ex.review_title)}</p>',
         "<h2>Judgements</h2><table><tr><th>Study</th>",
@@ -234,9 +258,18 @@ def to_html(ex: OutcomeExport, qset) -> str:
             )
         parts.append(f'<td class="note">{markup(row.source)}</td></tr>')
     parts.append("</table>")
+    overrides = _override_lines(ex)
+    if overrides:
+        parts.append(
+            "<h2>Overridden judgements</h2><ul>"
+            + "".join(f"<li>{markup(o)}</li>" for o in overrides)
+            + "</ul>"
+        )
     parts.append(f"<h2>Summary: share of {_basis_words(ex)} at each judgement</h2><table>")
     for key, _ in ex.columns:
-        parts.append(f'<tr><th>{markup(_with_coverage(ex, key, titles[key]))}</th><td><div class="bar">')
+        parts.append(
+            f'<tr><th>{markup(_with_coverage(ex, key, titles[key]))}</th><td><div class="bar">'
+        )
         for code in SHARE_CODES:
             share = ex.shares[key][code]
             if share <= 0:
@@ -269,7 +302,8 @@ def to_html(ex: OutcomeExport, qset) -> str:
         )
     parts.append(
         '<h2>Supporting table</h2><table class="support"><tr><th>Study</th>'
-        "<th>Question</th><th>Answer</th><th>Justification</th><th>Quotes</th></tr>"
+        "<th>Question</th><th>Answer</th><th>Justification</th><th>Quotes</th>"
+        "<th>Settled</th></tr>"
     )
     for s in ex.supporting:
         quotes = "".join(
@@ -280,13 +314,46 @@ def to_html(ex: OutcomeExport, qset) -> str:
         parts.append(
             f'<tr><td>{markup(s.study_id)}<br><span class="note">{markup(s.source)}</span></td>'
             f"<td>{markup(s.question_id)} {markup(s.question)}</td><td>{markup(s.response)}</td>"
-            f"<td>{markup(s.justification)}</td><td>{quotes}</td></tr>"
+            f"<td>{markup(s.justification)}</td><td>{quotes}</td><td>{markup(s.settled)}</td></tr>"
         )
     parts.append("</table></body></html>\n")
     return "".join(parts)
 
 
 # -- tex ---------------------------------------------------------------------------------------
+def brk(text: object, every: int = 12) -> str:
+    """TeX for user text in a narrow column: escaped, with a break allowed inside any word
+    longer than ``every`` characters, so long ids and addresses stay inside their column."""
+    words = []
+    for word in ("" if text is None else str(text)).split(" "):
+        pieces = [word[i : i + every] for i in range(0, len(word), every)] or [""]
+        words.append(r"\allowbreak{}".join(tex(p) for p in pieces))
+    return " ".join(words)
+
+
+def _col(width: str, align: str = r"\raggedright") -> str:
+    """A paragraph column of ``width`` (a TeX length) with its own alignment."""
+    return f">{{{align}\\arraybackslash}}p{{{width}}}"
+
+
+def _share(fraction: float) -> str:
+    """A column width as a share of the line, less the padding either side of the column."""
+    return f"\\dimexpr{fraction:.3f}\\linewidth-2\\tabcolsep\\relax"
+
+
+_TEX_PREAMBLE = [
+    r"\documentclass[a4paper,10pt]{article}",
+    r"\usepackage[utf8]{inputenc}",
+    r"\usepackage[T1]{fontenc}",
+    r"\usepackage{lmodern}",  # Latin Modern: vector Type 1 fonts, embedded by pdfTeX
+    r"\usepackage[table]{xcolor}",
+    r"\usepackage{array,longtable}",
+    r"\usepackage[margin=20mm]{geometry}",
+    r"\setlength{\tabcolsep}{3pt}",
+    r"\setlength{\LTleft}{0pt}\setlength{\LTright}{0pt}",
+]
+
+
 def to_tex(ex: OutcomeExport, qset) -> str:
     titles = column_titles(qset, ex.effect)
     colours = "\n".join(
@@ -294,36 +361,54 @@ def to_tex(ex: OutcomeExport, qset) -> str:
         f"\\definecolor{{rt{code.replace('_', '')}ink}}{{HTML}}{{{sw.ink[1:]}}}"
         for code, sw in SWATCHES.items()
     )
+    # Study | one narrow column per domain, a wider one for overall | Source: fills the line
+    cells = len(ex.columns)
+    cell, wide = "7mm", "11mm"
+    rest = f"\\dimexpr\\linewidth-{cells - 1}\\dimexpr{cell}+2\\tabcolsep\\relax-{wide}\\relax"
+    study = f"\\dimexpr0.55{rest}-4\\tabcolsep\\relax"
+    source = f"\\dimexpr0.45{rest}-2\\tabcolsep\\relax"
+    spec = (
+        _col(study)
+        + "".join(_col(wide if key == "overall" else cell, r"\centering") for key, _ in ex.columns)
+        + _col(source)
+    )
     lines = [
-        r"\documentclass{article}",
-        r"\usepackage[utf8]{inputenc}",
-        r"\usepackage[T1]{fontenc}",
-        r"\usepackage[table]{xcolor}",
-        r"\usepackage{longtable}",
-        r"\usepackage[margin=2cm]{geometry}",
+        *_TEX_PREAMBLE,
         colours,
         r"\begin{document}",
-        f"\\section*{{Risk of bias: {tex(_heading(ex))}}}",
-        f"Review: {tex(ex.review_title)}",
+        r"\raggedright",
+        f"\\section*{{Risk of bias: {tex(_title(ex))}}}",
+        f"Review: {tex(ex.review_title)}. Result: {brk(ex.result_id)}.",
         r"\subsection*{Judgements}",
-        r"\begin{longtable}{l" + "c" * len(ex.columns) + "l}",
-        "Study & " + " & ".join(tex(titles[k]) for k, _ in ex.columns) + r" & Source \\ \hline",
+        r"{\small\begin{longtable}{" + spec + "}",
+        "Study & " + " & ".join(tex(h) for _, h in ex.columns) + r" & Source \\ \hline",
+        r"\endhead",
     ]
     for row in ex.rows:
-        cells = []
+        marks = []
         for key, _ in ex.columns:
-            if key not in row.judgements:  # the study's design has no such domain
-                cells.append("")
+            if key not in row.judgements:
+                marks.append("")  # the study's design has no such domain
                 continue
             code = (row.judgements[key] or "incomplete").replace("_", "")
             sw = swatch(row.judgements[key])
-            cells.append(f"\\cellcolor{{rt{code}}}\\textcolor{{rt{code}ink}}{{{tex(sw.letter)}}}")
+            marks.append(f"\\cellcolor{{rt{code}}}\\textcolor{{rt{code}ink}}{{{tex(sw.letter)}}}")
         lines.append(
-            f"{tex(row.study_label)} & " + " & ".join(cells) + f" & {tex(row.source)} \\\\"
+            f"{brk(row.study_label)} & " + " & ".join(marks) + f" & {brk(row.source)} \\\\"
         )
     lines += [
-        r"\end{longtable}",
-        "Key: " + "; ".join(f"{tex(s.letter)} = {tex(s.label)}" for s in SWATCHES.values()),
+        r"\end{longtable}}",
+        r"\par\small Key: "
+        + "; ".join(f"{tex(s.letter)} = {tex(s.label)}" for s in SWATCHES.values())
+        + ". "
+        + "; ".join(f"{tex(h)} = {tex(titles[k])}" for k, h in ex.columns if k != "overall")
+        + r".\par\normalsize",
+    ]
+    overrides = _override_lines(ex)
+    if overrides:
+        lines += [r"\subsection*{Overridden judgements}", r"\begin{itemize}"]
+        lines += [f"\\item {brk(o)}" for o in overrides] + [r"\end{itemize}"]
+    lines += [
         f"\\subsection*{{Summary: share of {_basis_words(ex)}}}",
         r"\begin{tabular}{l" + "r" * len(SHARE_CODES) + "}",
         "Domain & " + " & ".join(tex(swatch(c).label) for c in SHARE_CODES) + r" \\ \hline",
@@ -344,22 +429,25 @@ def to_tex(ex: OutcomeExport, qset) -> str:
             f"{tex(g.rationale)}\\par {tex(g.label)} {tex(g.rule_of_thumb)}"
         ),
     ]
-    lines += [f"\\par {tex(n)}" for n in g.notes]
+    lines += [f"\\par {brk(n)}" for n in g.notes]
     if ex.problems:
         lines += [r"\subsection*{Not judged or not final}", r"\begin{itemize}"]
-        lines += [f"\\item {tex(p)}" for p in ex.problems] + [r"\end{itemize}"]
+        lines += [f"\\item {brk(p)}" for p in ex.problems] + [r"\end{itemize}"]
+    widths = (0.13, 0.25, 0.08, 0.27, 0.27)
     lines += [
         r"\subsection*{Supporting table}",
-        r"\begin{longtable}{p{2cm}p{4cm}p{1cm}p{4cm}p{4cm}}",
+        r"{\small\begin{longtable}{" + "".join(_col(_share(w)) for w in widths) + "}",
         r"Study & Question & Answer & Justification & Quotes \\ \hline",
+        r"\endhead",
     ]
     for s in ex.supporting:
+        settled = f"\\newline\\emph{{Settled: {brk(s.settled)}}}" if s.settled else ""
         lines.append(
-            f"{tex(s.study_id)} & {tex(s.question_id)} {tex(s.question)} & "
-            f"{tex(s.response)} & {tex(s.justification)} & "
-            f"{tex(_quotes_text(s.quotes))} \\\\"
+            f"{brk(s.study_id, 6)} & {tex(s.question_id)} {brk(s.question)} & "
+            f"{tex(s.response)} & {brk(s.justification)}{settled} & "
+            f"{brk(_quotes_text(s.quotes))} \\\\"
         )
-    lines += [r"\end{longtable}", r"\end{document}"]
+    lines += [r"\end{longtable}}", r"\end{document}"]
     return "\n".join(lines) + "\n"
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from robtui.core.comparison import AssessmentPair, pair_assessments
+from robtui.core.comparison import AssessmentPair, changed_since, pair_assessments
 from robtui.core.questions import QuestionSet
 from robtui.core.rules import RuleBook
 from robtui.store.question_sets import review_question_set
@@ -79,3 +79,15 @@ class Workspace:
             sides[0], sides[1], reviewer_a=reviewers[0], reviewer_b=reviewers[1], expected=expected
         )
         return pairs, problems
+
+    def stale_consensus(self, pairs: list[AssessmentPair]) -> dict[tuple[str, str], list[str]]:
+        """(study, result) -> what a reviewer changed since the consensus of that pair took
+        up their answers ("ben: 1.1 Y -> N"); pairs without a stale consensus are left out."""
+        stale = {}
+        for p in pairs:
+            record = self.folder.load_consensus(p.study_id, p.result_id)
+            if record is not None and set(record.reviewers) == {p.reviewer_a, p.reviewer_b}:
+                changes = changed_since(record, p, self.qset)
+                if changes:
+                    stale[p.key] = changes
+        return stale

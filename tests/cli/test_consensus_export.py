@@ -150,3 +150,37 @@ def test_export_refuses_paths_outside_exports(review_dir, capsys):
         assert main(["export", str(review_dir), "--format", "md", "--out", bad]) == 2
         assert "robtui: export name" in capsys.readouterr().err
     assert not (review_dir / "outside.md").exists()
+
+
+def test_a_stale_consensus_is_flagged_by_consensus_show_and_compare(review_dir, capsys):
+    from robtui.core import assessing
+    from robtui.store.question_sets import builtin_question_set
+    from robtui.store.review_folder import ReviewFolder
+
+    target = ["--study", "Trial-001", "--result", "outcome-1"]
+    assert main(["consensus", "start", str(review_dir), *target]) == 0
+    for _ in range(30):
+        capsys.readouterr()
+        main(["consensus", "show", str(review_dir), *target, "--json"])
+        pending = json.loads(capsys.readouterr().out)["pending"]
+        if not pending:
+            break
+        main(["consensus", "settle", str(review_dir), *target, "--question", pending[0],
+              "--take", "a", "--note", "ana's reading"])  # fmt: skip
+    assert main(["consensus", "complete", str(review_dir), *target]) == 0
+    assert "STALE" not in capsys.readouterr().out
+    qset = builtin_question_set()
+    folder = ReviewFolder.open(review_dir)
+    ben = folder.load_assessment("ben", "Trial-001", "outcome-1")
+    old = ben.answers["1.1"].response
+    new = next(o for o in qset.question("1.1").options if o != old)
+    ben = assessing.mark_complete(assessing.set_response(assessing.reopen(ben), qset, "1.1", new),
+                                  qset)  # fmt: skip
+    folder.save_assessment(ben)
+    main(["consensus", "show", str(review_dir), *target])
+    assert (
+        f"STALE: a reviewer changed answers this consensus was built on (ben: 1.1 {old} -> {new})"
+        in (capsys.readouterr().out)
+    )
+    main(["compare", str(review_dir), "--study", "Trial-001"])
+    assert "Trial-001 / outcome-1: consensus is stale" in capsys.readouterr().err

@@ -10,12 +10,14 @@ from robtui.core import assessing
 from robtui.core.algorithm import propose_all
 from robtui.core.assessing import path_answers
 from robtui.core.comparison import (
+    changed_since,
     compare_pair,
     complete_consensus,
     differences,
     judgement_rows,
     pair_assessments,
     pending_questions,
+    reopen_consensus,
     review_agreement,
     set_consensus_override,
     settle,
@@ -172,16 +174,64 @@ def test_consensus_starts_from_agreed_answers_and_recomputes_by_the_algorithm():
         settle(done, QSET, "1.1", "b", note="x", pair=pair)
 
 
-def test_taking_a_side_that_was_not_asked_clears_the_answer():
+def test_questions_off_the_agreed_path_cannot_be_settled():
     a = make("ana", "S1")
     b = make("ben", "S1", {"2.1": "Y", "2.3": "N"})
     [pair] = pair_assessments([a], [b])
     c = start_consensus(pair, "lee", QSET)
     c = settle(c, QSET, "2.1", "a", note="blinding described", pair=pair)
     assert "2.3" not in pending_questions(c, QSET)
-    c = settle(c, QSET, "2.3", "a", note="not asked once 2.1 is N", pair=pair)
-    assert c.answers["2.3"].response is None
+    for source in ("a", "b"):
+        with pytest.raises(InputError, match="2.3 is not asked on the agreed path"):
+            settle(c, QSET, "2.3", source, note="off the path", pair=pair)
+    with pytest.raises(InputError, match="not asked on the agreed path"):
+        settle(c, QSET, "2.3", "new", "Y", note="off the path")
     assert complete_consensus(c, QSET).final["2"] == "low"
+
+
+def test_a_side_never_asked_cannot_be_taken():
+    a = make("ana", "S1")  # 2.1 N: 2.3 is not asked of ana
+    b = make("ben", "S1", {"2.1": "Y", "2.3": "N"})
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lee", QSET)
+    c = settle(c, QSET, "2.1", "b", note="participants knew", pair=pair)
+    assert "2.3" in pending_questions(c, QSET)
+    with pytest.raises(InputError, match="ana was never asked 2.3"):
+        settle(c, QSET, "2.3", "a", note="take ana", pair=pair)
+    c = settle(c, QSET, "2.3", "b", note="no deviations", pair=pair)
+    assert c.answers["2.3"].response == "N"
+
+
+def test_a_new_answer_is_justified_by_the_leads_note_not_a_sides_text():
+    a = make("ana", "S1")
+    b = make("ben", "S1", {"2.1": "Y", "2.3": "N"})
+    a = assessing.mark_complete(
+        assessing.set_justification(assessing.reopen(a), QSET, "2.1", "ana's reasons"), QSET
+    )
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lee", QSET)
+    c = settle(c, QSET, "2.1", "a", note="take ana", pair=pair)
+    assert c.answers["2.1"].justification == "ana's reasons"
+    c = settle(c, QSET, "2.1", "new", "PN", note="only the nurses knew")
+    assert c.answers["2.1"].justification == "only the nurses knew"
+    assert c.answers["2.1"].quotes == []
+
+
+def test_a_reviewer_changing_an_answer_makes_the_consensus_stale():
+    a = make("ana", "S1")
+    b = make("ben", "S1", {"2.1": "Y", "2.3": "N"})
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lee", QSET)
+    c = settle(c, QSET, "2.1", "a", note="take ana", pair=pair)
+    c = complete_consensus(c, QSET, pair)
+    assert changed_since(c, pair, QSET) == []
+    b2 = assessing.reopen(b)
+    b2 = assessing.mark_complete(assessing.set_response(b2, QSET, "1.1", "N"), QSET)
+    [later] = pair_assessments([a], [b2])
+    assert changed_since(c, later, QSET) == ["ben: 1.1 Y -> N"]
+    # completing again with the pair takes up the reviewers' current answers
+    c2 = complete_consensus(reopen_consensus(c), QSET, later)
+    assert changed_since(c2, later, QSET) == []
 
 
 def test_consensus_override_needs_a_reason():

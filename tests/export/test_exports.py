@@ -6,13 +6,22 @@ from __future__ import annotations
 import csv
 import io
 import os
+import shutil
+import subprocess
+from dataclasses import replace
 
 import pdfplumber
 import pytest
 
 from robtui.benchmarks.review import answer_everything, build_synthetic_review
 from robtui.core import assessing
-from robtui.core.comparison import complete_consensus, pair_assessments, settle, start_consensus
+from robtui.core.comparison import (
+    complete_consensus,
+    pair_assessments,
+    set_consensus_override,
+    settle,
+    start_consensus,
+)
 from robtui.errors import InputError
 from robtui.export.safety import csv_cell, export_path, markup, tex
 from robtui.export.writers import export_outcome
@@ -20,6 +29,8 @@ from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set()
 NASTY = '<script>alert("x")</script> & co'
+OVERRIDE_REASON = "outcome assessors knew the allocation, per the protocol amendment"
+SETTLE_NOTE = "the methods section reads as ana says"
 
 
 @pytest.fixture(scope="module")
@@ -45,11 +56,12 @@ def folder(tmp_path_factory):
     [pair] = pair_assessments([a3], [b3])
     c = start_consensus(pair, "lead", QSET)
     for qid in ("1.1",):
-        c = settle(c, QSET, qid, "a", note="ana's reading of the methods", pair=pair)
+        c = settle(c, QSET, qid, "a", note=SETTLE_NOTE, pair=pair)
     from robtui.core.comparison import pending_questions
 
     for qid in pending_questions(c, QSET):
         c = settle(c, QSET, qid, "a", note="follows from 1.1", pair=pair)
+    c = set_consensus_override(c, QSET, "4", "high", OVERRIDE_REASON)
     f.save_consensus(complete_consensus(c, QSET))
     return f
 
@@ -95,12 +107,12 @@ def test_markdown_holds_tables_grade_and_the_not_final_list(folder):
 def test_csv_neutralises_formula_cells(folder):
     paths, _ = _export(folder, "csv")
     answers = next(p for p in paths if p.name.endswith("answers.csv"))
-    rows = list(csv.DictReader(io.StringIO(answers.read_text(encoding="utf-8"))))
+    rows = list(csv.DictReader(io.StringIO(answers.read_text(encoding="utf-8-sig"))))
     justifications = [r["justification"] for r in rows if r["justification"]]
     assert justifications and all(j.startswith("'=") for j in justifications)
     assert not any(cell.startswith(("=", "+", "-", "@")) for r in rows for cell in r.values())
     judgements = next(p for p in paths if p.name.endswith("judgements.csv"))
-    table = list(csv.DictReader(io.StringIO(judgements.read_text(encoding="utf-8"))))
+    table = list(csv.DictReader(io.StringIO(judgements.read_text(encoding="utf-8-sig"))))
     assert {r["source"] for r in table} >= {"consensus", "ana only"}
     assert any("draft by ben" in r["note"] for r in table)
 
@@ -255,3 +267,76 @@ def test_reviewers_who_differ_without_consensus_are_not_judged_and_listed(tmp_pa
     assert all(v is None for v in ex.rows[0].judgements.values())
     assert "differ and no consensus is complete" in ex.problems[0]
     assert "differ and no consensus is complete" in path.read_text(encoding="utf-8")
+
+
+def test_overrides_reasons_and_settlement_notes_reach_every_table_format(folder):
+    texts = {}
+    for fmt in ("md", "html", "tex", "csv"):
+        paths, _ = _export(folder, fmt)
+        texts[fmt] = "\n".join(p.read_text(encoding="utf-8") for p in paths)
+    for fmt, text in texts.items():
+        flat = " ".join(text.split())
+        assert OVERRIDE_REASON in flat, fmt
+        assert "(proposed Low)" in flat or "(proposed Some concerns)" in flat, fmt
+        assert SETTLE_NOTE in flat, fmt
+        assert "took ana's answer" in flat.replace("&#x27;", "'"), fmt
+
+
+def test_csv_starts_with_a_byte_order_mark(folder):
+    for path in _export(folder, "csv")[0]:
+        assert path.read_bytes().startswith(b"\xef\xbb\xbf")  # spreadsheets then read UTF-8
+
+
+def test_html_title_names_the_effect_once(folder):
+    spec = folder.review.results[0]
+    [path], _ = _export(folder, "html")
+    title = path.read_text(encoding="utf-8").split("<title>")[1].split("</title>")[0]
+    assert title.count("effect of") == 1 and spec.effect in title
+    outcome = "Pain (effect of assignment)"
+    from robtui.export.writers import _title
+
+    _, ex = _export(folder, "md")
+    assert _title(replace(ex, outcome=outcome)).count("effect of") == 1
+
+
+def test_a_consensus_a_reviewer_has_since_changed_is_flagged_stale(tmp_path):
+    f = build_synthetic_review(tmp_path / "r", studies=2, results=1, seed=3, disagreement=0.0)
+    a = f.load_assessment("ana", "Trial-000", "outcome-1")
+    b = f.load_assessment("ben", "Trial-000", "outcome-1")
+    [pair] = pair_assessments([a], [b])
+    c = start_consensus(pair, "lead", QSET)
+    f.save_consensus(complete_consensus(c, QSET, pair))
+    paths, ex = export_outcome(f, QSET, "outcome-1", "md")
+    assert ex.rows[0].source == "consensus"
+    other = next(o for o in QSET.question("1.1").options if o != b.answers["1.1"].response)
+    b = assessing.reopen(b)
+    b = assessing.mark_complete(assessing.set_response(b, QSET, "1.1", other), QSET)
+    f.save_assessment(b)
+    paths, ex = export_outcome(f, QSET, "outcome-1", "md")
+    assert ex.rows[0].source == "consensus (stale)"
+    text = paths[0].read_text(encoding="utf-8")
+    assert "consensus built on answers a reviewer has since changed" in text
+    assert f"ben: 1.1 {a.answers['1.1'].response} -&gt; {other}" in text
+
+
+@pytest.mark.skipif(not shutil.which("pdflatex"), reason="needs pdflatex (texlive-latex-base)")
+def test_tex_compiles_with_nothing_outside_the_text_block(folder, tmp_path):
+    from robtui.export.writers import to_tex
+
+    _, ex = _export(folder, "md")
+    long_id = "Trial-with-a-very-long-identifier-0000000000000000000000000001"
+    rows = [replace(ex.rows[0], study_label=long_id), *ex.rows[1:]]
+    supporting = [replace(ex.supporting[0], study_id=long_id), *ex.supporting[1:]]
+    source = tmp_path / "out.tex"
+    source.write_text(to_tex(replace(ex, rows=rows, supporting=supporting), QSET), "utf-8")
+    run = subprocess.run(
+        ["pdflatex", "-interaction=nonstopmode", "-halt-on-error", source.name],
+        check=False, cwd=tmp_path, capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    log = (tmp_path / "out.log").read_text(encoding="latin-1")
+    assert run.returncode == 0, log[-2000:]
+    assert "Overfull \\hbox" not in log, [ln for ln in log.splitlines() if "Overfull" in ln]
+    if shutil.which("pdffonts"):  # poppler-utils: every font embedded, none a bitmap (Type 3)
+        fonts = subprocess.run(["pdffonts", "out.pdf"], check=False, cwd=tmp_path,
+                               capture_output=True, text=True).stdout.splitlines()[2:]  # fmt: skip
+        assert fonts and all(" yes " in r and "Type 3" not in r for r in fonts), fonts

@@ -401,7 +401,7 @@ class CompareScreen(Screen[None]):
             if consensus.status == "complete":
                 changed = reopen_consensus(consensus)
             else:
-                changed = complete_consensus(consensus, self.session.qset)
+                changed = complete_consensus(consensus, self.session.qset, pair)
             self.session.save_consensus(changed)
         except RobtuiError as error:
             self.notify(str(error), severity="warning")
