@@ -117,36 +117,14 @@ def suggest_rob_rating(
         f"low {_pct(share['low'])}, some concerns {_pct(share['some_concerns'])}, "
         f"high {_pct(share['high'])} of the judged {basis}"
     )
-    if judged_share < ENOUGH_JUDGED:
-        return GradeSuggestion(
-            None,
-            basis,
-            share["low"],
-            share["some_concerns"],
-            share["high"],
-            judged,
-            not_judged,
-            f"Only {_pct(judged_share)} of the {basis} is judged ({studies} of "
-            f"{len(overall)}): no suggestion until at least half is; so far {so_far}.",
-            notes,
-        )
-    concerns = share["high"] + share["some_concerns"]
-    if share["high"] >= VERY_SERIOUS_HIGH:
-        rating = "very serious"
-        why = f"{_pct(share['high'])} of the {basis} is at high risk (>= 50%)"
-    elif share["high"] >= SERIOUS_HIGH:
-        rating = "serious"
-        why = f"{_pct(share['high'])} of the {basis} is at high risk (>= 20%)"
-    elif concerns >= SERIOUS_CONCERNS:
-        rating = "serious"
-        why = f"{_pct(concerns)} of the {basis} is at high risk or some concerns (>= 50%)"
-    else:
-        rating = "not serious"
-        why = (
-            f"{_pct(share['high'])} of the {basis} is at high risk (< 20%) and "
-            f"{_pct(concerns)} at high risk or some concerns (< 50%)"
-        )
+    rating, why = _rule(share, basis)
     rationale = f"{studies}; {so_far}: {why}."
+    if judged_share < ENOUGH_JUDGED:
+        rating = None
+        rationale = (
+            f"Only {_pct(judged_share)} of the {basis} is judged ({studies} of "
+            f"{len(overall)}): no suggestion until at least half is; so far {so_far}."
+        )
     return GradeSuggestion(
         rating,
         basis,
@@ -157,6 +135,23 @@ def suggest_rob_rating(
         not_judged,
         rationale,
         notes,
+    )
+
+
+def _rule(share: Mapping[str, float], basis: str) -> tuple[str, str]:
+    """Our rule of thumb: (rating, why) from the shares of the judged part."""
+    concerns = share["high"] + share["some_concerns"]
+    if share["high"] >= VERY_SERIOUS_HIGH:
+        return "very serious", f"{_pct(share['high'])} of the {basis} is at high risk (>= 50%)"
+    if share["high"] >= SERIOUS_HIGH:
+        return "serious", f"{_pct(share['high'])} of the {basis} is at high risk (>= 20%)"
+    if concerns >= SERIOUS_CONCERNS:
+        return "serious", (
+            f"{_pct(concerns)} of the {basis} is at high risk or some concerns (>= 50%)"
+        )
+    return "not serious", (
+        f"{_pct(share['high'])} of the {basis} is at high risk (< 20%) and "
+        f"{_pct(concerns)} at high risk or some concerns (< 50%)"
     )
 
 
