@@ -32,22 +32,40 @@ def _num(value, pattern: str = "{:.2f}") -> str:
 
 
 def format_table(stats: dict, qset) -> list[str]:
+    """The agreement tables as text; each row's notes are numbered beside it and listed under
+    the table, so a note is read with the figure it concerns."""
+    notes: list[str] = []
+    lines = [f"Unit of analysis: {stats['analysis']['unit']}: {stats['analysis']['reason']}."]
+    lines += _tables(stats, qset, notes)
+    for result, part in stats.get("by_result", {}).items():
+        lines += ["", f"Result {result} on its own ({part['compared']} pair(s), one per study):"]
+        lines += _tables(part, qset, notes)
+    if notes:
+        lines += ["", "Notes:"] + [f"  [{i}] {n}" for i, n in enumerate(notes, start=1)]
+    return lines
+
+
+def _tables(stats: dict, qset, notes: list[str]) -> list[str]:
     head = (
         f"{'':<28} {'n':>4} {'agree%':>7} {'kappa':>6} {'95% CI':>15} {'w.kappa':>7} "
         f"{'PABAK':>6}  band"
     )
-    lines = [head]
 
     def row(label: str, s: dict) -> str:
         ci = s["kappa_ci"]
         ci_text = f"[{ci[0]:.2f}, {ci[1]:.2f}]" if ci else "-"
-        line = (
+        marks = []
+        for note in s["notes"]:
+            if note not in notes:
+                notes.append(note)
+            marks.append(str(notes.index(note) + 1))
+        return (
             f"{label:<28} {s['n']:>4} {_num(s['percent_agreement'], '{:.1f}'):>7} "
             f"{_num(s['kappa']):>6} {ci_text:>15} {_num(s['weighted_kappa']):>7} "
-            f"{_num(s['pabak']):>6}  {s['band']}"
+            f"{_num(s['pabak']):>6}  {s['band']}" + (f"  [{','.join(marks)}]" if marks else "")
         )
-        return line
 
+    lines = [head]
     for key, s in stats["domains"].items():
         label = "Overall" if key == "overall" else qset.domain_label(key)
         lines.append(row(label[:28], s))
@@ -55,11 +73,6 @@ def format_table(stats: dict, qset) -> list[str]:
     lines.append("Signalling questions (pairs where both reviewers were asked):")
     for key, s in stats["questions"].items():
         lines.append(row(key, s))
-    notes = sorted(
-        {n for s in [*stats["domains"].values(), *stats["questions"].values()] for n in s["notes"]}
-    )
-    if notes:
-        lines += ["", "Notes:"] + [f"  {n}" for n in notes]
     return lines
 
 
@@ -78,7 +91,7 @@ def run(args: argparse.Namespace) -> int:
     else:
         print(
             f"Agreement of {reviewers[0]} and {reviewers[1]}: {stats['compared']} result(s) "
-            "compared"
+            f"of {stats['studies']} studies compared"
         )
         print("\n".join(format_table(stats, qset)))
     skipped = [

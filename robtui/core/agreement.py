@@ -188,7 +188,7 @@ def agreement(
     if why:
         notes.append(why)
     ci = None
-    if kappa is not None and se is not None:
+    if kappa is not None and se is not None and se >= 1e-6:
         ci = (max(-1.0, kappa - Z_95 * se), min(1.0, kappa + Z_95 * se))
     weighted = None
     if ordered:
@@ -199,10 +199,22 @@ def agreement(
     pabak = (k * p_o - 1.0) / (k - 1.0) if k >= 2 else None
     if k < 2:
         notes.append("PABAK needs at least two categories")
-    if se is not None and se < 1e-9:
+    constant = [
+        name
+        for name, side in (("reviewer A", 0), ("reviewer B", 1))
+        if len({pair[side] for pair in pairs}) == 1
+    ]
+    if kappa is not None and len(constant) == 1:
         notes.append(
-            "the large-sample standard error is 0 here (perfect or degenerate agreement), so "
-            "the interval collapses to a point; it says nothing about sampling uncertainty"
+            f"kappa is 0 by construction: {constant[0]} gave one same answer throughout, so "
+            "chance agreement equals observed agreement whatever it is; read percent agreement "
+            "and PABAK"
+        )
+    if se is not None and se < 1e-6:
+        notes.append(
+            "no confidence interval: the large-sample standard error is 0 here (perfect or "
+            "degenerate agreement), and a zero-width interval would say nothing about sampling "
+            "uncertainty"
         )
     if n < 10 and kappa is not None:
         notes.append(f"only {n} pairs: the interval is a rough large-sample approximation")

@@ -45,6 +45,8 @@ AGREEMENT_METHOD = {
     "pabak": "(k p_o - 1) / (k - 1), Byrt, Bishop & Carlin (1993); k = number of categories "
     "(3 judgements; a question's response options)",
     "band": "Landis & Koch (1977)",
+    "unit": "one pair per study: a study with several results compared counts with its first "
+    "result in the review's order (its results are not independent); by_result: each result",
 }
 
 
@@ -276,11 +278,63 @@ def review_agreement(pairs: Sequence[AssessmentPair], sets: QuestionSet | Review
     Only comparable pairs count; the others are listed under "not_compared". ``sets`` gives
     each study's question set (one QuestionSet: the same for all); in a review mixing designs a
     domain, or a question, counts only over the studies whose set has it.
+
+    Pairs are independent only across studies: a study's results share one report and mostly
+    the same answers. When a study has several results compared, the review-level figures
+    count each study once (its first result in the review's order) and say so under
+    "analysis"; "by_result" gives every result on its own.
     """
     sets = review_sets(sets)
     usable = [p for p in pairs if p.comparable]
     reviewers = [pairs[0].reviewer_a, pairs[0].reviewer_b] if pairs else []
     study_ids = list(dict.fromkeys(p.study_id for p in pairs))
+    first: dict[str, AssessmentPair] = {}
+    for p in usable:
+        first.setdefault(p.study_id, p)
+    shared = sorted({p.study_id for p in usable if first[p.study_id] is not p})
+    if shared:
+        counted = list(first.values())
+        analysis = {
+            "unit": "study",
+            "reason": (
+                f"{len(shared)} of {len(first)} studies have several results compared; a study's "
+                "results share one report and mostly the same answers, so counting each as an "
+                "independent pair would inflate n and narrow the intervals. Each study counts "
+                "once, with its first result in the review's order; see by_result for each "
+                "result on its own"
+            ),
+            "results_used": {p.study_id: p.result_id for p in counted},
+        }
+    else:
+        counted = usable
+        analysis = {
+            "unit": "result",
+            "reason": "each study has at most one result compared: every pair is its own study",
+        }
+    results = list(dict.fromkeys(p.result_id for p in usable))
+    by_result = {}
+    if len(results) > 1:
+        for rid in results:
+            mine = [p for p in usable if p.result_id == rid]
+            by_result[rid] = {"compared": len(mine), **_agreement_tables(mine, sets, study_ids)}
+    return {
+        "reviewers": reviewers,
+        "compared": len(usable),
+        "studies": len(first),
+        "not_compared": [
+            {"study": p.study_id, "result": p.result_id, "problem": p.problem}
+            for p in pairs
+            if not p.comparable
+        ],
+        "analysis": analysis,
+        **_agreement_tables(counted, sets, study_ids),
+        "by_result": by_result,
+        "method": AGREEMENT_METHOD,
+    }
+
+
+def _agreement_tables(usable: Sequence[AssessmentPair], sets: ReviewSets, study_ids) -> dict:
+    """{"domains": ..., "questions": ...} over the given comparable pairs."""
     domains: dict[str, dict] = {}
     for key in [*sets.domain_ids(study_ids), OVERALL]:
         judged = [
@@ -311,18 +365,7 @@ def review_agreement(pairs: Sequence[AssessmentPair], sets: QuestionSet | Review
         seen = [v for pair in qpairs for v in pair]
         cats = list(dict.fromkeys([*question_cats[key], *[c for c in RESPONSES if c in seen]]))
         questions[key] = agreement(qpairs, cats).to_dict()
-    return {
-        "reviewers": reviewers,
-        "compared": len(usable),
-        "not_compared": [
-            {"study": p.study_id, "result": p.result_id, "problem": p.problem}
-            for p in pairs
-            if not p.comparable
-        ],
-        "domains": domains,
-        "questions": questions,
-        "method": AGREEMENT_METHOD,
-    }
+    return {"domains": domains, "questions": questions}
 
 
 # -- consensus ---------------------------------------------------------------------------------
@@ -526,9 +569,7 @@ def changed_since(consensus: Consensus, pair: AssessmentPair | None, qset) -> li
     return changes
 
 
-def complete_consensus(
-    consensus: Consensus, qset, pair: AssessmentPair | None = None
-) -> Consensus:
+def complete_consensus(consensus: Consensus, qset, pair: AssessmentPair | None = None) -> Consensus:
     """Mark complete; InputError lists the questions still to settle. With ``pair``, the
     reviewers' current answers become the ones the consensus is built on (the lead has
     seen them)."""
@@ -552,5 +593,3 @@ def complete_consensus(
 
 def reopen_consensus(consensus: Consensus) -> Consensus:
     return consensus.model_copy(update={"status": "draft", "updated": utc_now()})
-
-

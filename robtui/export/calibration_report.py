@@ -304,15 +304,17 @@ def _agreement_blocks(report: CalibrationReport) -> list[Block]:
     after, before = report.after, report.before
     n_after = after.round.number
     if before is None:
-        head = ("Domain", "n", "% agreement", "kappa [95% CI]", "weighted kappa", "PABAK", "band")
+        head = ("Domain", "n", "% agreement", "kappa [95% CI]", "weighted kappa", "PABAK", "band",
+                "Notes")  # fmt: skip
         rows = []
         for key, s in after.agreement.domains.items():
             n, pct, kap = _stat(s)
             rows.append((_label(report, key), n, pct, kap, format_figure(s.weighted_kappa),
-                         format_figure(s.pabak), s.band))  # fmt: skip
-        qhead = ("Question", "n", "% agreement", "kappa [95% CI]", "PABAK")
+                         format_figure(s.pabak), s.band, _notes(s)))  # fmt: skip
+        qhead = ("Question", "n", "% agreement", "kappa [95% CI]", "PABAK", "Notes")
         qrows = [
-            (key, *_stat(s), format_figure(s.pabak)) for key, s in after.agreement.questions.items()
+            (key, *_stat(s), format_figure(s.pabak), _notes(s))
+            for key, s in after.agreement.questions.items()
         ]
     else:
         b = before.round.number
@@ -323,7 +325,10 @@ def _agreement_blocks(report: CalibrationReport) -> list[Block]:
             f"% agreement r{n_after}",
             f"kappa [95% CI] r{n_after}",
             f"weighted kappa r{n_after}",
+            f"PABAK r{b}",
+            f"PABAK r{n_after}",
             f"band r{n_after}",
+            f"Notes r{n_after}",
         )
         rows = []
         for key in dict.fromkeys([*before.agreement.domains, *after.agreement.domains]):
@@ -332,20 +337,31 @@ def _agreement_blocks(report: CalibrationReport) -> list[Block]:
             _, p1, k1 = _stat(s1)
             rows.append((_label(report, key), p0, k0.split(" [")[0], p1, k1,
                          format_figure(s1.weighted_kappa if s1 else None),
-                         s1.band if s1 else "undefined"))  # fmt: skip
-        qhead = ("Question", f"n r{b}", f"% r{b}", f"kappa r{b}", f"n r{n_after}",
-                 f"% r{n_after}", f"kappa r{n_after}")  # fmt: skip
+                         format_figure(s0.pabak if s0 else None),
+                         format_figure(s1.pabak if s1 else None),
+                         s1.band if s1 else "undefined", _notes(s1)))  # fmt: skip
+        qhead = ("Question", f"n r{b}", f"% r{b}", f"kappa r{b}", f"PABAK r{b}", f"n r{n_after}",
+                 f"% r{n_after}", f"kappa r{n_after}", f"PABAK r{n_after}",
+                 f"Notes r{n_after}")  # fmt: skip
         qrows = []
         for key in dict.fromkeys([*before.agreement.questions, *after.agreement.questions]):
-            n0, p0, k0 = _stat(before.agreement.questions.get(key))
-            n1, p1, k1 = _stat(after.agreement.questions.get(key))
-            qrows.append((key, n0, p0, k0.split(" [")[0], n1, p1, k1.split(" [")[0]))
+            s0, s1 = before.agreement.questions.get(key), after.agreement.questions.get(key)
+            n0, p0, k0 = _stat(s0)
+            n1, p1, k1 = _stat(s1)
+            qrows.append((key, n0, p0, k0.split(" [")[0], format_figure(s0.pabak if s0 else None),
+                          n1, p1, k1.split(" [")[0], format_figure(s1.pabak if s1 else None),
+                          _notes(s1)))  # fmt: skip
     return [
         Heading("Agreement per domain and overall judgement"),
         Table(head, tuple(rows)),
         Heading("Agreement per signalling question"),
         Table(qhead, tuple(qrows)),
     ]
+
+
+def _notes(stats) -> str:
+    """A row's own notes (degenerate kappa, no interval, few pairs), beside its figures."""
+    return "; ".join(stats.notes) if stats is not None else ""
 
 
 def _side(answer: Any, response: str) -> tuple[str, str, str]:

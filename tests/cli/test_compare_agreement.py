@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 
 import pytest
 from sklearn.metrics import cohen_kappa_score
@@ -91,6 +92,27 @@ def test_agreement_table(review_dir, capsys):
     assert main(["agreement", str(review_dir)]) == 0
     out = capsys.readouterr().out
     assert "kappa" in out and "PABAK" in out and "Overall" in out
+    assert "Unit of analysis: result" in out
+    # every numbered note is marked on the rows it concerns
+    lines = out.splitlines()
+    notes = lines[lines.index("Notes:") + 1 :]
+    assert notes
+    for i, _ in enumerate(notes, start=1):
+        marked = [ln for ln in lines if re.search(rf"\[(\d+,)*{i}(,\d+)*\]$", ln)]
+        assert marked, f"note {i} is tied to no row"
+
+
+def test_agreement_counts_a_study_once_when_its_results_share_it(tmp_path, capsys):
+    root = tmp_path / "two"
+    build_synthetic_review(root, studies=5, results=2, seed=11, disagreement=0.3)
+    assert main(["agreement", str(root), "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["compared"] == 10 and data["studies"] == 5
+    assert data["analysis"]["unit"] == "study" and data["domains"]["overall"]["n"] == 5
+    assert set(data["by_result"]) == {"outcome-1", "outcome-2"}
+    assert main(["agreement", str(root)]) == 0
+    out = capsys.readouterr().out
+    assert "Unit of analysis: study" in out and "Result outcome-2 on its own" in out
 
 
 def test_on_the_demo_review(tmp_path, capsys):

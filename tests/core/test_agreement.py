@@ -178,3 +178,12 @@ def test_to_dict_has_the_agreed_keys():
     ):
         assert key in d
     assert d["pairs"] == [["low", "high"], ["low", "low"]]
+
+
+def test_one_reviewer_constant_gives_kappa_0_with_the_reason_and_no_interval():
+    stats = agreement([("low", "low"), ("low", "some_concerns"), ("low", "low")], JUDGEMENTS)
+    assert stats.kappa == pytest.approx(0.0)
+    assert stats.kappa_ci is None  # a zero-width interval would be misleading
+    notes = " ".join(stats.notes)
+    assert "kappa is 0 by construction: reviewer A gave one same answer throughout" in notes
+    assert "no confidence interval" in notes

@@ -144,6 +144,35 @@ def test_review_agreement_shape_and_kappa_equal_scikit_learn():
     assert list(stats["questions"])[:3] == ["1.1", "1.2", "1.3"]
 
 
+def test_a_studys_results_count_once_in_the_review_level_agreement():
+    # two results per study, answered alike: pooled they would double n and narrow the CI
+    review = REVIEW.model_copy(
+        update={"results": [*REVIEW.results, ResultSpec(id="func", outcome="Function")]}
+    )
+    answers = [{}, {"1.2": "N"}, {"1.2": "NI", "1.3": "Y"}, {"5.2": "Y"}]
+    mine, theirs = [], []
+    for i, v in enumerate(answers):
+        for result in ("pain", "func"):
+            for who, out in (("ana", mine), ("ben", theirs)):
+                chosen = {**LOW, **(v if who == "ana" or i % 2 else {})}
+                x = assessing.new_assessment(review, f"S{i + 1}", result, who, QSET)
+                x = answer_everything(x, QSET, lambda q, c=chosen: c.get(q.id, q.options[0]))
+                out.append(assessing.mark_complete(x, QSET))
+    expected = [(f"S{i + 1}", r) for i in range(4) for r in ("pain", "func")]
+    pairs = pair_assessments(mine, theirs, reviewer_a="ana", reviewer_b="ben", expected=expected)
+    stats = review_agreement(pairs, QSET)
+    assert stats["compared"] == 8 and stats["studies"] == 4
+    assert stats["analysis"]["unit"] == "study"
+    assert "inflate n" in stats["analysis"]["reason"]
+    assert stats["analysis"]["results_used"] == {f"S{i + 1}": "pain" for i in range(4)}
+    assert stats["domains"]["overall"]["n"] == 4
+    assert set(stats["by_result"]) == {"pain", "func"}
+    assert stats["by_result"]["func"]["domains"]["overall"]["n"] == 4
+    # one result per study: every pair is its own study
+    one = review_agreement([p for p in pairs if p.result_id == "pain"], QSET)
+    assert one["analysis"]["unit"] == "result" and one["by_result"] == {}
+
+
 def test_consensus_starts_from_agreed_answers_and_recomputes_by_the_algorithm():
     a = make("ana", "S1", {"1.2": "N"}, note=("1.2", "sealed envelopes, not opaque"))
     b = make("ben", "S1", {"1.2": "PY", "5.2": "PN"})

@@ -83,6 +83,13 @@ def test_markdown_report_holds_set_rounds_figures_rules_and_sources(scenario):
     cells = [c.strip() for c in row.strip("|").split("|")]
     assert cells[1:3] == ["50%", format_figure(k1)]
     assert cells[3] == "100%" and cells[4].startswith(format_figure(k2))
+    # the methods name PABAK, so the table has it, for both rounds, by its definition
+    head = next(line for line in text.splitlines() if line.startswith("| Domain "))
+    assert "PABAK r1" in head and "PABAK r2" in head
+    p_o = sum(p.a.final["4"] == p.b.final["4"] for p in r1.pairs) / len(r1.pairs)
+    assert cells[6] == format_figure((3 * p_o - 1) / 2)  # Byrt, Bishop & Carlin (1993), k = 3
+    # a row's notes sit in the row (degenerate kappa, few pairs), not in a pooled list
+    assert "only 4 pairs" in row or "no confidence interval" in row
     # ranked disagreements: 4.4 first, both sides side by side, with a ready rule command
     ranked = text.index("## Questions ranked by disagreement (round 1)")
     assert text.index("### 4.4 ", ranked) < text.index("### 1.2 ", ranked)
