@@ -100,7 +100,7 @@ def _pair_of(folder, record):
 
 
 def _summary(record, qset, pair=None) -> list[str]:
-    from robtui.core.comparison import changed_since, pending_questions
+    from robtui.core.consensus import changed_since, pending_questions
     from robtui.core.questions import judgement_label
 
     pending = pending_questions(record, qset)
@@ -137,7 +137,7 @@ def _summary(record, qset, pair=None) -> list[str]:
 
 def run_start(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace
-    from robtui.core.comparison import start_consensus
+    from robtui.core.consensus import start_consensus
     from robtui.errors import InputError
 
     ws = open_workspace(args.folder)
@@ -164,7 +164,7 @@ def run_start(args: argparse.Namespace) -> int:
 
 def run_settle(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace
-    from robtui.core.comparison import settle
+    from robtui.core.consensus import settle
     from robtui.errors import InputError
 
     ws = open_workspace(args.folder)
@@ -190,7 +190,7 @@ def run_settle(args: argparse.Namespace) -> int:
 
 def run_override(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace
-    from robtui.core.comparison import set_consensus_override
+    from robtui.core.consensus import set_consensus_override
 
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset
@@ -203,14 +203,14 @@ def run_override(args: argparse.Namespace) -> int:
 
 def run_show(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace
-    from robtui.core.comparison import pending_questions
+    from robtui.core.consensus import pending_questions
 
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset
     record = _existing(folder, args)
     pair = _pair_of(folder, record)
     if args.json:
-        from robtui.core.comparison import changed_since
+        from robtui.core.consensus import changed_since
 
         data = record.model_dump(mode="json")
         data["pending"] = pending_questions(record, qset)
@@ -223,7 +223,7 @@ def run_show(args: argparse.Namespace) -> int:
 
 def run_complete(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace
-    from robtui.core.comparison import complete_consensus
+    from robtui.core.consensus import complete_consensus
 
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset
@@ -237,7 +237,7 @@ def run_complete(args: argparse.Namespace) -> int:
 
 def run_reopen(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace
-    from robtui.core.comparison import reopen_consensus
+    from robtui.core.consensus import reopen_consensus
 
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset
@@ -249,7 +249,7 @@ def run_reopen(args: argparse.Namespace) -> int:
 
 def run_list(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace, warn
-    from robtui.core.comparison import pending_questions
+    from robtui.core.consensus import pending_questions
 
     ws = open_workspace(args.folder)
     folder, qset = ws.folder, ws.qset

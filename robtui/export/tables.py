@@ -17,7 +17,8 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 
 from robtui.core.assessing import path_answers
-from robtui.core.comparison import AssessmentPair, changed_since
+from robtui.core.comparison import AssessmentPair
+from robtui.core.consensus import changed_since
 from robtui.core.grade import GradeSuggestion, suggest_rob_rating
 from robtui.core.model import JUDGEMENTS, OVERALL, Assessment, Consensus, Quote, Review
 from robtui.core.questions import QuestionSet, judgement_label

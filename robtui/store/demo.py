@@ -28,14 +28,8 @@ from collections.abc import Mapping
 from pathlib import Path
 
 from robtui.core import assessing
-from robtui.core.comparison import (
-    complete_consensus,
-    differences,
-    pair_assessments,
-    pending_questions,
-    settle,
-    start_consensus,
-)
+from robtui.core.comparison import differences, pair_assessments
+from robtui.core.consensus import complete_consensus, pending_questions, settle, start_consensus
 from robtui.core.model import ResultSpec
 from robtui.core.questions import QuestionSet
 from robtui.errors import DataFileError, InputError, RobtuiError

@@ -4,7 +4,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from robtui.core.comparison import AssessmentPair, changed_since, pair_assessments
+from robtui.core.comparison import AssessmentPair, pair_assessments
+from robtui.core.consensus import changed_since
 from robtui.core.questions import QuestionSet
 from robtui.core.rules import RuleBook
 from robtui.store.question_sets import review_question_set

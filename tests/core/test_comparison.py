@@ -10,15 +10,17 @@ from robtui.core import assessing
 from robtui.core.algorithm import propose_all
 from robtui.core.assessing import path_answers
 from robtui.core.comparison import (
-    changed_since,
     compare_pair,
-    complete_consensus,
     differences,
     judgement_rows,
     pair_assessments,
+    review_agreement,
+)
+from robtui.core.consensus import (
+    changed_since,
+    complete_consensus,
     pending_questions,
     reopen_consensus,
-    review_agreement,
     set_consensus_override,
     settle,
     start_consensus,

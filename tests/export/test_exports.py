@@ -15,9 +15,9 @@ import pytest
 
 from robtui.benchmarks.review import answer_everything, build_synthetic_review
 from robtui.core import assessing
-from robtui.core.comparison import (
+from robtui.core.comparison import pair_assessments
+from robtui.core.consensus import (
     complete_consensus,
-    pair_assessments,
     set_consensus_override,
     settle,
     start_consensus,
@@ -57,7 +57,7 @@ def folder(tmp_path_factory):
     c = start_consensus(pair, "lead", QSET)
     for qid in ("1.1",):
         c = settle(c, QSET, qid, "a", note=SETTLE_NOTE, pair=pair)
-    from robtui.core.comparison import pending_questions
+    from robtui.core.consensus import pending_questions
 
     for qid in pending_questions(c, QSET):
         c = settle(c, QSET, qid, "a", note="follows from 1.1", pair=pair)

@@ -11,7 +11,8 @@ from robtui.cli import main
 from robtui.core import assessing
 from robtui.core.algorithm import propose_all
 from robtui.core.assessing import path_answers
-from robtui.core.comparison import differences, pair_assessments, pending_questions
+from robtui.core.comparison import differences, pair_assessments
+from robtui.core.consensus import pending_questions
 from robtui.core.model import Consensus
 from robtui.errors import DataFileError, InputError
 from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir

@@ -55,7 +55,7 @@ def _files(root) -> dict[str, bytes]:
 async def test_lead_settles_every_difference_and_completes_the_consensus(demo_dir):
     from robtui.core.algorithm import propose_all
     from robtui.core.assessing import path_answers
-    from robtui.core.comparison import pending_questions
+    from robtui.core.consensus import pending_questions
 
     folder = ReviewFolder.open(demo_dir)
     lead = folder.review.lead

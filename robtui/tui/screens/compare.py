@@ -24,11 +24,9 @@ from textual.widgets import OptionList, Static
 from textual.widgets.option_list import Option
 
 from robtui.core.assessing import path_answers
-from robtui.core.comparison import (
-    AssessmentPair,
-    compare_pair,
+from robtui.core.comparison import AssessmentPair, compare_pair, differences
+from robtui.core.consensus import (
     complete_consensus,
-    differences,
     pending_questions,
     reopen_consensus,
     settle,
