@@ -6,6 +6,8 @@
 
 from __future__ import annotations
 
+import dataclasses
+import threading
 from collections.abc import Callable, Iterable
 from functools import partial
 from pathlib import Path
@@ -13,6 +15,7 @@ from typing import Any, ClassVar
 
 from textual.app import App, SystemCommand
 from textual.binding import Binding, BindingType
+from textual.reactive import reactive
 from textual.screen import Screen
 
 from robtui.errors import RobtuiError
@@ -30,6 +33,9 @@ from robtui.tui.session import ReviewSession
 class Workbench(App[int]):
     """robtui's assessment workbench."""
 
+    # The background preparation of the review's reports (None: none running or done).
+    preparation: reactive[object | None] = reactive(None, always_update=True)
+
     CSS_PATH = "workbench.tcss"
     TITLE = "robtui workbench"
     ENABLE_COMMAND_PALETTE = True
@@ -45,8 +51,19 @@ class Workbench(App[int]):
         reviewer: str | None = None,
         *,
         ranker_factory: Callable[[], Any] = shared_ranker,
+        prepare_in_background: bool = False,
     ) -> None:
         super().__init__()
+        self.prepare_in_background = prepare_in_background
+        self.preparation_done = False
+        self.preparation_failures: list[str] = []
+        self._preparation_cancel = threading.Event()
+        if prepare_in_background:
+            # multiprocessing's resource tracker is started with the process's stderr, which the
+            # running app replaces; start it now, while stderr is still the terminal's.
+            from multiprocessing import resource_tracker
+
+            resource_tracker.ensure_running()
         self.folder_arg = folder
         self.reviewer = reviewer
         self.ranker_factory = ranker_factory
@@ -81,6 +98,49 @@ class Workbench(App[int]):
         self.reviewer = self.session.reviewer
         self.sub_title = f"{self.folder.review.title} · {self.session.reviewer}"
         self.push_screen(OverviewScreen(self.session))
+        if self.prepare_in_background:
+            self.start_preparation()
+
+    # -- reports prepared in the background ------------------------------------------
+    def start_preparation(self) -> None:
+        """Read and rank every report of the review in worker processes, in a thread of its
+        own, so the reviewer can work meanwhile; what is already prepared is skipped."""
+        self._preparation_cancel.clear()
+        self.preparation_done = False
+        self.run_worker(self._prepare_reports, thread=True, group="preparation",
+                        exclusive=True, exit_on_error=False)
+
+    def _prepare_reports(self) -> None:
+        from robtui.workspace.preparing import jobs_for_review, prepare
+
+        folder = self.folder
+        if folder is None:
+            return
+        jobs, problems = jobs_for_review(folder)
+
+        def show(state) -> None:
+            if not self._preparation_cancel.is_set():
+                self.call_from_thread(self._show_preparation, dataclasses.replace(state))
+
+        summary = prepare(jobs, progress=show, cancel=self._preparation_cancel)
+        if self._preparation_cancel.is_set():
+            return
+        failures = [f"{o.label}: {o.error}" for o in [*problems, *summary.failures]]
+        self.call_from_thread(self._preparation_finished, failures)
+
+    def _show_preparation(self, state) -> None:
+        self.preparation = state
+
+    def _preparation_finished(self, failures: list[str]) -> None:
+        self.preparation_done = True
+        self.preparation_failures = failures
+        self.preparation = self.preparation  # shows the final line
+        if failures:
+            self.notify(f"{len(failures)} report(s) could not be prepared: "
+                        + "; ".join(failures[:3]), severity="warning", timeout=8)
+
+    def on_unmount(self) -> None:
+        self._preparation_cancel.set()
 
     # -- navigation used by the screens ----------------------------------------------
     def open_result(self, study_id: str, result_id: str) -> None:
@@ -136,6 +196,7 @@ class Workbench(App[int]):
         for screen in self.screen_stack:
             if isinstance(screen, AssessmentScreen):
                 screen.save_pending()
+        self._preparation_cancel.set()  # the workers end at once; prepared reports are kept
         await super().action_quit()
 
     def action_help(self) -> None:
@@ -152,6 +213,10 @@ class Workbench(App[int]):
             )
             yield SystemCommand(
                 "Filter by status", "Next status filter", screen.action_cycle_filter
+            )
+            yield SystemCommand(
+                "Evidence map", "Studies x questions: where the prepared reports hold evidence",
+                screen.action_evidence_map,
             )
             if self.session and self.session.is_lead:
                 yield SystemCommand(
@@ -173,5 +238,5 @@ def run_workbench(folder: Path, reviewer: str | None = None) -> int:
         from robtui.workspace import check_reviewer_name
 
         reviewer = check_reviewer_name(reviewer)
-    result = Workbench(opened, reviewer).run()
+    result = Workbench(opened, reviewer, prepare_in_background=True).run()
     return int(result or 0)

@@ -39,6 +39,8 @@ KEY_MAP: tuple[KeyHelp, ...] = (
         "under older answering rules)",
     ),
     KeyHelp("overview", "v", "the lead's comparison of two reviewers (lead only)"),
+    KeyHelp("overview", "e", "evidence map: studies x questions, where the prepared reports "
+            "hold strong evidence and where none (t: effect, x: export csv)"),
     KeyHelp("assessment", "y p m n i a", "answer Y, PY, PN, N, NI, NA to the focused question"),
     KeyHelp("assessment", "backspace", "clear the focused question's response"),
     KeyHelp("assessment", "j / k", "next / previous question"),
@@ -65,6 +67,8 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "t", "effect of interest (assignment or adhering)"),
     KeyHelp("assessment", "c", "mark complete (lists what is missing) / reopen"),
     KeyHelp("assessment", "d", "next document of the study (when it has several)"),
+    KeyHelp("assessment", "w", "what was planned: the result's outcome beside the registry's "
+            "and protocol's (q attaches a passage to the focused question as a quote)"),
     KeyHelp("assessment", "escape", "back to the overview (from a text field: leave the field)"),
     KeyHelp("comparison", "up/down  r", "choose a result / compare another pair of reviewers"),
     KeyHelp("comparison", "tab", "between the results and the differences to settle"),

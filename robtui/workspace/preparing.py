@@ -22,8 +22,6 @@ from pathlib import Path
 
 from robtui.errors import InputError
 
-EFFECTS = ("assignment", "adhering")
-
 
 @dataclass(frozen=True)
 class PrepareJob:
@@ -281,8 +279,9 @@ def map_in_pool(function: Callable, items: Sequence, workers: int,
     """Run ``function(item)`` for every item in ``workers`` processes, calling
     ``done(item, result, error)`` in this thread as each finishes (in completion order).
 
-    At most ``2 x workers`` items are in flight, so memory stays bounded. Returns True when
-    stopped early (``cancel`` set); Ctrl-C ends the workers at once and is raised again.
+    At most ``2 x workers`` items are in flight, so memory stays bounded. Setting ``cancel``
+    ends the workers at once (items in progress are dropped, not reported) and returns True;
+    Ctrl-C does the same and is raised again.
     ``function`` must be importable by name (it runs in a fresh interpreter).
     """
     import multiprocessing
@@ -300,11 +299,10 @@ def map_in_pool(function: Callable, items: Sequence, workers: int,
             while queue and len(running) < 2 * workers and not cancel.is_set():
                 item = queue.pop()
                 running[pool.submit(function, item)] = item
-            if cancel.is_set():
-                queue.clear()
-                stopped = True
-                if not running:
-                    break
+            if cancel.is_set():  # end at once: finished items are kept, writes are atomic
+                stopped = bool(queue or running)
+                _stop_workers(pool)
+                break
             finished, _ = wait(running, timeout=0.2, return_when=FIRST_COMPLETED)
             for future in finished:
                 item = running.pop(future)
@@ -323,7 +321,7 @@ def map_in_pool(function: Callable, items: Sequence, workers: int,
 
 
 def _stop_workers(pool: ProcessPoolExecutor) -> None:
-    """End the workers at once (Ctrl-C). Safe: every cache write is atomic (temp + rename)."""
+    """End the workers at once (cancel, Ctrl-C). Safe: every cache write is atomic."""
     processes = getattr(pool, "_processes", None) or {}  # no public way to end them
     for process in list(processes.values()):
         process.terminate()
@@ -350,8 +348,10 @@ def describe_progress(state: PrepareProgress) -> str:
 
 def review_effects(folder) -> tuple[str, ...]:
     """The effects the review's results use (effect of assignment when it has none yet)."""
+    from robtui.core.questions import EFFECTS
+
     used = {result.effect for result in folder.review.results}
-    return tuple(e for e in EFFECTS if e in used) or ("assignment",)
+    return tuple(e for e in EFFECTS if e in used) or (EFFECTS[0],)
 
 
 def jobs_for_review(folder, effects: Sequence[str] | None = None

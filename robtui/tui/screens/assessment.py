@@ -69,6 +69,7 @@ class AssessmentScreen(Screen[None]):
         Binding("t", "effect", "Effect"),
         Binding("c", "complete", "Complete"),
         Binding("d", "next_document", "Next document", show=False),
+        Binding("w", "planned", "Planned", show=False),
         Binding("tab", "switch_pane", "Report/questions", show=False, priority=True),
         Binding("escape", "back", "Overview"),
         Binding("question_mark,f1", "app.help", "Help"),
@@ -131,6 +132,18 @@ class AssessmentScreen(Screen[None]):
         self.refresh_form(keep=start)
         self.query_one("#questions", QuestionList).focus()
         self.load_reports()
+        self.run_worker(self._compare_with_plan, thread=True, group="planned",
+                        exit_on_error=False)
+
+    def _compare_with_plan(self) -> None:
+        """Compare the result with what was planned ahead of the panel (w), so it opens at once."""
+        from robtui.workspace.prespecifying import prespecification
+
+        a = self.session.assessment
+        try:
+            self.planned = prespecification(self.session.folder, a.study_id, a.result_id)
+        except RobtuiError:
+            self.planned = None  # the panel says why when it is opened
 
     # -- reading the report (worker) -------------------------------------------------
     @work(thread=True, exclusive=True, group="report")
@@ -689,6 +702,28 @@ class AssessmentScreen(Screen[None]):
             self.document_index = (self.document_index + 1) % len(self.loaded)
             self._show_current_document()
 
+    def action_planned(self) -> None:
+        """The pre-specification panel of this study and result."""
+        from robtui.tui.screens.prespecification import PrespecificationScreen
+
+        a = self.session.assessment
+        self.app.push_screen(PrespecificationScreen(
+            self.session.folder, a.study_id, a.result_id, self.question_id, self._attach_passage,
+            compared=getattr(self, "planned", None)))
+
+    def _attach_passage(self, passage) -> str:
+        """Attach (or, when attached already, detach) a panel passage to the focused question."""
+        qid = self.question_id
+        if qid is None:
+            return "focus a question first (j / k), then open the panel again"
+        quote = Quote(document_sha256=passage.document_sha256, start=passage.start,
+                      end=passage.end, page=passage.page, text=passage.text)
+        added: list[bool] = []
+        if not self._guard(lambda: added.append(self.session.toggle_quote(qid, quote))):
+            return f"not attached to {qid}"
+        self._refresh_question_lines()
+        return f"quote {'attached to' if added[0] else 'removed from'} {qid} ({passage.source})"
+
     def palette_commands(self) -> list[tuple[str, str, str]]:
         return [
             (
@@ -714,5 +749,10 @@ class AssessmentScreen(Screen[None]):
                 "effect",
             ),
             ("Attach quote", "Attach the highlighted sentence to the focused question", "quote"),
+            (
+                "What was planned",
+                "The outcome beside the registry record's and protocol's (pre-specification)",
+                "planned",
+            ),
             ("Back to the overview", "All work is saved", "back"),
         ]

@@ -25,6 +25,7 @@ from robtui.tui.session import (
     ReviewSession,
 )
 from robtui.tui.widgets.key_hints import KeyHints
+from robtui.tui.widgets.preparation_bar import PreparationBar
 
 STATUS_TEXT = {
     STATUS_NOT_STARTED: Text("not started", style="dim"),
@@ -46,6 +47,7 @@ class OverviewScreen(Screen[None]):
         Binding("enter", "open_selected", "Assess", priority=False),
         Binding("f", "cycle_filter", "Filter"),
         Binding("v", "compare", "Compare (lead)", show=False),
+        Binding("e", "evidence_map", "Evidence map"),
         Binding("question_mark,f1", "app.help", "Help"),
         Binding("ctrl+q", "app.quit", "Quit"),
     ]
@@ -70,6 +72,7 @@ class OverviewScreen(Screen[None]):
             yield Static("", id="overview-filter")
             yield DataTable(id="results", cursor_type="row", zebra_stripes=True)
             yield Static("", id="overview-detail")
+        yield PreparationBar()
         yield KeyHints()
 
     def on_mount(self) -> None:
@@ -184,3 +187,10 @@ class OverviewScreen(Screen[None]):
 
     def action_compare(self) -> None:
         self.app.open_comparison()
+
+    def action_evidence_map(self) -> None:
+        from robtui.tui.screens.evidence_map import EvidenceMapScreen
+        from robtui.workspace.preparing import review_effects
+
+        folder = self.session.folder
+        self.app.push_screen(EvidenceMapScreen(folder, review_effects(folder), self.session.qset))
