@@ -110,7 +110,6 @@ async def _first_screen_warm(root: Path) -> float:
 
 async def _open_row(pilot, study_id: str):
     from robtui.tui.screens.assessment import AssessmentScreen
-    from robtui.tui.screens.dialogs import EffectDialog
 
     app = pilot.app
     overview = app.screen
@@ -119,9 +118,6 @@ async def _open_row(pilot, study_id: str):
     table.move_cursor(row=keys.index(study_id))
     await pilot.press("enter")
     await pilot.pause()
-    if isinstance(app.screen, EffectDialog):
-        await pilot.press("enter")
-        await pilot.pause()
     assert isinstance(app.screen, AssessmentScreen)
     return app.screen
 

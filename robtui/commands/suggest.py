@@ -137,7 +137,8 @@ def _render(ranking: dict, thresholds: dict[str, float], untrained: set[str], pa
             lines.append(f"{qid}  nothing above the threshold")
             continue
         cut = thresholds[qid]
-        flag = f"  [no sentence found: best score below {cut:.2f}]" if items[0].score < cut else ""
+        below = round(items[0].score, 2) < round(cut, 2)  # as printed: 0.40 is not below 0.40
+        flag = f"  [no sentence found: best score below {cut:.2f}]" if below else ""
         rough = "  (no training data: ranked by cue lexicon and wording)" if qid in untrained else ""
         lines.append(f"{qid}{flag}{rough}")
         for rank, s in enumerate(items, 1):

@@ -14,10 +14,18 @@ from __future__ import annotations
 
 from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 from robtui.core import algorithm
-from robtui.core.questions import JUDGEMENT_LABELS as LABELS
-from robtui.core.questions import AnswerIs, Condition, Domain, Question, Rule, RuleTable
+from robtui.core.questions import (
+    AnswerIs,
+    Condition,
+    Domain,
+    Question,
+    Rule,
+    RuleTable,
+    judgement_label,
+)
 
 ARROW = "→"
 # Stop looking at ways to finish a domain after this many (no bundled domain comes near it:
@@ -37,7 +45,7 @@ class Reason:
     def words(self) -> str:
         said = ", ".join(f"{qid} answered {code}" for qid, code in self.answers)
         head = f"{said}: " if said else ""
-        return f"{head}{self.because} {ARROW} {LABELS[self.judgement]}"
+        return f"{head}{self.because} {ARROW} {judgement_label(self.judgement)}"
 
 
 @dataclass(frozen=True)
@@ -59,10 +67,7 @@ class DomainExplanation:
         out = [reason.words() for reason in self.reasons]
         if self.early:
             rest = ", ".join(q.id for q in self.missing)
-            out.append(
-                f"{LABELS[self.determined]} whatever the remaining answers ({rest}); "
-                "answer them to complete the domain"
-            )
+            out.append(f"{judgement_label(self.determined)} whatever the answers to {rest}")
         elif self.determined is None and self.missing:
             n = len(self.missing)
             out.append(
@@ -74,6 +79,13 @@ class DomainExplanation:
 
 def explain_in_words(domain: Domain, answers: Mapping[str, str]) -> DomainExplanation:
     """The domain's judgement with its reasons in words (see the module docstring)."""
+    return _explain(domain, tuple(sorted(answers.items())))
+
+
+@lru_cache(maxsize=512)
+def _explain(domain: Domain, answer_items: tuple[tuple[str, str], ...]) -> DomainExplanation:
+    """Cached: the workbench asks for every domain after each keystroke."""
+    answers = dict(answer_items)
     result = algorithm.explain_domain(domain, answers)
     not_asked = len(domain.questions) - len(result.asked)
     if result.judgement != algorithm.INCOMPLETE:
@@ -116,8 +128,8 @@ def explain_overall(domain_judgements: Mapping[str, str]) -> list[str]:
             left = [d for d in domain_judgements if d not in judged]
             plural = "s" if len(left) != 1 else ""
             return [f"overall not judged yet: domain{plural} {', '.join(left)} still open"]
-        return [f"{which} {LABELS['high']} {ARROW} overall High whatever the other domains"]
-    return [f"least favourable domain: {which} {LABELS[worst]} {ARROW} overall {LABELS[worst]}"]
+        return [f"{which} {judgement_label('high')} {ARROW} overall High whatever the other domains"]
+    return [f"least favourable domain: {which} {judgement_label(worst)} {ARROW} overall {judgement_label(worst)}"]
 
 
 def determined_overall(domain_judgements: Sequence[str]) -> str | None:

@@ -23,7 +23,7 @@ from robtui.store.review_folder import ReviewFolder
 from robtui.tui.report_loading import shared_ranker
 from robtui.tui.screens.assessment import AssessmentScreen
 from robtui.tui.screens.compare import CompareScreen
-from robtui.tui.screens.dialogs import EffectDialog, ListDialog
+from robtui.tui.screens.dialogs import ListDialog
 from robtui.tui.screens.help import HelpScreen
 from robtui.tui.screens.overview import OverviewScreen
 from robtui.tui.screens.start import ProblemScreen, ReviewerScreen
@@ -39,6 +39,14 @@ class Workbench(App[int]):
     CSS_PATH = "workbench.tcss"
     TITLE = "robtui workbench"
     ENABLE_COMMAND_PALETTE = True
+    # Screens get these classes from the terminal's size; the CSS lays out compactly on
+    # "-narrow" (one pane at a time) and "-short" (shorter fields) terminals.
+    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [
+        (0, "-narrow"),
+        (100, "-medium"),
+        (140, "-wide"),
+    ]
+    VERTICAL_BREAKPOINTS: ClassVar[list[tuple[int, str]]] = [(0, "-short"), (28, "-tall")]
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+p", "command_palette", "Commands"),
         Binding("ctrl+q", "quit", "Quit", priority=True),
@@ -162,23 +170,12 @@ class Workbench(App[int]):
         if existing is not None:
             self.push_screen(AssessmentScreen(existing))
             return
-        result = session.review.result(result_id)
-        label = result.outcome if result else result_id
-
-        def chosen(effect: str | None) -> None:
-            if not effect:
-                return
-            try:
-                started = session.start(study_id, result_id, effect)
-            except RobtuiError as error:
-                self.notify(str(error), severity="error")
-                return
-            self.push_screen(AssessmentScreen(started))
-
-        qset = session.qset
-        current = result.effect if result else qset.effects()[0]
-        labels = {e: qset.effect_label(e) for e in qset.effects()}
-        self.push_screen(EffectDialog(label, current, labels), chosen)
+        try:  # the effect of interest is the result's: never asked here
+            started = session.start(study_id, result_id)
+        except RobtuiError as error:
+            self.notify(str(error), severity="error")
+            return
+        self.push_screen(AssessmentScreen(started))
 
     def open_comparison(self) -> None:
         session = self.session

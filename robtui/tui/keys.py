@@ -35,7 +35,8 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp(
         "overview",
         "f",
-        "filter by status: all, not started, draft, complete, problems, second look (made "
+        "filter by status: all, not started, draft, complete, file problems (a report missing "
+        "or changed, a file unreadable), rules changed (made "
         "under older answering rules)",
     ),
     KeyHelp("overview", "v", "the lead's comparison of two reviewers (lead only)"),
@@ -52,7 +53,9 @@ KEY_MAP: tuple[KeyHelp, ...] = (
         "assessment", "q", "attach the report's highlighted sentence as a quote (again: detach)"
     ),
     KeyHelp(
-        "assessment", "x", "dismiss the highlighted suggestion (it does not answer the question)"
+        "assessment",
+        "x",
+        "mark the highlighted suggestion not relevant (it does not answer the question)",
     ),
     KeyHelp(
         "assessment",
@@ -63,8 +66,9 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp(
         "assessment", "o / O", "override the domain / overall judgement (a reason is required)"
     ),
+    KeyHelp("assessment", "g", "show / hide the focused question's guidance"),
     KeyHelp("assessment", "s", "domain summary: answers, quotes, judgement"),
-    KeyHelp("assessment", "t", "effect of interest (assignment or adhering)"),
+    KeyHelp("assessment", "t", "the result's effect of interest (set by the review, not here)"),
     KeyHelp("assessment", "c", "mark complete (lists what is missing) / reopen"),
     KeyHelp("assessment", "d", "next document of the study (when it has several)"),
     KeyHelp("assessment", "w", "what was planned: the result's outcome beside the registry's "

@@ -25,8 +25,10 @@ def badge(code: str | None, *, short: bool = False) -> Text:
     return Text(f" {sw.letter} {words} ", style=f"{sw.ink} on {sw.fill}")
 
 
-def cell_badge(code: str | None) -> Text:
-    """A compact badge for table cells: letter and short label, e.g. 'S Some'."""
+def cell_badge(code: str | None, *, letter_only: bool = False) -> Text:
+    """A compact badge for table cells: letter and short label, e.g. 'S Some', or the
+    letter alone where a legend explains it."""
     key = code if code in LABELS else "incomplete"
     sw = swatch(key)
-    return Text(f"{sw.letter} {SHORT_LABELS[key]}", style=f"{sw.ink} on {sw.fill}")
+    words = sw.letter if letter_only else f"{sw.letter} {SHORT_LABELS[key]}"
+    return Text(words, style=f"{sw.ink} on {sw.fill}")

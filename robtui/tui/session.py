@@ -16,6 +16,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from robtui.core import algorithm, assessing
+from robtui.core.explaining import DomainExplanation, explain_in_words
 from robtui.core.model import Assessment, Consensus, DismissedSuggestion, Quote, ReportFile
 from robtui.core.questions import Domain, Question, QuestionSet
 from robtui.core.rules import (
@@ -34,13 +35,14 @@ STATUS_NOT_STARTED = "not started"
 STATUS_DRAFT = "draft"
 STATUS_COMPLETE = "complete"
 STATUS_UNREADABLE = "unreadable"
-SECOND_LOOK = "second look"
+SECOND_LOOK = "rules changed"  # made under an older version of the answering rules
+FILE_PROBLEMS = "file problems"  # a report missing or changed, or an unreadable assessment
 STATUS_FILTERS: tuple[str, ...] = (
     "all",
     STATUS_NOT_STARTED,
     STATUS_DRAFT,
     STATUS_COMPLETE,
-    "problems",
+    FILE_PROBLEMS,
     SECOND_LOOK,
 )
 
@@ -60,6 +62,7 @@ class ResultRow:
     asked: int
     problems: tuple[str, ...] = ()
     second_look: str | None = None  # why: made under an older answering-rules version
+    overridden: tuple[str, ...] = ()  # domain ids / "overall" the reviewer overrode
 
     @property
     def key(self) -> str:
@@ -120,8 +123,10 @@ class ReviewSession:
             assessment = None
             status, problems = STATUS_UNREADABLE, (str(error), *report_problems)
         second_look = None
+        overridden: tuple[str, ...] = ()
         if assessment is not None:
             status, effect, final = assessment.status, assessment.effect, dict(assessment.final)
+            overridden = tuple(assessment.overrides)
             answered, asked = assessment_progress(assessment, self.qset)
             second_look = self.second_look(assessment)
         return ResultRow(
@@ -136,6 +141,7 @@ class ReviewSession:
             asked=asked,
             problems=problems,
             second_look=second_look,
+            overridden=overridden,
         )
 
     def second_look(self, assessment: Assessment) -> str | None:
@@ -168,15 +174,13 @@ class ReviewSession:
             return None
         return AssessmentSession(self, assessment)
 
-    def start(self, study_id: str, result_id: str, effect: str) -> AssessmentSession:
-        """Begin a new assessment with the chosen effect of interest, and save it."""
+    def start(self, study_id: str, result_id: str) -> AssessmentSession:
+        """Begin a new assessment, with the result's effect of interest, and save it."""
         if self.folder.load_assessment(self.reviewer, study_id, result_id) is not None:
             raise InputError(f"{self.reviewer} has already started {study_id} / {result_id}")
         assessment = assessing.new_assessment(
             self.review, study_id, result_id, self.reviewer, self.qset
         )
-        if assessment.effect != effect:
-            assessment = assessing.set_effect(assessment, self.qset, effect)
         session = AssessmentSession(self, assessment)
         session.save()
         return session
@@ -287,6 +291,19 @@ class AssessmentSession:
         judgements = [self.final(d) for d in self.domain_ids()]
         return algorithm.may_raise_overall(judgements)
 
+    def explanation(self, domain_id: str) -> DomainExplanation:
+        """The domain's proposal in words, with the questions still to answer."""
+        answers = assessing.effective_answers(self.assessment, self.qset, domain_id)
+        return explain_in_words(self.domain(domain_id), answers)
+
+    def shown_judgement(self, domain_id: str) -> str:
+        """What the domain stands at: the final judgement, or the proposal its answers
+        already decide before every question is answered."""
+        final = self.final(domain_id)
+        if final != algorithm.INCOMPLETE:
+            return final
+        return self.explanation(domain_id).determined or final
+
     def completion_problems(self) -> list[str]:
         return assessing.completion_problems(self.assessment, self.qset)
 
@@ -394,11 +411,23 @@ class AssessmentSession:
         )
         self._commit(updated)
 
-    def set_effect(self, effect: str) -> None:
-        self._editable()
-        if effect == self.effect:
-            return
-        self._commit(assessing.set_effect(self.assessment, self.qset, effect))
+    @property
+    def effect_differs(self) -> str | None:
+        """The result's effect when this assessment was made for another one (an older file,
+        or the lead changed the result since), else None."""
+        result = self.result
+        if result is None or result.effect == self.effect:
+            return None
+        return result.effect
+
+    def follow_result_effect(self) -> bool:
+        """Switch a draft to the result's effect of interest (answers to the other variant
+        are kept); True when it changed. A complete assessment follows when reopened."""
+        wanted = self.effect_differs
+        if wanted is None or self.is_complete:
+            return False
+        self._commit(assessing.set_effect(self.assessment, self.qset, wanted))
+        return True
 
     def set_override(self, key: str, judgement: str, reason: str) -> None:
         self._editable()
@@ -423,6 +452,7 @@ class AssessmentSession:
 
     def reopen(self) -> None:
         self._commit(assessing.reopen(self.assessment))
+        self.follow_result_effect()
 
     def _at(self, question_id: str) -> Assessment:
         if self.assessment.last_question == question_id:

@@ -55,16 +55,11 @@ def plain(renderable, width: int = 160) -> str:
 
 
 async def open_selected(pilot) -> AssessmentScreen:
-    """From the overview: enter on the selected result (taking the offered effect when it is
-    new), then wait for the report and suggestions."""
-    from robtui.tui.screens.dialogs import EffectDialog
-
+    """From the overview: enter on the selected result, then wait for the report and
+    suggestions (the effect of interest is the result's: nothing is asked)."""
     await pilot.pause()
     await pilot.press("enter")
     await pilot.pause()
-    if isinstance(pilot.app.screen, EffectDialog):
-        await pilot.press("enter")
-        await pilot.pause()
     await settle(pilot)
     assert isinstance(pilot.app.screen, AssessmentScreen)
     return pilot.app.screen

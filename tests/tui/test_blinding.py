@@ -91,12 +91,34 @@ def test_only_the_lead_may_compare(demo_dir):
     assert pairs and not problems
 
 
+async def test_enter_on_the_first_screen_takes_the_highlighted_name(demo_dir):
+    listed = ReviewFolder.open(demo_dir).review.reviewers
+    app = Workbench(demo_dir)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, OverviewScreen)
+        assert app.screen.session.reviewer == listed[0]
+
+
+async def test_enter_on_an_empty_name_says_what_to_do(demo_dir):
+    app = Workbench(demo_dir)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("tab", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, ReviewerScreen)
+        said = str(app.screen.query_one("#reviewer-error").render())
+        assert "Type your reviewer name, or choose one" in said and "''" not in said
+
+
 async def test_without_a_name_the_first_screen_asks_who_is_assessing(demo_dir):
     app = Workbench(demo_dir)
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
         assert isinstance(app.screen, ReviewerScreen)
-        await pilot.press(*"bad name", "enter")
+        await pilot.press("tab", *"bad name", "enter")  # from the list of names to the field
         await pilot.pause()
         assert isinstance(app.screen, ReviewerScreen)  # refused, with the reason shown
         assert "not usable" in str(app.screen.query_one("#reviewer-error").render())

@@ -2,45 +2,62 @@
 
 from __future__ import annotations
 
+from textual.widgets import Static
+
 from robtui.store.question_sets import builtin_question_set
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
-from robtui.tui.screens.assessment import AssessmentScreen
-from robtui.tui.screens.dialogs import EffectDialog
 
 from .conftest import SIZE
-from .helpers import open_selected, settle
+from .helpers import open_selected
 
 
-async def test_effect_chosen_at_the_start_switches_domain_2(demo_dir):
+async def test_the_effect_is_the_results_never_asked_and_not_changed_by_the_reviewer(demo_dir):
     qset = builtin_question_set()
-    adhering = [q.id + q.text for q in qset.domain("2", "adhering").questions]
+    review = ReviewFolder.open(demo_dir).review
+    adhering_result = next(r for r in review.results if r.effect == "adhering")
+    adhering = {q.id + q.text for q in qset.domain("2", "adhering").questions}
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        await pilot.press("enter")
-        await pilot.pause()
-        assert isinstance(app.screen, EffectDialog)
-        options = app.screen.query_one("#effect-options")
-        if options.highlighted == 0:  # the result's default (assignment) is offered first
-            await pilot.press("down")
-        await pilot.press("enter")
-        await settle(pilot)
-        screen = app.screen
-        assert isinstance(screen, AssessmentScreen)
+        table = app.screen.query_one("#results")
+        keys = list(app.screen.rows)
+        table.move_cursor(row=keys.index(f"{review.studies[0].id}--{adhering_result.id}"))
+        screen = await open_selected(pilot)  # no dialog: straight to the questions
         assert screen.session.effect == "adhering"
         await pilot.press("2")
         questions = screen.query_one("#questions")
-        shown = [o.id + screen.session.question(o.id).text for o in questions.options]
-        assert set(shown) <= set(adhering) and shown
-        await pilot.press("t")  # change it back: domain 2 follows
+        shown = {o.id + screen.session.question(o.id).text for o in questions.options}
+        assert shown and shown <= adhering
+        await pilot.press("t")  # says where the effect comes from; changes nothing
         await pilot.pause()
-        app.screen.query_one("#effect-options").highlighted = 0
-        await pilot.press("enter")
-        await settle(pilot)
+        said = " ".join(str(w.render()) for w in app.screen.query(Static))
+        assert "set for this result" in said and "lead" in said
+        await pilot.press("escape")
+        assert screen.session.effect == "adhering"
+    saved = ReviewFolder.open(demo_dir).load_assessment(
+        "tess", review.studies[0].id, adhering_result.id
+    )
+    assert saved.effect == "adhering"
+
+
+async def test_a_draft_made_for_another_effect_follows_the_result(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    review = folder.review
+    study, result = review.studies[0], review.results[0]
+    assert result.effect == "assignment"
+    from robtui.core import assessing
+
+    old = assessing.new_assessment(review, study.id, result.id, "tess", builtin_question_set())
+    old = assessing.set_effect(old, builtin_question_set(), "adhering")  # an older file
+    folder.save_assessment(old)
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_selected(pilot)
         assert screen.session.effect == "assignment"
-        assignment = {q.text for q in qset.domain("2", "assignment").questions}
-        assert all(screen.session.question(o.id).text in assignment for o in questions.options)
+    assert ReviewFolder.open(demo_dir).load_assessment("tess", study.id, result.id).effect == (
+        "assignment"
+    )
 
 
 def _first_saved(demo_dir):

@@ -26,7 +26,7 @@ async def test_filter_by_status(demo_dir):
             await pilot.press("f")
             await pilot.pause()
             seen[screen.filter] = table.row_count
-        assert seen == {"not started": 0, "draft": 0, "complete": total, "problems": 0}
+        assert seen == {"not started": 0, "draft": 0, "complete": total, "file problems": 0}
         assert "No result matches" in str(screen.query_one("#overview-detail").render())
 
 

@@ -42,10 +42,10 @@ async def test_assessments_made_under_older_rules_are_listed_for_a_second_look(d
         screen = app.screen
         assert isinstance(screen, OverviewScreen)
         table = screen.query_one("#results")
-        assert f"second look ({len(mine)})" in str(screen.query_one("#overview-filter").render())
-        assert "↻ second look" in str(screen.query_one("#overview-detail").render())
+        assert f"rules changed ({len(mine)})" in str(screen.query_one("#overview-filter").render())
+        assert "↻ answering rules changed" in str(screen.query_one("#overview-detail").render())
         assert "new rules: R1 (1.1), R3 (1.2)" in str(screen.query_one("#overview-detail").render())
-        while screen.filter != "second look":
+        while screen.filter != "rules changed":
             await pilot.press("f")
         await pilot.pause()
         assert table.row_count == len(mine) == total

@@ -21,7 +21,7 @@ def test_reviewer_names_are_checked():
 def test_every_change_is_on_disk_at_once(demo_folder):
     study, result = demo_folder.review.studies[0], demo_folder.review.results[0]
     session = ReviewSession(demo_folder, "tess")
-    work = session.start(study.id, result.id, result.effect)
+    work = session.start(study.id, result.id)
 
     def on_disk():
         return ReviewFolder.open(demo_folder.root).load_assessment("tess", study.id, result.id)
@@ -43,7 +43,7 @@ def test_every_change_is_on_disk_at_once(demo_folder):
     with pytest.raises(InputError, match="reason"):
         work.set_override("1", "high", "   ")
     with pytest.raises(InputError, match="already started"):
-        session.start(study.id, result.id, result.effect)
+        session.start(study.id, result.id)
 
 
 def test_rows_show_only_this_reviewers_judgements(demo_folder):

@@ -1,19 +1,25 @@
-"""Snapshots of the main screens at a fixed terminal size, on the demo review built in tmp.
+"""Snapshots of every screen and dialog at three terminal sizes, on the demo review built in tmp.
 
+80x24 (a laptop's SSH session: one pane at a time, compact columns), 120x30 and 160x48.
 Nothing in view depends on the clock or on the tmp path; the assessment screen's suggestions
-come from a fixed stand-in ranker so that retrained weights do not change the picture. Update after a deliberate change
-with `pytest tests/tui/test_snapshots.py --snapshot-update` and look at the new SVGs.
+come from a fixed stand-in ranker so that retrained weights do not change the picture. Update
+after a deliberate change with `pytest tests/tui/test_snapshots.py --snapshot-update` and look
+at the new SVGs.
 """
 
 from __future__ import annotations
 
+import pytest
+
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
 
-from .conftest import SIZE, FixedRanker
+from .conftest import FixedRanker
 from .helpers import settle
 
 NEW_REVIEWER = "tess"
+SIZES = [pytest.param((80, 24), id="80x24"), pytest.param((120, 30), id="120x30"),
+         pytest.param((160, 48), id="160x48")]
 
 
 def _demo_reviewer(demo_dir) -> str:
@@ -21,31 +27,75 @@ def _demo_reviewer(demo_dir) -> str:
     return next(n for n in review.reviewers if n != review.lead)
 
 
-def test_reviewer_screen(snap_compare, demo_dir):
-    assert snap_compare(Workbench(demo_dir), terminal_size=SIZE)
+async def _answer_and_step(pilot):
+    await pilot.press("enter")  # the first result: straight to its questions
+    await settle(pilot)
+    await pilot.press("y", "j", "n", "right_square_bracket")
+    await settle(pilot)
 
 
-def test_overview_of_a_reviewer_with_finished_work(snap_compare, demo_dir):
-    assert snap_compare(Workbench(demo_dir, _demo_reviewer(demo_dir)), terminal_size=SIZE)
+@pytest.mark.parametrize("size", SIZES)
+def test_reviewer_screen(snap_compare, demo_dir, size):
+    assert snap_compare(Workbench(demo_dir), terminal_size=size)
 
 
-def test_assessment_screen_with_suggestions(snap_compare, demo_dir):
-    async def open_and_answer(pilot):
-        await pilot.press("enter", "enter")  # the result, then its effect
-        await settle(pilot)
-        await pilot.press("y", "j", "y", "right_square_bracket")
-        await settle(pilot)
+@pytest.mark.parametrize("size", SIZES)
+def test_overview_of_a_reviewer_with_finished_work(snap_compare, demo_dir, size):
+    assert snap_compare(Workbench(demo_dir, _demo_reviewer(demo_dir)), terminal_size=size)
+
+
+@pytest.mark.parametrize("size", SIZES)
+def test_assessment_screen_with_suggestions(snap_compare, demo_dir, size):
+    """After 1.1 Y, 1.2 N and ]: the reasons say High already; on 80x24 the report shows."""
+    app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
+    assert snap_compare(app, terminal_size=size, run_before=_answer_and_step)
+
+
+@pytest.mark.parametrize("size", SIZES)
+def test_assessment_questions_with_guidance(snap_compare, demo_dir, size):
+    async def answer_then_guidance(pilot):
+        await _answer_and_step(pilot)
+        await pilot.press("tab", "g")  # back to the questions (on 80x24), guidance shown
+        await pilot.pause()
 
     app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
-    assert snap_compare(app, terminal_size=SIZE, run_before=open_and_answer)
+    assert snap_compare(app, terminal_size=size, run_before=answer_then_guidance)
 
 
-def test_help_screen(snap_compare, demo_dir):
+@pytest.mark.parametrize("size", SIZES)
+def test_help_screen(snap_compare, demo_dir, size):
     assert snap_compare(
-        Workbench(demo_dir, NEW_REVIEWER), press=["question_mark"], terminal_size=SIZE
+        Workbench(demo_dir, NEW_REVIEWER), press=["question_mark"], terminal_size=size
     )
 
 
-def test_comparison_screen_for_the_lead(snap_compare, demo_dir):
+@pytest.mark.parametrize("key", [pytest.param("s", id="summary"), pytest.param("c", id="missing")])
+@pytest.mark.parametrize("size", SIZES)
+def test_summary_and_not_complete_yet_dialogs(snap_compare, demo_dir, size, key):
+    async def open_dialog(pilot):
+        await _answer_and_step(pilot)
+        await pilot.press("tab", key)
+        await pilot.pause()
+
+    app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
+    assert snap_compare(app, terminal_size=size, run_before=open_dialog)
+
+
+@pytest.mark.parametrize("size", SIZES)
+def test_override_dialog(snap_compare, demo_dir, size):
+    async def open_override(pilot):
+        await pilot.press("enter")
+        await settle(pilot)
+        await pilot.press("c")  # a finished assessment: reopen, then override domain 1
+        await pilot.pause()
+        await pilot.press("o")
+        await pilot.pause()
+
+    app = Workbench(demo_dir, _demo_reviewer(demo_dir), ranker_factory=FixedRanker)
+    assert snap_compare(app, terminal_size=size, run_before=open_override)
+
+
+@pytest.mark.parametrize("size", SIZES)
+def test_comparison_screen_for_the_lead(snap_compare, demo_dir, size):
     lead = ReviewFolder.open(demo_dir).review.lead
-    assert snap_compare(Workbench(demo_dir, lead), press=["v"], terminal_size=SIZE)
+    assert snap_compare(Workbench(demo_dir, lead), press=["v"], terminal_size=size)

@@ -20,13 +20,13 @@ from textual.screen import Screen
 from textual.widgets import Input, Label, ProgressBar, Static, TextArea
 from textual.worker import get_current_worker
 
+from robtui.core.explaining import determined_overall, explain_overall
 from robtui.core.model import OVERALL, Quote
 from robtui.errors import RobtuiError
 from robtui.tui.keys import RESPONSE_KEYS
 from robtui.tui.palette import badge
 from robtui.tui.report_loading import LoadedReport, load_report, rank_document
 from robtui.tui.screens.dialogs import (
-    EffectDialog,
     ListDialog,
     OverrideChoice,
     OverrideDialog,
@@ -35,12 +35,13 @@ from robtui.tui.screens.dialogs import (
 from robtui.tui.session import AssessmentSession
 from robtui.tui.widgets.judgement_strip import DomainTab, JudgementStrip
 from robtui.tui.widgets.justification import JustificationArea
-from robtui.tui.widgets.key_hints import KeyHints
+from robtui.tui.widgets.key_hints import FIELD_KEYS, INPUT_KEYS, KeyHints
 from robtui.tui.widgets.question_list import QuestionList, line_for
 from robtui.tui.widgets.report_view import ReportView
 from robtui.tui.widgets.response_bar import ResponseBar
 
 CANDIDATE_NOTE = "Suggestions are candidates ranked by a classifier; you decide."
+OVERRIDE_MARK = "*"  # beside a judgement the reviewer overrode (explained where it shows)
 JUSTIFICATION_SAVE_DELAY = 0.4  # seconds of quiet typing before the justification is saved
 
 
@@ -51,30 +52,31 @@ def _answer_bindings() -> list[Binding]:
 
 
 class AssessmentScreen(Screen[None]):
+    AUTO_FOCUS = "#questions"
     BINDINGS: ClassVar[list[BindingType]] = [
         *_answer_bindings(),
         Binding("backspace", "answer(None)", "Clear", show=False),
         Binding("j", "next_question", "Next Q", show=False),
         Binding("k", "previous_question", "Prev Q", show=False),
         *[Binding(str(n), f"domain('{n}')", f"Domain {n}", show=False) for n in range(1, 6)],
-        Binding("right_square_bracket", "suggestion(1)", "Next sugg."),
+        Binding("right_square_bracket", "suggestion(1)", "Next sugg.", show=False),
         Binding("left_square_bracket", "suggestion(-1)", "Prev sugg.", show=False),
-        Binding("q", "quote", "Quote"),
-        Binding("x", "dismiss_suggestion", "Dismiss"),
-        Binding("e", "justify", "Justify"),
-        Binding("slash", "search", "Search"),
-        Binding("o", "override('domain')", "Override"),
+        Binding("q", "quote", "Quote", show=False),
+        Binding("x", "dismiss_suggestion", "Dismiss", show=False),
+        Binding("e", "justify", "Justify", show=False),
+        Binding("g", "guidance", "Guidance", show=False),
+        Binding("slash", "search", "Search", show=False),
+        Binding("o", "override('domain')", "Override", show=False),
         Binding("O", "override('overall')", "Override overall", show=False),
-        Binding("s", "summary", "Summary"),
-        Binding("t", "effect", "Effect"),
-        Binding("c", "complete", "Complete"),
+        Binding("s", "summary", "Summary", show=False),
+        Binding("t", "effect", "Effect", show=False),
+        Binding("c", "complete", "Complete", show=False),
         Binding("d", "next_document", "Next document", show=False),
         Binding("w", "planned", "Planned", show=False),
         Binding("tab", "switch_pane", "Report/questions", show=False, priority=True),
-        Binding("escape", "back", "Overview"),
-        Binding("question_mark,f1", "app.help", "Help"),
+        Binding("escape", "back", "Overview", show=False),
+        Binding("question_mark,f1", "app.help", "Help", show=False),
     ]
-
     def __init__(self, session: AssessmentSession) -> None:
         super().__init__()
         self.session = session
@@ -85,6 +87,32 @@ class AssessmentScreen(Screen[None]):
         self._justify_for: str | None = None
         self._typed: str | None = None  # justification typed, not saved yet
         self.last_update_seconds: float | None = None  # keystroke -> judgement shown (bench)
+        self.show_guidance = False  # g: the focused question's guidance under it
+        self._stepped_for: str | None = None  # the question ] / [ last stepped through
+
+    def key_hints(self) -> list[tuple[str, str, str]]:
+        """The footer: every key a reviewer needs, short (the help screen says more)."""
+        domains = self.session.domain_ids()
+        first = domains[0]
+        hints = [
+            ("j/k", "question", "next_question"),
+            (f"{first}-{domains[-1]}", "domain", f"domain('{first}')"),
+            ("tab", "questions" if self.has_class("-reading") else "report", "switch_pane"),
+            ("]/[", "suggestion", "suggestion(1)"),
+            ("q", "quote", "quote"),
+            ("x", "dismiss", "dismiss_suggestion"),
+            ("e", "justify", "justify"),
+            ("g", "guidance", "guidance"),
+            ("/", "search", "search"),
+            ("o/O", "override", "override('domain')"),
+            ("s", "summary", "summary"),
+            ("c", "complete", "complete"),
+        ]
+        if len(self.loaded) > 1:
+            hints.append(("d", "next document", "next_document"))
+        hints.append(("w", "planned", "planned"))
+        hints += [("esc", "overview", "back"), ("?", "help", "app.help"), ("^q", "quit", "app.quit")]
+        return hints
 
     # -- layout ------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -98,6 +126,7 @@ class AssessmentScreen(Screen[None]):
         yield Static(heading, id="assessment-title")
         with Horizontal(id="assessment-body"):
             with Vertical(id="report-panel"):
+                yield Static("", id="report-question")
                 yield Static("", id="report-heading")
                 with Horizontal(id="report-progress"):
                     yield Label("Opening the report …", id="progress-label")
@@ -123,6 +152,13 @@ class AssessmentScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self.query_one("#search", Input).display = False
+        before = self.session.effect
+        self._guard(self.session.follow_result_effect)
+        if self.session.effect != before:
+            self.notify(
+                f"This draft was made for the effect of {before}; it now follows the result "
+                f"(effect of {self.session.effect}). Answers to both variants are kept."
+            )
         start = self.session.assessment.last_question
         if start:
             try:
@@ -203,6 +239,7 @@ class AssessmentScreen(Screen[None]):
         self.query_one("#report-progress").display = False
         self.document_index = min(self.document_index, max(len(loaded) - 1, 0))
         self._show_current_document()
+        self.query_one(KeyHints).show_field(None)  # "d next document" when there are several
 
     def _show_current_document(self) -> None:
         view = self.query_one("#report", ReportView)
@@ -253,26 +290,35 @@ class AssessmentScreen(Screen[None]):
     def refresh_form(self, keep: str | None = None) -> None:
         """Redraw the domain's questions, the focused answer and the judgements."""
         s = self.session
-        domain = s.domain(self.domain_id)
-        asked = s.asked(self.domain_id)
         questions = self.query_one("#questions", QuestionList)
-        questions.show(self._question_lines(asked), keep=keep)
-        effect = f"  ·  effect of {s.effect}" if domain.effect else ""
-        heading = Text(f"Domain {domain.id}: {domain.name}", style="bold")
-        heading.append(effect, style="dim")
-        hidden = len(domain.questions) - len(asked)
-        if hidden:
-            heading.append(
-                f"\n{hidden} question{'s' if hidden != 1 else ''} not asked on this path",
-                style="dim",
-            )
-        if s.is_complete:
-            heading.append("\n✓ marked complete — c reopens it for changes", style="bold")
-        self.query_one("#domain-heading", Static).update(heading)
+        questions.show(self._question_lines(s.asked(self.domain_id)), keep=keep)
         self._refresh_judgements()
         self._refresh_justification()
         self._refresh_rules()
         self._mark_report()
+
+    def _refresh_heading(self) -> None:
+        """The domain's name, what its path leaves out, and the assessment's state."""
+        s = self.session
+        domain = s.domain(self.domain_id)
+        heading = Text(f"D{domain.id} {domain.name}", style="bold")
+        if domain.effect:
+            heading.append(f" · effect of {s.effect} (set for this result)", style="dim")
+        words = s.explanation(self.domain_id)
+        if words.not_asked:
+            n = words.not_asked
+            heading.append(
+                f"\n{n} question{'s' if n != 1 else ''} not asked on this path", style="dim"
+            )
+        if s.is_complete:
+            heading.append("\n✓ marked complete — c reopens it for changes", style="bold")
+        if s.effect_differs:
+            heading.append(
+                f"\n⚠ made for the effect of {s.effect}, but the result is assessed for the "
+                f"effect of {s.effect_differs}: c reopens it, and it follows the result",
+                style="bold",
+            )
+        self.query_one("#domain-heading", Static).update(heading)
 
     def _refresh_rules(self) -> None:
         """The review's answering rules for the focused question, or why they are unavailable."""
@@ -306,32 +352,73 @@ class AssessmentScreen(Screen[None]):
 
     def _refresh_judgements(self) -> None:
         s = self.session
-        keys = [*s.domain_ids(), OVERALL]
-        finals = {k: s.final(k) for k in keys}
+        shown = {d: s.shown_judgement(d) for d in s.domain_ids()}
+        shown[OVERALL] = s.final(OVERALL)
+        if shown[OVERALL] == "incomplete":
+            shown[OVERALL] = determined_overall(list(shown.values())[:-1]) or "incomplete"
         overridden = set(s.assessment.overrides)
-        self.query_one("#strip", JudgementStrip).show(finals, self.domain_id, overridden)
-        text = Text()
-        for key, name in ((self.domain_id, f"Domain {self.domain_id}"), (OVERALL, "Overall")):
-            text.append(f"{name}: proposed ", style="bold")
-            text.append_text(badge(s.proposed(key)))
-            override = s.override(key)
-            if override:
-                text.append("  your judgement ")
-                text.append_text(badge(override.judgement))
-                text.append(f"\n  reason: {override.reason}", style="italic")
-            text.append("\n")
-        if s.may_raise_overall() and not s.override(OVERALL):
+        self.query_one("#strip", JudgementStrip).show(shown, self.domain_id, overridden)
+        self._refresh_heading()
+        self._refresh_report_question()
+        self.query_one("#judgement", Static).update(self.reasons_text(shown))
+
+    def reasons_text(self, shown: dict[str, str]) -> Text:
+        """Why the domain and the overall stand where they do, and what is left to answer."""
+        s = self.session
+        words = s.explanation(self.domain_id)
+        text = Text(f"D{self.domain_id}: ", style="bold")
+        text.append_text(badge(shown[self.domain_id]))
+        if words.early:
+            text.append(" already decided by your answers", style="italic")
+        elif shown[self.domain_id] == "incomplete":
+            text.append(" (not judged yet)", style="dim")
+        override = s.override(self.domain_id)
+        if override:
+            text.append(f"  your override{OVERRIDE_MARK}: ", style="bold")
+            text.append_text(badge(override.judgement))
+        for line in words.lines():
+            text.append(f"\n  {line}")
+        if override:
+            text.append(f"\n  {OVERRIDE_MARK} your reason: {override.reason}", style="italic")
+        text.append("\nOverall: ", style="bold")
+        text.append_text(badge(shown[OVERALL]))
+        finals = {d: shown[d] for d in s.domain_ids()}
+        text.append("  " + "; ".join(explain_overall(finals)), style="dim")
+        override = s.override(OVERALL)
+        if override:
+            text.append(f"\n  {OVERRIDE_MARK} your override: {override.reason}", style="italic")
+        if s.may_raise_overall() and not override:
             text.append(
-                "Several domains have some concerns: you may raise the overall to High (O).\n",
+                "\n  several domains have some concerns: you may raise the overall to High (O)",
                 style="dim",
             )
-        status = "✓ complete (c reopens)" if s.is_complete else "draft (c marks complete)"
-        text.append(f"Effect of {s.effect} (t)  ·  {status}", style="dim")
+        left_here = len(words.missing)
+        left_all = sum(len(s.explanation(d).missing) for d in s.domain_ids())
+        status = "✓ complete (c reopens)" if s.is_complete else "draft (c completes)"
+        text.append(
+            f"\n{left_here} to answer here · {left_all} in all · {status}", style="dim"
+        )
         if s.unsaved_error:
             text.append(f"\n⚠ not saved: {s.unsaved_error}", style="bold reverse")
         else:
-            text.append("  ·  every change saved", style="dim")
-        self.query_one("#judgement", Static).update(text)
+            text.append(" · saved", style="dim")
+        return text
+
+    def _refresh_report_question(self) -> None:
+        """On a narrow terminal the report fills the screen: the focused question above it."""
+        line = self.query_one("#report-question", Static)
+        qid = self.question_id
+        if qid is None:
+            line.update("")
+            return
+        question = self.session.question(qid)
+        text = Text(f"{qid} ", style="bold")
+        text.append(question.short)
+        response = self.session.response(qid)
+        text.append("  answer: ")
+        text.append(f" {response} " if response else " ·· ", style="bold reverse")
+        text.append("  y p m n i a · q quote · tab questions", style="dim")
+        line.update(text)
 
     def _refresh_justification(self) -> None:
         field = self.query_one("#justification", JustificationArea)
@@ -369,8 +456,11 @@ class AssessmentScreen(Screen[None]):
     @on(QuestionList.OptionHighlighted, "#questions")
     def _question_moved(self) -> None:
         self._flush_justification()
+        if self.show_guidance:
+            self._refresh_question_lines()
         self._refresh_justification()
         self._refresh_rules()
+        self._refresh_report_question()
         self._mark_report()
         qid = self.question_id
         if qid:
@@ -437,7 +527,13 @@ class AssessmentScreen(Screen[None]):
     def _question_lines(self, asked) -> list:
         answers = self.session.assessment.answers
         level = self.current.no_evidence_threshold if self.current else None
-        return [line_for(q, answers, self.suggestions_for(q.id), level) for q in asked]
+        focused = self.question_id if self.show_guidance else None
+        return [
+            line_for(
+                q, answers, self.suggestions_for(q.id), level, show_guidance=q.id == focused
+            )
+            for q in asked
+        ]
 
     @on(Input.Submitted, "#search")
     def _search_next(self, event: Input.Submitted) -> None:
@@ -491,15 +587,22 @@ class AssessmentScreen(Screen[None]):
             return
         order = [s.sentence_index for s in suggestions]
         here = view.highlighted_sentence
-        if here is not None and here.index in order:
+        if self._stepped_for == self.question_id and here is not None and here.index in order:
             position = (order.index(here.index) + step) % len(order)
-        else:
+        else:  # first step for this question: its best suggestion (or, backwards, the last)
             position = 0 if step > 0 else len(order) - 1
+        self._stepped_for = self.question_id
         view.go_to_sentence(order[position])
+        if self.has_class("-narrow") and self.focused is not view:
+            view.focus()  # one pane at a time: show the report, centred once it is laid out
+            self.call_after_refresh(view.go_to_sentence, order[position])
         s = suggestions[position]
-        self.notify(
-            f"suggestion #{position + 1} of {len(order)} (score {s.score:.2f}) — a candidate; you decide",
-            timeout=2,
+        self.query_one("#candidate-note", Static).update(
+            Text(
+                f"Suggestion #{position + 1} of {len(order)} for {self.question_id} "
+                f"(score {s.score:.2f}): a candidate; you decide.",
+                style="italic",
+            )
         )
 
     def action_quote(self) -> None:
@@ -552,6 +655,21 @@ class AssessmentScreen(Screen[None]):
             self.notify("this assessment is marked complete: c reopens it", severity="warning")
             return
         self.query_one("#justification", JustificationArea).focus()
+
+    def on_descendant_focus(self, event) -> None:
+        """On a narrow terminal the focused pane fills the screen; a text field shows its
+        own keys in the footer."""
+        widget = event.widget
+        in_report = any(node.id == "report-panel" for node in widget.ancestors_with_self)
+        if widget.id != "search":
+            self.set_class(in_report, "-reading")
+        hints = self.query_one(KeyHints)
+        if isinstance(widget, TextArea):
+            hints.show_field(FIELD_KEYS)
+        elif isinstance(widget, Input):
+            hints.show_field(INPUT_KEYS)
+        else:
+            hints.show_field(None)
 
     def action_switch_pane(self) -> None:
         """Tab: between the report and the questions (leaving a text field first)."""
@@ -640,20 +758,30 @@ class AssessmentScreen(Screen[None]):
         return text
 
     def action_effect(self) -> None:
+        """The effect of interest belongs to the result: say so, and where it is set."""
         s = self.session
-        if s.is_complete:
-            self.notify("this assessment is marked complete: c reopens it", severity="warning")
-            return
-
-        def done(effect: str | None) -> None:
-            if effect and effect != s.effect and self._guard(lambda: s.set_effect(effect)):
-                self.refresh_form()
-                if self.loaded:
-                    self.rerank()
-
         label = s.result.outcome if s.result else s.assessment.result_id
-        labels = {e: s.qset.effect_label(e) for e in s.qset.effects()}
-        self.app.push_screen(EffectDialog(label, s.effect, labels), done)
+        self.app.push_screen(
+            ListDialog(
+                "Effect of interest",
+                [
+                    f"{label}: the effect of {s.effect} ({s.qset.effect_label(s.effect)}).",
+                    (
+                        "It was set for this result when the review added it, so every "
+                        "reviewer answers the same questions."
+                    ),
+                    (
+                        "To change it, the review's lead edits the result (robtui result); "
+                        "your answers to both variants are kept."
+                    ),
+                ],
+            )
+        )
+
+    def action_guidance(self) -> None:
+        """Show or hide the focused question's guidance (under the question)."""
+        self.show_guidance = not self.show_guidance
+        self._refresh_question_lines()
 
     def action_complete(self) -> None:
         s = self.session

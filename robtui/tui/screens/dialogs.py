@@ -1,9 +1,8 @@
-"""Small dialogs: effect of interest, override with reason, settling a difference, what is
+"""Small dialogs: override with reason, settling a difference, what is
 missing, a message."""
 
 from __future__ import annotations
 
-from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import ClassVar
 
@@ -19,45 +18,7 @@ from textual.widgets.option_list import Option
 from robtui.tui.keys import RESPONSE_NAMES
 from robtui.tui.palette import badge
 
-
-class EffectDialog(ModalScreen[str | None]):
-    """Choose the effect of interest; domain 2's questions depend on it."""
-
-    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
-
-    def __init__(self, result_label: str, current: str, effects: Mapping[str, str]) -> None:
-        """``effects``: effect id -> words, from the question set (QuestionSet.effect_label)."""
-        super().__init__()
-        self.result_label = result_label
-        self.current = current
-        self.effects = dict(effects)
-
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog"):
-            yield Label(Text(f"Effect of interest — {self.result_label}", style="bold"))
-            yield Static(
-                "Domain 2 asks different questions for each effect. Choose the effect the "
-                "review is interested in for this result (enter to choose, escape to cancel).",
-                classes="dialog-note",
-            )
-            options = OptionList(
-                *[Option(f"{code}: {text}", id=code) for code, text in self.effects.items()],
-                id="effect-options",
-            )
-            yield options
-
-    def on_mount(self) -> None:
-        options = self.query_one("#effect-options", OptionList)
-        effects = list(self.effects)
-        options.highlighted = effects.index(self.current) if self.current in effects else 0
-        options.focus()
-
-    @on(OptionList.OptionSelected, "#effect-options")
-    def _chosen(self, event: OptionList.OptionSelected) -> None:
-        self.dismiss(event.option.id)
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
+CLOSE_HINT = "  enter or esc closes"
 
 
 @dataclass(frozen=True)
@@ -102,10 +63,10 @@ class OverrideDialog(ModalScreen[OverrideChoice | None]):
             )
             yield Static("", id="override-error", classes="error-text")
             with Horizontal(classes="dialog-buttons"):
-                yield Button("Save override", id="override-save", variant="primary")
+                yield Button("Save override", id="override-save", variant="primary", compact=True)
                 if self.current is not None:
-                    yield Button("Remove override", id="override-remove")
-                yield Button("Cancel", id="override-cancel")
+                    yield Button("Remove override", id="override-remove", compact=True)
+                yield Button("Cancel", id="override-cancel", compact=True)
 
     def on_mount(self) -> None:
         options = self.query_one("#override-options", OptionList)
@@ -168,7 +129,9 @@ class ListDialog(ModalScreen[None]):
             with VerticalScroll(classes="dialog-list"):
                 for line in self.lines:
                     yield Static(Text(f"• {line}"))
-            yield Button("Close", id="list-close")
+            with Horizontal(classes="dialog-buttons"):
+                yield Button("Close", id="list-close", compact=True)
+                yield Static(CLOSE_HINT, classes="dim")
 
     @on(Button.Pressed, "#list-close")
     def action_close(self) -> None:
@@ -190,7 +153,9 @@ class TextDialog(ModalScreen[None]):
             yield Label(Text(self.title_text, style="bold"))
             with VerticalScroll(classes="dialog-list"):
                 yield Static(self.body)
-            yield Button("Close", id="text-close")
+            with Horizontal(classes="dialog-buttons"):
+                yield Button("Close", id="text-close", compact=True)
+                yield Static(CLOSE_HINT + " · ↑↓ scroll", classes="dim")
 
     @on(Button.Pressed, "#text-close")
     def action_close(self) -> None:

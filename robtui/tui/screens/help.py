@@ -39,7 +39,9 @@ class HelpScreen(ModalScreen[None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog wide", id="help"):
-            yield Label(Text("Workbench keys", style="bold"))
+            title = Text("Workbench keys", style="bold")
+            title.append("   esc, ? or enter closes · ↑↓ pgup pgdn scroll", style="dim")
+            yield Label(title)
             with VerticalScroll(classes="dialog-list"):
                 yield Static(key_table())
                 answers = Text("\nAnswer keys: ", style="bold")
@@ -54,6 +56,9 @@ class HelpScreen(ModalScreen[None]):
                     "reviewer's answers are never shown here: only the review's lead sees the "
                     "comparison."
                 )
+
+    def on_mount(self) -> None:
+        self.query_one(VerticalScroll).focus()  # arrows and page keys scroll at once
 
     def action_close(self) -> None:
         self.dismiss(None)

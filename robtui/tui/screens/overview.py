@@ -14,8 +14,9 @@ from textual.widgets import DataTable, Static
 from textual.widgets.data_table import CellDoesNotExist
 
 from robtui.core.model import OVERALL
-from robtui.tui.palette import cell_badge
+from robtui.tui.palette import LABELS, cell_badge
 from robtui.tui.session import (
+    FILE_PROBLEMS,
     SECOND_LOOK,
     STATUS_COMPLETE,
     STATUS_FILTERS,
@@ -33,6 +34,15 @@ STATUS_TEXT = {
     STATUS_COMPLETE: Text("✓ complete", style="bold"),
     STATUS_UNREADABLE: Text("⚠ unreadable", style="bold reverse"),
 }
+STATUS_MARK = {  # the compact column: one mark, explained by the legend line
+    STATUS_NOT_STARTED: Text("○", style="dim"),
+    "draft": Text("◐", style="bold"),
+    STATUS_COMPLETE: Text("✓", style="bold"),
+    STATUS_UNREADABLE: Text("⚠", style="bold reverse"),
+}
+OVERRIDE_MARK = "*"
+# (minimum terminal width, layout): the columns are laid out again when the width crosses one
+LAYOUTS = ((0, "narrow"), (120, "medium"), (150, "wide"))
 
 
 def _short(text: str, width: int) -> str:
@@ -57,6 +67,8 @@ class OverviewScreen(Screen[None]):
         self.session = session
         self.filter = "all"
         self.rows: dict[str, ResultRow] = {}
+        self.layout_name = ""
+        self.widths = {"study": 24, "result": 28}
 
     def compose(self) -> ComposeResult:
         review = self.session.review
@@ -71,19 +83,40 @@ class OverviewScreen(Screen[None]):
             yield Static(title, id="overview-title")
             yield Static("", id="overview-filter")
             yield DataTable(id="results", cursor_type="row", zebra_stripes=True)
+            yield Static("", id="overview-legend")
             yield Static("", id="overview-detail")
         yield PreparationBar()
         yield KeyHints()
 
     def on_mount(self) -> None:
+        self._lay_out(self.app.size.width)
+        self.query_one("#results", DataTable).focus()
+
+    def on_resize(self, event) -> None:
+        self._lay_out(event.size.width)
+
+    def _lay_out(self, width: int) -> None:
+        """Columns for the terminal's width: narrow ones show marks a legend explains."""
+        name = next(n for least, n in reversed(LAYOUTS) if width >= least)
+        if name == self.layout_name:
+            return
+        self.layout_name = name
         table = self.query_one("#results", DataTable)
-        table.add_columns("Study", "Result", "Effect", "Progress")
+        table.clear(columns=True)
+        wide = name == "wide"
+        self.widths = {"study": 24, "result": 28} if wide else {"study": 18, "result": 20}
+        if name == "narrow":
+            self.widths = {"study": 13, "result": 12}
+        table.add_column("Study", width=self.widths["study"])
+        table.add_column("Result", width=self.widths["result"])
+        if name != "narrow":
+            table.add_column("Effect", width=10)
+        table.add_column("Progress", width=8 if name == "narrow" else 16)
         for domain_id in self.session.qset.domain_ids():
-            table.add_column(f"D{domain_id}", key=f"d{domain_id}")
-        table.add_column("Overall", key="overall")
-        table.add_column("Note", key="note")
+            table.add_column(f"D{domain_id}", key=f"d{domain_id}", width=6 if wide else 2)
+        table.add_column("Overall", key="overall", width=7)
+        table.add_column("Note", key="note", width=28 if wide else 4)
         self.refresh_rows()
-        table.focus()
 
     def on_screen_resume(self) -> None:
         self.refresh_rows()
@@ -109,11 +142,27 @@ class OverviewScreen(Screen[None]):
             line.append(f" {name} ({counts[name]}) ", style=style)
         line.append("   f: next filter", style="dim")
         self.query_one("#overview-filter", Static).update(line)
+        self.query_one("#overview-legend", Static).update(self._legend(len(shown)))
         self._show_detail()
 
-    @staticmethod
-    def _progress(row: ResultRow) -> Text:
-        text = STATUS_TEXT.get(row.status, Text(row.status)).copy()
+    def _legend(self, shown: int) -> Text:
+        """What the marks mean, and that the table scrolls when it holds more rows."""
+        text = Text()
+        for code in ("low", "some_concerns", "high"):
+            text.append_text(cell_badge(code, letter_only=True))
+            text.append(f" {LABELS[code]}  ")
+        text.append_text(cell_badge(None, letter_only=True))
+        text.append(f" not judged  {OVERRIDE_MARK} your override")
+        if self.layout_name == "narrow":
+            text.append("  ○ new ◐ draft ✓ complete")
+        table = self.query_one("#results", DataTable)
+        if shown > max(table.size.height - 1, 0) > 0:
+            text.append(f"\n{shown} results: ↑↓ pgup pgdn scroll", style="bold")
+        return text
+
+    def _progress(self, row: ResultRow) -> Text:
+        marks = STATUS_MARK if self.layout_name == "narrow" else STATUS_TEXT
+        text = marks.get(row.status, Text(row.status)).copy()
         if row.asked:
             text.append(f" {row.answered}/{row.asked}", style="")
         return text
@@ -122,28 +171,41 @@ class OverviewScreen(Screen[None]):
         name = name or self.filter
         if name == "all":
             return True
-        if name == "problems":
+        if name == FILE_PROBLEMS:
             return bool(row.problems)
         if name == SECOND_LOOK:
             return row.second_look is not None
         return row.status == name
 
     def _cells(self, row: ResultRow) -> list:
+        name = self.layout_name
+        wide = name == "wide"
+        result = row.result_label if wide or name == "medium" else row.result_id
         cells: list = [
-            Text(_short(row.study_label, 24)),
-            Text(_short(row.result_label, 28)),
-            row.effect,
-            self._progress(row),
+            Text(_short(row.study_label, self.widths["study"])),
+            Text(_short(result, self.widths["result"])),
         ]
+        if name != "narrow":
+            cells.append(row.effect)
+        cells.append(self._progress(row))
         for key in [*self.session.qset.domain_ids(), OVERALL]:
-            cells.append(cell_badge(row.final.get(key)) if row.final else Text("—", style="dim"))
-        if row.problems:
-            cells.append(Text("⚠ " + row.problems[0][:40], style="bold"))
-        elif row.second_look:
-            cells.append(Text("↻ second look: rules changed", style="bold"))
-        else:
-            cells.append("")
+            if not row.final:
+                cells.append(Text("—", style="dim"))
+                continue
+            badge = cell_badge(row.final.get(key), letter_only=not wide and key != OVERALL)
+            if key in row.overridden:
+                badge.append(OVERRIDE_MARK, style="bold")
+            cells.append(badge)
+        cells.append(self._note(row, wide))
         return cells
+
+    @staticmethod
+    def _note(row: ResultRow, wide: bool) -> Text:
+        if row.problems:
+            return Text("⚠ " + row.problems[0][:40] if wide else "⚠", style="bold")
+        if row.second_look:
+            return Text("↻ answering rules changed" if wide else "↻", style="bold")
+        return Text("")
 
     @property
     def selected_key(self) -> str | None:
@@ -163,10 +225,14 @@ class OverviewScreen(Screen[None]):
             detail.update(Text("No result matches this filter (f: next filter).", style="dim"))
             return
         text = Text(f"{row.study_label} — {row.result_label}", style="bold")
+        text.append(f"  ·  effect of {row.effect}", style="dim")
+        if row.overridden:
+            names = ", ".join("overall" if k == OVERALL else f"D{k}" for k in row.overridden)
+            text.append(f"\n{OVERRIDE_MARK} your override of the proposal: {names}")
         for problem in row.problems:
             text.append(f"\n⚠ {problem}")
         if row.second_look:
-            text.append(f"\n↻ second look: {row.second_look}")
+            text.append(f"\n↻ answering rules changed since: {row.second_look}")
         if not row.problems:
             text.append("\nenter: assess this result", style="dim")
         detail.update(text)

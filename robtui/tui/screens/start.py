@@ -36,7 +36,11 @@ class ReviewerScreen(Screen[str]):
                 "and you will not see theirs."
             )
             if self.listed:
-                yield Static("Reviewers named in this review (enter to choose):", classes="dim")
+                yield Static(
+                    "Reviewers named in this review (up/down, enter to choose; tab: type a "
+                    "name instead):",
+                    classes="dim",
+                )
                 yield OptionList(*[Option(n, id=n) for n in self.listed], id="reviewer-list")
             yield Input(
                 placeholder="or type your reviewer name and press enter", id="reviewer-name"
@@ -45,7 +49,10 @@ class ReviewerScreen(Screen[str]):
         yield KeyHints()
 
     def on_mount(self) -> None:
-        self.query_one("#reviewer-name", Input).focus()
+        if self.listed:
+            self.query_one("#reviewer-list", OptionList).focus()
+        else:
+            self.query_one("#reviewer-name", Input).focus()
 
     @on(OptionList.OptionSelected, "#reviewer-list")
     def _picked(self, event: OptionList.OptionSelected) -> None:
@@ -53,6 +60,12 @@ class ReviewerScreen(Screen[str]):
 
     @on(Input.Submitted, "#reviewer-name")
     def _typed(self, event: Input.Submitted) -> None:
+        if not event.value.strip() and self.listed:
+            self.query_one("#reviewer-error", Static).update(
+                "Type your reviewer name, or choose one from the list above (shift+tab, "
+                "then enter)."
+            )
+            return
         self._accept(event.value)
 
     def _accept(self, name: str) -> None:

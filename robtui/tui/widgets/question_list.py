@@ -29,6 +29,7 @@ class QuestionLine:
     suggestions: int
     best_score: float | None = None
     no_evidence_threshold: float | None = None
+    guidance: str = ""  # shown under the question when the reviewer asks for it (g)
 
 
 def asked_because(condition_text: str) -> str:
@@ -44,6 +45,8 @@ def question_prompt(line: QuestionLine) -> Table:
     body = Text(q.text)
     if q.condition_text:
         body.append(f"\n{asked_because(q.condition_text)}", style="italic dim")
+    if line.guidance:
+        body.append(f"\nGuidance: {line.guidance}", style="italic")
     if line.justification:
         shown = line.justification
         if len(shown) > 160:
@@ -59,7 +62,8 @@ def question_prompt(line: QuestionLine) -> Table:
         if line.best_score is not None:
             suggested += f", best {line.best_score:.2f}"
             low = line.no_evidence_threshold
-            if low is not None and line.best_score < low:
+            # compared as shown (two decimals), so 0.40 is never "below" a level of 0.40
+            if low is not None and round(line.best_score, 2) < round(low, 2):
                 suggested += " (below the ranker's no-evidence level: the report may not say)"
         details.append(suggested)
     if details:
@@ -109,6 +113,8 @@ def line_for(
     answers: Mapping[str, Any],
     suggestions: Sequence[Any] = (),
     no_evidence_threshold: float | None = None,
+    *,
+    show_guidance: bool = False,
 ) -> QuestionLine:
     answer = answers.get(question.id)
     return QuestionLine(
@@ -119,4 +125,5 @@ def line_for(
         suggestions=len(suggestions),
         best_score=max((s.score for s in suggestions), default=None),
         no_evidence_threshold=no_evidence_threshold,
+        guidance=question.guidance if show_guidance else "",
     )

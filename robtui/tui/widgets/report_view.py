@@ -140,6 +140,8 @@ class ReportView(OptionList):
             keep = self.highlighted
             self._build()
             self.highlighted = keep
+            if keep is not None:  # the sentence again a third of the way down
+                self.call_after_refresh(self._centre, keep)
 
     def mark(self, suggestions: Sequence[Any], quoted: Iterable[int]) -> None:
         """Show ``suggestions`` (rank order) and the ``quoted`` sentence indexes."""
