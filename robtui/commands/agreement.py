@@ -81,10 +81,10 @@ def run(args: argparse.Namespace) -> int:
     from robtui.core.comparison import review_agreement
 
     ws = open_workspace(args.folder)
-    qset = ws.qset
+    qset = ws.sets.combined()  # names of every domain in use (a review may mix designs)
     reviewers = ws.choose_reviewers(args.reviewers)
     pairs, problems = ws.pairs(reviewers, result=args.result)
-    stats = review_agreement(pairs, qset)
+    stats = review_agreement(pairs, ws.sets)
     stats["reviewers"] = list(reviewers)
     if args.json:
         print(json.dumps(stats, indent=2, ensure_ascii=False))

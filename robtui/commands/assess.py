@@ -212,8 +212,8 @@ def run(args: argparse.Namespace) -> int:
     # A review that names its reviewers refuses a misspelt one; an open review takes anyone.
     if not args.add_reviewer:
         folder.refuse_unlisted_reviewer(args.reviewer)
-    qset = ws.qset
-    stored = folder.load_assessment(args.reviewer, args.study, args.result)
+    qset = ws.question_set_for(args.study)
+    stored = ws.load_assessment(args.reviewer, args.study, args.result)
     a = stored or assessing.new_assessment(
         folder.review, args.study, args.result, args.reviewer, qset
     )

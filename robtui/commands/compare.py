@@ -103,10 +103,9 @@ def run(args: argparse.Namespace) -> int:
     from robtui.core.comparison import compare_pair
 
     ws = open_workspace(args.folder)
-    qset = ws.qset
     reviewers = ws.choose_reviewers(args.reviewers)
     pairs, problems = ws.pairs(reviewers, args.study, args.result)
-    comparisons = [compare_pair(p, qset) for p in pairs if p.comparable]
+    comparisons = [compare_pair(p, ws.question_set_for(p.study_id)) for p in pairs if p.comparable]
     stale = ws.stale_consensus(pairs)
     problems = problems + [
         f"{study} / {result}: consensus is stale, built on answers since changed "

@@ -69,12 +69,12 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     listing.set_defaults(func=run_list)
 
 
-def _existing(folder, args):
+def _existing(ws, args):
     from robtui.errors import InputError
 
-    folder.study_or_error(args.study)
-    folder.result_or_error(args.result)
-    record = folder.load_consensus(args.study, args.result)
+    ws.folder.study_or_error(args.study)
+    ws.folder.result_or_error(args.result)
+    record = ws.load_consensus(args.study, args.result)
     if record is None:
         raise InputError(
             f"no consensus record for {args.study} / {args.result}: start one with "
@@ -83,20 +83,8 @@ def _existing(folder, args):
     return record
 
 
-def _pair_of(folder, record):
-    from robtui.core.comparison import pair_assessments
-
-    a_name, b_name = record.reviewers
-    a = folder.load_assessment(a_name, record.study_id, record.result_id)
-    b = folder.load_assessment(b_name, record.study_id, record.result_id)
-    [pair] = pair_assessments(
-        [a] if a else [],
-        [b] if b else [],
-        reviewer_a=a_name,
-        reviewer_b=b_name,
-        expected=[(record.study_id, record.result_id)],
-    )
-    return pair
+def _pair_of(ws, record):
+    return ws.pair_of(record)
 
 
 def _summary(record, qset, pair=None) -> list[str]:
@@ -141,12 +129,12 @@ def run_start(args: argparse.Namespace) -> int:
     from robtui.errors import InputError
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
+    folder, qset = ws.folder, ws.question_set_for(args.study)
     reviewers = ws.choose_reviewers(args.reviewers)
     lead = args.lead or folder.review.lead
     if not lead:
         raise InputError("the review names no lead: give --lead NAME")
-    existing = folder.load_consensus(args.study, args.result)
+    existing = ws.load_consensus(args.study, args.result)
     if existing is not None:
         raise InputError(
             f"a consensus record for {args.study} / {args.result} exists already "
@@ -168,8 +156,8 @@ def run_settle(args: argparse.Namespace) -> int:
     from robtui.errors import InputError
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
-    record = _existing(folder, args)
+    folder, qset = ws.folder, ws.question_set_for(args.study)
+    record = _existing(ws, args)
     if args.take is not None:
         side = {"a": "a", "b": "b", record.reviewers[0]: "a", record.reviewers[1]: "b"}.get(
             args.take if args.take in record.reviewers else args.take.lower()
@@ -179,7 +167,7 @@ def run_settle(args: argparse.Namespace) -> int:
                 f"--take {args.take!r}: use a, b, {record.reviewers[0]} or {record.reviewers[1]}"
             )
         record = settle(
-            record, qset, args.question, side, note=args.note, pair=_pair_of(folder, record)
+            record, qset, args.question, side, note=args.note, pair=_pair_of(ws, record)
         )
     else:
         record = settle(record, qset, args.question, "new", args.answer.upper(), args.note)
@@ -193,8 +181,8 @@ def run_override(args: argparse.Namespace) -> int:
     from robtui.core.consensus import set_consensus_override
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
-    record = _existing(folder, args)
+    folder, qset = ws.folder, ws.question_set_for(args.study)
+    record = _existing(ws, args)
     record = set_consensus_override(record, qset, args.domain, args.judgement, args.reason)
     folder.save_consensus(record)
     print("\n".join(_summary(record, qset)))
@@ -206,9 +194,9 @@ def run_show(args: argparse.Namespace) -> int:
     from robtui.core.consensus import pending_questions
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
-    record = _existing(folder, args)
-    pair = _pair_of(folder, record)
+    qset = ws.question_set_for(args.study)
+    record = _existing(ws, args)
+    pair = _pair_of(ws, record)
     if args.json:
         from robtui.core.consensus import changed_since
 
@@ -226,9 +214,9 @@ def run_complete(args: argparse.Namespace) -> int:
     from robtui.core.consensus import complete_consensus
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
-    record = _existing(folder, args)
-    pair = _pair_of(folder, record)
+    folder, qset = ws.folder, ws.question_set_for(args.study)
+    record = _existing(ws, args)
+    pair = _pair_of(ws, record)
     record = complete_consensus(record, qset, pair)
     folder.save_consensus(record)
     print("\n".join(_summary(record, qset, pair)))
@@ -240,8 +228,8 @@ def run_reopen(args: argparse.Namespace) -> int:
     from robtui.core.consensus import reopen_consensus
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
-    record = reopen_consensus(_existing(folder, args))
+    folder, qset = ws.folder, ws.question_set_for(args.study)
+    record = reopen_consensus(_existing(ws, args))
     folder.save_consensus(record)
     print("\n".join(_summary(record, qset)))
     return 0
@@ -252,10 +240,9 @@ def run_list(args: argparse.Namespace) -> int:
     from robtui.core.consensus import pending_questions
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
-    records, problems = folder.consensus_records()
+    records, problems = ws.folder.consensus_records()
     for r in records:
-        pending = pending_questions(r, qset)
+        pending = pending_questions(r, ws.question_set_for(r.study_id))
         print(
             f"{r.study_id:<20} {r.result_id:<16} {r.status:<9} "
             f"{len(pending)} to settle  lead {r.lead}"

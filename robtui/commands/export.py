@@ -55,7 +55,7 @@ def run(args: argparse.Namespace) -> int:
     from robtui.export.writers import export_outcome
 
     ws = open_workspace(args.folder)
-    folder, qset = ws.folder, ws.qset
+    folder = ws.folder
     if args.result:
         results = [folder.result_or_error(args.result).id]
     else:
@@ -69,7 +69,7 @@ def run(args: argparse.Namespace) -> int:
             folder.exports_dir, args.out, folder.root
         )  # refuse a bad name before writing anything
     formats = list(dict.fromkeys(FORMATS if "all" in args.formats else args.formats))
-    assessments, problems = folder.assessments()
+    assessments, problems = ws.assessments()  # each checked against its study's set
     consensus, consensus_problems = folder.consensus_records()
     warn(problems + consensus_problems)
     for result_id in results:
@@ -79,7 +79,7 @@ def run(args: argparse.Namespace) -> int:
             try:
                 paths, outcome = export_outcome(
                     folder,
-                    qset,
+                    ws.sets,
                     result_id,
                     fmt,
                     name=name,

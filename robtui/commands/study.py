@@ -24,6 +24,13 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     add.add_argument(
         "--kind", choices=KINDS, default="report", help="kind of the given files (default report)"
     )
+    add.add_argument(
+        "--design",
+        metavar="DESIGN",
+        help="the trial's design, which chooses its question set: parallel, cluster, crossover "
+        "(the designs the sets declare) or a question-set id, also of the review's own sets in "
+        "DIR/question_sets/ (default: the review's question set)",
+    )
     add.set_defaults(func=run_add)
 
     more = actions.add_parser("report", help="add one more file to a study")
@@ -42,8 +49,11 @@ def run_add(args: argparse.Namespace) -> int:
     from robtui.store.review_folder import ReviewFolder
 
     folder = ReviewFolder.open(args.folder)
-    study = folder.add_study(args.study_id, args.label, args.report, kind=args.kind)
-    print(f"added study {study.id} ({study.label}) with {len(study.reports)} file(s)")
+    study = folder.add_study(
+        args.study_id, args.label, args.report, kind=args.kind, design=args.design
+    )
+    design = f", design {study.design}" if study.design else ""
+    print(f"added study {study.id} ({study.label}{design}) with {len(study.reports)} file(s)")
     return 0
 
 
@@ -57,12 +67,15 @@ def run_report(args: argparse.Namespace) -> int:
 
 
 def run_list(args: argparse.Namespace) -> int:
-    from robtui.store.review_folder import ReviewFolder
 
-    folder = ReviewFolder.open(args.folder)
+    from robtui.workspace import Workspace
+
+    ws = Workspace.open(args.folder)
+    folder = ws.folder
     problems = 0
     for study in folder.review.studies:
-        print(f"{study.id}  {study.label}")
+        qset = ws.question_set_for(study.id)
+        print(f"{study.id}  {study.label}  [{qset.id} v{qset.version}]")
         for report in study.reports:
             problem = folder.check_report(report)
             problems += problem is not None

@@ -69,6 +69,9 @@ class ReportFile(Record):
 class Study(Record):
     id: str = Field(pattern=_ID_PATTERN)
     label: str = Field(min_length=1)
+    # The trial's design, which chooses its question set: a design a set declares
+    # ("parallel", "cluster", "crossover") or a set id; None: the review's question_set.
+    design: str | None = Field(default=None, pattern=_ID_PATTERN)
     reports: list[ReportFile] = Field(default_factory=list)
 
 

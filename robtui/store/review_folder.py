@@ -248,16 +248,31 @@ class ReviewFolder:
         self._commit_review(changed)
 
     def add_study(
-        self, study_id: str, label: str, files: Sequence[Path], kind: str = "report"
+        self,
+        study_id: str,
+        label: str,
+        files: Sequence[Path],
+        kind: str = "report",
+        design: str | None = None,
     ) -> Study:
-        """Add a study, copying its files into reports/<study_id>/ with their sha256."""
+        """Add a study, copying its files into reports/<study_id>/ with their sha256.
+
+        ``design`` (a design a question set declares, or a set id) chooses the study's
+        question set; it must name a set the review can use.
+        """
         check_id(study_id, "study")
         if self.review.study(study_id) is not None:
             raise InputError(
                 f"study {study_id!r} is already in the review: choose another id, or add a "
                 "report to it with `robtui study report`"
             )
-        study = _validated(Study, {"id": study_id, "label": label}, f"study {study_id}")
+        fields = {"id": study_id, "label": label}
+        if design is not None:
+            from robtui.store.question_sets import review_catalogue
+
+            review_catalogue(self.root).resolve(design)  # InputError lists what can be used
+            fields["design"] = design
+        study = _validated(Study, fields, f"study {study_id}")
         reports = self._copy_reports(study_id, files, kind, existing=[])
         study.reports = reports
         changed = self.review.model_copy(deep=True)

@@ -76,11 +76,20 @@ class ReviewSession:
         self.workspace = folder if isinstance(folder, Workspace) else Workspace(folder)
         self.folder = self.workspace.folder
         self.reviewer = check_reviewer_name(reviewer)
-        self.qset: QuestionSet = self.workspace.qset
+        self.qset: QuestionSet = self.workspace.qset  # the review's default set
         # Read once: the rules shown are the ones every save of this session is stamped with.
         self.rules: RuleBook | None
         self.rules_unavailable: str | None
         self.rules, self.rules_unavailable = self.workspace.rules_safely()
+
+    def qset_for(self, study_id: str) -> QuestionSet:
+        """The question set a study is assessed with (chosen by its design)."""
+        return self.workspace.question_set_for(study_id)
+
+    @property
+    def sets(self):
+        """Every study's question set (robtui.core.review_sets.ReviewSets)."""
+        return self.workspace.sets
 
     @property
     def review(self):
@@ -118,7 +127,7 @@ class ReviewSession:
         status, effect, final, answered, asked = STATUS_NOT_STARTED, result.effect, {}, 0, 0
         problems = report_problems
         try:
-            assessment = self.folder.load_assessment(self.reviewer, study.id, result.id)
+            assessment = self.workspace.load_assessment(self.reviewer, study.id, result.id)
         except RobtuiError as error:
             assessment = None
             status, problems = STATUS_UNREADABLE, (str(error), *report_problems)
@@ -127,7 +136,7 @@ class ReviewSession:
         if assessment is not None:
             status, effect, final = assessment.status, assessment.effect, dict(assessment.final)
             overridden = tuple(assessment.overrides)
-            answered, asked = assessment_progress(assessment, self.qset)
+            answered, asked = assessment_progress(assessment, self.qset_for(study.id))
             second_look = self.second_look(assessment)
         return ResultRow(
             study_id=study.id,
@@ -169,7 +178,7 @@ class ReviewSession:
 
         Raises DataFileError when the file is unreadable (it is left untouched).
         """
-        assessment = self.folder.load_assessment(self.reviewer, study_id, result_id)
+        assessment = self.workspace.load_assessment(self.reviewer, study_id, result_id)
         if assessment is None:
             return None
         return AssessmentSession(self, assessment)
@@ -178,9 +187,8 @@ class ReviewSession:
         """Begin a new assessment, with the result's effect of interest, and save it."""
         if self.folder.load_assessment(self.reviewer, study_id, result_id) is not None:
             raise InputError(f"{self.reviewer} has already started {study_id} / {result_id}")
-        assessment = assessing.new_assessment(
-            self.review, study_id, result_id, self.reviewer, self.qset
-        )
+        qset = self.qset_for(study_id)
+        assessment = assessing.new_assessment(self.review, study_id, result_id, self.reviewer, qset)
         session = AssessmentSession(self, assessment)
         session.save()
         return session
@@ -207,7 +215,7 @@ class ReviewSession:
         Raises DataFileError when the file is unreadable (it is left untouched).
         """
         self.require_lead()
-        return self.folder.load_consensus(study_id, result_id)
+        return self.workspace.load_consensus(study_id, result_id)
 
     def save_consensus(self, consensus: Consensus) -> Path:
         """Write a consensus record (atomic), apart from both reviewers' files; lead only."""
@@ -236,7 +244,7 @@ class AssessmentSession:
 
     @property
     def qset(self) -> QuestionSet:
-        return self.review_session.qset
+        return self.review_session.qset_for(self.assessment.study_id)
 
     @property
     def study(self):

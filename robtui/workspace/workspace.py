@@ -1,4 +1,4 @@
-"""Workspace: one review folder opened with its question set and answering rules."""
+"""Workspace: one review folder opened with its question sets and answering rules."""
 
 from __future__ import annotations
 
@@ -6,20 +6,78 @@ from pathlib import Path
 
 from robtui.core.comparison import AssessmentPair, pair_assessments
 from robtui.core.consensus import changed_since
+from robtui.core.model import Assessment, Consensus
 from robtui.core.questions import QuestionSet
+from robtui.core.review_sets import ReviewSets
 from robtui.core.rules import RuleBook
-from robtui.store.question_sets import review_question_set
+from robtui.errors import DataFileError
+from robtui.store.question_sets import QUESTION_SETS_DIR, review_question_sets
 from robtui.store.review_folder import ReviewFolder
 from robtui.store.rules_file import load_folder_rules, load_rules_safely
 from robtui.workspace.reviewers import choose_reviewers
 
 
 class Workspace:
-    """A review opened for work: the folder, its question set, its rules (read on demand)."""
+    """A review opened for work: the folder, the question set of each study (``sets``: the
+    review's own set files and the bundled ones, chosen by each study's design), the review's
+    default set (``qset``) and its answering rules (read on demand)."""
 
     def __init__(self, folder: ReviewFolder) -> None:
         self.folder = folder
-        self.qset: QuestionSet = review_question_set(folder)
+        self.sets: ReviewSets = review_question_sets(folder)
+        self.qset: QuestionSet = self.sets.default
+
+    def question_set_for(self, study_id: str) -> QuestionSet:
+        """The set a study is assessed with (its design's, else the review's)."""
+        return self.sets.of(study_id)
+
+    # -- records checked against their study's set -----------------------------------------------
+    def record_problem(self, record: Assessment | Consensus) -> str | None:
+        """Why a stored assessment or consensus record cannot be used with its study's set
+        (made with another set or version), or None."""
+        qset = self.question_set_for(record.study_id)
+        if (record.question_set, str(record.question_set_version)) == (qset.id, str(qset.version)):
+            return None
+        who = f"{record.reviewer}'s assessment" if isinstance(record, Assessment) else "consensus"
+        return (
+            f"{who} of {record.study_id} / {record.result_id} was made with question set "
+            f"{record.question_set} version {record.question_set_version}, but the study now "
+            f"uses {qset.id} version {qset.version}: restore that set (a review's own sets live "
+            f"in {QUESTION_SETS_DIR}/) or the study's design, or assess the result again"
+        )
+
+    def load_assessment(self, reviewer: str, study_id: str, result_id: str) -> Assessment | None:
+        """One stored assessment, checked against its study's set (DataFileError if it does
+        not match; the file is left untouched)."""
+        found = self.folder.load_assessment(reviewer, study_id, result_id)
+        if found is not None:
+            self._require_usable(found, self.folder.assessment_path(reviewer, study_id, result_id))
+        return found
+
+    def load_consensus(self, study_id: str, result_id: str) -> Consensus | None:
+        """The consensus record of a result, checked likewise."""
+        found = self.folder.load_consensus(study_id, result_id)
+        if found is not None:
+            self._require_usable(found, self.folder.consensus_path(study_id, result_id))
+        return found
+
+    def assessments(self, reviewer: str | None = None) -> tuple[list[Assessment], list[str]]:
+        """Stored assessments (one reviewer's or all) that match their study's set, and the
+        problems of the rest (unreadable, or made with another set): reported, never hidden."""
+        found, problems = self.folder.assessments(reviewer)
+        usable = []
+        for a in found:
+            problem = self.record_problem(a)
+            if problem is None:
+                usable.append(a)
+            else:
+                problems.append(problem)
+        return usable, problems
+
+    def _require_usable(self, record: Assessment | Consensus, path: Path) -> None:
+        problem = self.record_problem(record)
+        if problem is not None:
+            raise DataFileError(f"{path}: {problem}")
 
     @classmethod
     def open(cls, root: Path) -> Workspace:
@@ -73,13 +131,20 @@ class Workspace:
         wanted = set(expected)
         sides, problems = [], []
         for name in reviewers:
-            found, trouble = self.folder.assessments(name)
+            found, trouble = self.assessments(name)
             sides.append([x for x in found if (x.study_id, x.result_id) in wanted])
             problems += trouble
         pairs = pair_assessments(
             sides[0], sides[1], reviewer_a=reviewers[0], reviewer_b=reviewers[1], expected=expected
         )
         return pairs, problems
+
+    def pair_of(self, record: Consensus) -> AssessmentPair:
+        """The two reviewers' assessments a consensus record was built from, paired."""
+        [pair], problems = self.pairs(tuple(record.reviewers), record.study_id, record.result_id)
+        if problems:
+            raise DataFileError("; ".join(problems))
+        return pair
 
     def stale_consensus(self, pairs: list[AssessmentPair]) -> dict[tuple[str, str], list[str]]:
         """(study, result) -> what a reviewer changed since the consensus of that pair took
@@ -88,7 +153,7 @@ class Workspace:
         for p in pairs:
             record = self.folder.load_consensus(p.study_id, p.result_id)
             if record is not None and set(record.reviewers) == {p.reviewer_a, p.reviewer_b}:
-                changes = changed_since(record, p, self.qset)
+                changes = changed_since(record, p, self.question_set_for(p.study_id))
                 if changes:
                     stale[p.key] = changes
         return stale

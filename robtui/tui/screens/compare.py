@@ -197,7 +197,7 @@ class CompareScreen(Screen[None]):
         """Differences and the consensus state, for the pair's line in the list."""
         if not pair.comparable:
             return Text("\nnot comparable yet", style="dim")
-        n = compare_pair(pair, self.session.qset).n_differences
+        n = compare_pair(pair, self.session.qset_for(pair.study_id)).n_differences
         text = Text(f"\n{n} difference{'s' if n != 1 else ''}")
         try:
             saved = self.session.load_consensus(pair.study_id, pair.result_id)
@@ -236,7 +236,7 @@ class CompareScreen(Screen[None]):
             self._load_consensus(None)
             return
         pair = self.pairs[index]
-        detail.update(pair_detail(pair, self.session.qset))
+        detail.update(pair_detail(pair, self.session.qset_for(pair.study_id)))
         self._load_consensus(pair)
 
     # -- consensus -----------------------------------------------------------------------
@@ -261,7 +261,7 @@ class CompareScreen(Screen[None]):
                     )
             elif self.consensus_problem is None:
                 lead = self.session.reviewer
-                self.consensus = start_consensus(pair, lead, self.session.qset)
+                self.consensus = start_consensus(pair, lead, self.session.qset_for(pair.study_id))
         self._refresh_consensus()
 
     def to_settle(self) -> list[str]:
@@ -270,10 +270,10 @@ class CompareScreen(Screen[None]):
         pair, consensus = self.pair, self.consensus
         if pair is None or not pair.comparable or consensus is None:
             return []
-        wanted = {q.question_id for q in differences(pair, self.session.qset) if q.differs}
-        wanted |= set(pending_questions(consensus, self.session.qset))
+        wanted = {q.question_id for q in differences(pair, self.session.qset_for(pair.study_id)) if q.differs}
+        wanted |= set(pending_questions(consensus, self.session.qset_for(consensus.study_id)))
         wanted |= {q for q, d in consensus.decisions.items() if d.source != "agreed"}
-        order = [q.id for q in self.session.qset.questions(consensus.effect)]
+        order = [q.id for q in self.session.qset_for(consensus.study_id).questions(consensus.effect)]
         return [q for q in order if q in wanted]
 
     def _refresh_consensus(self, keep: str | None = None) -> None:
@@ -286,7 +286,7 @@ class CompareScreen(Screen[None]):
             listing.set_options([])
             table.update("")
             return
-        qset = self.session.qset
+        qset = self.session.qset_for(self.pair.study_id)
         text = Text("Consensus: ", style="bold")
         if self.consensus_problem:
             text.append(f"⚠ {self.consensus_problem}")
@@ -351,7 +351,8 @@ class CompareScreen(Screen[None]):
         if qid is None:
             self.notify("nothing to settle here: the reviewers agree", severity="warning")
             return
-        pair, consensus, qset = self.pair, self.consensus, self.session.qset
+        pair, consensus = self.pair, self.consensus
+        qset = self.session.qset_for(pair.study_id)
         question = qset.question(qid, consensus.effect)
         by_side = path_answers(
             qset, consensus.effect, (pair.a if source == "a" else pair.b).answers
@@ -399,7 +400,7 @@ class CompareScreen(Screen[None]):
             if consensus.status == "complete":
                 changed = reopen_consensus(consensus)
             else:
-                changed = complete_consensus(consensus, self.session.qset, pair)
+                changed = complete_consensus(consensus, self.session.qset_for(pair.study_id), pair)
             self.session.save_consensus(changed)
         except RobtuiError as error:
             self.notify(str(error), severity="warning")

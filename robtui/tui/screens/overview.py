@@ -112,7 +112,8 @@ class OverviewScreen(Screen[None]):
         if name != "narrow":
             table.add_column("Effect", width=10)
         table.add_column("Progress", width=8 if name == "narrow" else 16)
-        for domain_id in self.session.qset.domain_ids():
+        # every domain of the sets in use: a study without a domain gets a blank cell
+        for domain_id in self.session.sets.domain_ids():
             table.add_column(f"D{domain_id}", key=f"d{domain_id}", width=6 if wide else 2)
         table.add_column("Overall", key="overall", width=7)
         table.add_column("Note", key="note", width=28 if wide else 4)
@@ -188,7 +189,11 @@ class OverviewScreen(Screen[None]):
         if name != "narrow":
             cells.append(row.effect)
         cells.append(self._progress(row))
-        for key in [*self.session.qset.domain_ids(), OVERALL]:
+        own = set(self.session.qset_for(row.study_id).domain_ids())
+        for key in [*self.session.sets.domain_ids(), OVERALL]:
+            if key != OVERALL and key not in own:
+                cells.append(Text(""))  # the study's set has no such domain
+                continue
             if not row.final:
                 cells.append(Text("—", style="dim"))
                 continue
