@@ -33,13 +33,14 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 def run(args: argparse.Namespace) -> int:
     from robtui.export.safety import export_path
     from robtui.files import write_text_atomic
-    from robtui.store.review_folder import ReviewFolder
+    from robtui.commands._common import open_workspace
     from robtui.workspace.evidence_map import EXPORT_FORMATS, evidence_map, render_text
     from robtui.workspace.preparing import review_effects
 
-    folder = ReviewFolder.open(args.folder)
+    workspace = open_workspace(args.folder)
+    folder = workspace.folder
     effect = args.effect or review_effects(folder)[0]
-    emap = evidence_map(folder, effect)
+    emap = evidence_map(folder, effect, workspace.qset)
     print(render_text(emap))
     if emap.prepared_fraction < 1.0:
         print(f"\n{1 - emap.prepared_fraction:.0%} of the cells are not prepared yet: run "

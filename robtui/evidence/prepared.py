@@ -21,12 +21,13 @@ from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
 from robtui.reading.cache import cache_dir, reader_fingerprint
 
-PREPARED_SCHEMA_VERSION = 1
+PREPARED_SCHEMA_VERSION = 2
 SUGGESTIONS_KEPT = 5  # what the workbench shows per question
 # Calibrated score from which a suggestion counts as strong evidence in the evidence map:
 # more likely than not to carry the question's evidence (scores are Platt-calibrated, see
 # docs/evidence-ranker.md). Our rule of thumb, no source.
 STRONG_SCORE = 0.5
+DEFAULT_SET = "rob2-parallel"  # what the ranker ranks when no question set is given
 
 
 class PreparedSuggestion(BaseModel):
@@ -65,6 +66,7 @@ class PreparedRanking(BaseModel):
     schema_version: int = PREPARED_SCHEMA_VERSION
     sha256: str = Field(pattern=r"^[0-9a-f]{64}$")
     effect: str
+    question_set: str = DEFAULT_SET  # the question set whose questions were ranked
     ranker: str  # ranker_fingerprint() at preparation
     pages: int | None = None
     sentences: int = 0
@@ -95,21 +97,26 @@ def prepared_dir() -> Path:
     return cache_dir() / "prepared"
 
 
-def _entry(sha256: str, effect: str) -> Path:
-    return prepared_dir() / f"{sha256}-{effect}-{ranker_fingerprint()}-s{PREPARED_SCHEMA_VERSION}.json"
+def _entry(sha256: str, effect: str, question_set: str = DEFAULT_SET) -> Path:
+    return prepared_dir() / (f"{sha256}-{effect}-{question_set}-{ranker_fingerprint()}"
+                             f"-s{PREPARED_SCHEMA_VERSION}.json")
 
 
-def has_prepared(sha256: str, effect: str) -> bool:
-    return _entry(sha256, effect).is_file()
+def has_prepared(sha256: str, effect: str, question_set: str = DEFAULT_SET) -> bool:
+    return _entry(sha256, effect, question_set).is_file()
 
 
-def load_prepared(sha256: str, effect: str) -> PreparedRanking | None:
-    """The prepared suggestions for these bytes and effect; None on a miss or a damaged entry."""
+def load_prepared(sha256: str, effect: str, question_set: str = DEFAULT_SET
+                  ) -> PreparedRanking | None:
+    """The prepared suggestions for these bytes, effect and question set; None on a miss or a
+    damaged entry."""
     try:
-        entry = PreparedRanking.model_validate_json(_entry(sha256, effect).read_bytes())
+        entry = PreparedRanking.model_validate_json(
+            _entry(sha256, effect, question_set).read_bytes())
     except (OSError, ValueError, ValidationError):
         return None
-    if entry.sha256 != sha256 or entry.effect != effect or entry.ranker != ranker_fingerprint():
+    if (entry.sha256, entry.effect, entry.question_set, entry.ranker) != (
+            sha256, effect, question_set, ranker_fingerprint()):
         return None
     return entry
 
@@ -119,14 +126,17 @@ def store_prepared(entry: PreparedRanking) -> None:
     from robtui.files import write_text_atomic
 
     try:
-        write_text_atomic(_entry(entry.sha256, entry.effect), entry.model_dump_json())
+        write_text_atomic(_entry(entry.sha256, entry.effect, entry.question_set),
+                          entry.model_dump_json())
     except OSError:
         pass
 
 
-def rank_for_preparation(ranker, document, effect: str) -> PreparedRanking:
-    """Rank ``document`` for every question of ``effect`` as the workbench shows them."""
-    ranking = ranker.rank(document, effect=effect, top=SUGGESTIONS_KEPT, spread=True)
+def rank_for_preparation(ranker, document, effect: str, question_set=None) -> PreparedRanking:
+    """Rank ``document`` for every question of ``effect`` (of ``question_set``, default the
+    ranker's) as the workbench shows them."""
+    ranking = ranker.rank(document, effect=effect, top=SUGGESTIONS_KEPT, spread=True,
+                          question_set=question_set)
     questions = {}
     for qid, items in ranking.items():
         questions[qid] = PreparedQuestion(
@@ -142,6 +152,7 @@ def rank_for_preparation(ranker, document, effect: str) -> PreparedRanking:
         )
     return PreparedRanking(
         sha256=document.sha256, effect=effect, ranker=ranker_fingerprint(),
+        question_set=question_set.id if question_set is not None else DEFAULT_SET,
         pages=document.pages, sentences=len(document.sentences),
         no_evidence_threshold=float(ranker.no_evidence_threshold), questions=questions,
     )
