@@ -31,9 +31,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from robtui.commands._common import open_workspace
     from robtui.export.safety import export_path
     from robtui.files import write_text_atomic
-    from robtui.commands._common import open_workspace
     from robtui.workspace.evidence_map import EXPORT_FORMATS, evidence_map, render_text
     from robtui.workspace.preparing import review_effects
 
