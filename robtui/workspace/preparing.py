@@ -148,9 +148,12 @@ _worker_problem: str | None = None
 
 
 def _init_worker() -> None:
-    """Pool initializer: Ctrl-C is the parent's to handle; the ranker is loaded once."""
+    """Pool initializer: Ctrl-C is the parent's to handle; the ranker is loaded once; the PDF
+    library's warnings about odd drawing commands stay out of the progress display."""
+    import logging
     import signal
 
+    logging.getLogger("pdfminer").setLevel(logging.ERROR)
     from robtui.errors import RobtuiError
 
     signal.signal(signal.SIGINT, signal.SIG_IGN)

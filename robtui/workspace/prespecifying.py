@@ -33,8 +33,14 @@ _VERBS = (" was ", " is ", " will be ", " were ", " are ", " included ", " inclu
           " will include ")
 _MEASURE_TAILS = ("measured", "recorded", "assessed", "collected", "completed", "taken",
                   "made", "reported", "rated", "derived")
-REGISTRY_KINDS = ("registry",)
-PROTOCOL_KINDS = ("protocol",)
+def is_registry_file(kind: str, path: Path) -> bool:
+    """A registry record: added as one (kind naming a registry), or a JSON / XML file."""
+    return "registry" in kind or path.suffix.lower() in (".json", ".xml")
+
+
+def is_plan_file(kind: str) -> bool:
+    """A protocol or statistical analysis plan: its declared outcomes were planned."""
+    return "protocol" in kind or "plan" in kind
 
 
 @dataclass
@@ -168,13 +174,13 @@ def read_study_sources(folder, study) -> StudySources:
             sources.notes.append(problem)
             continue
         try:
-            if report.kind in REGISTRY_KINDS:
+            if is_registry_file(report.kind, path):
                 if path.suffix.lower() not in (".json", ".xml"):
                     sources.notes.append(f"{report.path}: a registry record robtui reads is the "
                                          "registry's JSON or XML export; read this one yourself")
                     continue
                 records.append((read_registry_record(path), read_document(path)))
-            elif report.kind in PROTOCOL_KINDS:
+            elif is_plan_file(report.kind):
                 document = read_document(path)
                 for kind, measure, passage in outcomes_in_document(
                         document, f"protocol {Path(report.path).name}"):
