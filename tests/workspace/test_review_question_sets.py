@@ -1,0 +1,210 @@
+"""A question set of the review's own (DIR/question_sets/*.toml), chosen by a study's design,
+taken through assess, compare, consensus and export by the commands as they are: a new variant
+is a data file, with no code change (issue 15's target)."""
+
+from __future__ import annotations
+
+import json
+import shutil
+from pathlib import Path
+
+import pytest
+
+from robtui.cli import main
+from robtui.core import algorithm
+from robtui.errors import DataFileError, InputError
+from robtui.paths import bundled_dir
+from robtui.store.question_sets import review_catalogue
+from robtui.store.review_folder import ReviewFolder
+from robtui.workspace import Workspace
+
+# An invented extra domain (not a published one): a placeholder a review team might add.
+EXTRA_DOMAIN = '''
+[[domain]]
+id = "1x"
+name = "Bias from an invented extra source (test placeholder)"
+short_name = "Extra"
+key = "x"
+
+[[domain.question]]
+id = "1x.1"
+text = "Was the invented extra source of bias avoided?"
+short = "Extra source avoided"
+options = ["Y", "PY", "PN", "N", "NI"]
+guidance = "Invented for a test."
+
+[[domain.table]]
+name = "Extra"
+
+[[domain.table.row]]
+when = { q = "1x.1", is = ["Y", "PY"] }
+then = "low"
+because = "avoided"
+
+[[domain.table.row]]
+when = { q = "1x.1", is = ["NI"] }
+then = "some_concerns"
+because = "no information"
+
+[[domain.table.row]]
+when = { q = "1x.1", is = ["PN", "N"] }
+then = "high"
+because = "not avoided"
+
+'''
+
+
+def write_extra_set(root: Path, version: str = "1") -> Path:
+    """The bundled parallel set with another id, a design of its own and one extra domain."""
+    text = (bundled_dir("signalling_questions") / "rob2-parallel.toml").read_text("utf-8")
+    text = text.replace('id = "rob2-parallel"', 'id = "team-extra"', 1)
+    text = text.replace('version = "1"', f'version = "{version}"', 1)
+    text = text.replace('design = "parallel"', 'design = "stepped-wedge"', 1)
+    second = text.index("\n[[domain]]\n", text.index("\n[[domain]]\n") + 1) + 1
+    text = text[:second] + EXTRA_DOMAIN.lstrip() + "\n" + text[second:]
+    path = root / "question_sets" / "team-extra.toml"
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(text, "utf-8")
+    return path
+
+
+def run(capsys, *args) -> tuple[int, str, str]:
+    code = main([str(a) for a in args])
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+@pytest.fixture()
+def review(tmp_path, capsys) -> Path:
+    root = tmp_path / "review"
+    report = tmp_path / "report.txt"
+    report.write_text("Methods. Schools were randomised in steps by a computer list.\n", "utf-8")
+    assert run(capsys, "init", root, "--title", "Own set", "--lead", "lee",
+               "--reviewer", "ana", "--reviewer", "ben")[0] == 0
+    assert run(capsys, "result", "add", root, "--id", "R1", "--outcome", "Absence")[0] == 0
+    assert run(capsys, "study", "add", root, "--id", "P1", "--label", "Parallel one",
+               "--report", report)[0] == 0
+    write_extra_set(root)
+    code, out, err = run(capsys, "study", "add", root, "--id", "W1", "--label", "Wedge one",
+                         "--report", report, "--design", "stepped-wedge")
+    assert code == 0, err
+    assert "design stepped-wedge" in out
+    return root
+
+
+def complete_answers(qset, effect: str, pick) -> dict[str, str]:
+    """Answers to every question asked on the path ``pick`` (question -> code) leads along."""
+    answers: dict[str, str] = {}
+    for domain_id in qset.domain_ids():
+        domain = qset.domain(domain_id, effect)
+        while True:
+            missing = [q for q in algorithm.asked_questions(domain, answers) if q.id not in answers]
+            if not missing:
+                break
+            answers[missing[0].id] = pick(missing[0])
+    return answers
+
+
+def assess(capsys, root: Path, reviewer: str, study: str, answers: dict[str, str]) -> None:
+    pairs = [f"{q}={c}" for q, c in answers.items()]
+    code, _, err = run(capsys, "assess", root, "--reviewer", reviewer, "--study", study,
+                       "--result", "R1", *pairs, "--complete")
+    assert code == 0, err
+
+
+def test_an_own_set_goes_through_assess_compare_consensus_and_export(review, capsys):
+    ws = Workspace.open(review)
+    extra = ws.question_set_for("W1")
+    assert extra.id == "team-extra" and "1x" in extra.domain_ids()
+    assert ws.question_set_for("P1").id == "rob2-parallel"
+    assert extra.domain_keys()["x"] == "1x"
+
+    def first(q):
+        return q.options[0]
+
+    ana = complete_answers(extra, "assignment", first)
+    ben = dict(ana, **{"1x.1": "N"})  # the two reviewers differ on the new question only
+    assess(capsys, review, "ana", "W1", ana)
+    assess(capsys, review, "ben", "W1", ben)
+    stored = ReviewFolder.open(review).load_assessment("ana", "W1", "R1")
+    assert (stored.question_set, stored.question_set_version) == ("team-extra", "1")
+    assert stored.final["1x"] == "low" and "1x" in stored.proposed
+
+    code, out, err = run(capsys, "compare", review, "--study", "W1", "--json")
+    assert code == 0, err
+    [pair] = json.loads(out)["pairs"]
+    differing = [q["id"] for q in pair["questions"] if q["differs"]]
+    assert differing == ["1x.1"]
+
+    code, out, err = run(capsys, "agreement", review, "--json")
+    assert code == 0, err
+    assert "1x" in json.loads(out)["domains"] and "1x.1" in json.loads(out)["questions"]
+
+    target = ["--study", "W1", "--result", "R1"]
+    assert run(capsys, "consensus", "start", review, *target)[0] == 0
+    code, _, err = run(capsys, "consensus", "settle", review, *target, "--question", "1x.1",
+                       "--take", "ben", "--note", "the report says steps were not concealed")
+    assert code == 0, err
+    code, _, err = run(capsys, "consensus", "complete", review, *target)
+    assert code == 0, err
+    record = json.loads((review / "consensus" / "W1--R1.json").read_text("utf-8"))
+    assert record["question_set"] == "team-extra" and record["final"]["1x"] == "high"
+
+    code, out, err = run(capsys, "export", review, "--format", "csv", "--format", "md")
+    assert code == 0, err
+    judgements = (review / "exports" / "R1-judgements.csv").read_text("utf-8-sig").splitlines()
+    assert judgements[0].startswith("study,label,D1,D1x,D2,D3,D4,D5,Overall"), judgements[0]
+    rows = {line.split(",")[0]: line.split(",") for line in judgements[1:]}
+    assert rows["W1"][3] == "high" and rows["P1"][3] == ""  # no cell where a set has no 1x
+    answers = (review / "exports" / "R1-answers.csv").read_text("utf-8-sig")
+    assert "W1,consensus,1x,1x.1,Was the invented extra source of bias avoided?,N" in answers
+    markdown = (review / "exports" / "R1.md").read_text("utf-8")
+    assert "| Wedge one | [S] Some concerns | [H] High |" in markdown
+
+
+def test_records_are_checked_against_their_studys_set(review, capsys):
+    ws = Workspace.open(review)
+    answers = complete_answers(ws.question_set_for("W1"), "assignment", lambda q: q.options[0])
+    assess(capsys, review, "ana", "W1", answers)
+    # The team edits the set and raises its version: the old assessment no longer fits.
+    write_extra_set(review, version="2")
+    ws = Workspace.open(review)
+    with pytest.raises(DataFileError, match="made with question set team-extra version 1, but "
+                       "the study now uses team-extra version 2"):
+        ws.load_assessment("ana", "W1", "R1")
+    found, problems = ws.assessments("ana")
+    assert found == [] and "version 1" in problems[0]
+    code, _, err = run(capsys, "assess", review, "--reviewer", "ana", "--study", "W1",
+                       "--result", "R1")
+    assert code == 2 and "assess the result again" in err
+
+
+def test_a_design_no_set_declares_is_refused_with_the_choices(review, capsys):
+    code, _, err = run(capsys, "study", "add", review, "--id", "X1", "--label", "X",
+                       "--design", "factorial")
+    assert code == 2
+    assert "no question set or design named 'factorial'" in err
+    assert "stepped-wedge" in err and "cluster" in err and "team-extra" in err
+    assert ReviewFolder.open(review).review.study("X1") is None
+
+
+def test_a_broken_or_clashing_own_set_is_named(review):
+    bad = review / "question_sets" / "broken.toml"
+    bad.write_text('[set]\nid = "broken"\n', "utf-8")
+    with pytest.raises(DataFileError, match=r"broken\.toml: top level: the file has no"):
+        Workspace.open(review)
+    bad.unlink()
+    shutil.copy(bundled_dir("signalling_questions") / "rob2-cluster.toml",
+                review / "question_sets" / "copy.toml")
+    with pytest.raises(DataFileError, match="is the id of a bundled set"):
+        review_catalogue(review)
+
+
+def test_review_toml_naming_an_unknown_design_names_the_study(review):
+    path = review / "review.toml"
+    path.write_text(path.read_text("utf-8").replace('design = "stepped-wedge"',
+                                                    'design = "nowhere"'), "utf-8")
+    with pytest.raises(DataFileError, match="study W1, design: no question set or design"):
+        Workspace.open(review)
+    with pytest.raises(InputError):
+        review_catalogue(review).resolve("nowhere")
