@@ -184,6 +184,12 @@ def set_consensus_override(
     return recompute_consensus(current.model_copy(update={"overrides": overrides}), qset)
 
 
+def remove_consensus_override(consensus: Consensus, qset, key: str) -> Consensus:
+    """Back to the algorithm's proposal for ``key`` (domain id or "overall")."""
+    overrides = {k: v for k, v in consensus.overrides.items() if k != key}
+    return recompute_consensus(consensus.model_copy(update={"overrides": overrides}), qset)
+
+
 def recompute_consensus(consensus: Consensus, qset) -> Consensus:
     """Proposals from the agreed answers by the algorithm; final = proposal unless overridden."""
     effective = path_answers(qset, consensus.effect, consensus.answers)

@@ -47,8 +47,12 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "j / k", "next / previous question"),
     KeyHelp("assessment", "1 … 5", "go to domain 1 … 5"),
     KeyHelp("assessment", "tab", "move between the report and the questions"),
-    KeyHelp("assessment", "] / [", "next / previous suggested sentence for the focused question "
-            "(best first, then spread over the report's sections)"),
+    KeyHelp(
+        "assessment",
+        "] / [",
+        "next / previous suggested sentence for the focused question "
+        "(best first, then spread over the report's sections)",
+    ),
     KeyHelp(
         "assessment", "q", "attach the report's highlighted sentence as a quote (again: detach)"
     ),
@@ -82,7 +86,22 @@ KEY_MAP: tuple[KeyHelp, ...] = (
         "settle the focused difference with reviewer A's / B's answer (a note is required)",
     ),
     KeyHelp("comparison", "n", "settle it with a new answer (a note is required)"),
-    KeyHelp("comparison", "c", "mark the consensus complete (nothing left to settle) / reopen"),
+    KeyHelp(
+        "comparison",
+        "o",
+        "override a consensus judgement (domain or overall) with a reason; again: change or "
+        "remove it",
+    ),
+    KeyHelp(
+        "comparison",
+        "c",
+        "mark the consensus complete (nothing left to settle) / reopen it (asks first)",
+    ),
+    KeyHelp(
+        "comparison",
+        "f",
+        "only the results that need the lead (stale consensus, then those to settle) / all",
+    ),
     KeyHelp("comparison", "escape", "back to the overview"),
 )
 

@@ -14,14 +14,19 @@ from .conftest import SIZE
 
 async def open_pair(pilot, pair) -> CompareScreen:
     """From the lead's overview: v, then the pair's result highlighted."""
-    await pilot.pause()
-    await pilot.press("v")
-    await pilot.pause()
-    screen = pilot.app.screen
-    assert isinstance(screen, CompareScreen)
+    screen = await open_comparison(pilot)
     screen.query_one("#pairs").highlighted = screen.pairs.index(pair)
     await pilot.pause()
     return screen
+
+
+async def open_comparison(pilot) -> CompareScreen:
+    """From the lead's overview: v opens the comparison."""
+    await pilot.pause()
+    await pilot.press("v")
+    await pilot.pause()
+    assert isinstance(pilot.app.screen, CompareScreen)
+    return pilot.app.screen
 
 
 async def test_lead_sees_both_sides_differences_first(demo_dir):
@@ -109,7 +114,23 @@ async def test_lead_settles_every_difference_and_completes_the_consensus(demo_di
         await pilot.pause()
         assert "✓ complete" in str(screen.query_one("#consensus-status").render())
         listed = screen.query_one("#pairs").get_option_at_index(screen.index).prompt
-        assert "✓ consensus" in listed.plain
+        assert "✓ done" in listed.plain
+        # reopening a complete consensus asks first: n keeps it complete, y reopens it
+        await pilot.press("c")
+        await pilot.pause()
+        assert app.screen is not screen
+        await pilot.press("n")
+        await pilot.pause()
+        assert app.screen is screen and screen.consensus.status == "complete"
+        assert ReviewFolder.open(demo_dir).load_consensus(pair.study_id, pair.result_id).status == (
+            "complete"
+        )
+        await pilot.press("c", "y")
+        await pilot.pause()
+        assert screen.consensus.status == "draft"
+        await pilot.press("c")  # completing needs no confirmation
+        await pilot.pause()
+        assert screen.consensus.status == "complete"
 
     saved = ReviewFolder.open(demo_dir).load_consensus(pair.study_id, pair.result_id)
     assert saved is not None and saved.status == "complete" and saved.lead == lead
@@ -149,3 +170,99 @@ async def test_an_unreadable_consensus_file_is_reported_and_left_alone(demo_dir)
         await pilot.press("c")
         await pilot.pause()
     assert path.read_text(encoding="utf-8") == "{ not json"
+
+
+async def test_the_queue_puts_results_to_settle_first_with_progress_and_one_line_rows(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_comparison(pilot)
+        assert isinstance(screen, CompareScreen)
+        ranks = [screen._state(p)[0] for p in screen.pairs]
+        assert ranks == sorted(ranks) and ranks[0] <= 1 and 3 in ranks
+        listing = screen.query_one("#pairs")
+        for i in range(listing.option_count):
+            assert "\n" not in listing.get_option_at_index(i).prompt.plain  # compact rows
+        title = str(screen.query_one("#compare-title").render())
+        total = len(screen.pairs)
+        assert f"of {total} results settled" in title and "to settle" in title
+        await pilot.press("f")  # only those that need the lead
+        await pilot.pause()
+        assert all(screen._state(p)[0] <= 1 for p in screen.pairs) and screen.pairs
+        assert len(screen.pairs) < total
+
+
+async def test_moving_to_another_result_puts_the_cursor_on_its_first_question(demo_dir):
+    from robtui.core.comparison import pending_questions
+
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    qset = builtin_question_set(folder.review.question_set)
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_comparison(pilot)
+        open_ = [i for i, p in enumerate(screen.pairs) if screen._state(p)[0] == 1]
+        assert len(open_) >= 2
+        listing = screen.query_one("#pairs")
+        listing.highlighted = open_[0]
+        await pilot.pause()
+        listing_q = screen.query_one("#differences")
+        listing_q.highlighted = listing_q.option_count - 1  # the last question of this result
+        await pilot.pause()
+        listing.highlighted = open_[1]
+        await pilot.pause()
+        pending = pending_questions(screen.consensus, qset)
+        assert screen.focused_question == (pending[0] if pending else screen.to_settle()[0])
+
+
+async def test_the_lead_overrides_a_consensus_judgement_with_a_reason(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_comparison(pilot)
+        index = next(i for i, p in enumerate(screen.pairs) if screen._state(p)[0] == 1)
+        screen.query_one("#pairs").highlighted = index
+        await pilot.pause()
+        pair = screen.pairs[index]
+        await pilot.press("o")
+        await pilot.pause()
+        await pilot.press("enter")  # the first judgement: domain 1
+        await pilot.pause()
+        proposed = screen.consensus.proposed["1"]
+        choices = ("low", "some_concerns", "high")
+        target = next(c for c in choices if c != proposed)
+        for _ in range(choices.index(target)):
+            await pilot.press("down")
+        await pilot.press("enter", *"allocation list was on the ward wall", "enter")
+        await pilot.pause()
+        assert app.screen is screen
+    saved = ReviewFolder.open(demo_dir).load_consensus(pair.study_id, pair.result_id)
+    assert saved.overrides["1"].judgement == target and saved.final["1"] == target
+    assert saved.overrides["1"].reason == "allocation list was on the ward wall"
+
+
+async def test_a_stale_consensus_is_flagged_on_the_screen(demo_dir):
+    from robtui.core import assessing
+
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    qset = builtin_question_set(folder.review.question_set)
+    records, _ = folder.consensus_records()
+    done = next(c for c in records if c.status == "complete")
+    b_name = done.reviewers[1]
+    b = folder.load_assessment(b_name, done.study_id, done.result_id)
+    qid = next(iter(assessing.path_answers(qset, b.effect, b.answers)))
+    old = b.answers[qid].response
+    new = next(o for o in qset.question(qid, b.effect).options if o != old)
+    b = assessing.mark_complete(assessing.set_response(assessing.reopen(b), qset, qid, new), qset)
+    folder.save_assessment(b)
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_comparison(pilot)
+        first = screen.pairs[0]
+        assert (first.study_id, first.result_id) == (done.study_id, done.result_id)
+        assert "stale" in screen.query_one("#pairs").get_option_at_index(0).prompt.plain
+        status = str(screen.query_one("#consensus-status").render())
+        assert "stale" in status and f"{b_name}: {qid} {old} -> {new}" in status

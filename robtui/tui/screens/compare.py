@@ -26,16 +26,27 @@ from textual.widgets.option_list import Option
 from robtui.core.assessing import path_answers
 from robtui.core.comparison import AssessmentPair, compare_pair, differences
 from robtui.core.consensus import (
+    asked_on_path,
+    changed_since,
     complete_consensus,
     pending_questions,
+    remove_consensus_override,
     reopen_consensus,
+    set_consensus_override,
     settle,
     start_consensus,
 )
 from robtui.core.model import OVERALL, Consensus
 from robtui.errors import RobtuiError
-from robtui.tui.palette import badge
-from robtui.tui.screens.dialogs import SettleChoice, SettleDialog
+from robtui.tui.palette import badge, cell_badge
+from robtui.tui.screens.dialogs import (
+    ChoiceDialog,
+    ConfirmDialog,
+    OverrideChoice,
+    OverrideDialog,
+    SettleChoice,
+    SettleDialog,
+)
 from robtui.tui.session import ReviewSession
 from robtui.tui.widgets.key_hints import KeyHints
 
@@ -80,41 +91,41 @@ def pair_detail(pair: AssessmentPair, qset) -> Table | Text:
 
 def judgements_table(pair: AssessmentPair, qset, consensus: Consensus | None) -> Table:
     """Domain and overall judgements: A's and B's final ones, and the consensus recomputed by
-    the algorithm from the agreed answers."""
+    the algorithm from the agreed answers (≠ where A and B differ, * where overridden)."""
     table = Table(
-        title="Judgements (consensus recomputed from the agreed answers)",
+        title="Judgements (consensus from the agreed answers; * overridden)",
         title_justify="left",
-        expand=True,
         box=box.SIMPLE_HEAD,
         show_edge=False,
         pad_edge=False,
     )
-    table.add_column("", width=1)
     table.add_column("", no_wrap=True)
     for name in (pair.reviewer_a, pair.reviewer_b, "Consensus"):
-        table.add_column(name, no_wrap=True, overflow="ellipsis")
+        table.add_column(name, no_wrap=True)
     for row in compare_pair(pair, qset).judgements:
         cells = []
         for final, reason in ((row.final_a, row.override_a), (row.final_b, row.override_b)):
-            cell = badge(final)
-            if reason:
-                cell.append(" (overridden)", style="italic")
-            cells.append(cell)
-        agreed = badge(consensus.final.get(row.key)) if consensus else Text("—", style="dim")
+            cells.append(cell_badge(final).append("*" if reason else ""))
+        agreed = cell_badge(consensus.final.get(row.key)) if consensus else Text("—", style="dim")
         if consensus and row.key in consensus.overrides:
-            agreed.append(" (overridden)", style="italic")
-        label = "Overall" if row.key == OVERALL else f"D{row.key}"
-        table.add_row("≠" if row.differs else "", label, *cells, agreed)
+            agreed.append("*")
+        label = Text("≠ " if row.differs else "  ", style="bold")
+        label.append("Overall" if row.key == OVERALL else f"D{row.key}")
+        table.add_row(label, *cells, agreed)
     return table
 
 
-def settle_line(qid: str, text: str, sides: tuple[tuple[str, str | None], ...], decision) -> Text:
+def settle_line(
+    qid: str, text: str, sides: tuple[tuple[str, str | None], ...], decision, on_path: bool = True
+) -> Text:
     """One question to settle: both reviewers' answers and how the consensus stands."""
     line = Text(f"{qid} ", style="bold")
     line.append(f"{text[:40]}\n", style="")
     answers = "  ·  ".join(f"{name} {code or 'not asked'}" for name, code in sides)
     line.append(f"   {answers}  ·  ")
-    if decision is None or decision.response is None:
+    if not on_path:
+        line.append("not asked on the agreed path", style="dim")
+    elif decision is None or decision.response is None:
         line.append("to settle", style="bold reverse")
     else:
         taken = {"a": "took A", "b": "took B", "new": "new answer", "agreed": "agreed"}
@@ -131,7 +142,9 @@ class CompareScreen(Screen[None]):
         Binding("a", "settle('a')", "Take A"),
         Binding("b", "settle('b')", "Take B"),
         Binding("n", "settle('new')", "New answer"),
-        Binding("c", "complete", "Complete consensus"),
+        Binding("o", "override", "Override"),
+        Binding("c", "complete", "Complete / reopen"),
+        Binding("f", "toggle_filter", "Only to settle"),
         Binding("r", "next_reviewers", "Other reviewers"),
         Binding("escape", "back", "Overview"),
         Binding("question_mark,f1", "app.help", "Help"),
@@ -152,6 +165,7 @@ class CompareScreen(Screen[None]):
         self.consensus: Consensus | None = None  # saved record, or a preview not saved yet
         self.consensus_saved = False
         self.consensus_problem: str | None = None
+        self.only_open = False  # f: list only the results that need the lead
 
     def compose(self) -> ComposeResult:
         yield Static("", id="compare-title")
@@ -159,7 +173,7 @@ class CompareScreen(Screen[None]):
             yield OptionList(id="pairs")
             with Vertical(id="compare-side"):
                 yield Static("", id="consensus-status")
-                with Horizontal(id="consensus-row"):
+                with Vertical(id="consensus-row"):
                     yield OptionList(id="differences")
                     yield Static("", id="consensus-judgements")
                 with VerticalScroll(id="pair-scroll"):
@@ -170,59 +184,70 @@ class CompareScreen(Screen[None]):
         self.load()
         self.query_one("#pairs", OptionList).focus()
 
-    def load(self) -> None:
+    def load(self, keep: tuple[str, str] | None = None) -> None:
         title = Text(f"{self.session.review.title}  ·  comparison for the lead", style="bold")
         if not self.reviewer_pairs:
             title.append("\nTwo reviewers are needed for a comparison.")
             self.query_one("#compare-title", Static).update(title)
             return
         a, b = self.reviewer_pairs[self.pair_index]
-        self.pairs, self.problems = self.session.comparison_pairs(a, b)
-        title.append(f"\n{a} and {b}", style="")
+        pairs, self.problems = self.session.comparison_pairs(a, b)
+        states = {p.key: self._state(p) for p in pairs}
+        everything = sorted(pairs, key=lambda p: states[p.key][0])  # stable: review order kept
+        counts = [sum(states[p.key][0] == rank for p in pairs) for rank in range(4)]
+        title.append(f"\n{a} and {b}: ", style="")
+        title.append(f"{counts[3]} of {len(pairs)} results settled", style="bold")
+        title.append(f" · {counts[1]} to settle · {counts[0]} stale · {counts[2]} waiting")
+        if self.only_open:
+            title.append(" (f: all)", style="dim")
         if len(self.reviewer_pairs) > 1:
             title.append("  (r: other reviewers)", style="dim")
         for problem in self.problems:
             title.append(f"\n⚠ {problem}")
         self.query_one("#compare-title", Static).update(title)
-        options = []
-        for index, pair in enumerate(self.pairs):
-            options.append(Option(self._pair_label(pair), id=str(index)))
-        pairs = self.query_one("#pairs", OptionList)
-        pairs.set_options(options)
+        self.pairs = [p for p in everything if not self.only_open or states[p.key][0] <= 1]
+        options = [
+            Option(self._pair_label(p, states[p.key][1]), id=str(i))
+            for i, p in enumerate(self.pairs)
+        ]
+        listing = self.query_one("#pairs", OptionList)
+        listing.set_options(options)
+        keys = [p.key for p in self.pairs]
+        start = keys.index(keep) if keep in keys else 0
         if options:
-            pairs.highlighted = 0
-        self._show(0)
+            listing.highlighted = start
+        self._show(start)
 
-    def _pair_state(self, pair: AssessmentPair) -> Text:
-        """Differences and the consensus state, for the pair's line in the list."""
+    def _state(self, pair: AssessmentPair) -> tuple[int, Text]:
+        """(rank in the queue, words for the list): 0 stale, 1 to settle, 2 waiting for a
+        reviewer (a side missing or still a draft), 3 settled (a complete consensus)."""
         if not pair.comparable:
-            return Text("\nnot comparable yet", style="dim")
-        n = compare_pair(pair, self.session.qset_for(pair.study_id)).n_differences
-        text = Text(f"\n{n} difference{'s' if n != 1 else ''}")
+            return 2, Text("waiting", style="dim")  # a side missing or still a draft
+        qset = self.session.qset_for(pair.study_id)
+        n = compare_pair(pair, qset).n_differences
         try:
             saved = self.session.load_consensus(pair.study_id, pair.result_id)
         except RobtuiError:
-            return text.append("  ·  ⚠ consensus unreadable", style="bold")
+            return 1, Text("⚠ consensus unreadable", style="bold")
+        if saved is not None and changed_since(saved, pair, qset):
+            return 0, Text("⚠ stale", style="bold reverse")
+        if saved is not None and saved.status == "complete":
+            return 3, Text("✓ done", style="dim")
         if saved is not None:
-            done = saved.status == "complete"
-            text.append(f"  ·  {'✓ consensus' if done else 'consensus draft'}", style="bold")
-        return text
+            return 1, Text(f"{len(pending_questions(saved, qset))} open")
+        return 1, Text(f"{n} differ" if n else "agree")
 
     def _relabel_pair(self) -> None:
         pair = self.pair
-        if pair is None:
-            return
-        self.query_one("#pairs", OptionList).replace_option_prompt_at_index(
-            self.index, self._pair_label(pair)
-        )
+        if pair is not None:
+            self.load(keep=pair.key)
 
-    def _pair_label(self, pair: AssessmentPair) -> Text:
-        study = self.session.review.study(pair.study_id)
+    def _pair_label(self, pair: AssessmentPair, state: Text) -> Text:
+        """One line: study, result, state (the words that tell results apart come first)."""
         result = self.session.review.result(pair.result_id)
-        label = Text(study.label if study else pair.study_id, style="bold")
-        label.append(f"\n{result.outcome if result else pair.result_id}")
-        label.append_text(self._pair_state(pair))
-        return label
+        label = Text(pair.study_id, style="bold")
+        label.append(f" {result.id if result else pair.result_id} ")
+        return label.append_text(state)
 
     @on(OptionList.OptionHighlighted, "#pairs")
     def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
@@ -230,6 +255,7 @@ class CompareScreen(Screen[None]):
 
     def _show(self, index: int) -> None:
         detail = self.query_one("#pair-detail", Static)
+        moved = index != self.index
         self.index = index
         if not self.pairs:
             detail.update(Text("No results to compare.", style="dim"))
@@ -237,14 +263,14 @@ class CompareScreen(Screen[None]):
             return
         pair = self.pairs[index]
         detail.update(pair_detail(pair, self.session.qset_for(pair.study_id)))
-        self._load_consensus(pair)
+        self._load_consensus(pair, fresh=moved)
 
     # -- consensus -----------------------------------------------------------------------
     @property
     def pair(self) -> AssessmentPair | None:
         return self.pairs[self.index] if self.pairs else None
 
-    def _load_consensus(self, pair: AssessmentPair | None) -> None:
+    def _load_consensus(self, pair: AssessmentPair | None, fresh: bool = True) -> None:
         self.consensus, self.consensus_saved, self.consensus_problem = None, False, None
         if pair is not None and pair.comparable:
             try:
@@ -262,7 +288,8 @@ class CompareScreen(Screen[None]):
             elif self.consensus_problem is None:
                 lead = self.session.reviewer
                 self.consensus = start_consensus(pair, lead, self.session.qset_for(pair.study_id))
-        self._refresh_consensus()
+        # another result: the cursor goes to its first question to settle, not the last one's
+        self._refresh_consensus(fresh=fresh)
 
     def to_settle(self) -> list[str]:
         """Questions listed for the lead: differences, questions now on the agreed path with no
@@ -270,13 +297,19 @@ class CompareScreen(Screen[None]):
         pair, consensus = self.pair, self.consensus
         if pair is None or not pair.comparable or consensus is None:
             return []
-        wanted = {q.question_id for q in differences(pair, self.session.qset_for(pair.study_id)) if q.differs}
+        wanted = {
+            q.question_id
+            for q in differences(pair, self.session.qset_for(pair.study_id))
+            if q.differs
+        }
         wanted |= set(pending_questions(consensus, self.session.qset_for(consensus.study_id)))
         wanted |= {q for q, d in consensus.decisions.items() if d.source != "agreed"}
-        order = [q.id for q in self.session.qset_for(consensus.study_id).questions(consensus.effect)]
+        order = [
+            q.id for q in self.session.qset_for(consensus.study_id).questions(consensus.effect)
+        ]
         return [q for q in order if q in wanted]
 
-    def _refresh_consensus(self, keep: str | None = None) -> None:
+    def _refresh_consensus(self, keep: str | None = None, fresh: bool = False) -> None:
         status = self.query_one("#consensus-status", Static)
         listing = self.query_one("#differences", OptionList)
         table = self.query_one("#consensus-judgements", Static)
@@ -292,36 +325,39 @@ class CompareScreen(Screen[None]):
             text.append(f"⚠ {self.consensus_problem}")
         elif consensus is not None:
             pending = pending_questions(consensus, qset)
+            changes = changed_since(consensus, pair, qset)
+            if changes:
+                text.append("⚠ stale: ", style="bold reverse")
+                text.append(f"changed since it was built: {'; '.join(changes)}. ", style="bold")
             if consensus.status == "complete":
                 text.append("✓ complete", style="bold")
-                text.append("  (c reopens it)", style="dim")
+                text.append("  (c reopens it, after asking)", style="dim")
             else:
                 text.append("draft" if self.consensus_saved else "not started")
                 text.append(f", {len(pending)} to settle", style="bold" if pending else "")
-                hint = (
-                    f"a takes {pair.reviewer_a}'s answer · b takes {pair.reviewer_b}'s · "
-                    "n new answer (tab: to the list)"
-                )
-                text.append(f"  ·  {hint}" if pending or self.to_settle() else "", style="dim")
-                if not pending:
-                    text.append("  ·  c marks it complete", style="dim")
+                hint = f"a: {pair.reviewer_a}'s answer, b: {pair.reviewer_b}'s, n: new; tab"
+                text.append(f"  ·  {hint}" if pending else "  ·  c completes it", style="dim")
         status.update(text)
         by_a = path_answers(qset, pair.a.effect, pair.a.answers)
         by_b = path_answers(qset, pair.b.effect, pair.b.answers)
-        keep = keep or self.focused_question
+        keep = keep or (None if fresh else self.focused_question)
+        on_path = set(asked_on_path(consensus, qset)) if consensus else set()
+        pending = pending_questions(consensus, qset) if consensus else []
         options = []
         for qid in self.to_settle():
             question = qset.question(qid, pair.a.effect)
             decision = consensus.decisions.get(qid) if consensus else None
             sides = ((pair.reviewer_a, by_a.get(qid)), (pair.reviewer_b, by_b.get(qid)))
-            line = settle_line(qid, question.short or question.text, sides, decision)
+            line = settle_line(qid, question.short or question.text, sides, decision,
+                               qid in on_path)  # fmt: skip
             options.append(Option(line, id=qid))
         listing.set_options(options)
         ids = [o.id for o in options]
         if keep in ids:
             listing.highlighted = ids.index(keep)
         elif ids:
-            listing.highlighted = 0
+            first = next((q for q in pending if q in ids), ids[0])
+            listing.highlighted = ids.index(first)
         table.update(judgements_table(pair, qset, consensus))
 
     @property
@@ -385,8 +421,8 @@ class CompareScreen(Screen[None]):
                 self.notify(str(error), severity="error")
                 return
             self.consensus, self.consensus_saved = settled, True
-            self._relabel_pair()
             pending = pending_questions(settled, qset)
+            self._relabel_pair()
             self._refresh_consensus(keep=pending[0] if pending else qid)
 
         self.app.push_screen(SettleDialog(title, what, options, chosen), done)
@@ -396,20 +432,89 @@ class CompareScreen(Screen[None]):
         if pair is None or not pair.comparable or consensus is None or self.consensus_problem:
             self._settleable()
             return
+        if consensus.status != "complete":
+            qset = self.session.qset_for(pair.study_id)
+            self._save_status(lambda: complete_consensus(consensus, qset, pair))
+            return
+
+        def answered(yes: bool | None) -> None:
+            if yes:
+                self._save_status(lambda: reopen_consensus(consensus))
+
+        question = (
+            f"The consensus for {pair.study_id} / {pair.result_id} is complete and is what the "
+            "exports show. Reopen it? Its judgements leave the exports until it is completed "
+            "again."
+        )
+        self.app.push_screen(ConfirmDialog("Reopen a complete consensus?", question), answered)
+
+    def _save_status(self, change) -> None:
+        pair = self.pair
         try:
-            if consensus.status == "complete":
-                changed = reopen_consensus(consensus)
-            else:
-                changed = complete_consensus(consensus, self.session.qset_for(pair.study_id), pair)
+            changed = change()
             self.session.save_consensus(changed)
         except RobtuiError as error:
             self.notify(str(error), severity="warning")
             return
         self.consensus, self.consensus_saved = changed, True
-        self._relabel_pair()
         done = "complete" if changed.status == "complete" else "reopened"
         self.notify(f"consensus {done} for {pair.study_id} / {pair.result_id}")
+        self._relabel_pair()
+
+    def action_override(self) -> None:
+        """Override a recomputed consensus judgement, with a reason (the lead's own)."""
+        if not self._settleable():
+            return
+        pair, consensus = self.pair, self.consensus
+        qset = self.session.qset_for(pair.study_id)
+        rows = compare_pair(pair, qset).judgements
+        options = []
+        for row in rows:
+            label = Text(f"{'Overall' if row.key == OVERALL else 'D' + row.key} {row.label}  ")
+            options.append((row.key, label.append_text(badge(consensus.final.get(row.key)))))
+
+        def chosen(key: str | None) -> None:
+            if key is None:
+                return
+            title = "Overall" if key == OVERALL else qset.domain_label(key, consensus.effect)
+            note = f"{pair.reviewer_a}: {pair.a.final.get(key)}, {pair.reviewer_b}: " + str(
+                pair.b.final.get(key)
+            )
+            dialog = OverrideDialog(
+                f"consensus, {title}",
+                self.consensus.proposed.get(key, "incomplete"),
+                self.consensus.overrides.get(key),
+                note,
+            )
+            self.app.push_screen(dialog, lambda choice: self._override(key, choice))
+
+        self.app.push_screen(
+            ChoiceDialog("Override which judgement?", options),
+            chosen,
+        )
+
+    def _override(self, key: str, choice: OverrideChoice | None) -> None:
+        if choice is None:
+            return
+        qset = self.session.qset_for(self.pair.study_id)
+        try:
+            if choice.judgement is None:
+                changed = remove_consensus_override(self.consensus, qset, key)
+            else:
+                changed = set_consensus_override(
+                    self.consensus, qset, key, choice.judgement, choice.reason
+                )
+            self.session.save_consensus(changed)
+        except RobtuiError as error:
+            self.notify(str(error), severity="error")
+            return
+        self.consensus, self.consensus_saved = changed, True
         self._refresh_consensus()
+
+    def action_toggle_filter(self) -> None:
+        self.only_open = not self.only_open
+        pair = self.pair
+        self.load(keep=pair.key if pair else None)
 
     def action_next_reviewers(self) -> None:
         if len(self.reviewer_pairs) > 1:
@@ -436,6 +541,8 @@ class CompareScreen(Screen[None]):
                 "Settle the focused difference (note required)",
                 "settle('new')",
             ),
+            ("Override a consensus judgement", "With a reason", "override"),
             ("Complete / reopen the consensus", "Nothing may be left to settle", "complete"),
+            ("Only results to settle", "Show or hide the settled ones", "toggle_filter"),
             ("Compare other reviewers", "The next pair of reviewers", "next_reviewers"),
         ]

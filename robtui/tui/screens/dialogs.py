@@ -233,3 +233,58 @@ class SettleDialog(ModalScreen[SettleChoice | None]):
     @on(Button.Pressed, "#settle-cancel")
     def action_cancel(self) -> None:
         self.dismiss(None)
+
+
+class ChoiceDialog(ModalScreen[str | None]):
+    """Choose one of a few labelled options (enter chooses, escape cancels)."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, title: str, options: list[tuple[str, Text | str]]) -> None:
+        super().__init__()
+        self.title_text = title
+        self.options = options
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(f"{self.title_text} (enter chooses, escape cancels)", style="bold"))
+            yield OptionList(*[Option(label, id=key) for key, label in self.options])
+
+    @on(OptionList.OptionSelected)
+    def _chosen(self, event: OptionList.OptionSelected) -> None:
+        self.dismiss(event.option.id)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class ConfirmDialog(ModalScreen[bool]):
+    """A yes/no question; only an explicit yes confirms (y or the button), anything else not."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("y", "answer(True)", "Yes"),
+        Binding("n,escape", "answer(False)", "No"),
+    ]
+
+    def __init__(self, title: str, question: str) -> None:
+        super().__init__()
+        self.title_text = title
+        self.question = question
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(self.title_text, style="bold"))
+            yield Static(self.question, classes="dialog-note")
+            with Horizontal(classes="dialog-buttons"):
+                yield Button("Yes (y)", id="confirm-yes", variant="warning")
+                yield Button("No (n)", id="confirm-no", variant="primary")
+
+    def on_mount(self) -> None:
+        self.query_one("#confirm-no", Button).focus()
+
+    @on(Button.Pressed)
+    def _pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "confirm-yes")
+
+    def action_answer(self, yes: bool) -> None:
+        self.dismiss(yes)
