@@ -194,7 +194,7 @@ async def test_the_queue_puts_results_to_settle_first_with_progress_and_one_line
 
 
 async def test_moving_to_another_result_puts_the_cursor_on_its_first_question(demo_dir):
-    from robtui.core.comparison import pending_questions
+    from robtui.core.consensus import pending_questions
 
     folder = ReviewFolder.open(demo_dir)
     lead = folder.review.lead
