@@ -222,8 +222,8 @@ def _domain_key(raw: Mapping, domain_id: str, entry: str) -> str | None:
     if "key" not in raw:
         return domain_id if len(domain_id) == 1 else None
     key = raw["key"]
-    if not isinstance(key, str) or len(key) != 1 or not key.isprintable() or key.isspace():
-        raise _Problem(f"{entry}, key", f"must be one printable character, got {key!r}")
+    if not isinstance(key, str) or len(key) != 1 or not (key.isascii() and key.isalnum()):
+        raise _Problem(f"{entry}, key", f"must be one letter or digit, got {key!r}")
     return key
 
 

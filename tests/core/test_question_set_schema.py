@@ -66,8 +66,9 @@ def test_effect_labels_from_the_file(tmp_path):
     ("head", "domain", "tail", "entry", "problem"),
     [
         ('design = "Cluster Trials"\n', "", "", "[set], design", "short lower-case name"),
-        ("", 'key = "ab"\n', "", "domain 1, key", "one printable character"),
-        ("", 'key = " "\n', "", "domain 1, key", "one printable character"),
+        ("", 'key = "ab"\n', "", "domain 1, key", "one letter or digit"),
+        ("", 'key = " "\n', "", "domain 1, key", "one letter or digit"),
+        ("", 'key = "?"\n', "", "domain 1, key", "one letter or digit"),
         ("", "", '\n[[effect]]\nid = "per-protocol"\nlabel = "x"\n', "effect entry 1, id",
          "'per-protocol' is not an effect"),
         ("", "", '\n[[effect]]\nid = "assignment"\nwords = "x"\n', "effect entry 1",

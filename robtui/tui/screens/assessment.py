@@ -51,6 +51,21 @@ def _answer_bindings() -> list[Binding]:
     ]
 
 
+def domain_bindings(qset, taken: set[str]) -> dict[str, str]:
+    """Key -> domain id from the question set (QuestionSet.domain_keys), leaving out keys the
+    screen already uses for something else."""
+    return {k: d for k, d in qset.domain_keys().items() if k not in taken}
+
+
+def keys_label(keys: list[str]) -> str:
+    """Domain keys for the footer: consecutive digits as a range, others after ("1-5 b")."""
+    digits = [k for k in keys if k.isdigit()]
+    others = [k for k in keys if not k.isdigit()]
+    run = digits and [int(k) for k in digits] == list(range(int(digits[0]), int(digits[-1]) + 1))
+    head = f"{digits[0]}-{digits[-1]}" if run and len(digits) > 1 else "/".join(digits)
+    return " ".join(part for part in (head, "/".join(others)) if part)
+
+
 class AssessmentScreen(Screen[None]):
     AUTO_FOCUS = "#questions"
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -58,7 +73,6 @@ class AssessmentScreen(Screen[None]):
         Binding("backspace", "answer(None)", "Clear", show=False),
         Binding("j", "next_question", "Next Q", show=False),
         Binding("k", "previous_question", "Prev Q", show=False),
-        *[Binding(str(n), f"domain('{n}')", f"Domain {n}", show=False) for n in range(1, 6)],
         Binding("right_square_bracket", "suggestion(1)", "Next sugg.", show=False),
         Binding("left_square_bracket", "suggestion(-1)", "Prev sugg.", show=False),
         Binding("q", "quote", "Quote", show=False),
@@ -81,6 +95,9 @@ class AssessmentScreen(Screen[None]):
         super().__init__()
         self.session = session
         self.domain_id = session.domain_ids()[0]
+        self.domain_keys = domain_bindings(session.qset, set(self._bindings.key_to_bindings))
+        for key, domain_id in self.domain_keys.items():
+            self._bindings.bind(key, f"domain('{domain_id}')", f"Domain {domain_id}", show=False)
         self.loaded: list[LoadedReport] = []
         self.document_index = 0
         self._justify_timer = None
@@ -92,11 +109,10 @@ class AssessmentScreen(Screen[None]):
 
     def key_hints(self) -> list[tuple[str, str, str]]:
         """The footer: every key a reviewer needs, short (the help screen says more)."""
-        domains = self.session.domain_ids()
-        first = domains[0]
+        first = self.session.domain_ids()[0]
         hints = [
             ("j/k", "question", "next_question"),
-            (f"{first}-{domains[-1]}", "domain", f"domain('{first}')"),
+            (keys_label(list(self.domain_keys)), "domain", f"domain('{first}')"),
             ("tab", "questions" if self.has_class("-reading") else "report", "switch_pane"),
             ("]/[", "suggestion", "suggestion(1)"),
             ("q", "quote", "quote"),

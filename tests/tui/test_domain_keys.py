@@ -1,0 +1,58 @@
+"""The workbench takes a study's domains and their keys from the study's question set."""
+
+from __future__ import annotations
+
+import pytest
+
+from robtui.store.question_sets import available_question_sets, builtin_question_set
+from robtui.store.review_folder import ReviewFolder
+from robtui.tui.app import Workbench
+from robtui.tui.screens.assessment import AssessmentScreen, domain_bindings, keys_label
+
+from .conftest import SIZE
+from .helpers import open_selected
+
+SCREEN_KEYS = {k.strip() for b in AssessmentScreen.BINDINGS for k in b.key.split(",")}
+
+
+@pytest.mark.parametrize("set_id", available_question_sets())
+def test_every_bundled_domain_key_is_free_on_the_assessment_screen(set_id):
+    qset = builtin_question_set(set_id)
+    assert domain_bindings(qset, SCREEN_KEYS) == qset.domain_keys()
+    assert set(qset.domain_keys().values()) == set(qset.domain_ids())  # every domain has a key
+
+
+def test_footer_label_of_the_domain_keys():
+    assert keys_label(["1", "2", "3", "4", "5"]) == "1-5"
+    assert keys_label(["1", "b", "2", "3", "4", "5"]) == "1-5 b"
+    assert keys_label(["1", "S", "2", "3", "4", "5"]) == "1-5 S"
+    assert keys_label(["1", "3"]) == "1/3"
+
+
+async def test_a_cluster_study_shows_its_own_domains_and_keys(demo_dir):
+    folder = ReviewFolder.open(demo_dir)
+    study = folder.review.studies[0]
+    changed = folder.review.model_copy(deep=True)
+    changed.study(study.id).design = "cluster"
+    folder.review = changed
+    folder.save_review()
+    result = folder.review.results[0]
+    app = Workbench(demo_dir, "tess")  # a reviewer with no files yet
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        overview = app.screen
+        columns = [str(c.label) for c in overview.query_one("#results").columns.values()]
+        assert "D1b" in columns  # every domain in use, blank where a study's set has none
+        keys = list(overview.rows)
+        overview.query_one("#results").move_cursor(row=keys.index(f"{study.id}--{result.id}"))
+        screen = await open_selected(pilot)
+        assert screen.session.qset.id == "rob2-cluster"
+        assert screen.session.domain_ids() == ["1", "1b", "2", "3", "4", "5"]
+        await pilot.press("b")
+        assert screen.domain_id == "1b"
+        shown = [o.id for o in screen.query_one("#questions").options]
+        assert shown and all(q.startswith("1b.") for q in shown)
+        await pilot.press("4")
+        assert screen.domain_id == "4"
+    saved = ReviewFolder.open(demo_dir).load_assessment("tess", study.id, result.id)
+    assert saved is None or saved.question_set == "rob2-cluster"
