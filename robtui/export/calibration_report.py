@@ -11,7 +11,6 @@ to either format, so both always say the same thing.
 
 from __future__ import annotations
 
-import html
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -26,7 +25,7 @@ from robtui.core.calibration import (
 )
 from robtui.core.model import OVERALL, Quote, Review
 from robtui.core.rules import AnsweringRule, RuleBook, changes_between
-from robtui.export.safety import markup
+from robtui.export.safety import markup, md
 
 # Checked against the PubMed record of [1] (pubmed 32562833) and the publisher's abstract page
 # of [2] (doi:10.1016/j.jclinepi.2021.09.021), found with the project's search tool; the author
@@ -95,15 +94,7 @@ class Code:
 Block = Heading | Para | Bullets | Table | Code
 
 
-def md_text(text: str) -> str:
-    """User text for Markdown prose: HTML markup neutralised (& < >), line breaks kept."""
-    return html.escape(text, quote=False).replace("\r\n", "\n").replace("\n", "  \n")
-
-
-def md_cell(text: str) -> str:
-    """User text for a Markdown table cell: markup neutralised, pipes escaped, breaks as <br>."""
-    value = html.escape(text, quote=False).replace("|", "\\|")
-    return value.replace("\r\n", "\n").replace("\n", "<br>")
+HARD_BREAK = "  \n"  # a Markdown line break inside a paragraph
 
 
 def render_markdown(blocks: Sequence[Block]) -> str:
@@ -111,16 +102,16 @@ def render_markdown(blocks: Sequence[Block]) -> str:
     out: list[str] = []
     for b in blocks:
         if isinstance(b, Heading):
-            out += ["#" * b.level + " " + md_text(b.text).replace("  \n", " "), ""]
+            out += ["#" * b.level + " " + md(b.text, " "), ""]
         elif isinstance(b, Para):
-            text = md_text(b.text)
+            text = md(b.text, HARD_BREAK)
             out += [f"*{text}*" if b.note else text, ""]
         elif isinstance(b, Bullets):
-            out += [f"- {md_text(item)}" for item in b.items] + [""]
+            out += ["- " + md(item, HARD_BREAK) for item in b.items] + [""]
         elif isinstance(b, Table):
-            out.append("| " + " | ".join(md_cell(h) for h in b.header) + " |")
+            out.append("| " + " | ".join(md(h) for h in b.header) + " |")
             out.append("|" + "|".join("---" for _ in b.header) + "|")
-            out += ["| " + " | ".join(md_cell(c) for c in row) + " |" for row in b.rows]
+            out += ["| " + " | ".join(md(c) for c in row) + " |" for row in b.rows]
             out.append("")
         elif isinstance(b, Code):
             fence = "````" if "```" in b.text else "```"

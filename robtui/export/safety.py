@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import html
 import os
+import re
 from pathlib import Path, PurePath
 
 from robtui.errors import InputError
@@ -44,10 +45,19 @@ def tex(text: object) -> str:
     return "".join(_TEX_SPECIALS.get(ch, ch) for ch in ("" if text is None else str(text)))
 
 
-def md(text: object) -> str:
-    """Text for a Markdown table cell: pipes escaped, line breaks as <br>, HTML escaped."""
-    value = markup(text).replace("|", r"\|")
-    return value.replace("\r\n", "\n").replace("\n", "<br>")
+# Markdown text stays readable as plain text: instead of HTML entities (&#x27;, &gt;) the few
+# characters that would start markup get a backslash, as CommonMark allows before any ASCII
+# punctuation (CommonMark spec 0.31, "Backslash escapes"): the backslash itself, "<" (raw HTML,
+# autolinks), "&" before an entity name or number, brackets (links, images) and the pipe
+# (a table cell's end).
+_MD_ESCAPES = re.compile(r"([\\<\[\]|]|&(?=#?\w+;))")
+
+
+def md(text: object, line_break: str = "<br>") -> str:
+    """Text for Markdown: markup characters backslash-escaped (no HTML entities in the raw
+    text), line breaks as ``line_break`` (<br> in a table cell; "  \\n" in prose)."""
+    value = _MD_ESCAPES.sub(r"\\\1", "" if text is None else str(text))
+    return value.replace("\r\n", "\n").replace("\r", "\n").replace("\n", line_break)
 
 
 def export_path(exports_dir: Path, name: str, root: Path | None = None) -> Path:

@@ -23,7 +23,7 @@ from robtui.core.consensus import (
     start_consensus,
 )
 from robtui.errors import InputError
-from robtui.export.safety import csv_cell, export_path, markup, tex
+from robtui.export.safety import csv_cell, export_path, markup, md, tex
 from robtui.export.writers import export_outcome
 from robtui.store.question_sets import builtin_question_set
 
@@ -98,7 +98,15 @@ def test_markdown_holds_tables_grade_and_the_not_final_list(folder):
         "(p. 2)",
     ):
         assert needle in text, needle
-    assert "<script>" not in text and "&lt;script&gt;" in text
+    assert r"\<script>" in text and "<script>" not in text.replace(r"\<script>", "")
+    # plain text stays plain: no HTML entities in the raw Markdown
+    assert "&#x27;" not in text and "&gt;" not in text and "&lt;" not in text
+    assert ">= 50%" in text  # the rule of thumb, readable as written
+    # rendered by a CommonMark parser (markdown-it-py, installed with rich), user text is text
+    from markdown_it import MarkdownIt
+
+    html = MarkdownIt("commonmark").enable("table").render(text)
+    assert "<script>" not in html and "&lt;script&gt;" in html
     # every judgement cell carries a letter, so the table reads without colour
     row = next(line for line in text.splitlines() if line.startswith("| Trial 004"))
     assert row.count("[") >= 6
@@ -203,6 +211,28 @@ def test_unknown_format_and_result(folder):
 
 def test_markup_escapes_quotes():
     assert markup('"a" <b>') == "&quot;a&quot; &lt;b&gt;"
+
+
+@pytest.mark.parametrize(
+    "raw",
+    [
+        "it's >= 20% of the weight",
+        "<b>bold</b> & <img src=x onerror=alert(1)>",
+        "[click](http://example.invalid) ![img](http://example.invalid/x.png)",
+        "&amp; &#39; a|b back\\slash <http://example.invalid>",
+    ],
+)
+def test_markdown_cells_are_plain_text_when_rendered(raw):
+    from markdown_it import MarkdownIt
+
+    cell = md(raw)
+    assert "&#x27;" not in cell and "&gt;" not in cell and "&quot;" not in cell
+    html = MarkdownIt("commonmark").render(cell)
+    assert "<a " not in html and "<img" not in html and "<b>" not in html
+    # what a reader sees is what was written (markdown-it-py escapes it back for HTML)
+    from html import unescape
+
+    assert unescape(html.removeprefix("<p>").removesuffix("</p>\n")) == raw
 
 
 def test_figures_take_awkward_user_text(tmp_path):
@@ -316,7 +346,7 @@ def test_a_consensus_a_reviewer_has_since_changed_is_flagged_stale(tmp_path):
     assert ex.rows[0].source == "consensus (stale)"
     text = paths[0].read_text(encoding="utf-8")
     assert "consensus built on answers a reviewer has since changed" in text
-    assert f"ben: 1.1 {a.answers['1.1'].response} -&gt; {other}" in text
+    assert f"ben: 1.1 {a.answers['1.1'].response} -> {other}" in text
 
 
 @pytest.mark.skipif(not shutil.which("pdflatex"), reason="needs pdflatex (texlive-latex-base)")
