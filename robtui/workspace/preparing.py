@@ -47,6 +47,7 @@ class ReportOutcome:
     rank_seconds: float = 0.0
     worker: int = 0  # process id
     peak_rss_mb: float = 0.0  # the worker's peak resident memory after this report
+    already: bool = False  # another process prepared it meanwhile (nothing was done here)
 
     @property
     def ok(self) -> bool:
@@ -194,6 +195,9 @@ def prepare_one(job: PrepareJob) -> ReportOutcome:
     from robtui.reading.reader import read_document
 
     outcome = ReportOutcome(job.label, job.path, job.sha256, worker=os.getpid())
+    if is_prepared(job):  # e.g. a second robtui preparing the same review at the same time
+        outcome.already = True
+        return outcome
     try:
         ranker = worker_ranker()
         started = time.perf_counter()

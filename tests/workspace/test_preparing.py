@@ -194,3 +194,13 @@ def test_the_workbench_opens_prepared_suggestions_without_ranking(tmp_path, caps
     save_review_model(ReviewModel(weights={"1.1": {0: 0.5}}), learned)
     with pytest.raises(AssertionError, match="must not be ranked"):
         load_report(folder, report, "assignment", learned_dir=learned)
+
+
+def test_a_report_prepared_meanwhile_by_another_process_is_not_done_again(tmp_path):
+    from robtui.workspace.preparing import prepare_one
+
+    jobs, _ = jobs_for_files(_texts(tmp_path)[:1])
+    first = prepare_one(jobs[0])
+    assert first.ok and not first.already and first.pages == 0 and first.sentences > 50
+    again = prepare_one(jobs[0])
+    assert again.ok and again.already and again.sentences == 0
