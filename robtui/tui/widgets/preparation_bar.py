@@ -30,12 +30,12 @@ class PreparationBar(Horizontal):
         padding: 0 1;
     }
     PreparationBar ProgressBar {
-        width: 22;
+        width: 16;
     }
     """
 
     def compose(self) -> ComposeResult:
-        yield Label("Preparing reports", id="preparation-title")
+        yield Label("Preparing", id="preparation-title")
         yield ProgressBar(show_percentage=False, show_eta=False, id="preparation-progress")
         yield Label("", id="preparation-text")
 
@@ -51,11 +51,11 @@ class PreparationBar(Horizontal):
         bar = self.query_one(ProgressBar)
         bar.update(total=max(state.total, 1), progress=state.done)
         done = getattr(self.app, "preparation_done", False)
-        title = "Reports prepared" if done else "Preparing reports"
+        title = "Prepared" if done else "Preparing"
         self.query_one("#preparation-title", Label).update(title)
         text = describe_progress(state)
         if done:
             failed = f"; {state.failed} could not be read (see the evidence map: e)" \
                 if state.failed else ""
-            text = f"{state.done} of {state.total} in this session{failed}"
+            text = f"{state.done} of {state.total} reports in this session{failed}"
         self.query_one("#preparation-text", Label).update(text)
