@@ -26,6 +26,8 @@ async def _overview(pilot) -> None:
 
 async def test_background_preparation_fills_the_evidence_map(demo_dir, tmp_path, monkeypatch):
     monkeypatch.setenv("ROBTUI_CACHE_DIR", str(tmp_path / "cache"))
+    changed = demo_dir / "reports" / "FIR2030" / "fir-handwashing.txt"
+    changed.write_text(changed.read_text(encoding="utf-8") + "\nEdited.\n", encoding="utf-8")
     app = Workbench(demo_dir, "maren", prepare_in_background=True)
     async with app.run_test(size=(80, 24)) as pilot:
         await _overview(pilot)
@@ -36,9 +38,13 @@ async def test_background_preparation_fills_the_evidence_map(demo_dir, tmp_path,
             if app.preparation_done:
                 break
             await asyncio.sleep(0.05)
-        assert app.preparation_done and not app.preparation_failures
+        assert app.preparation_done
+        assert len(app.preparation_failures) == 1  # the edited copy, named with the reason
+        assert "FIR2030" in app.preparation_failures[0]
+        assert "changed since it was added" in app.preparation_failures[0]
         assert app.preparation.done == app.preparation.total > 0
         await pilot.pause()
+        assert "not prepared: FIR2030" in str(app.screen.query_one("#map-title").render())
         emap = app.screen.emap
         assert emap.prepared_fraction == 1.0
         alder = next(r for r in emap.rows if r.study_id == "ALDER2031")

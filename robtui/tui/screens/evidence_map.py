@@ -89,9 +89,12 @@ class EvidenceMapScreen(Screen):
                               column=max(1, min(where.column, len(self.emap.questions))))
         prepared = self.emap.prepared_fraction
         note = "" if prepared >= 1.0 else f" · {prepared:.0%} prepared so far"
-        self.query_one("#map-title", Static).update(Text.assemble(
+        title = Text.assemble(
             ("Evidence map", "bold"), f" ({self.effect}): the best suggested sentence of each "
-            f"study's files per signalling question{note}"))
+            f"study's files per signalling question{note}")
+        for failure in getattr(self.app, "preparation_failures", []):
+            title.append(f"\nnot prepared: {failure}", style="bold")
+        self.query_one("#map-title", Static).update(title)
         self._show_detail()
 
     def on_data_table_cell_highlighted(self, _event) -> None:

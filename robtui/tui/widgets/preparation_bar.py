@@ -55,7 +55,7 @@ class PreparationBar(Horizontal):
         self.query_one("#preparation-title", Label).update(title)
         text = describe_progress(state)
         if done:
-            failed = f"; {state.failed} could not be read (see the evidence map: e)" \
-                if state.failed else ""
+            count = len(getattr(self.app, "preparation_failures", []))
+            failed = f"; {count} could not be read (see the evidence map: e)" if count else ""
             text = f"{state.done} of {state.total} reports in this session{failed}"
         self.query_one("#preparation-text", Label).update(text)
