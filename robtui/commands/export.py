@@ -97,8 +97,9 @@ def run(args: argparse.Namespace) -> int:
         if outcome is not None:
             g = outcome.grade
             print(
-                f"{result_id}: GRADE risk of bias, suggested {g.rating or 'no suggestion'} "
-                f"(a suggestion for the panel; our own rule of thumb)"
+                f"{result_id}: GRADE risk of bias, "
+                + (f"suggested {g.rating}" if g.rating else f"no suggestion: {g.rationale}")
+                + " (a suggestion for the panel; our own rule of thumb)"
             )
             warn([f"{result_id}: not judged or not final: {p}" for p in outcome.problems])
     return 0
