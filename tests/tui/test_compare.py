@@ -266,3 +266,34 @@ async def test_a_stale_consensus_is_flagged_on_the_screen(demo_dir):
         assert "stale" in screen.query_one("#pairs").get_option_at_index(0).prompt.plain
         status = str(screen.query_one("#consensus-status").render())
         assert "stale" in status and f"{b_name}: {qid} {old} -> {new}" in status
+
+
+async def test_the_panes_keep_their_marks_and_words_at_80_and_110_columns(demo_dir):
+    from rich.console import Console
+
+    from robtui.tui.screens.compare import judgements_table
+
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    for size in ((80, 24), (110, 32)):
+        app = Workbench(demo_dir, lead)
+        async with app.run_test(size=size) as pilot:
+            screen = await open_comparison(pilot)
+            differing = next(
+                i
+                for i, p in enumerate(screen.pairs)
+                if p.comparable
+                and compare_pair(p, screen.session.qset_for(p.study_id)).n_differences
+            )
+            screen.query_one("#pairs").highlighted = differing
+            await pilot.pause()
+            pair = screen.pairs[differing]
+            # the differences pane is not squeezed beside the judgements (it was 12 columns)
+            assert screen.query_one("#differences").size.width >= size[0] - 36 - 4
+            table = screen.query_one("#consensus-judgements")
+            console = Console(width=table.size.width, record=True)
+            qset = screen.session.qset_for(pair.study_id)
+            console.print(judgements_table(pair, qset, screen.consensus))
+            shown = console.export_text()
+            assert "≠" in shown and "Overall" in shown and "Consensus" in shown, shown
+            assert "…" not in shown, shown  # no word cut
