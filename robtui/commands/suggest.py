@@ -46,6 +46,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
                              "well (scores then need not fall steadily)")
     parser.add_argument("--effect", choices=EFFECTS, default="assignment",
                         help="domain 2 variant (default: effect of assignment)")
+    parser.add_argument("--question-set", default=None, metavar="NAME",
+                        help="rank the questions of this bundled set, by design (parallel, "
+                        "cluster, crossover) or id (default: the parallel-group set)")
     parser.add_argument("--model", type=Path, default=None, help=argparse.SUPPRESS)
     parser.set_defaults(func=run)
 
@@ -79,12 +82,14 @@ def run(args: argparse.Namespace) -> int:
         raise InputError("name a report file, a folder or --list LISTFILE")
     files = files_to_suggest(args.files, args.lists)
     options = {"questions": tuple(questions) if questions else None, "effect": args.effect,
-               "top": args.top, "threshold": args.threshold, "spread": args.spread}
+               "top": args.top, "threshold": args.threshold, "spread": args.spread,
+               "question_set": args.question_set}
+    qset = SuggestRequest("", question_set=args.question_set).resolved_set()  # checked up front
     ranker = load_ranker(args.model)  # checks the weights (and the question ids) up front
     if questions:  # checked once here rather than once per file
         from robtui.evidence.ranker import active_questions
 
-        known = [qid for qid, _ in active_questions(args.effect)]
+        known = [qid for qid, _ in active_questions(args.effect, qset)]
         unknown = [q for q in questions if q not in known]
         if unknown:
             raise InputError(f"unknown question id(s) for the {args.effect} effect: "

@@ -297,7 +297,9 @@ class Ranker:
             wanted = list(dict.fromkeys(questions))
         if top is not None and top < 1:
             raise InputError(f"top must be at least 1 (got {top})")
-        keys = [model_key(q, effect) for q in wanted]
+        # the set's own key spelling ("adhering:2.3"), so a new set's questions find their cues
+        key_of = question_set.question_key if question_set is not None else model_key
+        keys = [key_of(q, effect) for q in wanted]
         texts = [self.weights.question_texts.get(k) or wording[q] for k, q in zip(keys, wanted)]
         doc = self.features(document)
         logits = self.logits(doc, keys, texts)

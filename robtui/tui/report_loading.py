@@ -57,10 +57,12 @@ def load_report(
     stage: Callable[[str], None] = lambda _text: None,
     ranker_factory: Callable[[], Any] = shared_ranker,
     learned_dir: Path | None = None,
+    question_set=None,
 ) -> LoadedReport:
     """Read ``report`` from the review folder and rank its sentences for every question.
 
-    ``learned_dir`` is the reviewer's own learned model (None: the shipped model only).
+    ``learned_dir`` is the reviewer's own learned model (None: the shipped model only);
+    ``question_set`` the study's set, whose questions are ranked (None: the ranker's default).
     """
     loaded = LoadedReport(report)
     problem = folder.check_report(report)
@@ -82,7 +84,9 @@ def load_report(
     loaded.seconds["read"] = time.perf_counter() - started
     loaded.notes.extend(loaded.document.warnings)
     started = time.perf_counter()
-    prepared = _prepared_suggestions(loaded.document, effect, ranker_factory, learned_dir)
+    prepared = _prepared_suggestions(
+        loaded.document, effect, ranker_factory, learned_dir, question_set
+    )
     if prepared is not None:  # `robtui prepare` (or the workbench in the background) ranked it
         loaded.suggestions = suggestions_of(prepared)
         loaded.no_evidence_threshold = prepared.no_evidence_threshold
@@ -90,7 +94,7 @@ def load_report(
         return loaded
     loaded.suggestions = rank_document(
         folder, loaded.document, effect, stage, ranker_factory, loaded.notes,
-        learned_dir=learned_dir,
+        learned_dir=learned_dir, question_set=question_set,
     )
     loaded.seconds["rank"] = time.perf_counter() - started
     try:
@@ -100,7 +104,9 @@ def load_report(
     return loaded
 
 
-def _prepared_suggestions(document: Document, effect: str, ranker_factory, learned_dir):
+def _prepared_suggestions(
+    document: Document, effect: str, ranker_factory, learned_dir, question_set=None
+):
     """The prepared entry for this document when it is what ranking would give: the shipped
     model's suggestions, and the reviewer has no learned model yet; else None."""
     from robtui.evidence.prepared import load_prepared
@@ -115,7 +121,9 @@ def _prepared_suggestions(document: Document, effect: str, ranker_factory, learn
                 return None
         except RobtuiError:
             return None  # ranking says why the learned model was not used
-    return load_prepared(document.sha256, effect)
+    if question_set is None:
+        return load_prepared(document.sha256, effect)
+    return load_prepared(document.sha256, effect, question_set.id)
 
 
 def rank_document(
@@ -127,8 +135,10 @@ def rank_document(
     notes: list[str] | None = None,
     *,
     learned_dir: Path | None = None,
+    question_set=None,
 ) -> dict[str, list[Any]]:
-    """Suggestions per question id for ``document`` (empty, with a note, if ranking fails)."""
+    """Suggestions per question id for ``document`` (empty, with a note, if ranking fails);
+    the questions are ``question_set``'s (the study's; None: the ranker's default set)."""
     notes = notes if notes is not None else []
     stage("Ranking sentences for each signalling question …")
     try:
@@ -149,7 +159,7 @@ def rank_document(
     try:
         return ranker.rank(
             document, effect=effect, top=SUGGESTIONS_PER_QUESTION, review_model=review_model,
-            spread=True,
+            spread=True, question_set=question_set,
         )
     except RobtuiError as error:
         notes.append(f"no suggestions: {error}")

@@ -21,6 +21,15 @@ class SuggestRequest:
     top: int = 5
     threshold: float | None = None
     spread: bool = False
+    question_set: str | None = None  # a bundled set id or design (None: the parallel set)
+
+    def resolved_set(self):
+        """The QuestionSet to rank for (None: the ranker's default)."""
+        if self.question_set is None:
+            return None
+        from robtui.store.question_sets import SetCatalogue
+
+        return SetCatalogue({}, where="the bundled sets").resolve(self.question_set)
 
 
 def payload(document, ranking: dict) -> dict:
@@ -45,7 +54,8 @@ def rank_file(request: SuggestRequest, ranker) -> tuple[object, dict]:
     document = read_document(Path(request.path))
     ranking = ranker.rank(document, list(request.questions) if request.questions else None,
                           effect=request.effect, top=request.top,
-                          threshold=request.threshold, spread=request.spread)
+                          threshold=request.threshold, spread=request.spread,
+                          question_set=request.resolved_set())
     return document, ranking
 
 

@@ -208,3 +208,30 @@ def test_review_toml_naming_an_unknown_design_names_the_study(review):
         Workspace.open(review)
     with pytest.raises(InputError):
         review_catalogue(review).resolve("nowhere")
+
+
+def test_the_ranker_is_given_the_studys_set_and_ranks_its_new_questions(review):
+    """New questions have no model of their own: the transfer model (cue lexicon and wording)
+    ranks them, and the workbench's report loading asks for the study's set."""
+    from robtui.evidence.ranker import load_ranker
+    from robtui.reading.text import document_from_text
+    from robtui.tui.report_loading import load_report
+
+    extra = Workspace.open(review).question_set_for("W1")
+    ranker = load_ranker()
+    assert not ranker.is_trained("1x.1")
+    text = (bundled_dir("sample_reports") / "birch-knee.txt").read_text("utf-8")
+    document = document_from_text(text, path="birch-knee.txt", kind="txt")
+    ranked = ranker.rank(document, effect="adhering", question_set=extra)
+    assert set(ranked) == {q.id for q in extra.questions("adhering")}
+    assert len(ranked["1x.1"]) == 5 and ranked["1x.1"][0].score > 0
+    # the same trained models serve the questions the set shares with the bundled one
+    bundled = ranker.rank(document, effect="adhering")
+    assert [s.sentence_index for s in ranked["2.3"]] == [s.sentence_index for s in bundled["2.3"]]
+    with pytest.raises(InputError, match="unknown question id"):
+        ranker.rank(document, ["1x.1"], effect="adhering")  # not a question of the default set
+
+    folder = ReviewFolder.open(review)
+    report = folder.review.study("W1").reports[0]
+    loaded = load_report(folder, report, "assignment", question_set=extra)
+    assert "1x.1" in loaded.suggestions and loaded.suggestions["1x.1"]

@@ -219,6 +219,7 @@ class AssessmentScreen(Screen[None]):
                         stage=lambda text: self.app.call_from_thread(self._stage, text),
                         ranker_factory=self.app.ranker_factory,
                         learned_dir=learned_dir,
+                        question_set=self.session.qset,
                     )
                 )
             except Exception as error:  # noqa: BLE001 - a bad file must not end the session
@@ -239,6 +240,7 @@ class AssessmentScreen(Screen[None]):
                     ranker_factory=self.app.ranker_factory,
                     notes=loaded.notes,
                     learned_dir=self.session.review_session.learned_dir,
+                    question_set=self.session.qset,
                 )
         self.app.call_from_thread(self._reports_loaded, self.loaded)
 
