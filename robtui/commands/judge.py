@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import argparse
 
-TOOLS = {"rob2": "rob2-parallel"}  # batch "tool" value -> bundled question set id
+TOOLS = ("rob2",)  # the method; which of its question sets is "question_set" (default parallel)
 
 from robtui.core.questions import EFFECTS
 from robtui.core.questions import JUDGEMENT_LABELS as _LABELS
@@ -35,8 +35,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
                         "low,some_concerns,high,low,low")
     parser.add_argument("--effect", default="assignment", choices=EFFECTS,
                         help="effect of interest; matters for domain 2 (default: assignment)")
-    parser.add_argument("--question-set", default="rob2-parallel", metavar="ID",
-                        help="bundled question set (default: rob2-parallel)")
+    parser.add_argument("--question-set", default="parallel", metavar="NAME",
+                        help="bundled question set, by design (parallel, cluster, crossover) or "
+                        "id (default: parallel)")
     parser.add_argument("--batch", action="store_true",
                         help='read JSON Lines on stdin: {"tool": "rob2", "domain": 1, '
                         '"effect": "assignment", "answers": {...}} or {"tool": "rob2", '
@@ -67,9 +68,7 @@ def run(args: argparse.Namespace) -> int:
 def run_overall(args: argparse.Namespace) -> int:
     from robtui.core.algorithm import judge_overall, may_raise_overall
     from robtui.errors import InputError
-    from robtui.store.question_sets import builtin_question_set
-
-    qset = builtin_question_set(args.question_set)
+    qset = _question_set(args.question_set)
     judgements = [j.strip().lower() for j in args.overall.split(",")]
     n = len(qset.domain_ids())
     if len(judgements) != n:
@@ -101,9 +100,7 @@ def run_single(args: argparse.Namespace) -> int:
     from robtui.core.algorithm import explain_domain, validate_answers
     from robtui.core.explaining import explain_in_words
     from robtui.errors import InputError
-    from robtui.store.question_sets import builtin_question_set
-
-    qset = builtin_question_set(args.question_set)
+    qset = _question_set(args.question_set)
     domain = qset.domain(str(args.domain), args.effect)
     answers = _parse_pairs(args.answers)
     problems = validate_answers(domain, answers)
@@ -146,16 +143,17 @@ def judge_line(line: str) -> dict[str, str]:
 def _judge_request(request: dict) -> str:
     from robtui.core.algorithm import judge_domain, judge_overall, validate_answers
     from robtui.errors import InputError
-    from robtui.store.question_sets import builtin_question_set
-
     tool = request.get("tool")
     if tool is None:
         raise InputError(f"missing 'tool' (use {', '.join(TOOLS)})")
     if tool not in TOOLS:
         raise InputError(f"unknown tool {tool!r} (use {', '.join(TOOLS)})")
-    qset = builtin_question_set(TOOLS[tool])
+    name = request.get("question_set", "parallel")
+    if not isinstance(name, str):
+        raise InputError("'question_set' must be a design or a set id, as text")
+    qset = _question_set(name)
     if "overall" in request:
-        extra = sorted(set(request) - {"tool", "overall"})
+        extra = sorted(set(request) - {"tool", "question_set", "overall"})
         if extra:
             raise InputError(f"unexpected key {extra[0]!r} beside 'overall'")
         judgements = request["overall"]
@@ -165,9 +163,11 @@ def _judge_request(request: dict) -> str:
         if not all(isinstance(j, str) for j in judgements):
             raise InputError("'overall' must hold judgement codes as strings")
         return judge_overall(judgements)
-    extra = sorted(set(request) - {"tool", "domain", "effect", "answers"})
+    extra = sorted(set(request) - {"tool", "question_set", "domain", "effect", "answers"})
     if extra:
-        raise InputError(f"unexpected key {extra[0]!r} (use tool, domain, effect, answers)")
+        raise InputError(
+            f"unexpected key {extra[0]!r} (use tool, question_set, domain, effect, answers)"
+        )
     domain_id = request.get("domain")
     if isinstance(domain_id, bool) or not isinstance(domain_id, (int, str)):
         raise InputError("give 'domain' (1 to 5) or 'overall'")
@@ -198,3 +198,10 @@ def run_batch(stdin, stdout) -> int:
         stdout.write(json.dumps(out) + "\n")
         stdout.flush()
     return 0
+
+
+def _question_set(name: str):
+    """A bundled question set by design or id (InputError listing both)."""
+    from robtui.store.question_sets import bundled_catalogue
+
+    return bundled_catalogue().resolve(name)

@@ -18,13 +18,14 @@ from dataclasses import dataclass, field, replace
 from typing import Any, Protocol
 
 from robtui.core.model import RESPONSES, Assessment, ResultSpec
+from robtui.core.questions import EFFECTS
 
 # The result attributes a rule may be conditioned on, with the values each accepts
 # (None: free text, compared case-insensitively with the result's field).
 RULE_ATTRIBUTES: dict[str, tuple[str, ...] | None] = {
     "outcome_type": ("objective", "subjective"),
     "self_reported": ("true", "false"),
-    "effect": ("assignment", "adhering"),
+    "effect": EFFECTS,
     "time_point": None,
     "outcome": None,
 }
@@ -260,7 +261,7 @@ def rules_beside_question(
 def question_index(qset: QuestionSetLike) -> dict[str, dict[str, Any]]:
     """Question id -> {effect: Question}, across both effects of interest."""
     index: dict[str, dict[str, Any]] = {}
-    for effect in ("assignment", "adhering"):
+    for effect in EFFECTS:
         for question in qset.questions(effect):
             index.setdefault(question.id, {})[effect] = question
     return index

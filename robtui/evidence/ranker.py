@@ -18,6 +18,7 @@ from pathlib import Path
 
 import numpy as np
 
+from robtui.core.questions import EFFECTS
 from robtui.errors import InputError
 from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key, tokens
 from robtui.evidence.features import (
@@ -134,27 +135,15 @@ def generic_block(question_block: np.ndarray, shared: np.ndarray) -> np.ndarray:
 
 
 def active_questions(effect: str = "assignment", question_set=None) -> list[tuple[str, str]]:
-    """(id, wording) of every question of the active set; the cue lexicon's keys as fallback."""
-    if effect not in ("assignment", "adhering"):
-        raise InputError(f"unknown effect {effect!r}: use assignment or adhering")
+    """(id, wording) of every question of ``question_set`` (default: the bundled parallel set)
+    as asked for ``effect``."""
+    if effect not in EFFECTS:
+        raise InputError(f"unknown effect {effect!r}: use {' or '.join(EFFECTS)}")
     if question_set is None:
-        try:
-            from robtui.store.question_sets import builtin_question_set
+        from robtui.store.question_sets import builtin_question_set
 
-            question_set = builtin_question_set()
-        except ImportError:
-            question_set = None
-    if question_set is not None:
-        return [(q.id, q.text) for q in question_set.questions(effect)]
-    keys = load_cues()
-    ids = []
-    for key in keys:
-        if key.startswith("adhering:"):
-            if effect == "adhering":
-                ids.append(key.split(":", 1)[1])
-        elif not (effect == "adhering" and key.startswith("2.")):
-            ids.append(key)
-    return [(qid, "") for qid in sorted(ids, key=lambda q: tuple(int(p) for p in q.split(".")))]
+        question_set = builtin_question_set()
+    return [(q.id, q.text) for q in question_set.questions(effect)]
 
 
 class Ranker:

@@ -65,6 +65,7 @@ class SetCatalogue:
 
     own: Mapping[str, QuestionSet]  # set id -> set, from DIR/question_sets/
     where: str = "the review"  # for messages
+    hint: str = f"; a review's own set goes in its {QUESTION_SETS_DIR}/ folder"
 
     def bundled_ids(self) -> list[str]:
         return available_question_sets()
@@ -96,8 +97,8 @@ class SetCatalogue:
             ids = [*self.own, *self.bundled_ids()]
             raise InputError(
                 f"no question set or design named {name!r} in {self.where}: use a design "
-                f"({', '.join(self.designs()) or 'none'}) or a set id ({', '.join(ids)}); a "
-                f"review's own set goes in its {QUESTION_SETS_DIR}/ folder"
+                f"({', '.join(self.designs()) or 'none'}) or a set id ({', '.join(ids)})"
+                f"{self.hint}"
             )
         return qset
 
@@ -126,6 +127,11 @@ def review_catalogue(root: Path) -> SetCatalogue:
         seen[qset.id] = path
         own[qset.id] = qset
     return SetCatalogue(own, where=str(root))
+
+
+def bundled_catalogue() -> SetCatalogue:
+    """The bundled sets alone (for commands that work without a review)."""
+    return SetCatalogue({}, where="the bundled sets", hint="")
 
 
 def review_question_sets(folder, catalogue: SetCatalogue | None = None) -> ReviewSets:

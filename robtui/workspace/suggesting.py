@@ -27,9 +27,9 @@ class SuggestRequest:
         """The QuestionSet to rank for (None: the ranker's default)."""
         if self.question_set is None:
             return None
-        from robtui.store.question_sets import SetCatalogue
+        from robtui.store.question_sets import bundled_catalogue
 
-        return SetCatalogue({}, where="the bundled sets").resolve(self.question_set)
+        return bundled_catalogue().resolve(self.question_set)
 
 
 def payload(document, ranking: dict) -> dict:

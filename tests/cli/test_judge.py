@@ -15,6 +15,7 @@ import sys
 import pytest
 
 from robtui.cli import main
+from robtui.commands.judge import run_batch
 
 
 def _batch(lines: list[str]) -> subprocess.CompletedProcess:
@@ -130,7 +131,7 @@ def test_single_use_domain2_both_parts_shown(capsys):
         (["--domain", "8", "8.1=Y"], "no domain '8'"),
         (["4.1=N"], "say what to judge"),
         (["--batch", "--domain", "1"], "--batch reads its input from stdin"),
-        (["--domain", "1", "--question-set", "nope"], "no bundled question set named 'nope'"),
+        (["--domain", "1", "--question-set", "nope"], "no question set or design named 'nope' in the bundled sets"),
     ],
 )
 def test_single_use_bad_input_one_line_exit_2(args, message):
@@ -194,3 +195,19 @@ def test_batch_line_without_tool_is_an_error(monkeypatch, capsys):
     monkeypatch.setattr("sys.stdin", io.StringIO('{"domain": 1, "answers": {}}\n'))
     assert main(["judge", "--batch"]) == 0
     assert "missing 'tool'" in json.loads(capsys.readouterr().out)["error"]
+
+
+def test_other_sets_by_design_or_id(capsys):
+    # domain 1b of the cluster set: 1b.1 = N leads to 1b.3 (invented answers; the path itself
+    # is tested against the published algorithm in tests/core/test_variant_sets.py)
+    assert main(["judge", "--question-set", "cluster", "--domain", "1b", "1b.1=Y"]) == 0
+    assert "Domain 1b" in capsys.readouterr().out
+    line = json.dumps({"tool": "rob2", "question_set": "rob2-crossover", "domain": "S",
+                       "answers": {}})
+    out = io.StringIO()
+    assert run_batch(io.StringIO(line + "\n"), out) == 0
+    assert json.loads(out.getvalue()) == {"judgement": "incomplete"}
+    line = json.dumps({"tool": "rob2", "question_set": "factorial", "domain": 1, "answers": {}})
+    out = io.StringIO()
+    run_batch(io.StringIO(line + "\n"), out)
+    assert "no question set or design named 'factorial'" in json.loads(out.getvalue())["error"]
