@@ -1,8 +1,7 @@
 """PDF trial reports into a Document: text with joined lines, sentences with page and box.
 
-Pages are read one at a time and released, so memory holds what is kept for the document,
-never the parsed pages (robtui.reading.pdf_page, robtui.reading.pdf_layout do the per-page
-work). Paragraphs continue across column and page breaks; captions and tables met inside an
+Pages are read one at a time with pypdfium2 and released, so memory holds what is kept for the
+document, never the parsed pages (robtui.reading.layout does the per-page work). Paragraphs continue across column and page breaks; captions and tables met inside an
 unfinished paragraph are emitted after it, never inside it.
 """
 
@@ -14,11 +13,14 @@ from pathlib import Path
 from robtui.errors import ReadingError
 from robtui.reading.assemble import Block, Box, SentenceMaker
 from robtui.reading.document import Document
-from robtui.reading.pdf_layout import PBlock, page_blocks, running_signatures, strip_running
-from robtui.reading.pdf_page import Line, PageLines, extract_page
+from robtui.reading.layout.blocks import PBlock, page_blocks, running_signatures, strip_running
+from robtui.reading.layout.glyphs import read_glyphs
+from robtui.reading.layout.lines import Line
+from robtui.reading.layout.page import PageLines, analyse_page
 
 # Running heads are learnt from the first pages, so later pages stream through.
 RUNNING_SAMPLE = 12
+SOFT_HYPHEN = "\u00ad"
 _TERMINAL = re.compile(r"[.?!:][\"'”’)\]]*(?:\d+(?:[,–-]\d+)*)?$")
 
 
@@ -59,6 +61,9 @@ class TextBuilder:
         else:
             for i, line in enumerate(block.lines):
                 self._line_words(line, line.page or block.page, words, first=i == 0)
+        if self.parts and self.parts[-1].endswith(SOFT_HYPHEN):
+            self.parts[-1] = self.parts[-1][:-1]  # a soft hyphen ending the block is not text
+            self.length -= 1
         self.blocks += 1
         # Sentences are made now and the word boxes dropped with the block.
         body = "".join(self.parts[first_part:])
@@ -66,8 +71,9 @@ class TextBuilder:
         self.maker.add(Block(block_start, self.length, kind, block.page, words), body)
 
     def _line_words(self, line: Line, page: int, words: list, first: bool) -> None:
+        last = len(line.words) - 1
         for j, word in enumerate(line.words):
-            text = word.text
+            text = word.text if j == last else word.text.rstrip(SOFT_HYPHEN)
             if j == 0 and not first:
                 text = self._join_point(text)
             elif j > 0:
@@ -79,6 +85,10 @@ class TextBuilder:
     def _join_point(self, next_word: str) -> str:
         """Join a line to the previous one: drop a line-end hyphen or add a space."""
         prev = self.parts[-1] if self.parts else ""
+        if prev.endswith(SOFT_HYPHEN):  # the typesetter's own hyphenation: always joined
+            self.parts[-1] = prev[:-1]
+            self.length -= 1
+            return next_word
         if len(prev) >= 2 and prev.endswith("-") and prev[-2].isalnum():
             fragment = re.sub(r"^\W+", "", prev[:-1])
             if next_word[:1].islower() and not (fragment.isupper() or fragment.isdigit()):
@@ -159,7 +169,7 @@ class BlockFlow:
 
 def _open_error(path: Path, error: Exception) -> ReadingError:
     name = type(error).__name__
-    if "Password" in name or "Encrypt" in name:
+    if "Password" in name or "Encrypt" in name or "password" in str(error):
         return ReadingError(
             f"{path}: the PDF is encrypted (password protected); save an unprotected copy first"
         )
@@ -180,7 +190,7 @@ def _flow_page(flow: BlockFlow, page: PageLines, running: set[str]) -> None:
 
 def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     """A PDF file as a Document; ReadingError for encrypted, damaged or image-only files."""
-    import pdfplumber
+    import pypdfium2
 
     if not data.lstrip()[:5].startswith(b"%PDF"):
         raise ReadingError(f"{path}: not a PDF (no %PDF header); check the file")
@@ -196,12 +206,19 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     images = 0
     found_text = False
     textless: list[int] = []
+    page_warnings: list[str] = []
     try:
-        with pdfplumber.open(path) as pdf:
-            for number, page in enumerate(pdf.pages, start=1):
-                lines, page_images = extract_page(pdf, page, number)
-                images += page_images
-                page.close()
+        pdf = pypdfium2.PdfDocument(data)
+        try:
+            for number in range(1, len(pdf) + 1):
+                page = pdf[number - 1]
+                try:
+                    glyphs = read_glyphs(page, number)
+                finally:
+                    page.close()
+                images += glyphs.images
+                lines = analyse_page(glyphs)
+                page_warnings.extend(lines.warnings)
                 count = number
                 if lines.lines or lines.tables:
                     found_text = True
@@ -217,9 +234,11 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
                     buffered = []
                 else:
                     _flow_page(flow, lines, running)
+        finally:
+            pdf.close()
     except ReadingError:
         raise
-    except Exception as error:  # pdfminer raises many kinds; all mean the file is unusable
+    except Exception as error:  # PDFium's errors (and ours on its output) mean an unusable file
         raise _open_error(path, error) from error
     if count == 0:
         raise ReadingError(f"{path}: the PDF has no pages")
@@ -236,7 +255,7 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     flow.close()
     text = builder.text
     sentences = builder.maker.sentences
-    warnings = []
+    warnings = list(page_warnings)
     if textless:
         listed = ", ".join(str(n) for n in textless[:10]) + (", ..." if len(textless) > 10 else "")
         warnings.append(

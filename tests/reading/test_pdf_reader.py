@@ -168,7 +168,7 @@ def test_render_text_as_pdf_round_trip(tmp_path) -> None:
 
 
 def _line(*words: str):
-    from robtui.reading.pdf_page import Line, Word
+    from robtui.reading.layout.lines import Line, Word
 
     boxes = [
         Word(w, (10.0 * i, 0.0, 10.0 * i + 8, 9.0), False, False, 9.0) for i, w in enumerate(words)

@@ -1,11 +1,9 @@
-"""A page's lines into blocks in reading order, without running heads and page numbers.
+"""A page's lines (already in reading order) into blocks, without running heads.
 
-Rules (common practice for journal PDFs, no source): a line crossing the page's middle is full
-width, otherwise it belongs to the left or right column; full-width lines cut a page into bands
-read top to bottom, each band read left column then right column. Lines at the top or bottom of
-pages that repeat on many pages (digits ignored), bare page numbers and small print above the
-text are running heads. Blocks break at wider line gaps and font changes; blocks opening with
-"Table n" / "Figure n" are captions, ruled regions are tables.
+Rules (common practice for journal PDFs, no source): lines at the top or bottom of pages that
+repeat on many pages (digits ignored), bare page numbers and small print above the text are
+running heads. Blocks break at a change of column, wider line gaps and font changes; blocks
+opening with "Table n" / "Figure n" are captions; table regions are tables, after the text.
 """
 
 from __future__ import annotations
@@ -17,7 +15,8 @@ from collections import Counter
 from dataclasses import dataclass, field
 
 from robtui.reading.assemble import Box, is_caption, looks_like_heading
-from robtui.reading.pdf_page import MARGIN_SHARE, Line, PageLines, make_line
+from robtui.reading.layout.lines import Line, make_line
+from robtui.reading.layout.page import MARGIN_SHARE, PageLines
 
 _PAGE_NUMBER = re.compile(r"^(?:page\s*)?#+(?:\s*(?:of|/)\s*#+)?$", re.IGNORECASE)
 
@@ -76,48 +75,12 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
         return ln.bottom <= top_zone and ln.size < body_size - 0.8
 
     kept = [ln for ln in page.lines if not running_line(ln)]
-    return PageLines(page.number, page.width, page.height, kept, page.tables)
+    return PageLines(
+        page.number, page.width, page.height, kept, page.tables, page.warnings, page.body_size
+    )
 
 
-# -- reading order and blocks ------------------------------------------------------------------
-
-
-def reading_order(page: PageLines) -> list[Line | tuple[Box, list[Line]]]:
-    """Lines (and tables, as one item) in reading order: bands, then left before right."""
-    mid = page.width / 2
-    items: list[tuple[float, str, Line | tuple[Box, list[Line]]]] = []
-    for line in page.lines:
-        if line.x0 < mid - 6 and line.x1 > mid + 6:
-            line.column = "full"
-        elif line.x1 <= mid + 6:
-            line.column = "left"
-        else:
-            line.column = "right"
-        items.append((line.top, line.column, line))
-    for region, rows in page.tables:
-        column = (
-            "full"
-            if region[0] < mid - 6 and region[2] > mid + 6
-            else ("left" if region[2] <= mid + 6 else "right")
-        )
-        items.append((region[1], column, (region, rows)))
-    items.sort(key=lambda item: item[0])
-    ordered: list[Line | tuple[Box, list[Line]]] = []
-    band: list[tuple[float, str, object]] = []
-
-    def flush() -> None:
-        ordered.extend(i[2] for i in band if i[1] == "left")
-        ordered.extend(i[2] for i in band if i[1] == "right")
-        band.clear()
-
-    for item in items:
-        if item[1] == "full":
-            flush()
-            ordered.append(item[2])
-        else:
-            band.append(item)
-    flush()
-    return ordered
+# -- blocks ----------------------------------------------------------------------------------
 
 
 def _leading(lines: list[Line]) -> float:
@@ -129,36 +92,18 @@ def _leading(lines: list[Line]) -> float:
     return statistics.median(gaps) if gaps else 12.0
 
 
-def _short_last_line(prev: Line, line: Line, width: float) -> bool:
-    """The short last line of a full-width paragraph (it does not reach the page middle)."""
-    return (
-        prev.column == "full"
-        and line.column == "left"
-        and abs(line.x0 - prev.x0) < 3
-        and prev.x1 > width * 0.75
-        and abs(line.size - prev.size) < 0.3
-    )
-
-
 def page_blocks(page: PageLines) -> list[PBlock]:
     """Blocks of one page in reading order."""
-    ordered = reading_order(page)
-    plain = [item for item in ordered if isinstance(item, Line)]
+    plain = page.lines
     leading = _leading(plain)
     blocks: list[PBlock] = []
     current: PBlock | None = None
     prev: Line | None = None
-    for item in ordered:
-        if not isinstance(item, Line):
-            _region, rows = item
-            blocks.append(PBlock("table", [], page.number, rows=_table_rows(rows)))
-            current, prev = None, None
-            continue
-        line = item
+    for line in plain:
         new = (
             current is None
             or prev is None
-            or (line.column != prev.column and not _short_last_line(prev, line, page.width))
+            or line.column != prev.column
             or line.top - prev.top > 1.35 * max(leading, prev.size * 1.25)
             or line.top < prev.top
             or line.bold != prev.bold
@@ -173,6 +118,8 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         else:
             current.lines.append(line)
         prev = line
+    for _region, rows in page.tables:
+        blocks.append(PBlock("table", [], page.number, rows=_table_rows(rows)))
     body_size = _body_size(plain)
     for block in blocks:
         if block.kind == "table":

@@ -1,0 +1,199 @@
+"""A PDF page's characters, horizontal rules and image count, read with pypdfium2.
+
+PDFium parses the page in C++ and hands over its text layer; only what the reader uses is
+asked for: per character its text, origin (baseline), box, font and size; per path object its
+bounds when it is a thin horizontal rule; images are counted, never decoded. Coordinates are
+turned into points from the top-left of the crop box, and into the frame in which the page's
+text reads left to right (a page whose text is drawn turned by 90 degrees is turned back).
+"""
+
+from __future__ import annotations
+
+import ctypes
+import math
+import re
+from collections import Counter
+from dataclasses import dataclass
+
+RULE_MAX_HEIGHT = 2.0  # a path this flat (points) is a rule, not a shape
+RULE_MIN_WIDTH = 60.0
+_SUBSET = re.compile(r"^[A-Z]{6}\+")  # the subset tag of an embedded font
+
+
+@dataclass(slots=True)
+class Glyph:
+    """One character in reading frame: x0/x1 its advance, baseline its origin's y (from top)."""
+
+    text: str
+    x0: float
+    x1: float
+    top: float
+    bottom: float
+    baseline: float
+    size: float
+    font: str
+    angle: int  # 0, 90, 180, 270 (degrees, quantised) or -1 for any other angle
+
+
+@dataclass
+class PageGlyphs:
+    number: int
+    width: float
+    height: float
+    glyphs: list[Glyph]  # text in the page's main reading direction, content-stream order
+    turned: list[Glyph]  # text drawn at another angle (rotated tables, margin stamps)
+    rules: list[tuple[float, float, float]]  # horizontal rules: x0, x1, top
+    images: int
+
+
+def _quantise(radians: float) -> int:
+    degrees = math.degrees(radians) % 360
+    for q in (0, 90, 180, 270, 360):
+        if abs(degrees - q) < 2:
+            return q % 360
+    return -1
+
+
+def _address_returning(function, argtypes):
+    """A twin of a PDFium binding that returns the pointer as a plain int (a dict key)."""
+    twin = type(function)((function.__name__, _library_of(function)))
+    twin.argtypes, twin.restype = argtypes, ctypes.c_void_p
+    return twin
+
+
+def _library_of(function):
+    import pypdfium2_raw.bindings as bindings
+
+    return bindings._libs["pdfium"]
+
+
+class _Fonts:
+    """Font name, size scale and angle by PDFium text object (asked once per object)."""
+
+    def __init__(self, raw) -> None:
+        self.raw = raw
+        self.by_object: dict[int, tuple[str, float, int]] = {}
+        self.buffer = ctypes.create_string_buffer(256)
+        self.matrix = raw.FS_MATRIX()
+
+    def of(self, textpage, index: int, address: int) -> tuple[str, float, int]:
+        found = self.by_object.get(address)
+        if found is not None:
+            return found
+        raw = self.raw
+        name = ""
+        if address:
+            obj = ctypes.cast(address, raw.FPDF_PAGEOBJECT)
+            font = raw.FPDFTextObj_GetFont(obj)
+            if font and raw.FPDFFont_GetBaseFontName(font, self.buffer, 256):
+                name = self.buffer.value.decode("utf-8", "replace")
+        m = self.matrix
+        raw.FPDFText_GetMatrix(textpage, index, ctypes.byref(m))
+        scale = math.hypot(m.c, m.d) or 1.0
+        size = raw.FPDFText_GetFontSize(textpage, index) * scale
+        found = (_SUBSET.sub("", name), size, _quantise(math.atan2(m.b, m.a)))
+        self.by_object[address] = found
+        return found
+
+
+def read_glyphs(page, number: int) -> PageGlyphs:
+    """The glyphs, rules and image count of a pypdfium2 ``PdfPage``."""
+    import pypdfium2.raw as raw
+
+    left, bottom, right, top = page.get_cropbox()
+    width, height = right - left, top - bottom
+    textpage = page.get_textpage()
+    try:
+        chars = _chars(raw, textpage.raw, left, top)
+    finally:
+        textpage.close()
+    rules, images = _objects(page, left, top)
+    angles = Counter(c.angle for c in chars if not c.text.isspace())
+    main = angles.most_common(1)[0][0] if angles else 0
+    if main not in (0, -1):
+        chars = [_turn(c, main, width, height) for c in chars]
+        rules = []  # rules of a turned page are in the other frame; not worth turning
+        if main in (90, 270):
+            width, height = height, width
+        main = 0
+    glyphs = [c for c in chars if c.angle == main]
+    turned = [c for c in chars if c.angle != main]
+    return PageGlyphs(number, width, height, glyphs, turned, rules, images)
+
+
+def _chars(raw, tp, left: float, top: float) -> list[Glyph]:
+    fonts = _Fonts(raw)
+    text_object = _address_returning(
+        raw.FPDFText_GetTextObject, raw.FPDFText_GetTextObject.argtypes
+    )
+    unicode_of, generated = raw.FPDFText_GetUnicode, raw.FPDFText_IsGenerated
+    origin_of, box_of = raw.FPDFText_GetCharOrigin, raw.FPDFText_GetLooseCharBox
+    ox, oy = ctypes.c_double(), ctypes.c_double()
+    pox, poy = ctypes.byref(ox), ctypes.byref(oy)
+    rect = raw.FS_RECTF()
+    prect = ctypes.byref(rect)
+    out: list[Glyph] = []
+    last_address, font = -1, ("", 0.0, 0)
+    for i in range(raw.FPDFText_CountChars(tp)):
+        code = unicode_of(tp, i)
+        if code in (0x0D, 0x0A) or (code == 0x20 and generated(tp, i)):
+            continue  # PDFium's own line breaks and guessed spaces: geometry decides here
+        text = chr(code) if code and not 0xD800 <= code <= 0xDFFF else "\ufffd"
+        origin_of(tp, i, pox, poy)
+        box_of(tp, i, prect)
+        address = text_object(tp, i) or 0
+        if address != last_address:
+            font = fonts.of(tp, i, address)
+            last_address = address
+        name, size, angle = font
+        if angle == 0:
+            x0, x1 = rect.left - left, rect.right - left
+            gtop, gbottom = top - rect.top, top - rect.bottom
+            baseline = top - oy.value
+        else:  # kept in page coordinates; _turn maps them into the text's own frame
+            x0, x1 = min(rect.left, rect.right) - left, max(rect.left, rect.right) - left
+            gtop, gbottom = top - max(rect.top, rect.bottom), top - min(rect.top, rect.bottom)
+            baseline = ox.value - left if angle in (90, 270) else top - oy.value
+        glyph = Glyph(text, x0, x1, gtop, gbottom, baseline, size, name, angle)
+        if code in (0x02, 0xAD):
+            glyph.text = "\u00ad"  # PDFium's mark for a soft hyphen ending a line
+        out.append(glyph)
+    return out
+
+
+def _turn(g: Glyph, angle: int, width: float, height: float) -> Glyph:
+    """Map a glyph drawn at ``angle`` into the frame where it reads left to right."""
+    if angle == 90:  # text runs up the page: reading x is page y (from bottom)
+        x0, x1 = height - g.bottom, height - g.top
+        top, bottom = g.x0, g.x1
+        baseline = g.baseline
+    elif angle == 270:  # text runs down the page
+        x0, x1 = g.top, g.bottom
+        top, bottom = width - g.x1, width - g.x0
+        baseline = width - g.baseline
+    elif angle == 180:
+        x0, x1 = width - g.x1, width - g.x0
+        top, bottom = height - g.bottom, height - g.top
+        baseline = height - g.baseline
+    else:
+        return g
+    return Glyph(g.text, x0, x1, top, bottom, baseline, g.size, g.font, 0 if g.angle == angle else -1)
+
+
+def _objects(page, left: float, top: float) -> tuple[list[tuple[float, float, float]], int]:
+    """Horizontal rules and the number of images, from the page's top-level objects."""
+    import pypdfium2.raw as raw
+
+    rules: list[tuple[float, float, float]] = []
+    images = 0
+    x0, y0, x1, y1 = (ctypes.c_float() for _ in range(4))
+    handle = page.raw
+    for i in range(raw.FPDFPage_CountObjects(handle)):
+        obj = raw.FPDFPage_GetObject(handle, i)
+        kind = raw.FPDFPageObj_GetType(obj)
+        if kind == raw.FPDF_PAGEOBJ_IMAGE:
+            images += 1
+        elif kind == raw.FPDF_PAGEOBJ_PATH and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1):
+            if y1.value - y0.value <= RULE_MAX_HEIGHT and x1.value - x0.value > RULE_MIN_WIDTH:
+                rules.append((x0.value - left, x1.value - left, top - y1.value))
+    return rules, images

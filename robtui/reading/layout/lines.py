@@ -1,0 +1,272 @@
+"""Glyphs into words and rows by baseline.
+
+Glyphs are chained in content-stream order while they continue one line: a glyph belongs to a
+line when its middle lies in the line's band (from 0.8 of the line's font size above the
+baseline to 0.3 below), so superscripts, subscripts and ligature, quote or dash glyphs drawn
+from a second font a few points higher stay in their words. Chains on one baseline are then
+merged (PDFs that write a line in several pieces). Words break at spaces and at gaps wider
+than a fraction of the font size. Spacing accents drawn over a letter are composed with it;
+soft hyphens are kept as U+00AD for the text builder to join on. Band and gap shares are
+common practice for PDF text extraction, our own settings, no source.
+"""
+
+from __future__ import annotations
+
+import re
+import statistics
+import unicodedata
+from dataclasses import dataclass
+
+from robtui.reading.layout.glyphs import Glyph
+from robtui.reading.normalise import normalise_chars
+
+Box = tuple[float, float, float, float]
+
+BAND_ABOVE = 0.8  # share of the font size above the baseline that still belongs to the line
+BAND_BELOW = 0.3
+WORD_GAP = 0.15  # a gap wider than this share of the font size separates words
+MIDDLE = 0.35  # a glyph's middle sits this share of its size above its baseline
+
+# Spacing accents some PDFs draw as separate glyphs over a letter, with their combining forms.
+_SPACING_MARKS = {
+    "\u00a8": "\u0308",  # diaeresis
+    "\u00b4": "\u0301",  # acute
+    "`": "\u0300",
+    "\u02c6": "\u0302",  # circumflex
+    "^": "\u0302",
+    "\u02dc": "\u0303",  # tilde
+    "~": "\u0303",
+    "\u00b8": "\u0327",  # cedilla
+    "\u02c7": "\u030c",  # caron
+    "\u02da": "\u030a",  # ring
+    "\u00b0": "\u030a",
+    "\u00af": "\u0304",  # macron
+    "\u02d8": "\u0306",  # breve
+    "\u02d9": "\u0307",  # dot above
+    "\u02dd": "\u030b",  # double acute
+}
+BOLD_MARKS = ("bold", "black", "heavy", "semibold", "demi", "medium", "extrabold")
+_BOLD_STYLES = ("bd", "b", "sb", "db", "med", "md", "blk", "hv", "bdit", "bi", "mdit", "bdcn")
+_ITALIC_STYLES = ("it", "i", "bdit", "bi", "mdit", "ital", "obl", "cnobl")
+
+
+@dataclass
+class Word:
+    text: str
+    box: Box
+    bold: bool
+    italic: bool
+    size: float
+
+
+@dataclass
+class Line:
+    words: list[Word]
+    x0: float
+    top: float
+    x1: float
+    bottom: float
+    column: str = "full"  # which column block the line was read in ("full" spans the page)
+    page: int = 0  # set when a paragraph collects lines from several pages
+
+    @property
+    def text(self) -> str:
+        return " ".join(w.text for w in self.words)
+
+    @property
+    def bold(self) -> bool:
+        return sum(w.bold for w in self.words) * 2 > len(self.words)
+
+    @property
+    def italic(self) -> bool:
+        return sum(w.italic for w in self.words) * 2 > len(self.words)
+
+    @property
+    def size(self) -> float:
+        return statistics.median(w.size for w in self.words)
+
+
+def make_line(words: list[Word]) -> Line:
+    """A line from its words (their union box)."""
+    return Line(
+        words,
+        min(w.box[0] for w in words),
+        min(w.box[1] for w in words),
+        max(w.box[2] for w in words),
+        max(w.box[3] for w in words),
+    )
+
+
+def _style(font: str) -> str:
+    """The style part of a font name: after its last '-', ',' or '.' ("AdvTT1234.B" -> "b")."""
+    parts = re.split(r"[-,.]", font.lower())
+    return parts[-1] if len(parts) > 1 else ""
+
+
+def font_is_bold(font: str) -> bool:
+    """Weight from the font's name: Bold, Black, Heavy, Semibold, Demi, Medium, -Bd, .B."""
+    name = font.lower()
+    return any(mark in name for mark in BOLD_MARKS) or _style(font) in _BOLD_STYLES
+
+
+def font_is_italic(font: str) -> bool:
+    name = font.lower()
+    return "italic" in name or "oblique" in name or _style(font) in _ITALIC_STYLES
+
+
+# -- chains and rows ---------------------------------------------------------------------------
+
+
+@dataclass
+class Row:
+    """Glyphs sharing a baseline (one printed line, possibly across several columns)."""
+
+    glyphs: list[Glyph]
+    baseline: float
+    size: float
+
+    def holds(self, g: Glyph) -> bool:
+        middle = g.baseline - MIDDLE * g.size
+        return (
+            self.baseline - BAND_ABOVE * self.size <= middle <= self.baseline + BAND_BELOW * self.size
+        )
+
+
+def rows_of(glyphs: list[Glyph]) -> list[Row]:
+    """Rows of glyphs (unsorted inside), top to bottom."""
+    chains: list[Row] = []
+    current: Row | None = None
+    last: Glyph | None = None
+    for g in glyphs:
+        if g.text.isspace() and current is not None:
+            current.glyphs.append(g)
+            continue
+        if (
+            current is not None
+            and last is not None
+            and current.holds(g)
+            and g.x0 >= last.x0 - 0.6 * current.size
+        ):
+            current.glyphs.append(g)
+            if g.size > current.size * 1.15 and g.baseline >= current.baseline - 0.2 * g.size:
+                current.size, current.baseline = g.size, g.baseline
+        else:
+            if g.text.isspace():
+                continue
+            current = Row([g], g.baseline, g.size)
+            chains.append(current)
+        last = g
+    return _merge_chains(chains)
+
+
+def _merge_chains(chains: list[Row]) -> list[Row]:
+    """Chains on one baseline become one row; a chain of small glyphs joins the row it sits in."""
+    rows: list[Row] = []
+    buckets: dict[int, list[Row]] = {}
+    for chain in sorted(chains, key=lambda c: -c.size):
+        home = None
+        key = int(chain.baseline // 8)
+        for k in (key - 1, key, key + 1):
+            for row in buckets.get(k, ()):
+                close = abs(row.baseline - chain.baseline) <= max(1.0, 0.2 * row.size)
+                small = chain.size < 0.9 * row.size and all(row.holds(g) for g in chain.glyphs)
+                if (close or small) and not _overlaps(row, chain):
+                    home = row
+                    break
+            if home is not None:
+                break
+        if home is None:
+            rows.append(chain)
+            buckets.setdefault(key, []).append(chain)
+        else:
+            home.glyphs.extend(chain.glyphs)
+    rows.sort(key=lambda r: r.baseline)
+    return rows
+
+
+def _overlaps(row: Row, chain: Row) -> bool:
+    """True when ``chain`` lies over text of ``row`` (two lines printed on one another)."""
+    a0 = min(g.x0 for g in chain.glyphs)
+    a1 = max(g.x1 for g in chain.glyphs)
+    inside = sum(1 for g in row.glyphs if g.x0 < a1 - 1 and g.x1 > a0 + 1 and not g.text.isspace())
+    return inside > 2
+
+
+# -- words -------------------------------------------------------------------------------------
+
+
+def words_of(row: Row) -> list[Word]:
+    """The words of a row, left to right."""
+    glyphs = sorted(row.glyphs, key=lambda g: g.x0)
+    glyphs = _compose_marks(glyphs)
+    words: list[Word] = []
+    current: list[Glyph] = []
+    for g in glyphs:
+        if g.text.isspace():
+            _flush(current, words)
+            continue
+        if current:
+            prev = current[-1]
+            gap = g.x0 - prev.x1
+            if gap > WORD_GAP * max(row.size, 4.0) or g.x0 < prev.x0 - 0.5:
+                _flush(current, words)
+        current.append(g)
+    _flush(current, words)
+    return words
+
+
+def _compose_marks(glyphs: list[Glyph]) -> list[Glyph]:
+    """Accents drawn over a neighbouring letter become combining marks after that letter."""
+    marks = [
+        i
+        for i, g in enumerate(glyphs)
+        if g.text in _SPACING_MARKS or unicodedata.combining(g.text[:1] or " ")
+    ]
+    if not marks:
+        return glyphs
+    out = list(glyphs)
+    drop: set[int] = set()
+    for i in marks:
+        mark = glyphs[i]
+        middle = (mark.x0 + mark.x1) / 2
+        for j in (i - 1, i + 1):
+            if 0 <= j < len(glyphs) and j not in marks and glyphs[j].text.isalpha():
+                base = glyphs[j]
+                if base.x0 - 0.5 <= middle <= base.x1 + 0.5:
+                    accent = _SPACING_MARKS.get(mark.text, mark.text)
+                    composed = unicodedata.normalize("NFC", base.text + accent)
+                    out[j] = Glyph(
+                        composed, base.x0, base.x1, base.top, base.bottom, base.baseline,
+                        base.size, base.font, base.angle,
+                    )
+                    drop.add(i)
+                    break
+    return [g for k, g in enumerate(out) if k not in drop]
+
+
+def _flush(current: list[Glyph], words: list[Word]) -> None:
+    if not current:
+        return
+    raw = "".join(g.text for g in current)
+    soft = raw.endswith("\u00ad")
+    text = normalise_chars(raw).strip()
+    if text:
+        if soft:
+            text += "\u00ad"  # a soft hyphen ending the word: the line joins without a space
+        main = max(current, key=lambda g: g.size)
+        font = current[len(current) // 2].font
+        words.append(
+            Word(
+                text,
+                (
+                    min(g.x0 for g in current),
+                    min(g.top for g in current),
+                    max(g.x1 for g in current),
+                    max(g.bottom for g in current),
+                ),
+                font_is_bold(font),
+                font_is_italic(font),
+                round(main.size, 2),
+            )
+        )
+    current.clear()

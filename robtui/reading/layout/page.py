@@ -1,0 +1,244 @@
+"""One page's glyphs into lines in reading order, with its tables set apart.
+
+Tables: ruled regions (two or more horizontal rules of the same extent), runs of rows cut into
+several short cells in one column (unruled tables), and text drawn turned on the page (rotated
+tables) become table regions, read row by row and never as body text. A turned run of one or
+two lines (a download stamp up the margin) is dropped. Common practice for journal PDFs, our
+own thresholds, no source.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+from robtui.reading.layout.columns import (
+    Gutter,
+    Segment,
+    TextRow,
+    body_size,
+    find_gutters,
+    geo_blocks,
+    reading_order,
+    segments,
+    text_rows,
+)
+from robtui.reading.layout.glyphs import PageGlyphs, _turn
+from robtui.reading.layout.lines import Line, Word, make_line, rows_of
+
+Box = tuple[float, float, float, float]
+MARGIN_SHARE = 0.085  # top/bottom share of the page where running heads live
+TABLE_RUN = 3  # rows of short cells in a row that make an unruled table
+CELL_EM = 1.0  # a gap this wide (share of the body size) separates table cells
+
+
+@dataclass
+class PageLines:
+    number: int
+    width: float
+    height: float
+    lines: list[Line]  # in reading order; line.column names the column cell it was read in
+    tables: list[tuple[Box, list[Line]]]
+    warnings: list[str] = field(default_factory=list)
+    body_size: float = 10.0
+
+
+def analyse_page(page: PageGlyphs) -> PageLines:
+    """Lines in reading order and table regions of one page; a page that defeats the analysis
+    is read in plain order (top to bottom, left to right) with a warning naming it."""
+    rows = text_rows(rows_of(page.glyphs))
+    try:
+        return _analysed(page, rows)
+    except (ValueError, IndexError, ZeroDivisionError, RecursionError) as error:
+        lines = [make_line(row.words) for row in rows]
+        warning = (
+            f"page {page.number}: its layout could not be analysed ({type(error).__name__}); "
+            "read in plain order, so columns may be interleaved there"
+        )
+        return PageLines(page.number, page.width, page.height, lines, [], [warning])
+
+
+def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
+    size = body_size(rows)
+    gutters = find_gutters(rows, size)
+    segs = segments(rows, gutters, page.width, size)
+    columns = column_gutters(gutters, segs)
+    regions = _ruled_regions(page.rules, page.height)
+    regions += _unruled_regions(segs, rows, columns, size)
+    tables: list[tuple[Box, list[Line]]] = []
+    for region in _merged(regions):
+        inside = [s for s in segs if _inside(s.line, region)]
+        if inside:
+            tables.append((region, [s.line for s in inside]))
+            taken = {id(s) for s in inside}
+            segs = [s for s in segs if id(s) not in taken]
+    tables.extend(_turned_tables(page))
+    blocks = geo_blocks(segs, size)
+    ordered = reading_order(blocks)
+    warnings = []
+    if ordered is None:
+        warnings.append(
+            f"page {page.number}: too many text blocks to find its columns; read top to bottom"
+        )
+        lines = sorted((s.line for s in segs), key=lambda ln: (round(ln.top), ln.x0))
+        for line in lines:
+            line.column = "full"
+        return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
+    lines: list[Line] = []
+    for block in ordered:
+        left, right = block.cell
+        label = "full" if left <= 0.0 and right >= page.width else f"{left:.0f}-{right:.0f}"
+        for seg in block.segments:
+            seg.line.column = label
+            lines.append(seg.line)
+    return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
+
+
+# -- tables ------------------------------------------------------------------------------------
+
+
+def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> list[Box]:
+    """Regions between two or more rules of the same extent, outside the page margins."""
+    groups: dict[tuple[int, int], list[float]] = {}
+    for x0, x1, top in rules:
+        if top < height * MARGIN_SHARE or top > height * (1 - MARGIN_SHARE):
+            continue
+        groups.setdefault((round(x0 / 4), round(x1 / 4)), []).append(top)
+    regions = []
+    for (gx0, gx1), tops in groups.items():
+        tops.sort()
+        chain = [tops[0]]
+        for top in tops[1:] + [float("inf")]:
+            if top - chain[-1] <= 260:
+                chain.append(top)
+                continue
+            if len(chain) >= 2 and chain[-1] - chain[0] > 4:
+                regions.append((gx0 * 4.0 - 2, chain[0] - 1, gx1 * 4.0 + 2, chain[-1] + 1))
+            chain = [top]
+    return regions
+
+
+_NUMERIC = re.compile(r"^[(\[<>≤≥±+−–-]*[\d.,·]+[%)\]*†‡,;]*$")
+
+
+def _tabular(words: list[Word], size: float) -> bool:
+    """A row piece that reads as table cells: two or more wide gaps, with short cells or
+    figures; or three or more tokens that are mostly numbers spread wide apart."""
+    if len(words) < 3:
+        return False
+    gaps = [b.box[0] - a.box[2] for a, b in zip(words, words[1:])]
+    wide = sum(gap >= CELL_EM * size for gap in gaps)
+    numeric = sum(bool(_NUMERIC.match(w.text)) for w in words) / len(words)
+    if wide >= 2 and numeric >= 0.3:
+        return True
+    cells, longest = 1, 0
+    run = 1
+    for gap in gaps:
+        if gap >= CELL_EM * size:
+            cells, longest, run = cells + 1, max(longest, run), 1
+        else:
+            run += 1
+    longest = max(longest, run)
+    return cells >= 3 and longest <= 6
+
+
+def column_gutters(gutters: list[Gutter], segs: list[Segment]) -> list[Gutter]:
+    """The gutters between columns of prose (not those between the cells of a table): the
+    pieces either side of them hold five words or more in most rows they pass."""
+    by_row: dict[int, list[Segment]] = {}
+    for seg in segs:
+        by_row.setdefault(seg.row, []).append(seg)
+    out = []
+    for g in gutters:
+        long = short = 0
+        for row_segs in by_row.values():
+            left = [s for s in row_segs if abs(s.cell[1] - g.x0) < 1 and s.line.top >= g.top - 1]
+            right = [s for s in row_segs if abs(s.cell[0] - g.x1) < 1 and s.line.top >= g.top - 1]
+            for side in (left, right):
+                for s in side:
+                    if s.line.bottom > g.bottom + 1:
+                        continue
+                    if len(s.line.words) >= 5:
+                        long += 1
+                    else:
+                        short += 1
+        if long > short:
+            out.append(g)
+    return out
+
+
+def _unruled_regions(
+    segs: list[Segment], rows: list[TextRow], columns: list[Gutter], size: float
+) -> list[Box]:
+    by_row: dict[tuple[int, tuple[int, int]], list[Line]] = {}
+    for s in segs:
+        cuts = [g for g in columns if g.top - 1 <= s.line.top and s.line.bottom <= g.bottom + 1]
+        left = max((g.x1 for g in cuts if g.x1 <= s.line.x0 + 0.5), default=0.0)
+        right = min((g.x0 for g in cuts if g.x0 >= s.line.x1 - 0.5), default=-1.0)
+        by_row.setdefault((s.row, (round(left), round(right))), []).append(s.line)
+    runs: dict[tuple[int, int], list[list[Line]]] = {}
+    for (row, cell), cells in sorted(by_row.items()):
+        words = sorted((w for c in cells for w in c.words), key=lambda w: w.box[0])
+        if not _tabular(words, size):
+            continue
+        chains = runs.setdefault(cell, [])
+        if chains and rows[row].top - max(ln.bottom for ln in chains[-1]) <= 2.5 * size:
+            chains[-1].extend(cells)
+        else:
+            chains.append(list(cells))
+    regions = []
+    for chains in runs.values():
+        for chain in chains:
+            if len({round(ln.bottom) for ln in chain}) >= TABLE_RUN:
+                regions.append(
+                    (
+                        min(ln.x0 for ln in chain) - 1,
+                        min(ln.top for ln in chain) - 1,
+                        max(ln.x1 for ln in chain) + 1,
+                        max(ln.bottom for ln in chain) + 1,
+                    )
+                )
+    return regions
+
+
+def _turned_tables(page: PageGlyphs) -> list[tuple[Box, list[Line]]]:
+    """Text drawn at another angle than the page's: three or more rows are a table."""
+    by_angle: dict[int, list] = {}
+    for g in page.turned:
+        by_angle.setdefault(g.angle, []).append(g)
+    tables = []
+    for angle, glyphs in by_angle.items():
+        if angle == -1 or len(glyphs) < 20:
+            continue
+        turned = [_turn(g, angle, page.width, page.height) for g in glyphs]
+        rows = text_rows(rows_of(turned))
+        if len(rows) < 3:
+            continue  # a stamp or a label up the margin
+        segs = segments(rows, [], float("inf"), body_size(rows))
+        lines = [s.line for s in segs]
+        box = (
+            min(g.x0 for g in glyphs),
+            min(g.top for g in glyphs),
+            max(g.x1 for g in glyphs),
+            max(g.bottom for g in glyphs),
+        )
+        tables.append((box, lines))
+    return tables
+
+
+def _merged(regions: list[Box]) -> list[Box]:
+    """Overlapping regions joined."""
+    out: list[Box] = []
+    for r in sorted(regions, key=lambda b: b[1]):
+        for i, o in enumerate(out):
+            if r[0] < o[2] and r[2] > o[0] and r[1] < o[3] and r[3] > o[1]:
+                out[i] = (min(r[0], o[0]), min(r[1], o[1]), max(r[2], o[2]), max(r[3], o[3]))
+                break
+        else:
+            out.append(r)
+    return out
+
+
+def _inside(line: Line, region: Box) -> bool:
+    cx, cy = (line.x0 + line.x1) / 2, (line.top + line.bottom) / 2
+    return region[0] <= cx <= region[2] and region[1] <= cy <= region[3]
