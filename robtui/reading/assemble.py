@@ -32,6 +32,7 @@ class Block:
     page: int | None = None
     # (char_start, char_end, page, box) of each word, offsets into the document text.
     words: list[tuple[int, int, int, Box]] = field(default_factory=list)
+    section: str | None = None  # set for text outside the article's flow (side notes)
 
 
 def looks_like_heading(line: str) -> bool:
@@ -70,7 +71,9 @@ class SentenceMaker:
             return
         tracker = self.tracker
         whole = [(0, len(body))]
-        if not self.sentences and block.kind == "heading" and match_heading(body) is None:
+        if block.section is not None:
+            self._emit(block, body, split_sentences(body), block.section)
+        elif not self.sentences and block.kind == "heading" and match_heading(body) is None:
             self._emit(block, body, whole, "title")  # a title set as a heading
         elif block.kind == "heading":
             self._emit(block, body, whole, tracker.heading(body))

@@ -45,6 +45,7 @@ class TextBuilder:
         return start, self.length
 
     def add(self, block: PBlock, kind: str) -> None:
+        """Append ``block``; an aside (side note, licence, stamp) goes to section "other"."""
         if self.blocks:
             self._put("\n\n")
         block_start = self.length
@@ -68,7 +69,10 @@ class TextBuilder:
         # Sentences are made now and the word boxes dropped with the block.
         body = "".join(self.parts[first_part:])
         self.parts[first_part:] = [body]
-        self.maker.add(Block(block_start, self.length, kind, block.page, words), body)
+        section = None
+        if kind == "aside":
+            kind, section = "body", "other"
+        self.maker.add(Block(block_start, self.length, kind, block.page, words, section), body)
 
     def _line_words(self, line: Line, page: int, words: list, first: bool) -> None:
         last = len(line.words) - 1
@@ -130,13 +134,15 @@ class BlockFlow:
         self.deferred: list[PBlock] = []
 
     def feed(self, block: PBlock, column_start: bool) -> None:
-        if block.kind in ("caption", "table"):
+        if block.kind in ("caption", "table", "aside"):
             if self.open is not None:
                 self.deferred.append(block)
             else:
                 self.builder.add(block, block.kind)
             return
-        if block.kind == "body" and self.open is not None and column_start:
+        if block.kind == "body" and self.open is not None and column_start and _continues(
+            self.open.lines[-1], block.lines[0]
+        ):
             for line in block.lines:
                 line.page = block.page
             self.open.lines.extend(block.lines)
@@ -162,6 +168,15 @@ class BlockFlow:
         for block in self.deferred:
             self.builder.add(block, block.kind)
         self.deferred.clear()
+
+
+def _continues(last: Line, first: Line) -> bool:
+    """A paragraph goes on in the next column only in the same type (size, weight, style)."""
+    return (
+        abs(last.size - first.size) <= 0.6
+        and last.bold == first.bold
+        and last.italic == first.italic
+    )
 
 
 # -- the reader --------------------------------------------------------------------------------

@@ -15,6 +15,7 @@ from collections import Counter
 from dataclasses import dataclass, field
 
 from robtui.reading.assemble import Box, is_caption, looks_like_heading
+from robtui.reading.sections import match_heading, run_in_heading
 from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, PageLines
 
@@ -93,9 +94,11 @@ def _leading(lines: list[Line]) -> float:
 
 
 def page_blocks(page: PageLines) -> list[PBlock]:
-    """Blocks of one page in reading order."""
+    """Blocks of one page in reading order: body, heading, caption, aside; tables last."""
     plain = page.lines
     leading = _leading(plain)
+    body_size = _body_size(plain)
+    body_font = _body_font(plain, body_size)
     blocks: list[PBlock] = []
     current: PBlock | None = None
     prev: Line | None = None
@@ -109,6 +112,8 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             or line.bold != prev.bold
             or line.italic != prev.italic
             or abs(line.size - prev.size) > 0.6
+            or (line.font == body_font) != (prev.font == body_font)
+            and min(len(line.words), len(prev.words)) <= 8
             or is_caption(line.text)
             and not is_caption(current.lines[0].text)
         )
@@ -118,23 +123,120 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         else:
             current.lines.append(line)
         prev = line
+    for block in blocks:
+        block.kind = _kind(block, body_size, body_font)
+    blocks = _with_run_in_split(blocks, body_font)
+    for i, block in enumerate(blocks):
+        if block.kind == "body" and _stands_as_heading(block, blocks[i + 1 : i + 2], body_font):
+            block.kind = "heading"
     for _region, rows in page.tables:
         blocks.append(PBlock("table", [], page.number, rows=_table_rows(rows)))
-    body_size = _body_size(plain)
-    for block in blocks:
-        if block.kind == "table":
-            continue
-        first = block.lines[0].text
-        text = " ".join(ln.text for ln in block.lines)
-        if is_caption(first):
-            block.kind = "caption"
-        elif (
-            len(block.lines) <= 2
-            and looks_like_heading(text)
-            and (block.lines[0].bold or block.lines[0].size > body_size + 0.8)
-        ):
-            block.kind = "heading"
     return blocks
+
+
+# Small print that is not the article's text: licences, copyright, download stamps, addresses.
+_FRONT_MATTER = re.compile(
+    r"\b(?:licen[cs]e[ed]?|copyright|creative commons|downloaded from|open access|"
+    r"correspondence|e-?mail|published online|received:|accepted:|"
+    r"this article is distributed|permits unrestricted)\b|©",
+    re.IGNORECASE,
+)
+
+
+def _kind(block: PBlock, body_size: float, body_font: str) -> str:
+    first = block.lines[0]
+    text = " ".join(ln.text for ln in block.lines)
+    if first.column == "aside":
+        return "aside"
+    if is_caption(first.text):
+        return "caption"
+    small = statistics.median(ln.size for ln in block.lines) < body_size - 1.2
+    if small and _FRONT_MATTER.search(text):
+        return "aside"
+    if len(block.lines) <= 2 and looks_like_heading(text):
+        if first.bold or first.size > body_size + 0.8:
+            return "heading"
+        letters = [ch for ch in text if ch.isalpha()]
+        if len(letters) >= 4 and all(ch.isupper() for ch in letters) and not small:
+            return "heading"  # same-size capitals: "METHODS"
+        if len(block.lines) == 1 and len(first.words) <= 6 and not small:
+            if match_heading(text, keywords=False) is not None:
+                return "heading"  # heading vocabulary standing alone on its line
+    return "body"
+
+
+def _stands_as_heading(block: PBlock, following: list[PBlock], body_font: str) -> bool:
+    """A short line alone in italics or in another font than the body's, followed by a
+    paragraph of body text in the same column: a subheading."""
+    if len(block.lines) != 1 or not following:
+        return False
+    line, nxt = block.lines[0], following[0]
+    if len(line.words) > 9 or not looks_like_heading(line.text):
+        return False
+    if not (line.italic or line.font != body_font):
+        return False
+    return (
+        nxt.kind == "body"
+        and nxt.lines[0].column == line.column
+        and sum(len(ln.words) for ln in nxt.lines) >= 8
+        and nxt.lines[0].font == body_font
+        and not nxt.lines[0].italic
+    )
+
+
+def _with_run_in_split(blocks: list[PBlock], body_font: str) -> list[PBlock]:
+    """A paragraph opening with a few bold (or italic, or other-font) words followed by body
+    words on the same line: those words are a run-in subheading, split off as a heading."""
+    out: list[PBlock] = []
+    for block in blocks:
+        head = _run_in_words(block, body_font) if block.kind == "body" else 0
+        if not head:
+            out.append(block)
+            continue
+        first = block.lines[0]
+        heading = make_line(first.words[:head])
+        rest = make_line(first.words[head:])
+        for line in (heading, rest):
+            line.column, line.page = first.column, first.page
+        out.append(PBlock("heading", [heading], block.page))
+        out.append(PBlock("body", [rest, *block.lines[1:]], block.page))
+    return out
+
+
+def _run_in_words(block: PBlock, body_font: str) -> int:
+    words = block.lines[0].words
+    if len(words) < 2:
+        return 0
+
+    def marked(w) -> bool:
+        return w.bold or w.italic or w.font != body_font
+
+    rest = [w for w in words if not marked(w)]
+    if not rest:
+        return 0
+    count = 0
+    for w in words:
+        if not marked(w):
+            break
+        count += 1
+    if not 1 <= count <= 10 or count == len(words):
+        return 0
+    if any(marked(w) for w in words[count:]) and sum(not marked(w) for w in words) < 3:
+        return 0
+    prefix = " ".join(w.text for w in words[:count])
+    if not looks_like_heading(prefix.rstrip(".:")) and run_in_heading(prefix, "methods") is None:
+        return 0
+    if not words[0].bold and not prefix.endswith((".", ":")):
+        return 0  # italic or other-font words run into a sentence: emphasis, not a heading
+    return count
+
+
+def _body_font(lines: list[Line], body_size: float) -> str:
+    fonts: Counter[str] = Counter()
+    for ln in lines:
+        if abs(ln.size - body_size) <= 0.6:
+            fonts.update(w.font for w in ln.words)
+    return fonts.most_common(1)[0][0] if fonts else ""
 
 
 def _body_size(lines: list[Line]) -> float:

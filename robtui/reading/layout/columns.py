@@ -35,7 +35,12 @@ class Gutter:
     x1: float
     top: float
     bottom: float
-    rows: int = 1  # rows with text on both sides
+    left_rows: int = 0  # rows with text just left of the strip
+    right_rows: int = 0
+
+    @property
+    def rows(self) -> int:
+        return min(self.left_rows, self.right_rows)
 
 
 @dataclass
@@ -70,55 +75,73 @@ def body_size(rows: list[TextRow]) -> float:
 
 
 def find_gutters(rows: list[TextRow], size: float) -> list[Gutter]:
-    """Vertical strips of white between columns of text."""
+    """Vertical strips of white between columns of text.
+
+    Sweeping down the rows, a strip stays open while each row leaves it (partly) free and
+    closes at a row that crosses it; it is a gutter when text lies beside it on the left in
+    GUTTER_ROWS rows or more and on the right in as many (the two columns' baselines need not
+    line up).
+    """
+    if not rows:
+        return []
     least = max(3.0, GUTTER_EM * size)
+    left_edge = min(r.words[0].box[0] for r in rows)
+    right_edge = max(r.words[-1].box[2] for r in rows)
     active: list[Gutter] = []
     found: list[Gutter] = []
     for row in rows:
+        free = _free_space(row.words, left_edge, right_edge, least)
         kept: list[Gutter] = []
         for g in active:
-            free = _free_part(row.words, g.x0, g.x1)
-            if free is not None and free[1] - free[0] >= least:
-                g.x0, g.x1 = free
+            part = _widest_overlap(free, g.x0, g.x1)
+            if part is not None and part[1] - part[0] >= least:
+                g.x0, g.x1 = part
                 g.bottom = max(g.bottom, row.bottom)
-                if _both_sides(row.words, g.x0, g.x1):
-                    g.rows += 1
+                _count_sides(g, row.words)
                 kept.append(g)
             elif g.rows >= GUTTER_ROWS:
                 found.append(g)
-        for a, b in zip(row.words, row.words[1:]):
-            x0, x1 = a.box[2], b.box[0]
-            if x1 - x0 >= least and not any(g.x0 < x1 and g.x1 > x0 for g in kept):
-                kept.append(Gutter(x0, x1, row.top, row.bottom))
+        for x0, x1 in free:
+            if not any(g.x0 < x1 and g.x1 > x0 for g in kept):
+                g = Gutter(x0, x1, row.top, row.bottom)
+                _count_sides(g, row.words)
+                kept.append(g)
         active = kept
     found.extend(g for g in active if g.rows >= GUTTER_ROWS)
     return found
 
 
-def _free_part(words: list[Word], x0: float, x1: float) -> tuple[float, float] | None:
-    """The widest part of [x0, x1] no word of the row covers."""
-    pieces = [(x0, x1)]
+def _free_space(
+    words: list[Word], left: float, right: float, least: float
+) -> list[tuple[float, float]]:
+    """The row's white intervals at least ``least`` wide, between ``left`` and ``right``."""
+    free = []
+    x = left
     for w in words:
-        a, b = w.box[0], w.box[2]
-        if b <= x0 or a >= x1:
-            continue
-        nxt = []
-        for p0, p1 in pieces:
-            if b <= p0 or a >= p1:
-                nxt.append((p0, p1))
-                continue
-            if a > p0:
-                nxt.append((p0, a))
-            if b < p1:
-                nxt.append((b, p1))
-        pieces = nxt
-        if not pieces:
-            return None
-    return max(pieces, key=lambda p: p[1] - p[0])
+        if w.box[0] - x >= least:
+            free.append((x, w.box[0]))
+        x = max(x, w.box[2])
+    if right - x >= least:
+        free.append((x, right))
+    return free
 
 
-def _both_sides(words: list[Word], x0: float, x1: float) -> bool:
-    return any(w.box[2] <= x0 + 0.5 for w in words) and any(w.box[0] >= x1 - 0.5 for w in words)
+def _widest_overlap(
+    free: list[tuple[float, float]], x0: float, x1: float
+) -> tuple[float, float] | None:
+    best = None
+    for a, b in free:
+        lo, hi = max(a, x0), min(b, x1)
+        if hi > lo and (best is None or hi - lo > best[1] - best[0]):
+            best = (lo, hi)
+    return best
+
+
+def _count_sides(g: Gutter, words: list[Word]) -> None:
+    if any(w.box[2] <= g.x0 + 0.5 for w in words):
+        g.left_rows += 1
+    if any(w.box[0] >= g.x1 - 0.5 for w in words):
+        g.right_rows += 1
 
 
 # -- segments ----------------------------------------------------------------------------------
@@ -142,8 +165,11 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
         piece = [row.words[0]]
         for word in row.words[1:]:
             prev = piece[-1]
+            gap = word.box[0] - prev.box[2]
             gutter = any(prev.box[2] <= g.x0 + 0.5 and word.box[0] >= g.x1 - 0.5 for g in cuts)
-            if gutter or word.box[0] - prev.box[2] > SPLIT_EM * max(size, word.size):
+            # a side note set beside the text in much smaller type, a little apart
+            other_type = gap > 0.5 * size and abs(word.size - prev.size) > 0.15 * size
+            if gutter or other_type or gap > SPLIT_EM * max(size, word.size):
                 out.append(_segment(piece, cuts, width, index))
                 piece = [word]
             else:

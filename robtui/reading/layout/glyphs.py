@@ -155,8 +155,8 @@ def _chars(raw, tp, left: float, top: float) -> list[Glyph]:
             gtop, gbottom = top - max(rect.top, rect.bottom), top - min(rect.top, rect.bottom)
             baseline = ox.value - left if angle in (90, 270) else top - oy.value
         glyph = Glyph(text, x0, x1, gtop, gbottom, baseline, size, name, angle)
-        if code in (0x02, 0xAD):
-            glyph.text = "\u00ad"  # PDFium's mark for a soft hyphen ending a line
+        if code == 0x02:
+            glyph.text = "-"  # PDFium's mark for a hyphen ending a line: the text builder decides
         out.append(glyph)
     return out
 

@@ -57,6 +57,7 @@ class Word:
     bold: bool
     italic: bool
     size: float
+    font: str = ""  # the font's family key (subset tag and variant number removed)
 
 
 @dataclass
@@ -85,6 +86,12 @@ class Line:
     def size(self) -> float:
         return statistics.median(w.size for w in self.words)
 
+    @property
+    def font(self) -> str:
+        """The font most of the line's words are set in."""
+        fonts = [w.font for w in self.words]
+        return max(set(fonts), key=fonts.count)
+
 
 def make_line(words: list[Word]) -> Line:
     """A line from its words (their union box)."""
@@ -95,6 +102,11 @@ def make_line(words: list[Word]) -> Line:
         max(w.box[2] for w in words),
         max(w.box[3] for w in words),
     )
+
+
+def family_key(font: str) -> str:
+    """A font's name without its subset tag or a numbered variant ("AdvTT86d47313+20")."""
+    return re.sub(r"\+\w{1,3}$", "", font)
 
 
 def _style(font: str) -> str:
@@ -208,7 +220,7 @@ def words_of(row: Row) -> list[Word]:
         if current:
             prev = current[-1]
             gap = g.x0 - prev.x1
-            if gap > WORD_GAP * max(row.size, 4.0) or g.x0 < prev.x0 - 0.5:
+            if gap > WORD_GAP * max(min(g.size, prev.size), 4.0) or g.x0 < prev.x0 - 0.5:
                 _flush(current, words)
         current.append(g)
     _flush(current, words)
@@ -267,6 +279,7 @@ def _flush(current: list[Glyph], words: list[Word]) -> None:
                 font_is_bold(font),
                 font_is_italic(font),
                 round(main.size, 2),
+                family_key(font),
             )
         )
     current.clear()

@@ -29,6 +29,7 @@ from robtui.reading.layout.lines import Line, Word, make_line, rows_of
 Box = tuple[float, float, float, float]
 MARGIN_SHARE = 0.085  # top/bottom share of the page where running heads live
 TABLE_RUN = 3  # rows of short cells in a row that make an unruled table
+SIDE_SHARE = 0.3  # a side column is narrower than this share of the page
 CELL_EM = 1.0  # a gap this wide (share of the body size) separates table cells
 
 
@@ -68,7 +69,7 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     tables: list[tuple[Box, list[Line]]] = []
     for region in _merged(regions):
         inside = [s for s in segs if _inside(s.line, region)]
-        if inside:
+        if inside and _table_like(inside, size):
             tables.append((region, [s.line for s in inside]))
             taken = {id(s) for s in inside}
             segs = [s for s in segs if id(s) not in taken]
@@ -88,13 +89,35 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     for block in ordered:
         left, right = block.cell
         label = "full" if left <= 0.0 and right >= page.width else f"{left:.0f}-{right:.0f}"
+        if _side_note(block, page.width, size):
+            label = "aside"
         for seg in block.segments:
             seg.line.column = label
             lines.append(seg.line)
     return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
 
 
+def _side_note(block, width: float, size: float) -> bool:
+    """A block of small print in a narrow column at the page's edge (a side column)."""
+    left, right = block.cell
+    if right - left > SIDE_SHARE * width or not (left <= 0.0 or right >= width):
+        return False
+    sizes = sorted(seg.line.size for seg in block.segments)
+    return sizes[len(sizes) // 2] < size - 1.0
+
+
 # -- tables ------------------------------------------------------------------------------------
+
+
+def _table_like(inside: list[Segment], size: float) -> bool:
+    """Text between rules is a table when its rows are cut into cells, not prose in a box."""
+    by_row: dict[int, list[Word]] = {}
+    for seg in inside:
+        by_row.setdefault(seg.row, []).extend(seg.line.words)
+    rows = [sorted(words, key=lambda w: w.box[0]) for words in by_row.values()]
+    tabular = sum(_tabular(words, size) for words in rows)
+    words = sum(len(seg.line.words) for seg in inside)
+    return tabular >= 0.3 * len(rows) or words / len(inside) < 5
 
 
 def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> list[Box]:
@@ -129,7 +152,7 @@ def _tabular(words: list[Word], size: float) -> bool:
     gaps = [b.box[0] - a.box[2] for a, b in zip(words, words[1:])]
     wide = sum(gap >= CELL_EM * size for gap in gaps)
     numeric = sum(bool(_NUMERIC.match(w.text)) for w in words) / len(words)
-    if wide >= 2 and numeric >= 0.3:
+    if (wide >= 2 and numeric >= 0.3) or (wide >= 1 and numeric >= 0.5):
         return True
     cells, longest = 1, 0
     run = 1
