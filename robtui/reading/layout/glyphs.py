@@ -33,6 +33,7 @@ class Glyph:
     size: float
     font: str
     angle: int  # 0, 90, 180, 270 (degrees, quantised) or -1 for any other angle
+    space_before: bool = False  # PDFium guessed a space before this glyph
 
 
 @dataclass
@@ -134,10 +135,14 @@ def _chars(raw, tp, left: float, top: float) -> list[Glyph]:
     prect = ctypes.byref(rect)
     out: list[Glyph] = []
     last_address, font = -1, ("", 0.0, 0)
+    space_before = False
     for i in range(raw.FPDFText_CountChars(tp)):
         code = unicode_of(tp, i)
-        if code in (0x0D, 0x0A) or (code == 0x20 and generated(tp, i)):
-            continue  # PDFium's own line breaks and guessed spaces: geometry decides here
+        if code in (0x0D, 0x0A):
+            continue  # PDFium's own line breaks: the baselines decide here
+        if code == 0x20 and generated(tp, i):
+            space_before = True  # PDFium's guess from the font's spacing: words_of weighs it
+            continue
         text = chr(code) if code and not 0xD800 <= code <= 0xDFFF else "\ufffd"
         origin_of(tp, i, pox, poy)
         box_of(tp, i, prect)
@@ -154,7 +159,8 @@ def _chars(raw, tp, left: float, top: float) -> list[Glyph]:
             x0, x1 = min(rect.left, rect.right) - left, max(rect.left, rect.right) - left
             gtop, gbottom = top - max(rect.top, rect.bottom), top - min(rect.top, rect.bottom)
             baseline = ox.value - left if angle in (90, 270) else top - oy.value
-        glyph = Glyph(text, x0, x1, gtop, gbottom, baseline, size, name, angle)
+        glyph = Glyph(text, x0, x1, gtop, gbottom, baseline, size, name, angle, space_before)
+        space_before = False
         if code == 0x02:
             glyph.text = "-"  # PDFium's mark for a hyphen ending a line: the text builder decides
         out.append(glyph)
@@ -177,7 +183,7 @@ def _turn(g: Glyph, angle: int, width: float, height: float) -> Glyph:
         baseline = height - g.baseline
     else:
         return g
-    return Glyph(g.text, x0, x1, top, bottom, baseline, g.size, g.font, 0 if g.angle == angle else -1)
+    return Glyph(g.text, x0, x1, top, bottom, baseline, g.size, g.font, 0 if g.angle == angle else -1, g.space_before)
 
 
 def _objects(page, left: float, top: float) -> tuple[list[tuple[float, float, float]], int]:

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import re
 import statistics
+from functools import cache, cached_property
 import unicodedata
 from dataclasses import dataclass
 
@@ -24,7 +25,8 @@ Box = tuple[float, float, float, float]
 
 BAND_ABOVE = 0.8  # share of the font size above the baseline that still belongs to the line
 BAND_BELOW = 0.3
-WORD_GAP = 0.15  # a gap wider than this share of the font size separates words
+WORD_GAP = 0.1  # a gap wider than this share of the font size separates words
+GUESSED_OVERLAP = 0.1  # where PDFium guessed a space, only glyphs overlapping more are one word
 MIDDLE = 0.35  # a glyph's middle sits this share of its size above its baseline
 
 # Spacing accents some PDFs draw as separate glyphs over a letter, with their combining forms.
@@ -45,6 +47,7 @@ _SPACING_MARKS = {
     "\u02d9": "\u0307",  # dot above
     "\u02dd": "\u030b",  # double acute
 }
+_MARK = re.compile("[\u0300-\u036f" + "".join(_SPACING_MARKS) .replace("^", "\\^") + "]")
 BOLD_MARKS = ("bold", "black", "heavy", "semibold", "demi", "medium", "extrabold")
 _BOLD_STYLES = ("bd", "b", "sb", "db", "med", "md", "blk", "hv", "bdit", "bi", "mdit", "bdcn")
 _ITALIC_STYLES = ("it", "i", "bdit", "bi", "mdit", "ital", "obl", "cnobl")
@@ -70,23 +73,24 @@ class Line:
     column: str = "full"  # which column block the line was read in ("full" spans the page)
     page: int = 0  # set when a paragraph collects lines from several pages
 
-    @property
+    # A line's words do not change once it is made, so its summaries are computed once.
+    @cached_property
     def text(self) -> str:
         return " ".join(w.text for w in self.words)
 
-    @property
+    @cached_property
     def bold(self) -> bool:
         return sum(w.bold for w in self.words) * 2 > len(self.words)
 
-    @property
+    @cached_property
     def italic(self) -> bool:
         return sum(w.italic for w in self.words) * 2 > len(self.words)
 
-    @property
+    @cached_property
     def size(self) -> float:
         return statistics.median(w.size for w in self.words)
 
-    @property
+    @cached_property
     def font(self) -> str:
         """The font most of the line's words are set in."""
         fonts = [w.font for w in self.words]
@@ -104,6 +108,7 @@ def make_line(words: list[Word]) -> Line:
     )
 
 
+@cache
 def family_key(font: str) -> str:
     """A font's name without its subset tag or a numbered variant ("AdvTT86d47313+20")."""
     return re.sub(r"\+\w{1,3}$", "", font)
@@ -115,12 +120,14 @@ def _style(font: str) -> str:
     return parts[-1] if len(parts) > 1 else ""
 
 
+@cache
 def font_is_bold(font: str) -> bool:
     """Weight from the font's name: Bold, Black, Heavy, Semibold, Demi, Medium, -Bd, .B."""
     name = font.lower()
     return any(mark in name for mark in BOLD_MARKS) or _style(font) in _BOLD_STYLES
 
 
+@cache
 def font_is_italic(font: str) -> bool:
     name = font.lower()
     return "italic" in name or "oblique" in name or _style(font) in _ITALIC_STYLES
@@ -213,6 +220,7 @@ def words_of(row: Row) -> list[Word]:
     glyphs = _compose_marks(glyphs)
     words: list[Word] = []
     current: list[Glyph] = []
+    raised = row.baseline - 0.2 * row.size
     for g in glyphs:
         if g.text.isspace():
             _flush(current, words)
@@ -220,7 +228,14 @@ def words_of(row: Row) -> list[Word]:
         if current:
             prev = current[-1]
             gap = g.x0 - prev.x1
-            if gap > WORD_GAP * max(min(g.size, prev.size), 4.0) or g.x0 < prev.x0 - 0.5:
+            if g.size >= 0.85 * row.size and all(
+                c.size < 0.85 * row.size and c.baseline < raised for c in current
+            ):
+                _flush(current, words)  # a footnote mark before a word: "a Values are"
+            least = WORD_GAP * max(min(g.size, prev.size), 4.0)
+            if g.space_before:  # PDFium saw a space here from the font's own spacing
+                least = -GUESSED_OVERLAP * g.size
+            if gap > least or g.x0 < prev.x0 - 0.5:
                 _flush(current, words)
         current.append(g)
     _flush(current, words)
@@ -229,13 +244,13 @@ def words_of(row: Row) -> list[Word]:
 
 def _compose_marks(glyphs: list[Glyph]) -> list[Glyph]:
     """Accents drawn over a neighbouring letter become combining marks after that letter."""
+    if not _MARK.search("".join(g.text for g in glyphs)):
+        return glyphs
     marks = [
         i
         for i, g in enumerate(glyphs)
         if g.text in _SPACING_MARKS or unicodedata.combining(g.text[:1] or " ")
     ]
-    if not marks:
-        return glyphs
     out = list(glyphs)
     drop: set[int] = set()
     for i in marks:
@@ -249,7 +264,7 @@ def _compose_marks(glyphs: list[Glyph]) -> list[Glyph]:
                     composed = unicodedata.normalize("NFC", base.text + accent)
                     out[j] = Glyph(
                         composed, base.x0, base.x1, base.top, base.bottom, base.baseline,
-                        base.size, base.font, base.angle,
+                        base.size, base.font, base.angle, base.space_before,
                     )
                     drop.add(i)
                     break
@@ -261,24 +276,25 @@ def _flush(current: list[Glyph], words: list[Word]) -> None:
         return
     raw = "".join(g.text for g in current)
     soft = raw.endswith("\u00ad")
-    text = normalise_chars(raw).strip()
+    text = raw if raw.isascii() else normalise_chars(raw).strip()
     if text:
         if soft:
             text += "\u00ad"  # a soft hyphen ending the word: the line joins without a space
-        main = max(current, key=lambda g: g.size)
         font = current[len(current) // 2].font
+        x0, top, x1, bottom, size = current[0].x0, current[0].top, 0.0, 0.0, 0.0
+        for g in current:
+            top = g.top if g.top < top else top
+            x1 = g.x1 if g.x1 > x1 else x1
+            bottom = g.bottom if g.bottom > bottom else bottom
+            size = g.size if g.size > size else size
+            x0 = g.x0 if g.x0 < x0 else x0
         words.append(
             Word(
                 text,
-                (
-                    min(g.x0 for g in current),
-                    min(g.top for g in current),
-                    max(g.x1 for g in current),
-                    max(g.bottom for g in current),
-                ),
+                (x0, top, x1, bottom),
                 font_is_bold(font),
                 font_is_italic(font),
-                round(main.size, 2),
+                round(size, 2),
                 family_key(font),
             )
         )
