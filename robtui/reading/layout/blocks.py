@@ -20,6 +20,12 @@ from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, PageLines
 
 _PAGE_NUMBER = re.compile(r"^(?:page\s*)?#+(?:\s*(?:of|/)\s*#+)?$", re.IGNORECASE)
+# Publishers' notes where a block breaks across pages or columns (not the article's text).
+_CONTINUED = re.compile(
+    r"^\(?(?:continued|cont'?d\.?)(?: (?:on|from|in) (?:the )?(?:next|previous|following)"
+    r" (?:page|column))?\)?$",
+    re.IGNORECASE,
+)
 
 
 @dataclass
@@ -75,7 +81,7 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
             return True
         return ln.bottom <= top_zone and ln.size < body_size - 0.8
 
-    kept = [ln for ln in page.lines if not running_line(ln)]
+    kept = [ln for ln in page.lines if not running_line(ln) and not _CONTINUED.match(ln.text)]
     return PageLines(
         page.number, page.width, page.height, kept, page.tables, page.warnings, page.body_size
     )

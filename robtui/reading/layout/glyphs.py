@@ -78,20 +78,21 @@ class _Fonts:
         self.matrix = raw.FS_MATRIX()
 
     def of(self, textpage, index: int, address: int) -> tuple[str, float, int]:
+        """(font name, size in points, angle) of the text object at ``address``."""
         found = self.by_object.get(address)
         if found is not None:
             return found
         raw = self.raw
         name = ""
+        m = self.matrix
+        raw.FPDFText_GetMatrix(textpage, index, ctypes.byref(m))
+        scale = math.hypot(m.c, m.d) or 1.0
+        size = raw.FPDFText_GetFontSize(textpage, index) * scale
         if address:
             obj = ctypes.cast(address, raw.FPDF_PAGEOBJECT)
             font = raw.FPDFTextObj_GetFont(obj)
             if font and raw.FPDFFont_GetBaseFontName(font, self.buffer, 256):
                 name = self.buffer.value.decode("utf-8", "replace")
-        m = self.matrix
-        raw.FPDFText_GetMatrix(textpage, index, ctypes.byref(m))
-        scale = math.hypot(m.c, m.d) or 1.0
-        size = raw.FPDFText_GetFontSize(textpage, index) * scale
         found = (_SUBSET.sub("", name), size, _quantise(math.atan2(m.b, m.a)))
         self.by_object[address] = found
         return found

@@ -220,7 +220,8 @@ def words_of(row: Row) -> list[Word]:
     glyphs = _compose_marks(glyphs)
     words: list[Word] = []
     current: list[Glyph] = []
-    raised = row.baseline - 0.2 * row.size
+    raised, small = row.baseline - 0.2 * row.size, 0.85 * row.size
+    marks_only = False  # the word so far is raised small print (a footnote mark)
     for g in glyphs:
         if g.text.isspace():
             _flush(current, words)
@@ -228,15 +229,14 @@ def words_of(row: Row) -> list[Word]:
         if current:
             prev = current[-1]
             gap = g.x0 - prev.x1
-            if g.size >= 0.85 * row.size and all(
-                c.size < 0.85 * row.size and c.baseline < raised for c in current
-            ):
+            if marks_only and g.size >= small:
                 _flush(current, words)  # a footnote mark before a word: "a Values are"
             least = WORD_GAP * max(min(g.size, prev.size), 4.0)
             if g.space_before:  # PDFium saw a space here from the font's own spacing
                 least = -GUESSED_OVERLAP * g.size
             if gap > least or g.x0 < prev.x0 - 0.5:
                 _flush(current, words)
+        marks_only = (marks_only or not current) and g.size < small and g.baseline < raised
         current.append(g)
     _flush(current, words)
     return words
