@@ -15,7 +15,7 @@ from collections import Counter
 from dataclasses import dataclass, field
 
 from robtui.reading.assemble import Box, is_caption, looks_like_heading
-from robtui.reading.sections import match_heading, run_in_heading
+from robtui.reading.sections import TOP_LEVEL, match_heading, normalise_heading, run_in_heading
 from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, PageLines
 
@@ -120,6 +120,10 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             or abs(line.size - prev.size) > 0.6
             or (line.font == body_font) != (prev.font == body_font)
             and min(len(line.words), len(prev.words)) <= 8
+            or line.font != prev.font
+            and len(current.lines) == 1
+            and len(prev.words) <= 6
+            and looks_like_heading(prev.text)
             or is_caption(line.text)
             and not is_caption(current.lines[0].text)
         )
@@ -165,8 +169,9 @@ def _kind(block: PBlock, body_size: float, body_font: str) -> str:
         letters = [ch for ch in text if ch.isalpha()]
         if len(letters) >= 4 and all(ch.isupper() for ch in letters) and not small:
             return "heading"  # same-size capitals: "METHODS"
-        if len(block.lines) == 1 and len(first.words) <= 6 and not small:
-            if match_heading(text, keywords=False) is not None:
+        if len(block.lines) == 1 and len(first.words) <= 6:
+            label = match_heading(text, keywords=False)
+            if label is not None and (not small or normalise_heading(text) in TOP_LEVEL):
                 return "heading"  # heading vocabulary standing alone on its line
     return "body"
 

@@ -17,6 +17,7 @@ The shares are our own settings (common practice, no source).
 from __future__ import annotations
 
 import heapq
+import re
 import statistics
 from collections import Counter
 from dataclasses import dataclass, field
@@ -26,7 +27,8 @@ from robtui.reading.layout.lines import Line, Row, Word, make_line, words_of
 GUTTER_EM = 0.75
 GUTTER_ROWS = 4
 SPLIT_EM = 2.2
-MAX_BLOCKS = 220  # beyond this many blocks on a page, the plain order is used
+MAX_BLOCKS = 220
+_LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-])$")  # beyond this many blocks on a page, the plain order is used
 
 
 @dataclass
@@ -167,6 +169,8 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             prev = piece[-1]
             gap = word.box[0] - prev.box[2]
             gutter = any(prev.box[2] <= g.x0 + 0.5 and word.box[0] >= g.x1 - 0.5 for g in cuts)
+            if gutter and len(piece) == 1 and _LIST_LABEL.match(prev.text):
+                gutter = False  # a hanging list number or bullet belongs to its item
             # a side note set beside the text in much smaller type, a little apart
             other_type = gap > 0.5 * size and abs(word.size - prev.size) > 0.15 * size
             if gutter or other_type or gap > SPLIT_EM * max(size, word.size):

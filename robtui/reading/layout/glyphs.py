@@ -57,15 +57,8 @@ def _quantise(radians: float) -> int:
 
 def _address_returning(function, argtypes):
     """A twin of a PDFium binding that returns the pointer as a plain int (a dict key)."""
-    twin = type(function)((function.__name__, _library_of(function)))
-    twin.argtypes, twin.restype = argtypes, ctypes.c_void_p
-    return twin
-
-
-def _library_of(function):
-    import pypdfium2_raw.bindings as bindings
-
-    return bindings._libs["pdfium"]
+    prototype = ctypes.CFUNCTYPE(ctypes.c_void_p, *argtypes)
+    return prototype(ctypes.cast(function, ctypes.c_void_p).value)
 
 
 class _Fonts:

@@ -85,11 +85,13 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
         for line in lines:
             line.column = "full"
         return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
+    prose = [s.line for s in segs if len(s.line.words) >= 5 and abs(s.line.size - size) <= 0.5]
+    text_area = (min(ln.x0 for ln in prose), max(ln.x1 for ln in prose)) if prose else None
     lines: list[Line] = []
     for block in ordered:
         left, right = block.cell
         label = "full" if left <= 0.0 and right >= page.width else f"{left:.0f}-{right:.0f}"
-        if _side_note(block, page.width, size):
+        if _side_note(block, page.width, size, text_area):
             label = "aside"
         for seg in block.segments:
             seg.line.column = label
@@ -97,13 +99,16 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
 
 
-def _side_note(block, width: float, size: float) -> bool:
-    """A block of small print in a narrow column at the page's edge (a side column)."""
-    left, right = block.cell
-    if right - left > SIDE_SHARE * width or not (left <= 0.0 or right >= width):
-        return False
+def _side_note(block, width: float, size: float, text_area: tuple[float, float] | None) -> bool:
+    """A block of small print in a narrow column at the page's edge (a side column), or
+    beside the page's prose (outside the span its body-size lines cover)."""
     sizes = sorted(seg.line.size for seg in block.segments)
-    return sizes[len(sizes) // 2] < size - 1.0
+    if sizes[len(sizes) // 2] >= size - 1.0:
+        return False
+    if text_area is not None and (block.x0 >= text_area[1] - 1 or block.x1 <= text_area[0] + 1):
+        return True
+    left, right = block.cell
+    return right - left <= SIDE_SHARE * width and (left <= 0.0 or right >= width)
 
 
 # -- tables ------------------------------------------------------------------------------------

@@ -1,0 +1,219 @@
+"""Layout analysis of PDF pages: glyphs to lines, gutters, reading order, headings, asides.
+
+Unit tests build glyphs by hand (an invented page); the real-PDF tests read the shared real
+articles (../shared/real-pdfs) and skip with a reason when they are absent.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+
+from robtui.reading.layout import page as page_module
+from robtui.reading.layout.columns import (
+    body_size,
+    find_gutters,
+    geo_blocks,
+    reading_order,
+    segments,
+    text_rows,
+)
+from robtui.reading.layout.glyphs import Glyph, PageGlyphs
+from robtui.reading.layout.lines import font_is_bold, font_is_italic, rows_of, words_of
+from robtui.reading.layout.page import analyse_page
+
+# -- glyphs by hand ----------------------------------------------------------------------------
+
+
+def _glyphs(text: str, x: float, baseline: float, size: float = 10.0, font: str = "Body",
+            advance: float | None = None) -> list[Glyph]:
+    """Glyphs of ``text`` set from ``x`` on ``baseline``; a space advances without a glyph."""
+    step = advance or 0.5 * size
+    out = []
+    for ch in text:
+        if ch != " ":
+            out.append(Glyph(ch, x, x + step, baseline - 0.8 * size, baseline + 0.2 * size,
+                             baseline, size, font, 0))
+        x += step
+    return out
+
+
+def _text(rows) -> list[str]:
+    return [" ".join(w.text for w in words_of(row)) for row in rows]
+
+
+@pytest.mark.parametrize(
+    ("font", "bold", "italic"),
+    [
+        ("AdvTTaf7f9f4f.B", True, False),
+        ("AdvTT7329fd89.I", False, True),
+        ("Shaker2Lancet-Bold", True, False),
+        ("GillSansMT-Bold", True, False),
+        ("FranklinGothic-Demi", True, False),
+        ("Gotham-Medium", True, False),
+        ("AvenirLTStd-Black", True, False),
+        ("Helvetica-Bd", True, False),
+        ("TimesNewRomanPS-BoldItalicMT", True, True),
+        ("AdvTT86d47313", False, False),
+        ("TimesNewRomanPSMT", False, False),
+        ("AvenirLTStd-Roman", False, False),
+        ("SabonLTStd-R", False, False),
+    ],
+)
+def test_weight_and_style_from_font_names(font, bold, italic) -> None:
+    assert font_is_bold(font) is bold
+    assert font_is_italic(font) is italic
+
+
+def test_shifted_ligature_and_superscript_stay_in_their_words() -> None:
+    # "eff" + "ect": the ligature glyph drawn 2.2 pt higher from a second font; "trial" with a
+    # superscript reference 3.5 pt up at 6 pt; the next line 12 pt below.
+    glyphs = _glyphs("the e", 10, 100)
+    glyphs += [Glyph("\ufb00", 35, 41, 90, 100, 97.8, 10.0, "Body+20", 0)]
+    glyphs += _glyphs("ect of the trial", 41, 100)
+    glyphs += _glyphs("12", 121, 96.5, size=6.0)
+    glyphs += _glyphs("next line here", 10, 112)
+    rows = rows_of(glyphs)
+    assert _text(rows) == ["the effect of the trial12", "next line here"]
+
+
+def test_spacing_accent_over_a_letter_is_composed() -> None:
+    glyphs = _glyphs("Fagerstro", 10, 100) + [
+        Glyph("\u00a8", 50.5, 54.5, 90, 100, 100, 10.0, "Body", 0)
+    ] + _glyphs("m", 55, 100)
+    assert _text(rows_of(glyphs)) == ["Fagerström"]
+
+
+def test_footnote_mark_before_a_word_is_its_own_word() -> None:
+    glyphs = _glyphs("a", 10, 96.5, size=6.0) + _glyphs("Values are means", 13, 100)
+    assert _text(rows_of(glyphs)) == ["a Values are means"]
+
+
+def _two_column_page(gutter: float, offset: float) -> list[Glyph]:
+    """A full-width title, then two columns of prose whose baselines are ``offset`` apart,
+    separated by a ``gutter`` (points)."""
+    glyphs = _glyphs("An invented full width title over both columns of the page", 40, 60,
+                     size=14.0, advance=8.0)
+    left_words = "left column words run on here"
+    right_words = "right column words run on too"
+    width = len(left_words) * 5.0
+    for i in range(8):
+        glyphs += _glyphs(f"{left_words} {i}", 40, 100 + 12 * i)
+        glyphs += _glyphs(f"{right_words} {i}", 40 + width + 10 + gutter, 100 + 12 * i + offset)
+    return glyphs
+
+
+@pytest.mark.parametrize(("gutter", "offset"), [(9.0, 0.0), (9.0, 5.0), (20.0, 3.0)])
+def test_narrow_gutters_with_unaligned_baselines_split_the_columns(gutter, offset) -> None:
+    glyphs = _two_column_page(gutter, offset)
+    page = analyse_page(PageGlyphs(1, 595.0, 842.0, glyphs, [], [], 0))
+    texts = [line.text for line in page.lines]
+    assert texts[0].startswith("An invented full width title")
+    lefts = [t for t in texts if t.startswith("left")]
+    rights = [t for t in texts if t.startswith("right")]
+    assert len(lefts) == len(rights) == 8  # no line joins words across the gutter
+    # read as a reader would: the title, the whole left column, then the right one
+    assert texts == [texts[0], *lefts, *rights]
+    assert lefts == [f"left column words run on here {i}" for i in range(8)]
+
+
+def test_rivers_in_justified_text_are_not_gutters() -> None:
+    # One column whose word gaps line up for two rows only: no gutter, lines stay whole.
+    glyphs = []
+    for i in range(10):
+        words = "aaaa bbbbbb cc ddddddd" if i in (3, 4) else "aaaa bbbbb ccc dddddddd"
+        glyphs += _glyphs(words, 40, 100 + 12 * i, advance=5.0)
+    rows = text_rows(rows_of(glyphs))
+    assert find_gutters(rows, body_size(rows)) == []
+
+
+def test_reading_order_full_width_block_between_column_runs() -> None:
+    glyphs = []
+    for i in range(5):
+        glyphs += _glyphs(f"upper left {i} text here", 40, 100 + 12 * i)
+        glyphs += _glyphs(f"upper right {i} text here", 300, 100 + 12 * i)
+    glyphs += _glyphs("a full width line that crosses the gutter of the page here ok", 40, 180)
+    for i in range(5):
+        glyphs += _glyphs(f"lower left {i} text here", 40, 210 + 12 * i)
+        glyphs += _glyphs(f"lower right {i} text here", 300, 210 + 12 * i)
+    rows = text_rows(rows_of(glyphs))
+    size = body_size(rows)
+    segs = segments(rows, find_gutters(rows, size), 595.0, size)
+    order = reading_order(geo_blocks(segs, size))
+    firsts = [block.segments[0].line.text.split()[:2] for block in order]
+    assert firsts == [["upper", "left"], ["upper", "right"], ["a", "full"],
+                      ["lower", "left"], ["lower", "right"]]
+
+
+def test_a_page_that_defeats_the_analysis_is_read_in_plain_order(monkeypatch) -> None:
+    def broken(page, rows):
+        raise ValueError("invented failure")
+
+    monkeypatch.setattr(page_module, "_analysed", broken)
+    glyphs = _glyphs("first line", 40, 100) + _glyphs("second line", 40, 112)
+    page = analyse_page(PageGlyphs(7, 595.0, 842.0, glyphs, [], [], 0))
+    assert [line.text for line in page.lines] == ["first line", "second line"]
+    assert page.warnings and "page 7" in page.warnings[0] and "plain order" in page.warnings[0]
+
+
+def test_soft_hyphen_at_line_end_joins_the_word() -> None:
+    from robtui.reading.layout.blocks import PBlock
+    from robtui.reading.layout.lines import Line, Word
+    from robtui.reading.pdf import TextBuilder
+
+    def line(*texts):
+        words = [Word(t, (10.0 * i, 0.0, 10.0 * i + 8, 9.0), False, False, 9.0)
+                 for i, t in enumerate(texts)]
+        return Line(words, 0.0, 0.0, 10.0 * len(texts), 9.0)
+
+    builder = TextBuilder()
+    builder.add(PBlock("body", [line("each", "partici\u00ad"), line("pant", "agreed.")], 1), "body")
+    assert builder.text == "each participant agreed."
+
+
+# -- the shared real articles ------------------------------------------------------------------
+
+
+def _real_pdfs() -> list[Path]:
+    from robtui.benchmarks.real_pdfs import default_folder
+
+    folder = default_folder()
+    if folder is None:
+        return []
+    return sorted(folder.glob("*.pdf")) + sorted((folder / "more").glob("*.pdf"))
+
+
+REAL = _real_pdfs()
+needs_real = pytest.mark.skipif(not REAL, reason="shared real PDFs (../shared/real-pdfs) absent")
+
+
+@needs_real
+def test_every_shared_real_pdf_opens_with_its_sections() -> None:
+    from robtui.reading.document import top_section
+    from robtui.reading.reader import read_document
+
+    for path in REAL:
+        doc = read_document(path, use_cache=False)
+        found = {top_section(s.section) for s in doc.sentences}
+        assert {"methods", "references"} <= found, path.name
+        body = " ".join(s.text for s in doc.sentences if s.block == "body")
+        assert "\ufb00" not in body and "\u00ad" not in body, path.name
+        split = re.search(r"\b(?:insuf|suf|ef|eff|signi|speci)\s(?:fi|ff)?\s?(?:cien|ect|cacy|cant|c\b)", body)
+        assert split is None, (path.name, split and split.group(0))
+
+
+@needs_real
+def test_side_notes_and_stamps_stay_out_of_prose() -> None:
+    from robtui.reading.document import top_section
+    from robtui.reading.reader import read_document
+
+    for path in REAL:
+        doc = read_document(path, use_cache=False)
+        prose = [s.text for s in doc.sentences
+                 if s.block == "body" and top_section(s.section) != "other"]
+        for text in prose:
+            if len(text.split()) > 8:
+                assert "See Online for appendix" not in text, (path.name, text)
+                assert "Downloaded from http" not in text, (path.name, text)
