@@ -201,3 +201,13 @@ def test_a_result_without_studies_still_draws(small):
     ex, _ = small
     files = figure_files(replace(ex, rows=[]), QSET, "pdf")
     assert all(d.startswith(b"%PDF") for d in files.values())
+
+
+def test_a_stale_consensus_row_is_marked_and_explained(small):
+    ex, _ = small
+    rows = [replace(ex.rows[0], source="consensus (stale)"), *ex.rows[1:]]
+    [(_, _, _, text)] = _pdf_pages(figure_files(replace(ex, rows=rows), QSET, "pdf")["-lights.pdf"])
+    assert f"{one_line(rows[0].study_label)}\u2021" in text
+    assert "\u2021 consensus built on answers a reviewer has since changed" in " ".join(
+        text.split()
+    )
