@@ -11,7 +11,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         "demo",
         help="build the demo review (invented trials, two reviewers' finished work) and open it",
         description=(
-            "Build the bundled demo review: six invented trial reports, the results to assess "
+            "Build the bundled demo review: seven invented trial reports (parallel-group, one "
+            "cluster-randomised and one crossover trial, each assessed with its design's "
+            "question set), the results to assess "
             "and two reviewers' complete assessments. Without --copy-to it is built in a fresh "
             "folder and opened in the workbench."
         ),

@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 
-from robtui.core.questions import QuestionSet
+from robtui.core.questions import EFFECTS, QuestionSet
 from robtui.errors import InputError
 
 
@@ -60,8 +60,20 @@ class ReviewSets:
         return merged_order(qset.domain_ids() for qset in self.in_use(study_ids))
 
     def question_keys(self, study_ids: Iterable[str] | None = None) -> list[str]:
-        """Every question key (QuestionSet.question_key) of the sets in use, merged likewise."""
-        return merged_order(qset.question_keys() for qset in self.in_use(study_ids))
+        """Every question key (QuestionSet.question_key) of the sets in use: effect by effect,
+        domain by domain in :meth:`domain_ids` order, each domain's questions merged likewise
+        (one set alone: its own ``question_keys()`` order)."""
+        sets = self.in_use(study_ids)
+        keys: list[str] = []
+        for effect in EFFECTS:
+            for domain_id in self.domain_ids(study_ids):
+                per_set = [
+                    [qset.question_key(q.id, effect) for q in qset.domain(domain_id, effect).questions]
+                    for qset in sets
+                    if domain_id in qset.domain_ids() and effect in (qset.effects() or [effect])
+                ]
+                keys += [k for k in merged_order(per_set) if k not in keys]
+        return keys
 
     def combined(self, study_ids: Iterable[str] | None = None) -> QuestionSet:
         """One set holding every domain of the sets in use, for names and labels of columns

@@ -145,7 +145,7 @@ def build_outcome_export(
         )
         note = (
             f"Studies of different designs were assessed with different question sets: {used}. "
-            "Each overall judgement covers its own set's domains (an extra domain counts only "
+            "Each overall judgement covers the domains of its own set (an extra domain counts only "
             "for the studies that have it); the rating pools the overall judgements."
         )
         grade = replace(grade, notes=[*grade.notes, note])

@@ -32,9 +32,10 @@ from robtui.core.comparison import differences, pair_assessments
 from robtui.core.consensus import complete_consensus, pending_questions, settle, start_consensus
 from robtui.core.model import ResultSpec
 from robtui.core.questions import QuestionSet
+from robtui.core.review_sets import ReviewSets
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.paths import bundled_dir
-from robtui.store.question_sets import builtin_question_set
+from robtui.store.question_sets import review_question_sets
 from robtui.store.quotes import find_quote
 from robtui.store.review_folder import ReviewFolder
 
@@ -46,6 +47,7 @@ _TOP_KEYS = {
 }  # fmt: skip
 # [[study]] keys naming further files of a study, and the kind each is added as.
 _MORE_FILES = {"protocols": "protocol", "registry_records": "registry"}
+_STUDY_KEYS = {"id", "label", "files", "design", *_MORE_FILES}
 _BLOCK_KEYS = {"study", "results", "answers", "reviewer", "override"}
 _ANSWER_KEYS = {"code", "why", "quote", "quotes"}
 # Quotes from the PDF when the passage is found there (they then carry a page number).
@@ -108,30 +110,31 @@ def _keys(table: Mapping, allowed: set[str], path: Path, entry: str) -> None:
 
 
 def _build(dest: Path, source: Path, data: dict, path: Path) -> None:
-    qset = builtin_question_set()
     folder = ReviewFolder.create(
         dest, data["title"], lead=data.get("lead"), reviewers=data.get("reviewers", [])
     )
     for study in data.get("study", []):
+        _keys(study, _STUDY_KEYS, path, f"study {study.get('id')}")
         files = [source / name for name in study.get("files", [])]
-        folder.add_study(study["id"], study["label"], files)
+        folder.add_study(study["id"], study["label"], files, design=study.get("design"))
         for key, kind in _MORE_FILES.items():  # protocols and registry records
             for name in study.get(key, []):
                 folder.add_report(study["id"], source / name, kind=kind)
     for result in data.get("result", []):
         folder.add_result(ResultSpec.model_validate(result))
+    sets = review_question_sets(folder)  # each study's set, chosen by its design
     for reviewer in folder.review.reviewers:
         for study in folder.review.studies:
             for result in folder.review.results:
                 layers = _layers(data.get("assessment", []), study.id, result.id, reviewer, path)
-                a = _assess(folder, qset, reviewer, study.id, result.id, layers)
+                a = _assess(folder, sets.of(study.id), reviewer, study.id, result.id, layers)
                 if "assessed_at" in data:  # fixed times: the same demo every time it is built
                     a = a.model_copy(
                         update={"created": data["assessed_at"], "updated": data["assessed_at"]}
                     )
                 folder.save_assessment(a)
     for index, block in enumerate(data.get("consensus", []), start=1):
-        record = _consensus(folder, qset, block, path, f"consensus {index}")
+        record = _consensus(folder, sets, block, path, f"consensus {index}")
         if "settled_at" in data:  # fixed, like the assessments' times
             record = record.model_copy(update={"updated": data["settled_at"]})
         folder.save_consensus(record)
@@ -187,11 +190,12 @@ def _assess(folder, qset: QuestionSet, reviewer, study_id, result_id, layers):
     return a.model_copy(update={"last_question": None})
 
 
-def _consensus(folder: ReviewFolder, qset: QuestionSet, block: Mapping, path: Path, entry: str):
+def _consensus(folder: ReviewFolder, sets: ReviewSets, block: Mapping, path: Path, entry: str):
     """The lead's consensus record for one ``[[consensus]]`` block, settled question by question
     through the comparison module (in question order) from both reviewers' saved assessments."""
     _keys(block, _CONSENSUS_KEYS, path, entry)
     study_id, result_id = str(block.get("study", "")), str(block.get("result", ""))
+    qset = sets.of(study_id)
     try:
         pair = _saved_pair(folder, study_id, result_id)
         status = block.get("status", "draft")

@@ -42,6 +42,12 @@ def test_merged_order_keeps_every_sets_order():
     assert combined.domain("1b").name == CLUSTER.domain("1b").name
     assert combined.domain("S").name == CROSSOVER.domain("S").name
     assert SETS.combined(["P2"]) is PARALLEL
+    keys = SETS.question_keys()
+    assert keys[:10] == ["1.1", "1.2", "1.3", "1b.1", "1b.2", "1b.3", "S.1", "S.2", "S.3", "2.1"]
+    assert keys.index("2.1a") < keys.index("2.2") < keys.index("3.1") < keys.index("3.1a")
+    assert keys[-6:] == [f"adhering:2.{i}" for i in range(1, 7)]
+    for qset in (PARALLEL, CLUSTER, CROSSOVER):
+        assert ReviewSets(qset).question_keys() == qset.question_keys()
 
 
 def _review() -> Review:

@@ -16,7 +16,7 @@ from robtui.core.consensus import pending_questions
 from robtui.core.model import Consensus
 from robtui.errors import DataFileError, InputError
 from robtui.store.demo import DEMO_FILE, build_demo_review, demo_source_dir
-from robtui.store.question_sets import builtin_question_set
+from robtui.store.question_sets import builtin_question_set, review_question_sets
 from robtui.store.quotes import report_document
 from robtui.store.review_folder import ReviewFolder
 
@@ -90,10 +90,13 @@ def check_demo(folder) -> None:
         len(folder.review.reviewers) * len(folder.review.studies) * len(folder.review.results)
     )
     assert len(found) == expected
+    sets = review_question_sets(folder)  # each study's set, chosen by its design
     for a in found:
+        qset = sets.of(a.study_id)
+        assert (a.question_set, a.question_set_version) == (qset.id, qset.version)
         assert a.status == "complete", (a.reviewer, a.study_id, a.result_id)
-        assert assessing.completion_problems(a, QSET) == []
-        assert assessing.recompute(a, QSET).proposed == a.proposed, (
+        assert assessing.completion_problems(a, qset) == []
+        assert assessing.recompute(a, qset).proposed == a.proposed, (
             "proposals come from the algorithm"
         )
         study = folder.review.study(a.study_id)
@@ -177,7 +180,7 @@ def test_failed_build_leaves_nothing(tiny_source: Path, tmp_path: Path):
 def test_bundled_demo_builds_and_validates(tmp_path: Path):
     folder = build_demo_review(tmp_path / "demo")
     check_demo(folder)
-    assert len(folder.review.studies) == 6
+    assert len(folder.review.studies) == 7
     assert len(folder.review.reviewers) == 2
     a, b = folder.review.reviewers
     differing = 0
@@ -288,22 +291,24 @@ def test_bundled_demo_consensus_records(bundled_demo: ReviewFolder):
     studies = [s.id for s in folder.review.studies]
     lead = folder.review.lead
     assert lead == "ines"
+    sets = review_question_sets(folder)
     for study_id in studies:
         record = by_key[(study_id, "primary-itt")]
         assert record.status == "complete", study_id
-        assert pending_questions(record, QSET) == []
+        assert pending_questions(record, sets.of(study_id)) == []
     drafts = [r for r in records if r.result_id == "primary-adh"]
     assert len(drafts) == 1 and drafts[0].status == "draft"
     settled = [d for d in drafts[0].decisions.values() if d.source != "agreed"]
-    assert settled and pending_questions(drafts[0], QSET)  # some settled, some still open
+    assert settled and pending_questions(drafts[0], sets.of(drafts[0].study_id))  # still open
     sources = set()
     for record in records:
+        qset = sets.of(record.study_id)
         path = folder.consensus_path(record.study_id, record.result_id)
         assert Consensus.model_validate_json(path.read_text(encoding="utf-8")) == record
         assert record.lead == lead
         assert record.reviewers == tuple(r for r in folder.review.reviewers if r != lead)
-        agreed = path_answers(QSET, record.effect, record.answers)
-        assert record.proposed == propose_all(QSET, record.effect, agreed), "from the algorithm"
+        agreed = path_answers(qset, record.effect, record.answers)
+        assert record.proposed == propose_all(qset, record.effect, agreed), "from the algorithm"
         assert record.final == record.proposed  # no override by the lead in the demo
         pair = [
             folder.load_assessment(name, record.study_id, record.result_id)
@@ -311,7 +316,7 @@ def test_bundled_demo_consensus_records(bundled_demo: ReviewFolder):
         ]
         differing = {
             q.question_id
-            for q in differences(pair_assessments([pair[0]], [pair[1]]).pop(), QSET)
+            for q in differences(pair_assessments([pair[0]], [pair[1]]).pop(), qset)
             if q.differs
         }
         for qid, decision in record.decisions.items():
@@ -322,7 +327,7 @@ def test_bundled_demo_consensus_records(bundled_demo: ReviewFolder):
             assert decision.note.strip(), (record.study_id, qid)
             if decision.source in ("a", "b"):
                 side = pair[0] if decision.source == "a" else pair[1]
-                taken = path_answers(QSET, side.effect, side.answers).get(qid)
+                taken = path_answers(qset, side.effect, side.answers).get(qid)
                 assert agreed.get(qid) == taken == decision.response
             else:
                 assert agreed[qid] == decision.response
@@ -352,7 +357,7 @@ def test_consensus_leaves_the_reviewers_files_unchanged(bundled_demo: ReviewFold
                 if p.is_file()}  # fmt: skip
 
     assert reviewers_files(bundled_demo) == reviewers_files(plain)
-    assert len(reviewers_files(plain)) == 2 * 6 * 2
+    assert len(reviewers_files(plain)) == 2 * 7 * 2
 
 
 def test_export_of_the_demo_judges_every_study_of_primary_itt(bundled_demo, tmp_path, capsys):
@@ -372,3 +377,32 @@ def test_export_of_the_demo_judges_every_study_of_primary_itt(bundled_demo, tmp_
     assert main(["export", str(root), "--format", "html", "--result", "primary-adh"]) == 0
     assert "not judged" in capsys.readouterr().err
     assert "· Not judged</td>" in (root / "exports" / "primary-adh.html").read_text("utf-8")
+
+
+def test_the_demo_mixes_designs_each_assessed_with_its_own_set(bundled_demo: ReviewFolder):
+    """FIR is cluster-randomised and HAZEL a crossover trial: their reviewers answered the
+    extra domains (1b; S), and the consensus settles a difference in each."""
+    sets = review_question_sets(bundled_demo)
+    designs = {s.id: s.design for s in bundled_demo.review.studies}
+    assert designs["FIR2030"] == "cluster" and designs["HAZEL2031"] == "crossover"
+    assert {k: v for k, v in designs.items() if v} == {"FIR2030": "cluster",
+                                                        "HAZEL2031": "crossover"}
+    assert sets.of("FIR2030").id == "rob2-cluster" and sets.of("HAZEL2031").id == "rob2-crossover"
+    assert sets.domain_ids() == ["1", "1b", "S", "2", "3", "4", "5"]
+    for reviewer in ("maren", "tobias"):
+        fir = bundled_demo.load_assessment(reviewer, "FIR2030", "primary-itt")
+        hazel = bundled_demo.load_assessment(reviewer, "HAZEL2031", "primary-itt")
+        assert "1b" in fir.final and "S" not in fir.final
+        assert "S" in hazel.final and "1b" not in hazel.final
+        assert fir.answers["1b.1"].quotes and fir.answers["1b.3"].quotes
+    maren = bundled_demo.load_assessment("maren", "FIR2030", "primary-itt")
+    tobias = bundled_demo.load_assessment("tobias", "FIR2030", "primary-itt")
+    # Parents opting out after the allocation was known (RoB 2 CRT, domain 1b algorithm):
+    # selection likely knew the allocation -> high; not likely, with imbalance -> some concerns
+    assert maren.final["1b"] == "high" and tobias.final["1b"] == "some_concerns"
+    fir_consensus = bundled_demo.load_consensus("FIR2030", "primary-itt")
+    assert fir_consensus.decisions["1b.2"].source in ("a", "b")
+    assert fir_consensus.final["1b"] == "high" and fir_consensus.final["overall"] == "high"
+    hazel_consensus = bundled_demo.load_consensus("HAZEL2031", "primary-itt")
+    assert hazel_consensus.final["S"] == "low"
+    assert bundled_demo.load_assessment("tobias", "HAZEL2031", "primary-itt").final["S"] == "high"

@@ -114,7 +114,7 @@ class OverviewScreen(Screen[None]):
         table.add_column("Progress", width=8 if name == "narrow" else 16)
         # every domain of the sets in use: a study without a domain gets a blank cell
         for domain_id in self.session.sets.domain_ids():
-            table.add_column(f"D{domain_id}", key=f"d{domain_id}", width=6 if wide else 2)
+            table.add_column(f"D{domain_id}", key=f"d{domain_id}", width=6 if wide else max(2, len(f"D{domain_id}")))
         table.add_column("Overall", key="overall", width=7)
         table.add_column("Note", key="note", width=28 if wide else 4)
         self.refresh_rows()
