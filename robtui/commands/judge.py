@@ -172,7 +172,7 @@ def _judge_request(request: dict) -> str:
     if isinstance(domain_id, bool) or not isinstance(domain_id, (int, str)):
         raise InputError("give 'domain' (1 to 5) or 'overall'")
     effect = request.get("effect", "assignment")
-    if effect not in ("assignment", "adhering"):
+    if effect not in EFFECTS:
         raise InputError(f"unknown effect {effect!r} (use assignment or adhering)")
     domain = qset.domain(str(domain_id), effect)
     answers = request.get("answers", {})

@@ -163,7 +163,7 @@ def _domain_name(qset, key: str, effect: str) -> str:
         name = qset.domain(key, effect).name
     except (KeyError, ValueError, LookupError):
         return column_titles(qset, effect).get(key, key)
-    return f"{name} (effect of {effect})" if key == "2" else name
+    return f"{name} (effect of {effect})" if qset.has_effect_variants(key) else name
 
 
 def _key_lines(ex: OutcomeExport, qset, room: float, marks: Sequence[str]) -> list[str]:

@@ -268,15 +268,15 @@ def attach_passage(folder, reviewer: str, study_id: str, result_id: str, questio
     from robtui.core import assessing
     from robtui.core.model import Quote
     from robtui.core.rules import stamp_rules_version
-    from robtui.store.question_sets import builtin_question_set
-    from robtui.store.rules_file import load_rules_safely
+    from robtui.workspace.workspace import Workspace
 
     folder.refuse_unlisted_reviewer(reviewer)
-    qset = builtin_question_set(folder.review.question_set)
-    stored = folder.load_assessment(reviewer, study_id, result_id)
+    ws = Workspace(folder)
+    qset = ws.question_set_for(study_id)  # the study's set, by its design
+    stored = ws.load_assessment(reviewer, study_id, result_id)
     a = stored or assessing.new_assessment(folder.review, study_id, result_id, reviewer, qset)
     quote = Quote(document_sha256=passage.document_sha256, start=passage.start, end=passage.end,
                   page=passage.page, text=passage.text)
     changed = assessing.add_quote(assessing.recompute(a, qset), qset, question_id, quote)
-    changed = stamp_rules_version(changed, load_rules_safely(folder)[0])
+    changed = stamp_rules_version(changed, ws.rules_safely()[0])
     return folder.save_assessment(changed)
