@@ -42,6 +42,18 @@ class ReviewSets:
         """The set a study is assessed with."""
         return self.by_study.get(study_id, self.default)
 
+    def set_mismatch(self, record) -> str | None:
+        """Why a stored record (an assessment or consensus: ``study_id``, ``question_set``,
+        ``question_set_version``) does not fit its study's set, or None when it does."""
+        qset = self.of(record.study_id)
+        made = (record.question_set, str(record.question_set_version))
+        if made == (qset.id, str(qset.version)):
+            return None
+        return (
+            f"was made with question set {made[0]} version {made[1]}, but the study now uses "
+            f"{qset.id} version {qset.version}"
+        )
+
     def in_use(self, study_ids: Iterable[str] | None = None) -> list[QuestionSet]:
         """The distinct sets of ``study_ids`` (default: every listed study and the default set),
         the default first, then in study order."""

@@ -7,7 +7,8 @@ from dataclasses import asdict, dataclass
 from robtui.core import assessing
 from robtui.core.model import OVERALL, Assessment
 from robtui.core.questions import QuestionSet
-from robtui.store.question_sets import review_question_set
+from robtui.core.review_sets import ReviewSets
+from robtui.store.question_sets import review_question_sets
 from robtui.store.review_folder import ReviewFolder
 
 
@@ -32,10 +33,11 @@ def assessment_progress(a: Assessment, qset: QuestionSet) -> tuple[int, int]:
 
 
 def review_progress(
-    folder: ReviewFolder, reviewer: str | None = None, qset: QuestionSet | None = None
+    folder: ReviewFolder, reviewer: str | None = None, sets: ReviewSets | None = None
 ) -> tuple[list[ProgressRow], list[str]]:
-    """One row per study × result × reviewer (the review's reviewers and those on disk)."""
-    qset = qset or review_question_set(folder)
+    """One row per study × result × reviewer (the review's reviewers and those on disk), each
+    counted with its study's question set (``sets``; default: as review.toml chooses them)."""
+    sets = sets or review_question_sets(folder)
     found, problems = folder.assessments(reviewer)
     by_key = {(a.reviewer, a.study_id, a.result_id): a for a in found}
     if reviewer is not None:
@@ -57,6 +59,12 @@ def review_progress(
                     there = folder.assessment_path(name, study.id, result.id).exists()
                     state = "unreadable" if there else "not started"
                     rows.append(ProgressRow(study.id, result.id, name, state, 0, 0, None))
+                    continue
+                qset = sets.of(study.id)
+                mismatch = sets.set_mismatch(a)
+                if mismatch is not None:
+                    problems.append(f"{name}'s assessment of {study.id} / {result.id} {mismatch}")
+                    rows.append(ProgressRow(study.id, result.id, name, "unreadable", 0, 0, None))
                     continue
                 a = assessing.recompute(a, qset)
                 answered, asked = assessment_progress(a, qset)

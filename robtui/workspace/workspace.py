@@ -35,15 +35,14 @@ class Workspace:
     def record_problem(self, record: Assessment | Consensus) -> str | None:
         """Why a stored assessment or consensus record cannot be used with its study's set
         (made with another set or version), or None."""
-        qset = self.question_set_for(record.study_id)
-        if (record.question_set, str(record.question_set_version)) == (qset.id, str(qset.version)):
+        mismatch = self.sets.set_mismatch(record)
+        if mismatch is None:
             return None
         who = f"{record.reviewer}'s assessment" if isinstance(record, Assessment) else "consensus"
         return (
-            f"{who} of {record.study_id} / {record.result_id} was made with question set "
-            f"{record.question_set} version {record.question_set_version}, but the study now "
-            f"uses {qset.id} version {qset.version}: restore that set (a review's own sets live "
-            f"in {QUESTION_SETS_DIR}/) or the study's design, or assess the result again"
+            f"{who} of {record.study_id} / {record.result_id} {mismatch}: restore that set (a "
+            f"review's own sets live in {QUESTION_SETS_DIR}/) or the study's design, or assess "
+            "the result again"
         )
 
     def load_assessment(self, reviewer: str, study_id: str, result_id: str) -> Assessment | None:
