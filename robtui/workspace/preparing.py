@@ -231,8 +231,9 @@ def prepare(
     """Prepare ``jobs`` with ``workers`` processes (default all cores; 0: in this process).
 
     ``progress`` is called after every report (from the calling thread). Setting ``cancel``
-    stops the run after the reports in progress; finished reports stay prepared either way.
-    Ctrl-C (KeyboardInterrupt) does the same and returns a summary marked interrupted.
+    stops the run (the pool's workers end at once; in this process, after the current report);
+    finished reports stay prepared either way. Ctrl-C (KeyboardInterrupt) does the same and
+    returns a summary marked interrupted.
     """
     workers = default_workers() if workers is None else workers
     if workers < 0:
