@@ -22,7 +22,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         ),
     )
     parser.add_argument("folder", type=Path, metavar="DIR", help="review folder")
-    parser.add_argument("--study", required=True, help="study id")
+    parser.add_argument("--study", default=None,
+                        help="study id (default: one line per study of the review)")
     parser.add_argument("--result", required=True, help="result id")
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     parser.add_argument("--attach", type=int, default=None, metavar="N",
@@ -41,6 +42,10 @@ def run(args: argparse.Namespace) -> int:
     from robtui.workspace.prespecifying import attach_passage, prespecification
 
     folder = ReviewFolder.open(args.folder)
+    if args.study is None:
+        if args.attach is not None:
+            raise InputError("--attach needs --study: findings belong to one study")
+        return _review_wide(folder, args)
     found, sources = prespecification(folder, args.study, args.result)
     if args.attach is not None:
         if not args.question or not args.reviewer:
@@ -60,6 +65,34 @@ def run(args: argparse.Namespace) -> int:
         print(json.dumps(to_json(found, sources), ensure_ascii=False, indent=2))
     else:
         print(render(found, sources, args.study, args.result))
+    return 0
+
+
+TOPICS = ("switched", "added", "dropped", "changed", "time point")
+
+
+def _review_wide(folder, args) -> int:
+    """One line per study: status, registration, and how many findings of each kind."""
+    from robtui.workspace.prespecifying import prespecification
+
+    folder.result_or_error(args.result)
+    rows = []
+    for study in folder.review.studies:
+        found, _sources = prespecification(folder, study.id, args.result)
+        counts = {t: sum(f.topic == t for f in found.findings) for t in TOPICS}
+        rows.append((study.id, found.status, found.timing, counts))
+    if args.json:
+        print(json.dumps([{"study": sid, "status": status, "registration": timing, **counts}
+                          for sid, status, timing, counts in rows], indent=2))
+        return 0
+    width = max([len(r[0]) for r in rows] + [5])
+    print(f"{'study'.ljust(width)}  {'status':<17} {'registration':<13} "
+          + " ".join(f"{t:>8}" for t in TOPICS))
+    for sid, status, timing, counts in rows:
+        print(f"{sid.ljust(width)}  {status:<17} {timing:<13} "
+              + " ".join(f"{counts[t]:>8}" for t in TOPICS))
+    print("\nFindings per study: robtui prespecified DIR --study ID --result "
+          f"{args.result}. They are for the reviewers to read; they answer nothing.")
     return 0
 
 

@@ -113,3 +113,15 @@ def test_cli_prints_findings_json_and_attaches_a_quote(demo, capsys, monkeypatch
     quote = saved["answers"]["5.2"]["quotes"][0]
     assert quote["text"] == passage["text"] and quote["start"] == passage["start"]
     assert saved["answers"]["5.2"]["response"] is None  # attached, never answered
+
+
+def test_cli_review_wide_table_counts_each_studys_findings(demo, capsys, monkeypatch, tmp_path):
+    monkeypatch.setenv("ROBTUI_CACHE_DIR", str(tmp_path / "cache"))
+    assert main(["prespecified", str(demo.root), "--result", "primary-itt", "--json"]) == 0
+    rows = {r["study"]: r for r in json.loads(capsys.readouterr().out)}
+    assert (rows["ELM2028"]["status"], rows["ELM2028"]["switched"], rows["ELM2028"]["dropped"]) \
+        == ("changed", 2, 1)
+    assert (rows["CEDAR2030"]["registration"], rows["CEDAR2030"]["added"]) == ("retrospective", 1)
+    assert rows["BIRCH2029"]["status"] == "no plan given"
+    assert main(["prespecified", str(demo.root), "--result", "primary-itt", "--attach", "1"]) == 2
+    assert "--attach needs --study" in capsys.readouterr().err
