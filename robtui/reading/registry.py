@@ -1,7 +1,9 @@
 """Trial registry records as reviewers download them, read into one model.
 
-Formats read (parsed with the standard library's ``json`` and ``xml.etree``; Python's expat
-refuses entity-expansion attacks, see the "XML vulnerabilities" table of the Python docs):
+Formats read (parsed with the standard library's ``json``, and ``xml.etree`` through
+``defusedxml``, which refuses entity declarations and external references: the Python docs'
+"XML security" section says Expat before 2.6.0 may be open to "billion laughs" and "large
+tokens" attacks, and the Expat bundled here may be older):
 
 - ClinicalTrials.gov API v2 study JSON (one study, or a search response holding one):
   ``protocolSection.identificationModule.nctId``, ``statusModule.studyFirstSubmitDate``,
@@ -198,10 +200,16 @@ def _json(data: bytes, name: str):
 
 
 def _xml(data: bytes, name: str) -> ET.Element:
+    from defusedxml import DefusedXmlException
+    from defusedxml.ElementTree import fromstring
+
     try:
-        return ET.fromstring(data)
+        return fromstring(data)
     except ET.ParseError as error:
         raise ReadingError(f"{name}: not well-formed XML ({error})") from error
+    except DefusedXmlException as error:
+        raise ReadingError(f"{name}: the XML declares entities or external references, which "
+                           f"a registry export never needs; refused for safety ({error})") from error
 
 
 def _get(obj, *keys, default=None):
