@@ -99,8 +99,8 @@ def test_free_text_outcomes_are_split_with_their_time_frames():
     (b"<clinical_study/>", "without id_info/nct_id"),
     (b"<Trials_downloaded_from_ICTRP/>", "holds 0 trials"),
     (b"<a><b></a>", "not well-formed XML"),
-    (b'<?xml version="1.0"?><!DOCTYPE t [<!ENTITY a "aaaa"><!ENTITY b "&a;&a;&a;">]>'
-     b"<clinical_study><id_info><nct_id>&b;</nct_id></id_info></clinical_study>",
+    ((b'<?xml version="1.0"?><!DOCTYPE t [<!ENTITY a "aaaa"><!ENTITY b "&a;&a;&a;">]>'
+      b"<clinical_study><id_info><nct_id>&b;</nct_id></id_info></clinical_study>"),
      "refused for safety"),
 ])
 def test_bad_records_are_refused_with_the_reason(data, message):
