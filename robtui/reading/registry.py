@@ -92,7 +92,7 @@ class RegisteredOutcome(BaseModel):
     def line(self, number: int) -> str:
         """How the outcome reads in the record's text rendering (quotable)."""
         frame = f" (time frame: {self.time_frame})" if self.time_frame else ""
-        return f"{self.kind.capitalize()} outcome {number}: {self.measure}{frame}"
+        return f"{self.kind.capitalize()} outcome {number}: {self.measure}{frame}".rstrip(".") + "."
 
 
 class RecordChange(BaseModel):
@@ -402,7 +402,7 @@ def record_text(record: RegistryRecord) -> str:
     """The record as plain text, one fact per line, so its lines can be read and quoted."""
     lines = [f"Registry record {record.registration_number} ({record.registry})"]
     if record.title:
-        lines.append(f"Title: {record.title}")
+        lines.append(f"Title: {record.title}".rstrip(".") + ".")
     lines += ["", "Registration"]
     if record.registered:
         lines.append(f"Date of registration: {record.registered}.")
@@ -421,10 +421,10 @@ def record_text(record: RegistryRecord) -> str:
         for number, outcome in enumerate(items, 1):
             lines.append(outcome.line(number))
             if outcome.description:
-                lines.append(f"Description: {outcome.description}")
+                lines.append(f"Description: {outcome.description}".rstrip(".") + ".")
     if record.history:
         lines += ["", "History of changes"]
-        lines += [f"{change.date or 'undated'}: {change.what}" for change in record.history]
+        lines += [f"{change.date or 'undated'}: {change.what}." for change in record.history]
     return "\n".join(lines) + "\n"
 
 
