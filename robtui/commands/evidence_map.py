@@ -40,7 +40,7 @@ def run(args: argparse.Namespace) -> int:
     workspace = open_workspace(args.folder)
     folder = workspace.folder
     effect = args.effect or review_effects(folder)[0]
-    emap = evidence_map(folder, effect, workspace.qset)
+    emap = evidence_map(folder, effect, workspace.qset, workspace.sets)
     print(render_text(emap))
     if emap.prepared_fraction < 1.0:
         print(f"\n{1 - emap.prepared_fraction:.0%} of the cells are not prepared yet: run "

@@ -15,14 +15,16 @@ from dataclasses import dataclass, field
 
 from robtui.evidence.prepared import STRONG_SCORE, load_prepared
 
-BANDS = ("strong", "some", "none", "not prepared")
-# Our glyphs: filled for strong, hollow for some, a dot for none, a gap while not prepared.
-GLYPHS = {"strong": "■", "some": "□", "none": "·", "not prepared": " "}
+BANDS = ("strong", "some", "none", "not prepared", "not asked")
+# Our glyphs: filled for strong, hollow for some, a dot for none, a gap while not prepared, a
+# dash where the study's question set has no such question.
+GLYPHS = {"strong": "■", "some": "□", "none": "·", "not prepared": " ", "not asked": "–"}
 BAND_WORDS = {
     "strong": f"strong evidence (best score >= {STRONG_SCORE:.2f})",
     "some": "some evidence (at or above the no-evidence threshold)",
     "none": "no sentence found (below the no-evidence threshold)",
     "not prepared": "not prepared yet",
+    "not asked": "not a question of the study's question set",
 }
 
 
@@ -59,7 +61,7 @@ class EvidenceMap:
 
     @property
     def prepared_fraction(self) -> float:
-        cells = [c for row in self.rows for c in row.cells.values()]
+        cells = [c for row in self.rows for c in row.cells.values() if c.band != "not asked"]
         return sum(c.band != "not prepared" for c in cells) / len(cells) if cells else 1.0
 
 
@@ -71,23 +73,37 @@ def _better(a: MapCell, b: MapCell) -> MapCell:
     return a
 
 
-def evidence_map(folder, effect: str = "assignment", question_set=None) -> EvidenceMap:
-    """The map for ``effect`` over every study of the review (reads the caches only)."""
-    from robtui.store.question_sets import builtin_question_set
+def evidence_map(folder, effect: str = "assignment", question_set=None, sets=None
+                 ) -> EvidenceMap:
+    """The map for ``effect`` over every study of the review (reads the caches only).
 
-    qset = question_set or builtin_question_set()
+    Columns are the questions of ``question_set`` (default the review's), then those only
+    other sets in use have; ``sets`` (ReviewSets) gives each study's set."""
+    from robtui.store.question_sets import review_question_sets
+
+    sets = sets or review_question_sets(folder)
+    qset = question_set or sets.default
     questions = [(q.id, q.short or q.text) for q in qset.questions(effect)]
+    for other in sets.in_use():
+        if effect in other.effects():
+            known = {qid for qid, _ in questions}
+            questions += [(q.id, q.short or q.text) for q in other.questions(effect)
+                          if q.id not in known]
     rows = []
     for study in folder.review.studies:
         row = MapRow(study.id, study.label)
-        found = {qid: MapCell("not prepared") for qid, _ in questions}
+        study_set = sets.of(study.id)
+        asked = ({q.id for q in study_set.questions(effect)}
+                 if effect in study_set.effects() else set())
+        found = {qid: MapCell("not prepared" if qid in asked else "not asked")
+                 for qid, _ in questions}
         for report in study.reports:
-            entry = load_prepared(report.sha256, effect)
+            entry = load_prepared(report.sha256, effect, study_set.id)
             if entry is None:
                 continue
             for qid, _ in questions:
                 prepared = entry.questions.get(qid)
-                if prepared is None:
+                if prepared is None or qid not in asked:
                     continue
                 top = prepared.suggestions[0] if prepared.suggestions else None
                 cell = MapCell(prepared.band, prepared.best, report.path, top.text if top else "")
@@ -131,6 +147,9 @@ def render_text(emap: EvidenceMap) -> str:
     lines.append("")
     for band in BANDS:
         glyph = GLYPHS[band] if band != "not prepared" else "(blank)"
+        if band == "not asked" and not any(c.band == band for r in emap.rows
+                                           for c in r.cells.values()):
+            continue
         lines.append(f"  {glyph} {BAND_WORDS[band]}")
     lines.append("Candidates for the reviewers to read, not answers: 'none' means the ranker")
     lines.append("found nothing, not that the report says nothing.")

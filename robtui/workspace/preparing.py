@@ -31,6 +31,13 @@ class PrepareJob:
     sha256: str
     label: str
     effects: tuple[str, ...] = ("assignment",)
+    question_set: object = None  # the study's QuestionSet (None: the ranker's default set)
+
+    @property
+    def set_id(self) -> str:
+        from robtui.evidence.prepared import DEFAULT_SET
+
+        return self.question_set.id if self.question_set is not None else DEFAULT_SET
 
 
 @dataclass
@@ -140,7 +147,7 @@ def is_prepared(job: PrepareJob) -> bool:
     kind = SUFFIX_KINDS.get(Path(job.path).suffix.lower())
     if kind is None or not has_cached(job.sha256, kind):
         return False
-    return all(has_prepared(job.sha256, effect) for effect in job.effects)
+    return all(has_prepared(job.sha256, effect, job.set_id) for effect in job.effects)
 
 
 # -- the worker side ---------------------------------------------------------------------------
@@ -209,7 +216,7 @@ def prepare_one(job: PrepareJob) -> ReportOutcome:
         outcome.pages, outcome.sentences = document.pages or 0, len(document.sentences)
         started = time.perf_counter()
         for effect in job.effects:
-            store_prepared(rank_for_preparation(ranker, document, effect))
+            store_prepared(rank_for_preparation(ranker, document, effect, job.question_set))
         outcome.rank_seconds = time.perf_counter() - started
     except RobtuiError as error:
         outcome.error = str(error)
@@ -364,15 +371,20 @@ def review_effects(folder) -> tuple[str, ...]:
 
 def jobs_for_review(folder, effects: Sequence[str] | None = None
                     ) -> tuple[list[PrepareJob], list[ReportOutcome]]:
-    """A job per readable file of every study; missing or changed copies come back as failures.
+    """A job per readable file of every study, ranked with the study's question set; missing or
+    changed copies come back as failures.
 
     Files robtui does not rank (an unsupported type) are left out: they are not failures.
     """
     from robtui.reading.reader import SUFFIX_KINDS
+    from robtui.store.question_sets import review_question_sets
 
     effects = tuple(effects or review_effects(folder))
+    sets = review_question_sets(folder)
     jobs, failures = [], []
     for study in folder.review.studies:
+        qset = sets.of(study.id)
+        own = tuple(e for e in effects if e in qset.effects()) or tuple(qset.effects()[:1])
         for report in study.reports:
             path = folder.report_path(report)
             label = f"{study.id}: {report.path}"
@@ -382,5 +394,5 @@ def jobs_for_review(folder, effects: Sequence[str] | None = None
             if problem:
                 failures.append(ReportOutcome(label, str(path), report.sha256, error=problem))
                 continue
-            jobs.append(PrepareJob(str(path), report.sha256, label, effects))
+            jobs.append(PrepareJob(str(path), report.sha256, label, own, qset))
     return jobs, failures

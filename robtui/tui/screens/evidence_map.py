@@ -21,7 +21,8 @@ from robtui.tui.widgets.preparation_bar import PreparationBar
 from robtui.workspace.evidence_map import BAND_WORDS, BANDS, GLYPHS, EvidenceMap, evidence_map
 
 # A glyph never stands alone: the legend names each, and the detail line spells out the cell.
-BAND_STYLES = {"strong": "bold", "some": "", "none": "dim", "not prepared": "dim italic"}
+BAND_STYLES = {"strong": "bold", "some": "", "none": "dim", "not prepared": "dim italic",
+               "not asked": "dim"}
 
 
 class EvidenceMapScreen(Screen):
@@ -41,9 +42,10 @@ class EvidenceMapScreen(Screen):
         Binding("question_mark,f1", "app.help", "Help"),
     ]
 
-    def __init__(self, folder, effects: tuple[str, ...], question_set=None) -> None:
+    def __init__(self, folder, effects: tuple[str, ...], question_set=None, sets=None) -> None:
         super().__init__()
         self.folder = folder
+        self.sets = sets  # each study's question set (ReviewSets); None: read from the folder
         self.effects = effects
         self.effect = effects[0]
         self.question_set = question_set
@@ -68,7 +70,7 @@ class EvidenceMapScreen(Screen):
         self.watch(self.app, "preparation", lambda _state: self.refresh_map(), init=False)
 
     def refresh_map(self) -> None:
-        self.emap = evidence_map(self.folder, self.effect, self.question_set)
+        self.emap = evidence_map(self.folder, self.effect, self.question_set, self.sets)
         table = self.query_one(DataTable)
         where = table.cursor_coordinate
         table.clear(columns=True)

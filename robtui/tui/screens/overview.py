@@ -264,4 +264,5 @@ class OverviewScreen(Screen[None]):
         from robtui.workspace.preparing import review_effects
 
         folder = self.session.folder
-        self.app.push_screen(EvidenceMapScreen(folder, review_effects(folder), self.session.qset))
+        self.app.push_screen(EvidenceMapScreen(folder, review_effects(folder), self.session.qset,
+                                               self.session.workspace.sets))
