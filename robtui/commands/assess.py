@@ -2,30 +2,21 @@
 
 Applies the given answers, justifications, quotes and overrides to the reviewer's assessment,
 saves it once (atomically) and prints the proposed and final judgements and what is missing.
-Any bad input stops the command before anything is written.
+Any bad input stops the command before anything is written, except a quote that is not in the
+reports: the rest of the command is saved, and the quote's closest passage is named (exit 1).
+A pasted quote need not be byte-exact: case, quote marks, dashes, spacing and line breaks are
+folded, and a near copy is matched fuzzily (robtui.store.quotes); the matched passage is shown.
 """
 
 from __future__ import annotations
 
 import argparse
+import sys
 from pathlib import Path
 
+from robtui.commands._parsing import IntermixedParser
+from robtui.core.model import DIRECTION_LABELS
 from robtui.core.questions import EFFECTS
-
-
-class _IntermixedParser(argparse.ArgumentParser):
-    """Lets answers (Q=CODE) come before, between or after the options."""
-
-    _inside = False
-
-    def parse_known_args(self, args=None, namespace=None):
-        if self._inside:  # parse_known_intermixed_args calls back into this method
-            return super().parse_known_args(args, namespace)
-        self._inside = True
-        try:
-            return self.parse_known_intermixed_args(args, namespace)
-        finally:
-            self._inside = False
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
@@ -53,7 +44,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         action="append",
         default=[],
         metavar="Q=TEXT",
-        help="attach a passage of the study's report (copied exactly) to an answer",
+        help="attach a passage of the study's report to an answer (pasted as the PDF viewer "
+        "copies it: case, quote marks, spacing and line breaks do not matter)",
     )
     parser.add_argument(
         "--remove-quote",
@@ -62,7 +54,23 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         metavar="Q=N",
         help="remove quote N (1-based)",
     )
-    parser.add_argument("--effect", choices=EFFECTS, help="switch domain 2")
+    parser.add_argument(
+        "--support",
+        action="append",
+        default=[],
+        metavar="D=TEXT",
+        help="support for a domain's judgement, as the RoB 2 form asks (D= clears it)",
+    )
+    parser.add_argument(
+        "--direction",
+        action="append",
+        default=[],
+        metavar="KEY=DIRECTION",
+        help="optional predicted direction of bias of a domain or overall: "
+        + ", ".join(DIRECTION_LABELS)
+        + " (KEY= clears it)",
+    )
+    parser.add_argument("--effect", choices=EFFECTS, help=argparse.SUPPRESS)
     parser.add_argument(
         "--override",
         action="append",
@@ -89,7 +97,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     )
     parser.add_argument("--json", action="store_true", help="print the assessment as JSON")
     parser.set_defaults(func=run)
-    parser.__class__ = _IntermixedParser
+    parser.__class__ = IntermixedParser
 
 
 def split_pairs(items: list[str], option: str, example: str) -> list[tuple[str, str]]:
@@ -105,16 +113,26 @@ def split_pairs(items: list[str], option: str, example: str) -> list[tuple[str, 
     return pairs
 
 
-def apply_changes(a, qset, folder, args):
-    """The assessment after every change asked for on the command line (nothing saved)."""
+def apply_changes(a, qset, folder, args, notes: list[str] | None = None):
+    """The assessment after every change asked for on the command line (nothing saved).
+
+    Quotes that are not in the reports do not stop the rest: each is added to ``notes`` with
+    the closest passage, as is the passage each pasted quote matched.
+    """
     from robtui.core import assessing
     from robtui.errors import InputError
-    from robtui.store.quotes import find_quote
+    from robtui.store.quotes import QuoteNotFound, locate_quote
 
+    notes = [] if notes is None else notes
+    if args.effect:
+        result = folder.result_or_error(a.result_id)
+        raise InputError(
+            f"--effect is not a reviewer's choice: the effect of interest belongs to the result "
+            f"({a.result_id}: effect of {result.effect}), so every reviewer answers the same "
+            f"questions; the review's lead changes it with `robtui result set-effect`"
+        )
     if args.reopen:
         a = assessing.reopen(a)
-    if args.effect:
-        a = assessing.set_effect(a, qset, args.effect)
     order = {q.id: i for i, q in enumerate(qset.questions(a.effect))}
     answers = split_pairs(args.answers, "answer", "Q=CODE, e.g. 1.1=Y")
     # Question order, so a condition's earlier answers are in place before it is checked.
@@ -123,8 +141,22 @@ def apply_changes(a, qset, folder, args):
         a = assessing.set_response(a, qset, qid, code)
     for qid, text in split_pairs(args.why, "--why", "Q=TEXT, e.g. --why 1.1='computer list'"):
         a = assessing.set_justification(a, qset, qid, text.strip())
-    for qid, text in split_pairs(args.quote, "--quote", "Q=TEXT (the passage, exactly)"):
-        a = assessing.add_quote(a, qset, qid, find_quote(folder, a.study_id, text))
+    for qid, text in split_pairs(args.quote, "--quote", "Q=TEXT (the passage)"):
+        try:
+            quote, score, path = locate_quote(folder, a.study_id, text)
+        except QuoteNotFound as error:
+            notes.append(f"{qid}: quote not attached: {error}")
+            continue
+        a = assessing.add_quote(a, qset, qid, quote)
+        page = f", p.{quote.page}" if quote.page else ""
+        how = "" if score >= 100 else f", a near copy (similarity {score:.0f} of 100)"
+        shown = " ".join(quote.text.split())
+        notes.append(f"{qid}: quote matched in {path}{page}{how}: {shown[:120]!r}")
+    for domain_id, text in split_pairs(args.support, "--support", "D=TEXT, e.g. --support 1='…'"):
+        a = assessing.set_support(a, qset, domain_id, text)
+    for key, code in split_pairs(args.direction, "--direction", "KEY=DIRECTION, e.g. 4=towards_null"):
+        code = code.strip().lower().replace(" ", "_").replace("-", "_") or None
+        a = assessing.set_direction(a, qset, key, code)
     for qid, number in split_pairs(args.remove_quote, "--remove-quote", "Q=N, e.g. 1.1=1"):
         if not number.strip().isdigit():
             raise InputError(f"--remove-quote {qid}={number}: N is the quote's number, from 1")
@@ -168,6 +200,10 @@ def describe(a, qset) -> list[str]:
         if override is not None:
             line += f"  (override: {override.reason})"
         lines.append(line)
+        if a.direction.get(key):
+            lines.append(f"      predicted direction of bias: {DIRECTION_LABELS[a.direction[key]]}")
+        if a.support.get(key):
+            lines.append(f"      support: {a.support[key]}")
     unused = assessing.unused_answers(a, qset)
     if unused:
         lines.append(f"  kept but not used on the current path: {', '.join(unused)}")
@@ -218,7 +254,8 @@ def run(args: argparse.Namespace) -> int:
         folder.review, args.study, args.result, args.reviewer, qset
     )
     a = assessing.recompute(a, qset)
-    changed = apply_changes(a, qset, folder, args)
+    notes: list[str] = []
+    changed = apply_changes(a, qset, folder, args, notes)
     if changed.model_dump(exclude={"updated"}) != a.model_dump(exclude={"updated"}):
         if add_reviewer:
             folder.add_reviewer(args.reviewer)
@@ -235,4 +272,10 @@ def run(args: argparse.Namespace) -> int:
             print("\n".join(question_lines(changed, qset)))
         print("\n".join(describe(changed, qset)))
         print(saved)
-    return 0
+    missed = [n for n in notes if "quote not attached" in n]
+    for note in notes:
+        if note not in missed and not args.json:
+            print(note)
+    for note in missed:
+        print(f"robtui: {note}", file=sys.stderr)
+    return 1 if missed else 0

@@ -51,5 +51,5 @@ def run(args: argparse.Namespace) -> int:
             "choose a folder you can write to"
         ) from error
     print(f"made review folder {folder.root}")
-    print(f"next: robtui study add {folder.root} --id STUDY --label LABEL --report FILE")
+    print(f"next: robtui study add {folder.root} --study STUDY --label LABEL --report FILE")
     return 0

@@ -16,7 +16,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
     add = actions.add_parser("add", help="add a result (outcome, time point, effect of interest)")
     add.add_argument("folder", type=Path, metavar="DIR")
-    add.add_argument("--id", required=True, dest="result_id", help="short result id, e.g. pain12")
+    add.add_argument("--result", dest="result_id", metavar="RESULT", help="short result id, e.g. pain12")
+    add.add_argument("--id", dest="old_id", help=argparse.SUPPRESS)  # old spelling: refused
     add.add_argument("--outcome", required=True, help="the outcome, e.g. 'Pain score (0-10)'")
     add.add_argument("--time-point", default="", help="e.g. '12 weeks'")
     add.add_argument(
@@ -37,6 +38,16 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="meta-analysis weight of a study for this result (repeat)",
     )
     add.set_defaults(func=run_add)
+
+    effect = actions.add_parser(
+        "set-effect",
+        help="the lead changes a result's effect of interest (every reviewer follows it)",
+    )
+    effect.add_argument("folder", type=Path, metavar="DIR")
+    effect.add_argument("--result", required=True, dest="result_id", metavar="RESULT")
+    effect.add_argument("--effect", required=True, choices=EFFECTS)
+    effect.add_argument("--reviewer", required=True, metavar="NAME", help="the review's lead")
+    effect.set_defaults(func=run_set_effect)
 
     listing = actions.add_parser("list", help="list the results")
     listing.add_argument("folder", type=Path, metavar="DIR")
@@ -63,6 +74,12 @@ def run_add(args: argparse.Namespace) -> int:
 
     from robtui.core.model import ResultSpec
     from robtui.errors import InputError
+
+    example = "robtui result add DIR --result pain12 --outcome 'Pain' --effect assignment"
+    if args.old_id is not None:
+        raise InputError(f"--id is now --result (the same in every command): {example}")
+    if not args.result_id:
+        raise InputError(f"say which result with --result: {example}")
     from robtui.store.records import describe_validation
     from robtui.store.review_folder import ReviewFolder
 
@@ -92,6 +109,19 @@ def _describe(spec) -> str:
         parts.append(f"at {spec.time_point}")
     parts.append(f"(effect of {spec.effect})")
     return " ".join(parts)
+
+
+def run_set_effect(args: argparse.Namespace) -> int:
+    from robtui.store.review_folder import ReviewFolder
+
+    folder = ReviewFolder.open(args.folder)
+    folder.set_result_effect(args.result_id, args.effect, args.reviewer)
+    spec = folder.review.result(args.result_id)
+    print(
+        f"result {spec.id}: {_describe(spec)}; drafts follow it when next opened (answers to "
+        "both variants are kept), complete assessments when reopened"
+    )
+    return 0
 
 
 def run_list(args: argparse.Namespace) -> int:

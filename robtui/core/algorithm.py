@@ -22,6 +22,7 @@ from robtui.core.questions import (
     QuestionSet,
     Rule,
     RuleTable,
+    condition_phrase,
     first_match,
     is_asked,
 )
@@ -100,7 +101,7 @@ def validate_answers(domain: Domain, answers: Mapping[str, str]) -> list[str]:
         if qid not in asked:
             q = known[qid]
             problems.append(
-                f"{qid} is answered but not asked: its condition ({q.condition_text}) is not"
+                f"{qid} is answered but not asked: its condition ({condition_phrase(q)}) is not"
                 " met; leave it out or change the earlier answer"
             )
     return problems

@@ -16,6 +16,7 @@ from collections.abc import Mapping
 
 from robtui.core import algorithm
 from robtui.core.model import (
+    DIRECTION_LABELS,
     JUDGEMENTS,
     OVERALL,
     RESPONSES,
@@ -26,7 +27,14 @@ from robtui.core.model import (
     Review,
     utc_now,
 )
-from robtui.core.questions import JUDGEMENT_LABELS, Domain, Question, QuestionSet, effect_key
+from robtui.core.questions import (
+    JUDGEMENT_LABELS,
+    Domain,
+    Question,
+    QuestionSet,
+    condition_phrase,
+    effect_key,
+)
 from robtui.errors import InputError
 
 _SEVERITY = {"low": 0, "some_concerns": 1, "high": 2}
@@ -156,7 +164,7 @@ def set_response(
             )
         asked = {q.id for q in asked_questions(a, qset, _domain_id_of(question))}
         if question_id not in asked:
-            condition = question.condition_text or "its condition is not met"
+            condition = condition_phrase(question) or "its condition is not met"
             raise InputError(
                 f"{question_id} is not asked with the answers so far ({condition}): "
                 "answer or change the earlier questions first"
@@ -271,6 +279,35 @@ def clear_override(a: Assessment, qset: QuestionSet, key: str) -> Assessment:
         raise InputError(f"{_what(key)} has no override to clear")
     overrides = {k: v for k, v in a.overrides.items() if k != key}
     return _changed(a, qset, overrides=overrides)
+
+
+def set_support(a: Assessment, qset: QuestionSet, domain_id: str, text: str) -> Assessment:
+    """The free-text support of a domain's judgement (the RoB 2 form's box); "" clears it."""
+    _editable(a)
+    if domain_id not in qset.domain_ids():
+        raise InputError(
+            f"no domain {domain_id!r} to support: use one of {', '.join(qset.domain_ids())}"
+        )
+    support = {k: v for k, v in a.support.items() if k != domain_id}
+    if text.strip():
+        support[domain_id] = text.strip()
+    return _changed(a, qset, support=support)
+
+
+def set_direction(a: Assessment, qset: QuestionSet, key: str, direction: str | None) -> Assessment:
+    """The optional predicted direction of bias of a domain or the overall (None clears it)."""
+    _editable(a)
+    keys = [*qset.domain_ids(), OVERALL]
+    if key not in keys:
+        raise InputError(f"no judgement {key!r} to give a direction: use one of {', '.join(keys)}")
+    if direction is not None and direction not in DIRECTION_LABELS:
+        raise InputError(
+            f"unknown direction of bias {direction!r}: use one of {', '.join(DIRECTION_LABELS)}"
+        )
+    directions = {k: v for k, v in a.direction.items() if k != key}
+    if direction is not None:
+        directions[key] = direction
+    return _changed(a, qset, direction=directions)
 
 
 def may_raise_overall(a: Assessment, qset: QuestionSet) -> bool:

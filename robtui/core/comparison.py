@@ -110,10 +110,21 @@ class JudgementRow:
     proposed_b: str | None
     final_b: str | None
     override_b: str | None
+    direction_a: str | None = None  # optional predicted direction of bias (DIRECTION_LABELS)
+    direction_b: str | None = None
+    support_a: str = ""  # free-text support of the domain judgement (domains only)
+    support_b: str = ""
 
     @property
     def differs(self) -> bool:
         return self.final_a != self.final_b
+
+    @property
+    def direction_differs(self) -> bool:
+        """Both gave a direction of bias, and not the same one (it is optional)."""
+        return None not in (self.direction_a, self.direction_b) and (
+            self.direction_a != self.direction_b
+        )
 
 
 @dataclass(frozen=True)
@@ -137,9 +148,22 @@ class PairComparison:
                 {
                     "key": j.key,
                     "label": j.label,
-                    "a": {"proposed": j.proposed_a, "final": j.final_a, "override": j.override_a},
-                    "b": {"proposed": j.proposed_b, "final": j.final_b, "override": j.override_b},
+                    "a": {
+                        "proposed": j.proposed_a,
+                        "final": j.final_a,
+                        "override": j.override_a,
+                        "direction": j.direction_a,
+                        "support": j.support_a,
+                    },
+                    "b": {
+                        "proposed": j.proposed_b,
+                        "final": j.final_b,
+                        "override": j.override_b,
+                        "direction": j.direction_b,
+                        "support": j.support_b,
+                    },
                     "differs": j.differs,
+                    "direction_differs": j.direction_differs,
                 }
                 for j in self.judgements
             ],
@@ -245,6 +269,10 @@ def judgement_rows(pair: AssessmentPair, qset) -> list[JudgementRow]:
                 proposed_b=pair.b.proposed.get(key),
                 final_b=pair.b.final.get(key),
                 override_b=over_b.reason if over_b else None,
+                direction_a=pair.a.direction.get(key),
+                direction_b=pair.b.direction.get(key),
+                support_a=pair.a.support.get(key, ""),
+                support_b=pair.b.support.get(key, ""),
             )
         )
     return rows

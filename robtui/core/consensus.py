@@ -19,6 +19,7 @@ from robtui.core.comparison import (
     require_comparable,
 )
 from robtui.core.model import (
+    DIRECTION_LABELS,
     JUDGEMENTS,
     Answer,
     Consensus,
@@ -59,8 +60,44 @@ def start_consensus(pair: AssessmentPair, lead: str, qset) -> Consensus:
         answers=answers,
         decisions=decisions,
         built_on={pair.reviewer_a: eff_a, pair.reviewer_b: eff_b},
+        support=_joined_support(pair),
+        direction={
+            key: d for key, d in pair.a.direction.items() if pair.b.direction.get(key) == d
+        },
     )
     return recompute_consensus(consensus, qset)
+
+
+def _joined_support(pair: AssessmentPair) -> dict[str, str]:
+    """Both reviewers' support of each domain judgement, named (one text when alike)."""
+    keys = [*pair.a.support, *(k for k in pair.b.support if k not in pair.a.support)]
+    return {
+        key: _joined(pair, pair.a.support.get(key, ""), pair.b.support.get(key, ""))
+        for key in keys
+    }
+
+
+def settle_support(consensus: Consensus, qset, domain_id: str, text: str) -> Consensus:
+    """The lead writes the agreed support of a domain judgement ("" clears it)."""
+    if domain_id not in qset.domain_ids():
+        raise InputError(f"no domain {domain_id!r}: use one of {', '.join(qset.domain_ids())}")
+    support = {k: v for k, v in consensus.support.items() if k != domain_id}
+    if text.strip():
+        support[domain_id] = text.strip()
+    return recompute_consensus(consensus.model_copy(update={"support": support}), qset)
+
+
+def settle_direction(consensus: Consensus, qset, key: str, direction: str | None) -> Consensus:
+    """The lead settles the predicted direction of bias of a domain or the overall."""
+    keys = [k for k, _ in judgement_keys(qset)]
+    if key not in keys:
+        raise InputError(f"direction key must be one of {', '.join(keys)}")
+    if direction is not None and direction not in DIRECTION_LABELS:
+        raise InputError(f"direction must be one of {', '.join(DIRECTION_LABELS)}")
+    directions = {k: v for k, v in consensus.direction.items() if k != key}
+    if direction is not None:
+        directions[key] = direction
+    return recompute_consensus(consensus.model_copy(update={"direction": directions}), qset)
 
 
 def _joined(pair: AssessmentPair, text_a: str, text_b: str) -> str:

@@ -20,6 +20,24 @@ Judgement = Literal["low", "some_concerns", "high"]
 JUDGEMENTS: tuple[str, ...] = ("low", "some_concerns", "high")
 Proposal = Literal["low", "some_concerns", "high", "incomplete"]
 Effect = Literal["assignment", "adhering"]
+# The optional predicted direction of bias of the RoB 2 form, per domain and overall (option
+# wording of the RoB 2 template of 22 August 2019, from memory).
+Direction = Literal[
+    "na",
+    "favours_experimental",
+    "favours_comparator",
+    "towards_null",
+    "away_from_null",
+    "unpredictable",
+]
+DIRECTION_LABELS: dict[str, str] = {
+    "na": "NA",
+    "favours_experimental": "Favours experimental",
+    "favours_comparator": "Favours comparator",
+    "towards_null": "Towards null",
+    "away_from_null": "Away from null",
+    "unpredictable": "Unpredictable",
+}
 Status = Literal["draft", "complete"]
 OVERALL = "overall"
 
@@ -58,12 +76,25 @@ class ResultSpec(Record):
         return value
 
 
+# What a study's source document is, in words (set at `study add`, shown in the workbench).
+REPORT_KINDS: dict[str, str] = {
+    "report": "report",
+    "protocol": "protocol",
+    "registry": "registry record",
+    "analysis_plan": "statistical analysis plan",
+    "supplement": "supplement",
+    "other": "other document",
+}
+
+
 class ReportFile(Record):
     """One source document of a study, kept in the review's reports/ folder."""
 
     path: str = Field(min_length=1)  # relative to the review's reports/ folder
     sha256: str = Field(pattern=r"^[0-9a-f]{64}$")
-    kind: Literal["report", "protocol", "registry", "other"] = "report"
+    kind: Literal["report", "protocol", "registry", "analysis_plan", "supplement", "other"] = (
+        "report"
+    )
 
 
 class Study(Record):
@@ -171,6 +202,10 @@ class Assessment(Record):
     proposed: dict[str, Proposal] = Field(default_factory=dict)
     overrides: dict[str, Override] = Field(default_factory=dict)
     final: dict[str, Proposal] = Field(default_factory=dict)
+    # The RoB 2 form's free-text support of each domain judgement (keys: domain ids) and the
+    # optional predicted direction of bias (keys: domain ids and "overall").
+    support: dict[str, str] = Field(default_factory=dict)
+    direction: dict[str, Direction] = Field(default_factory=dict)
     status: Status = "draft"
     rules_version: int | None = None
     dismissed: list[DismissedSuggestion] = Field(default_factory=list)
@@ -204,6 +239,10 @@ class Consensus(Record):
     proposed: dict[str, Proposal] = Field(default_factory=dict)
     overrides: dict[str, Override] = Field(default_factory=dict)
     final: dict[str, Proposal] = Field(default_factory=dict)
+    # The RoB 2 form's free-text support of each domain judgement (keys: domain ids) and the
+    # optional predicted direction of bias (keys: domain ids and "overall").
+    support: dict[str, str] = Field(default_factory=dict)
+    direction: dict[str, Direction] = Field(default_factory=dict)
     status: Status = "draft"
     # each reviewer's responses on their answer path when the lead last took them up (at the
     # start and at completion): a later change by a reviewer makes the consensus stale

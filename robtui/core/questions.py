@@ -37,6 +37,13 @@ JUDGEMENT_LABELS: dict[str, str] = {
 EFFECT_KEY_SEPARATOR = ":"
 
 
+def condition_phrase(question) -> str:
+    """A question's condition as a phrase inside a sentence: 'if Y/PY to 2.3' (the question
+    set writes it as a heading, 'If Y/PY to 2.3')."""
+    text = question.condition_text.strip()
+    return text[:1].lower() + text[1:] if text.startswith("If ") else text
+
+
 def judgement_label(code: str | None) -> str:
     """Words for a judgement code; anything not judged (None, incomplete) reads "Not judged"."""
     return JUDGEMENT_LABELS.get(code or INCOMPLETE, JUDGEMENT_LABELS[INCOMPLETE])

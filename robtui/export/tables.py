@@ -20,7 +20,15 @@ from robtui.core.assessing import path_answers
 from robtui.core.comparison import AssessmentPair
 from robtui.core.consensus import changed_since
 from robtui.core.grade import GradeSuggestion, suggest_rob_rating
-from robtui.core.model import JUDGEMENTS, OVERALL, Assessment, Consensus, Quote, Review
+from robtui.core.model import (
+    DIRECTION_LABELS,
+    JUDGEMENTS,
+    OVERALL,
+    Assessment,
+    Consensus,
+    Quote,
+    Review,
+)
 from robtui.core.questions import QuestionSet, judgement_label
 from robtui.core.review_sets import ReviewSets, review_sets
 
@@ -223,6 +231,36 @@ def _settled(record, question_id: str) -> str:
     return f"{how}: {decision.note}" if decision.note else how
 
 
+def _domain_supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]:
+    """The RoB 2 form's support of each domain judgement and the predicted directions of bias,
+    as rows of the supporting table (question column: "D1 support", "Overall direction")."""
+    titles = column_titles(qset, record.effect)
+    rows = []
+    for key in [*qset.domain_ids(), OVERALL]:
+        support = record.support.get(key, "")
+        direction = record.direction.get(key)
+        if not support and direction is None:
+            continue
+        text = support
+        if direction is not None:
+            text += ("\n" if text else "") + (
+                f"Predicted direction of bias: {DIRECTION_LABELS[direction]}"
+            )
+        rows.append(
+            SupportingRow(
+                study_id=study_id,
+                source=source,
+                domain_id=key,
+                question_id=f"{titles.get(key, key)} support",
+                question=f"Support for the judgement of {titles.get(key, key)}",
+                response=None,
+                justification=text,
+                quotes=(),
+            )
+        )
+    return rows
+
+
 def _supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]:
     effective = path_answers(qset, record.effect, record.answers)
     rows = []
@@ -243,7 +281,7 @@ def _supporting(study_id: str, source: str, record, qset) -> list[SupportingRow]
                 settled=_settled(record, question.id),
             )
         )
-    return rows
+    return rows + _domain_supporting(study_id, source, record, qset)
 
 
 def _shares(rows: list[JudgementRow], keys: list[str], weights: dict[str, float]):

@@ -77,6 +77,11 @@ def _validated(model: type[BaseModel], data: dict, what: str):
         raise InputError(f"{what}: {describe_validation(error)}") from None
 
 
+def _with_kinds(files: Sequence[Path | tuple[Path, str]]) -> list[tuple[Path, str]]:
+    """Files as (path, kind); a bare path is a report."""
+    return [(Path(f[0]), f[1]) if isinstance(f, tuple) else (Path(f), "report") for f in files]
+
+
 class ReviewFolder:
     """One review on disk. ``review`` is the in-memory Review; ``save_review`` writes it."""
 
@@ -251,11 +256,11 @@ class ReviewFolder:
         self,
         study_id: str,
         label: str,
-        files: Sequence[Path],
-        kind: str = "report",
+        files: Sequence[Path | tuple[Path, str]],
         design: str | None = None,
     ) -> Study:
-        """Add a study, copying its files into reports/<study_id>/ with their sha256.
+        """Add a study, copying its files into reports/<study_id>/ with their sha256; each file
+        is a path (a report) or (path, kind).
 
         ``design`` (a design a question set declares, or a set id) chooses the study's
         question set; it must name a set the review can use.
@@ -273,7 +278,7 @@ class ReviewFolder:
             review_catalogue(self.root).resolve(design)  # InputError lists what can be used
             fields["design"] = design
         study = _validated(Study, fields, f"study {study_id}")
-        reports = self._copy_reports(study_id, files, kind, existing=[])
+        reports = self._copy_reports(study_id, _with_kinds(files), existing=[])
         study.reports = reports
         changed = self.review.model_copy(deep=True)
         changed.studies.append(study)
@@ -282,17 +287,24 @@ class ReviewFolder:
 
     def add_report(self, study_id: str, file: Path, kind: str = "report") -> ReportFile:
         """Add one more source document to an existing study."""
+        return self.add_reports(study_id, [(file, kind)])[0]
+
+    def add_reports(
+        self, study_id: str, files: Sequence[Path | tuple[Path, str]]
+    ) -> list[ReportFile]:
+        """Add more source documents to an existing study (path, or (path, kind))."""
         study = self.study_or_error(study_id)
-        [report] = self._copy_reports(study_id, [file], kind, existing=study.reports)
+        added = self._copy_reports(study_id, _with_kinds(files), existing=study.reports)
         changed = self.review.model_copy(deep=True)
-        changed.study(study_id).reports.append(report)
+        changed.study(study_id).reports.extend(added)
         self._commit_review(changed)
-        return report
+        return added
 
     def _copy_reports(
-        self, study_id: str, files: Sequence[Path], kind: str, existing: Sequence[ReportFile]
+        self, study_id: str, given: Sequence[tuple[Path, str]], existing: Sequence[ReportFile]
     ) -> list[ReportFile]:
-        files = [Path(f) for f in files]
+        kinds = {Path(f): kind for f, kind in given}
+        files = [Path(f) for f, _ in given]
         names = [f.name for f in files]
         taken = {Path(r.path).name for r in existing}
         for f in files:
@@ -309,7 +321,7 @@ class ReviewFolder:
             sha = hashlib.sha256(data).hexdigest()
             rel = f"{study_id}/{f.name}"
             report = _validated(
-                ReportFile, {"path": rel, "sha256": sha, "kind": kind}, f"report {f}"
+                ReportFile, {"path": rel, "sha256": sha, "kind": kinds[f]}, f"report {f}"
             )
             target = self.reports_dir / rel
             if target.exists() and sha256_of(target) != sha:
@@ -337,6 +349,23 @@ class ReviewFolder:
             )
         changed = self.review.model_copy(deep=True)
         changed.results.append(spec)
+        self._commit_review(changed)
+
+    def set_result_effect(self, result_id: str, effect: str, by: str) -> None:
+        """The lead changes a result's effect of interest (nobody else: every reviewer answers
+        the same questions). Assessments follow it when next opened; answers are kept."""
+        lead = self.review.lead
+        if not lead or by != lead:
+            raise InputError(
+                f"only the review's lead ({lead or 'none named'}) changes a result's effect of "
+                f"interest; {by!r} may not: ask the lead"
+            )
+        self.result_or_error(result_id)
+        changed = self.review.model_copy(deep=True)
+        spec = changed.result(result_id)
+        changed.results[changed.results.index(spec)] = _validated(
+            ResultSpec, {**spec.model_dump(), "effect": effect}, f"result {result_id}"
+        )
         self._commit_review(changed)
 
     def study_or_error(self, study_id: str) -> Study:

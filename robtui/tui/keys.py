@@ -71,6 +71,12 @@ KEY_MAP: tuple[KeyHelp, ...] = (
         "assessment", "o / O", "override the domain / overall judgement (a reason is required)"
     ),
     KeyHelp("assessment", "g", "show / hide the focused question's guidance"),
+    KeyHelp(
+        "assessment",
+        "b / B",
+        "support for the domain's judgement and its predicted direction of bias / the overall "
+        "direction of bias (optional, as on the RoB 2 form)",
+    ),
     KeyHelp("assessment", "s", "domain summary: answers, quotes, judgement"),
     KeyHelp("assessment", "t", "the result's effect of interest (set by the review, not here)"),
     KeyHelp("assessment", "c", "mark complete (lists what is missing) / reopen"),

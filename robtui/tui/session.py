@@ -443,6 +443,19 @@ class AssessmentSession:
             raise InputError("an override needs a reason: say why the judgement differs")
         self._commit(assessing.set_override(self.assessment, self.qset, key, judgement, reason))
 
+    def set_support_and_direction(
+        self, key: str, support: str | None, direction: str | None
+    ) -> None:
+        """The RoB 2 form's support of a domain judgement (None: leave it) and the optional
+        predicted direction of bias of a domain or the overall."""
+        self._editable()
+        updated = self.assessment
+        if support is not None:
+            updated = assessing.set_support(updated, self.qset, key, support)
+        updated = assessing.set_direction(updated, self.qset, key, direction)
+        if updated is not self.assessment:
+            self._commit(updated)
+
     def clear_override(self, key: str) -> None:
         self._editable()
         if key in self.assessment.overrides:

@@ -253,8 +253,8 @@ def prespecification(folder, study_id: str, result_id: str) -> tuple[Prespecific
                     result_passage=passage)
     if not any(p.source == "registry" for p in sources.planned):
         sources.notes.append("no registry record among the study's files: add the registry's "
-                             "JSON or XML export with `robtui study report DIR --id ID FILE "
-                             "--kind registry`")
+                             "JSON or XML export with `robtui study report DIR --study ID "
+                             "--registry FILE`")
     if not any(p.source == "protocol" for p in sources.planned):
         sources.notes.append("no protocol outcomes found (no file of kind protocol, or no "
                              "sentence declaring its outcomes)")

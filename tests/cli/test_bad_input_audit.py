@@ -48,7 +48,7 @@ def test_demo_copy_to_a_folder_that_cannot_be_made(tmp_path, capsys):
 def test_export_when_exports_is_not_a_folder(tmp_path, capsys):
     review = tmp_path / "review"
     assert robtui(capsys, "init", review, "--title", "T", "--reviewer", "ana")[0] == 0
-    added = robtui(capsys, "result", "add", review, "--id", "pain", "--outcome", "Pain")
+    added = robtui(capsys, "result", "add", review, "--result", "pain", "--outcome", "Pain")
     assert added[0] == 0
     exports = review / "exports"
     exports.rmdir()
@@ -65,7 +65,7 @@ def _review_with_a_result(tmp_path: Path, capsys) -> Path:
     review = tmp_path / "review"
     made = robtui(capsys, "init", review, "--title", "T", "--reviewer", "ana", "--reviewer", "ben")
     assert made[0] == 0
-    assert robtui(capsys, "result", "add", review, "--id", "pain", "--outcome", "Pain")[0] == 0
+    assert robtui(capsys, "result", "add", review, "--result", "pain", "--outcome", "Pain")[0] == 0
     return review
 
 
@@ -86,7 +86,7 @@ def test_study_add_when_reports_is_not_a_folder(tmp_path, capsys):
     text = _blocked(review / "reports")
     before = (review / "review.toml").read_text(encoding="utf-8")
     code, _out, err = robtui(
-        capsys, "study", "add", review, "--id", "S1", "--label", "S 1", "--report", report
+        capsys, "study", "add", review, "--study", "S1", "--label", "S 1", "--report", report
     )
     assert code == 2
     assert err.startswith("robtui: ") and "you may write there" in err

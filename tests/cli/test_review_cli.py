@@ -45,11 +45,11 @@ def review(tmp_path: Path, capsys) -> Path:
     root = tmp_path / "rev"
     assert robtui(capsys, "init", root, "--title", "Balm review", "--reviewer", "ana")[0] == 0
     code, out, _ = robtui(
-        capsys, "study", "add", root, "--id", "Balm2020", "--label", "Balm 2020", "--report", report
+        capsys, "study", "add", root, "--study", "Balm2020", "--label", "Balm 2020", "--report", report
     )
     assert code == 0 and "added study Balm2020" in out
     code, out, _ = robtui(
-        capsys, "result", "add", root, "--id", "itch4", "--outcome", "Itch score",
+        capsys, "result", "add", root, "--result", "itch4", "--outcome", "Itch score",
         "--time-point", "4 weeks", "--outcome-type", "subjective", "--weight", "Balm2020=3",
     )  # fmt: skip
     assert code == 0 and "added result itch4" in out
@@ -132,7 +132,6 @@ def test_override_with_reason_through_cli(review: Path, capsys):
         (["3.1=Y", "3.2=N"], "3.2 is not asked"),
         (["9.1=Y"], "unknown question '9.1'"),
         (["1.1"], "write it as Q=CODE"),
-        (["--quote", "1.1=words not in the report"], "quote not found"),
         (["--complete"], "cannot mark complete: domain 1: not answered"),
         (["--override", "1=high", "--reason", "x"], "domain 1 is incomplete"),
     ],
@@ -210,10 +209,10 @@ def test_init_refuses_existing_review_and_bad_ids(review: Path, tmp_path: Path, 
 def test_result_add_bad_input(review: Path, capsys):
     before = snapshot(review)
     for argv, message in [
-        (["--id", "itch4", "--outcome", "Itch"], "already in the review"),
-        (["--id", "r2", "--outcome", "Itch", "--weight", "Balm2020"], "write STUDY=NUMBER"),
-        (["--id", "r2", "--outcome", "Itch", "--weight", "Other=1"], "unknown studies"),
-        (["--id", "r2", "--outcome", "Itch", "--weight", "Balm2020=-1"], "zero or positive"),
+        (["--result", "itch4", "--outcome", "Itch"], "already in the review"),
+        (["--result", "r2", "--outcome", "Itch", "--weight", "Balm2020"], "write STUDY=NUMBER"),
+        (["--result", "r2", "--outcome", "Itch", "--weight", "Other=1"], "unknown studies"),
+        (["--result", "r2", "--outcome", "Itch", "--weight", "Balm2020=-1"], "zero or positive"),
     ]:
         code, _, err = robtui(capsys, "result", "add", review, *argv)
         assert code == 2 and message in err, err
@@ -228,17 +227,10 @@ def test_study_list_reports_changed_file(review: Path, capsys):
     assert code == 1 and "changed since it was added" in out
 
 
-def test_clear_effect_reopen_and_remove_quote(review: Path, capsys):
+def test_clear_reopen_and_remove_quote(review: Path, capsys):
     path = review / "assessments" / "ana" / "Balm2020--itch4.json"
     quote = "Sealed opaque envelopes were opened only after enrolment."
     assert assess(capsys, review, *LOW, "--quote", f"1.2={quote}")[0] == 0
-    code, out, _ = assess(capsys, review, "--effect", "adhering", "--json")
-    data = json.loads(out)
-    assert code == 0 and data["effect"] == "adhering"
-    assert data["answers"]["assignment:2.6"]["response"] == "Y" and "2.6" not in data["answers"]
-    assert data["proposed"]["2"] == "incomplete"
-    assert json.loads(path.read_text("utf-8")) == data
-    assert assess(capsys, review, "--effect", "assignment")[0] == 0
     code, out, _ = assess(capsys, review, "1.3=")  # clears the answer
     assert code == 0 and "domain 1: not answered: 1.3" in out
     assert json.loads(path.read_text("utf-8"))["answers"]["1.3"]["response"] is None
@@ -250,3 +242,101 @@ def test_clear_effect_reopen_and_remove_quote(review: Path, capsys):
     assert code == 0 and data["status"] == "draft" and data["answers"]["1.2"]["quotes"] == []
     code, _, err = assess(capsys, review, "--remove-quote", "1.2=1")
     assert code == 2 and "no quote number 1" in err
+
+
+def test_a_pasted_quote_matches_despite_case_quotes_and_line_breaks(review: Path, capsys):
+    """What a PDF viewer's copy gives: other case, a line break, doubled spaces, curly quote."""
+    pasted = "ALLOCATION used a computer-\ngenerated  list held by the trial’s"
+    code, out, err = assess(capsys, review, "1.1=Y", "--quote", f"1.1={pasted}")
+    assert code == 0 and err == ""
+    assert "1.1: quote matched in Balm2020/balm.txt" in out
+    data = json.loads((review / "assessments" / "ana" / "Balm2020--itch4.json").read_text())
+    quote = data["answers"]["1.1"]["quotes"][0]
+    assert REPORT[quote["start"] : quote["end"]] == quote["text"]
+    assert quote["text"].startswith("Allocation used a computer-generated list held by the trial")
+
+
+def test_a_near_copy_is_matched_fuzzily_and_said_so(review: Path, capsys):
+    code, out, _ = assess(capsys, review, "--quote", "1.2=Sealed opaque envelops were opened only after enrolment")
+    assert code == 0 and "a near copy (similarity" in out
+    assert "'Sealed opaque envelopes were opened only after enrolment" in out
+
+
+def test_a_quote_not_in_the_report_keeps_the_rest_of_the_command(review: Path, capsys):
+    code, out, err = assess(
+        capsys, review, "1.1=Y", "1.2=PY", "--why", "1.1=computer list",
+        "--quote", "1.2=the trial used a telephone randomisation service",
+    )  # fmt: skip
+    assert code == 1 and "saved" in out  # the answers and the justification were kept
+    assert "1.2: quote not attached: quote not found" in err and "the closest passage" in err
+    data = json.loads((review / "assessments" / "ana" / "Balm2020--itch4.json").read_text())
+    assert data["answers"]["1.1"]["response"] == "Y" and data["answers"]["1.2"]["response"] == "PY"
+    assert data["answers"]["1.1"]["justification"] == "computer list"
+    assert data["answers"]["1.2"]["quotes"] == []
+
+
+def test_support_and_direction_of_bias_are_stored_and_shown(review: Path, capsys):
+    code, out, _ = assess(
+        capsys, review, "1.1=Y", "--support", "1=central allocation, groups alike",
+        "--direction", "1=towards_null", "--direction", "overall=unpredictable",
+    )  # fmt: skip
+    assert code == 0
+    assert "predicted direction of bias: Towards null" in out
+    assert "support: central allocation, groups alike" in out
+    data = json.loads((review / "assessments" / "ana" / "Balm2020--itch4.json").read_text())
+    assert data["support"] == {"1": "central allocation, groups alike"}
+    assert data["direction"] == {"1": "towards_null", "overall": "unpredictable"}
+    code, _, err = assess(capsys, review, "--direction", "1=sideways")
+    assert code == 2 and "unknown direction of bias 'sideways'" in err
+    assert assess(capsys, review, "--direction", "1=", "--support", "1=")[0] == 0
+    data = json.loads((review / "assessments" / "ana" / "Balm2020--itch4.json").read_text())
+    assert data["support"] == {} and data["direction"] == {"overall": "unpredictable"}
+
+
+@pytest.mark.parametrize(
+    "argv, hint",
+    [
+        (["study", "add", "{root}", "--id", "S2", "--label", "S"], "--id is now --study"),
+        (["study", "add", "{root}", "--study", "S2", "--label", "S", "--kind", "protocol"],
+         "--kind is gone: give each file with its kind"),
+        (["study", "report", "{root}", "--study", "Balm2020", "{file}"],
+         "give the file with its kind, e.g. --protocol FILE"),
+        (["result", "add", "{root}", "--id", "r2", "--outcome", "Itch"], "--id is now --result"),
+        (["assess", "{root}", "--reviewer", "ana", "--study", "Balm2020", "--result", "itch4",
+          "--effect", "adhering"], "the effect of interest belongs to the result"),
+    ],
+)
+def test_old_spellings_are_refused_with_a_hint(review: Path, capsys, argv, hint):
+    file = review.parent / "balm.txt"
+    before = snapshot(review)
+    code, out, err = robtui(capsys, *[a.format(root=review, file=file) for a in argv])
+    assert code == 2 and hint in err and out == ""
+    assert snapshot(review) == before
+
+
+def test_report_kinds_are_set_at_study_add_and_listed(review: Path, tmp_path: Path, capsys):
+    plan = tmp_path / "plan.txt"
+    plan.write_text("Statistical analysis plan of an invented trial.\n", encoding="utf-8")
+    supplement = tmp_path / "extra.txt"
+    supplement.write_text("Supplementary tables.\n", encoding="utf-8")
+    code, out, _ = robtui(
+        capsys, "study", "add", review, "--study", "S2", "--label", "S 2",
+        "--report", review.parent / "balm.txt", "--analysis-plan", plan,
+    )  # fmt: skip
+    assert code == 0 and "report balm.txt, statistical analysis plan plan.txt" in out
+    code, out, _ = robtui(capsys, "study", "report", review, "--study", "S2", "--supplement", supplement)
+    assert code == 0 and "supplement extra.txt" in out
+    code, out, _ = robtui(capsys, "study", "list", review)
+    assert "statistical analysis plan" in out and "supplement" in out
+
+
+def test_only_the_lead_changes_a_results_effect(tmp_path: Path, capsys):
+    root = tmp_path / "led"
+    assert robtui(capsys, "init", root, "--title", "T", "--lead", "lea", "--reviewer", "ana")[0] == 0
+    assert robtui(capsys, "result", "add", root, "--result", "r1", "--outcome", "Pain")[0] == 0
+    code, _, err = robtui(capsys, "result", "set-effect", root, "--result", "r1",
+                          "--effect", "adhering", "--reviewer", "ana")
+    assert code == 2 and "only the review's lead (lea)" in err
+    code, out, _ = robtui(capsys, "result", "set-effect", root, "--result", "r1",
+                          "--effect", "adhering", "--reviewer", "lea")
+    assert code == 0 and "(effect of adhering)" in out

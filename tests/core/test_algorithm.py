@@ -241,7 +241,7 @@ def test_answers_to_questions_not_asked_are_ignored_by_judge(qset):
     assert judge_domain(domain, {"3.1": "Y", "3.2": "N", "3.3": "Y"}) == "low"
     assert validate_answers(domain, {"3.1": "Y", "3.2": "N"}) == [
         (
-            "3.2 is answered but not asked: its condition (If N/PN/NI to 3.1) is not met;"
+            "3.2 is answered but not asked: its condition (if N/PN/NI to 3.1) is not met;"
             " leave it out or change the earlier answer"
         )
     ]

@@ -172,3 +172,19 @@ def test_stale_override_must_be_confirmed():
     a = assessing.set_response(a, QSET, "1.2", "N")  # proposal moves from Low to High
     problems = assessing.completion_problems(a, QSET)
     assert any("proposal changed since the override" in p for p in problems)
+
+
+def test_support_and_direction_per_domain_and_overall():
+    set_direction, set_support, qset = assessing.set_direction, assessing.set_support, QSET
+    a = assessing.new_assessment(review(), "S1", "r1", "ana", qset)
+    a = set_support(a, qset, "1", "  central allocation  ")
+    a = set_direction(a, qset, "1", "towards_null")
+    a = set_direction(a, qset, "overall", "favours_experimental")
+    assert a.support == {"1": "central allocation"}
+    assert a.direction == {"1": "towards_null", "overall": "favours_experimental"}
+    with pytest.raises(InputError, match="unknown direction of bias"):
+        set_direction(a, qset, "1", "upwards")
+    with pytest.raises(InputError, match="no domain 'overall' to support"):
+        set_support(a, qset, "overall", "x")
+    assert set_direction(a, qset, "1", None).direction == {"overall": "favours_experimental"}
+    assert set_support(a, qset, "1", " ").support == {}

@@ -282,3 +282,29 @@ def test_different_effects_are_not_compared():
     b = assessing.mark_complete(answer_everything(b, QSET, lambda q: q.options[0]), QSET)
     [pair] = pair_assessments([a], [b])
     assert "effects differ" in pair.problem
+
+
+def test_support_and_direction_are_compared_and_settled_by_the_lead():
+    from robtui.core.consensus import settle_direction, settle_support
+
+    a = make("ana", "S1").model_copy(
+        update={"support": {"1": "central allocation"}, "direction": {"1": "towards_null",
+                                                                        "overall": "unpredictable"}}
+    )
+    b = make("ben", "S1").model_copy(
+        update={"support": {"1": "web service"}, "direction": {"1": "away_from_null",
+                                                                "overall": "unpredictable"}}
+    )
+    [pair] = pair_assessments([a], [b])
+    rows = {r.key: r for r in judgement_rows(pair, QSET)}
+    assert rows["1"].direction_differs and not rows["overall"].direction_differs
+    assert (rows["1"].support_a, rows["1"].support_b) == ("central allocation", "web service")
+    assert not rows["2"].direction_differs  # neither gave one: optional, no difference
+    c = start_consensus(pair, "lee", QSET)
+    assert c.direction == {"overall": "unpredictable"}  # only what both said alike
+    assert c.support == {"1": "ana: central allocation\nben: web service"}
+    c = settle_direction(c, QSET, "1", "towards_null")
+    c = settle_support(c, QSET, "1", "central web allocation service")
+    assert c.direction["1"] == "towards_null" and c.support["1"] == "central web allocation service"
+    with pytest.raises(InputError, match="direction must be one of"):
+        settle_direction(c, QSET, "1", "sideways")

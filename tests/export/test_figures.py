@@ -211,3 +211,17 @@ def test_a_stale_consensus_row_is_marked_and_explained(small):
     assert "\u2021 consensus built on answers a reviewer has since changed" in " ".join(
         text.split()
     )
+
+
+def test_support_and_direction_reach_the_supporting_table(tmp_path):
+    f = build_synthetic_review(tmp_path / "review", studies=2, results=1, seed=5)
+    assessments, _ = f.assessments()
+    study = assessments[0].study_id
+    extra = {"support": {"1": "central allocation"}, "direction": {"overall": "towards_null"}}
+    assessments = [a.model_copy(update=extra) if a.study_id == study else a for a in assessments]
+    ex = build_outcome_export(f.review, "outcome-1", QSET, assessments, [])
+    rows = [s for s in ex.supporting if s.study_id == study and s.response is None]
+    assert [(s.question_id, s.justification) for s in rows] == [
+        ("D1 Randomisation support", "central allocation"),
+        ("Overall support", "Predicted direction of bias: Towards null"),
+    ]

@@ -63,3 +63,18 @@ async def open_selected(pilot) -> AssessmentScreen:
     await settle(pilot)
     assert isinstance(pilot.app.screen, AssessmentScreen)
     return pilot.app.screen
+
+
+# One complete path per domain, all Low (RoB 2 algorithms, Sterne et al. BMJ 2019;366:l4898).
+LOW_PATH = {
+    "1": {"1.1": "Y", "1.2": "Y", "1.3": "N"},
+    "2": {"2.1": "N", "2.2": "N", "2.6": "Y"},
+    "3": {"3.1": "Y"},
+    "4": {"4.1": "N", "4.2": "N", "4.3": "N"},
+    "5": {"5.1": "Y", "5.2": "N", "5.3": "N"},
+}
+
+
+def hint_lines(hints) -> list[str]:
+    """The key hints as the bar wraps them at its width."""
+    return [line.plain for line in hints.render().wrap(hints.content_region.width)]

@@ -7,7 +7,7 @@ from robtui.tui.screens.dialogs import TextDialog
 from robtui.tui.screens.help import HelpScreen
 
 from .conftest import SIZE
-from .helpers import open_selected, plain
+from .helpers import hint_lines, open_selected, plain
 
 
 async def test_clicks_choose_domain_and_answer(demo_dir):
@@ -61,9 +61,8 @@ async def test_clicking_a_key_hint_runs_it(demo_dir):
     async with app.run_test(size=SIZE) as pilot:
         screen = await open_selected(pilot)
         hints = screen.query_one(KeyHints)
-        content = hints.render()
-        assert "summary" in content.plain and "quote" in content.plain  # hints always in view
-        lines = [line.plain for line in content.wrap(hints.content_region.width)]
+        lines = hint_lines(hints)
+        assert "summary" in " ".join(lines) and "quote" in " ".join(lines)  # always in view
         row, column = next(
             (n, text.index(" summary")) for n, text in enumerate(lines) if " summary" in text
         )

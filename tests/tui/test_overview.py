@@ -38,7 +38,9 @@ async def test_next_document_of_a_study(demo_dir):
     async with app.run_test(size=SIZE) as pilot:
         screen = await open_selected(pilot)
         first = screen.current.document.sha256
-        assert "document 1 of" in str(screen.query_one("#report-heading").render())
+        heading = str(screen.query_one("#report-heading").render())
+        assert "document 1 of" in heading and heading.startswith("report: ")  # its kind
+        assert "also report, protocol, registry record" in heading
         await pilot.press("d")
         await pilot.pause()
         assert screen.current.document.sha256 != first

@@ -17,15 +17,8 @@ from robtui.tui.screens.overview import OverviewScreen
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import answer_domain, open_selected
+from .helpers import LOW_PATH, answer_domain, open_selected
 
-LOW_PATH = {
-    "1": {"1.1": "Y", "1.2": "Y", "1.3": "N"},
-    "2": {"2.1": "N", "2.2": "N", "2.6": "Y"},
-    "3": {"3.1": "Y"},
-    "4": {"4.1": "N", "4.2": "N", "4.3": "N"},
-    "5": {"5.1": "Y", "5.2": "N", "5.3": "N"},
-}
 REVIEWER = "tess"  # not one of the demo's reviewers: a fresh assessment
 
 

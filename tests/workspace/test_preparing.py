@@ -100,7 +100,7 @@ def _review(tmp_path: Path, capsys) -> Path:
     root = tmp_path / "rev"
     assert main(["init", str(root), "--title", "T", "--lead", "ines", "--reviewer", "maren"]) == 0
     for study, name in (("A1", "alder-migraine.txt"), ("B1", "birch-knee.txt")):
-        assert main(["study", "add", str(root), "--id", study, "--label", study,
+        assert main(["study", "add", str(root), "--study", study, "--label", study,
                      "--report", str(SAMPLES / name)]) == 0
     capsys.readouterr()
     return root

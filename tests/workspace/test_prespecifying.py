@@ -100,7 +100,7 @@ def test_cli_prints_findings_json_and_attaches_a_quote(demo, capsys, monkeypatch
     assert "reopen it first" in capsys.readouterr().err
     assert demo.assessment_path("maren", "ELM2028", "primary-itt").read_bytes() == before
     # a new result has no assessment yet: the finding's passage becomes a quote on 5.2
-    assert main(["result", "add", root, "--id", "fev1", "--outcome", "FEV1",
+    assert main(["result", "add", root, "--result", "fev1", "--outcome", "FEV1",
                  "--time-point", "12 weeks"]) == 0
     capsys.readouterr()
     assert main(["prespecified", root, "--study", "ELM2028", "--result", "fev1", "--json"]) == 0

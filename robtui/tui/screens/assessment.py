@@ -21,7 +21,7 @@ from textual.widgets import Input, Label, ProgressBar, Static, TextArea
 from textual.worker import get_current_worker
 
 from robtui.core.explaining import determined_overall, explain_overall
-from robtui.core.model import OVERALL, Quote
+from robtui.core.model import DIRECTION_LABELS, OVERALL, REPORT_KINDS, Quote
 from robtui.errors import RobtuiError
 from robtui.tui.keys import RESPONSE_KEYS
 from robtui.tui.palette import badge
@@ -30,6 +30,8 @@ from robtui.tui.screens.dialogs import (
     ListDialog,
     OverrideChoice,
     OverrideDialog,
+    SupportChoice,
+    SupportDialog,
     TextDialog,
 )
 from robtui.tui.session import AssessmentSession
@@ -82,6 +84,8 @@ class AssessmentScreen(Screen[None]):
         Binding("slash", "search", "Search", show=False),
         Binding("o", "override('domain')", "Override", show=False),
         Binding("O", "override('overall')", "Override overall", show=False),
+        Binding("b", "support('domain')", "Support, direction of bias", show=False),
+        Binding("B", "support('overall')", "Overall direction of bias", show=False),
         Binding("s", "summary", "Summary", show=False),
         Binding("t", "effect", "Effect", show=False),
         Binding("c", "complete", "Complete", show=False),
@@ -121,11 +125,12 @@ class AssessmentScreen(Screen[None]):
             ("g", "guidance", "guidance"),
             ("/", "search", "search"),
             ("o/O", "override", "override('domain')"),
+            ("b/B", "support", "support('domain')"),
             ("s", "summary", "summary"),
             ("c", "complete", "complete"),
         ]
         if len(self.loaded) > 1:
-            hints.append(("d", "next document", "next_document"))
+            hints.append(("d", "document", "next_document"))
         hints.append(("w", "planned", "planned"))
         hints += [("esc", "overview", "back"), ("?", "help", "app.help"), ("^q", "quit", "app.quit")]
         return hints
@@ -269,10 +274,17 @@ class AssessmentScreen(Screen[None]):
             )
             return
         loaded = self.loaded[self.document_index]
-        title = Text(loaded.report.path, style="bold")
+        title = Text(f"{REPORT_KINDS.get(loaded.report.kind, loaded.report.kind)}: ", style="bold")
+        title.append(loaded.report.path)
         if len(self.loaded) > 1:
+            others = ", ".join(
+                REPORT_KINDS.get(item.report.kind, item.report.kind)
+                for i, item in enumerate(self.loaded)
+                if i != self.document_index
+            )
             title.append(
-                f"  (document {self.document_index + 1} of {len(self.loaded)}, d: next)",
+                f"  (document {self.document_index + 1} of {len(self.loaded)}, d: next; "
+                f"also {others})",
                 style="dim",
             )
         for note in loaded.notes:
@@ -322,6 +334,13 @@ class AssessmentScreen(Screen[None]):
         heading = Text(f"D{domain.id} {domain.name}", style="bold")
         if domain.effect:
             heading.append(f" · effect of {s.effect} (set for this result)", style="dim")
+        result = s.result
+        measuring = any("outcome assessor" in q.text for q in domain.questions)
+        if result is not None and result.self_reported and measuring:
+            heading.append(
+                "\nSelf-reported outcome: the participants are the outcome assessors",
+                style="bold",
+            )
         words = s.explanation(self.domain_id)
         if words.not_asked:
             n = words.not_asked
@@ -398,6 +417,7 @@ class AssessmentScreen(Screen[None]):
             text.append(f"\n  {line}")
         if override:
             text.append(f"\n  {OVERRIDE_MARK} your reason: {override.reason}", style="italic")
+        text.append_text(self._form_fields(self.domain_id))
         text.append("\nOverall: ", style="bold")
         text.append_text(badge(shown[OVERALL]))
         finals = {d: shown[d] for d in s.domain_ids()}
@@ -405,6 +425,7 @@ class AssessmentScreen(Screen[None]):
         override = s.override(OVERALL)
         if override:
             text.append(f"\n  {OVERRIDE_MARK} your override: {override.reason}", style="italic")
+        text.append_text(self._form_fields(OVERALL))
         if s.may_raise_overall() and not override:
             text.append(
                 "\n  several domains have some concerns: you may raise the overall to High (O)",
@@ -420,6 +441,16 @@ class AssessmentScreen(Screen[None]):
             text.append(f"\n⚠ not saved: {s.unsaved_error}", style="bold reverse")
         else:
             text.append(" · saved", style="dim")
+        return text
+
+    def _form_fields(self, key: str) -> Text:
+        """The support and predicted direction of bias given for a judgement (b / B)."""
+        a = self.session.assessment
+        text = Text()
+        if a.support.get(key):
+            text.append(f"\n  support: {a.support[key]}", style="italic")
+        if a.direction.get(key):
+            text.append(f"\n  direction of bias: {DIRECTION_LABELS[a.direction[key]]}")
         return text
 
     def _refresh_report_question(self) -> None:
@@ -746,6 +777,28 @@ class AssessmentScreen(Screen[None]):
 
         self.app.push_screen(OverrideDialog(title, s.proposed(key), s.override(key), note), done)
 
+    def action_support(self, which: str) -> None:
+        """The support of the domain's judgement and its predicted direction of bias (b), or
+        the overall direction (B), as the RoB 2 form has them."""
+        key = OVERALL if which == "overall" else self.domain_id
+        s = self.session
+        if s.is_complete:
+            self.notify("this assessment is marked complete: c reopens it", severity="warning")
+            return
+        if key == OVERALL:
+            title, support = "Overall: predicted direction of bias", None
+        else:
+            title = f"D{key} {s.domain(key).name}: support and direction of bias"
+            support = s.assessment.support.get(key, "")
+
+        def done(choice: SupportChoice | None) -> None:
+            if choice is not None and self._guard(
+                lambda: s.set_support_and_direction(key, choice.support, choice.direction)
+            ):
+                self._refresh_judgements()
+
+        self.app.push_screen(SupportDialog(title, support, s.assessment.direction.get(key)), done)
+
     def action_summary(self) -> None:
         self.app.push_screen(TextDialog(f"Domain {self.domain_id} summary", self.domain_summary()))
 
@@ -773,6 +826,7 @@ class AssessmentScreen(Screen[None]):
             text.append("   your judgement: ")
             text.append_text(badge(override.judgement))
             text.append(f"\nReason: {override.reason}")
+        text.append_text(self._form_fields(self.domain_id))
         return text
 
     def action_effect(self) -> None:

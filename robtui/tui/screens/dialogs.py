@@ -15,6 +15,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
+from robtui.core.model import DIRECTION_LABELS
 from robtui.tui.keys import RESPONSE_NAMES
 from robtui.tui.palette import badge
 
@@ -106,6 +107,66 @@ class OverrideDialog(ModalScreen[OverrideChoice | None]):
         self.dismiss(OverrideChoice(None))
 
     @on(Button.Pressed, "#override-cancel")
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+@dataclass(frozen=True)
+class SupportChoice:
+    support: str | None  # None: the overall (no support box on the form)
+    direction: str | None  # None: no direction given
+
+
+class SupportDialog(ModalScreen[SupportChoice | None]):
+    """The RoB 2 form's support of a domain judgement and the optional direction of bias."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
+    NONE = "none"
+
+    def __init__(self, title: str, support: str | None, direction: str | None) -> None:
+        super().__init__()
+        self.title_text = title
+        self.support = support
+        self.direction = direction
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(Text(self.title_text, style="bold"))
+            if self.support is not None:
+                yield Input(
+                    value=self.support,
+                    placeholder="Support for the judgement (free text, optional)",
+                    id="support-text",
+                )
+            yield Static(
+                "Predicted direction of bias (optional): up/down, enter saves, esc cancels.",
+                classes="dialog-note",
+            )
+            options = [Option("not given", id=self.NONE)]
+            options += [Option(label, id=code) for code, label in DIRECTION_LABELS.items()]
+            yield OptionList(*options, id="direction-options")
+
+    def on_mount(self) -> None:
+        options = self.query_one("#direction-options", OptionList)
+        ids = [self.NONE, *DIRECTION_LABELS]
+        options.highlighted = ids.index(self.direction) if self.direction in ids else 0
+        if self.support is not None:
+            self.query_one("#support-text", Input).focus()
+        else:
+            options.focus()
+
+    @on(Input.Submitted, "#support-text")
+    def _to_direction(self) -> None:
+        self.query_one("#direction-options", OptionList).focus()
+
+    @on(OptionList.OptionSelected, "#direction-options")
+    def _save(self, event: OptionList.OptionSelected) -> None:
+        direction = None if event.option.id == self.NONE else event.option.id
+        support = None
+        if self.support is not None:
+            support = self.query_one("#support-text", Input).value
+        self.dismiss(SupportChoice(support, direction))
+
     def action_cancel(self) -> None:
         self.dismiss(None)
 

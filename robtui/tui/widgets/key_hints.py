@@ -52,7 +52,7 @@ class KeyHints(Static):
             ]
         else:
             parts = [hint(k, w, a) for k, w, a in self._shown_bindings(("screen", "app"))]
-        return Content("  ").join(parts)
+        return Content(" ").join(parts)
 
     def _shown_bindings(self, namespaces: Sequence[str]) -> list[tuple[str, str, str]]:
         found: list[tuple[str, str, str]] = []
