@@ -81,11 +81,11 @@ def review(tmp_path, capsys) -> Path:
     report.write_text("Methods. Schools were randomised in steps by a computer list.\n", "utf-8")
     assert run(capsys, "init", root, "--title", "Own set", "--lead", "lee",
                "--reviewer", "ana", "--reviewer", "ben")[0] == 0
-    assert run(capsys, "result", "add", root, "--id", "R1", "--outcome", "Absence")[0] == 0
-    assert run(capsys, "study", "add", root, "--id", "P1", "--label", "Parallel one",
+    assert run(capsys, "result", "add", root, "--result", "R1", "--outcome", "Absence")[0] == 0
+    assert run(capsys, "study", "add", root, "--study", "P1", "--label", "Parallel one",
                "--report", report)[0] == 0
     write_extra_set(root)
-    code, out, err = run(capsys, "study", "add", root, "--id", "W1", "--label", "Wedge one",
+    code, out, err = run(capsys, "study", "add", root, "--study", "W1", "--label", "Wedge one",
                          "--report", report, "--design", "stepped-wedge")
     assert code == 0, err
     assert "design stepped-wedge" in out
@@ -180,7 +180,7 @@ def test_records_are_checked_against_their_studys_set(review, capsys):
 
 
 def test_a_design_no_set_declares_is_refused_with_the_choices(review, capsys):
-    code, _, err = run(capsys, "study", "add", review, "--id", "X1", "--label", "X",
+    code, _, err = run(capsys, "study", "add", review, "--study", "X1", "--label", "X",
                        "--design", "factorial")
     assert code == 2
     assert "no question set or design named 'factorial'" in err
