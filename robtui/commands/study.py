@@ -132,8 +132,6 @@ def run_report(args: argparse.Namespace) -> int:
 
 def run_list(args: argparse.Namespace) -> int:
     from robtui.core.model import REPORT_KINDS
-    from robtui.store.review_folder import ReviewFolder
-
     from robtui.workspace import Workspace
 
     ws = Workspace.open(args.folder)

@@ -54,7 +54,20 @@ KEY_MAP: tuple[KeyHelp, ...] = (
         "(best first, then spread over the report's sections)",
     ),
     KeyHelp(
-        "assessment", "q", "attach the report's highlighted sentence as a quote (again: detach)"
+        "assessment",
+        "q",
+        "attach the report's highlighted sentence, or the passage marked with v, as a quote "
+        "(again: detach)",
+    ),
+    KeyHelp(
+        "assessment",
+        "v",
+        "mark a passage across sentences from the highlighted one (move to its end, then q)",
+    ),
+    KeyHelp(
+        "assessment",
+        "Q",
+        "quote part of the highlighted sentence or passage (shift+arrows select, enter quotes)",
     ),
     KeyHelp(
         "assessment",
@@ -73,7 +86,7 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "g", "show / hide the focused question's guidance"),
     KeyHelp(
         "assessment",
-        "b / B",
+        "r / R",
         "support for the domain's judgement and its predicted direction of bias / the overall "
         "direction of bias (optional, as on the RoB 2 form)",
     ),

@@ -73,12 +73,12 @@ async def test_support_and_direction_of_bias_are_saved(demo_dir):
     app = Workbench(demo_dir, "tess")
     async with app.run_test(size=SIZE) as pilot:
         screen = await open_selected(pilot)
-        await pilot.press("b")
+        await pilot.press("r")
         assert isinstance(app.screen, SupportDialog)
         await pilot.press(*"groups alike", "enter", *["down"] * 4, "enter")  # NA is first
         await pilot.pause()
         assert "direction of bias: Towards null" in _reasons(screen)
-        await pilot.press("B", *["down"] * 6, "enter")
+        await pilot.press("R", *["down"] * 6, "enter")
         await pilot.pause()
         a = screen.session.assessment
     saved = ReviewFolder.open(demo_dir).load_assessment("tess", a.study_id, a.result_id)
@@ -104,7 +104,7 @@ async def test_a_whole_assessment_at_80x24_without_leaving_the_workbench(demo_di
         hints = screen.query_one(KeyHints)
         lines = hint_lines(hints)
         assert len(lines) <= hints.size.height  # every hint in view, none cut off
-        for needed in ("j/k", "1-5", "tab", "]/[", "q ", "e ", "o/O", "b/B", "c ", "esc", "?"):
+        for needed in ("j/k", "1-5", "tab", "]/[", "q ", "e ", "o/O", "r/R", "c ", "esc", "?"):
             assert needed in " ".join(lines), needed
         assert screen.has_class("-narrow")
         report = screen.query_one("#report-panel")
@@ -122,3 +122,32 @@ async def test_a_whole_assessment_at_80x24_without_leaving_the_workbench(demo_di
         await pilot.pause()
         assert screen.session.is_complete
         assert "✓ complete" in _reasons(screen)
+
+
+async def test_a_passage_across_sentences_and_part_of_a_sentence_are_quoted(demo_dir):
+    from robtui.tui.screens.dialogs import QuotePartDialog
+
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_selected(pilot)
+        view = screen.query_one("#report", ReportView)
+        await pilot.press("tab")  # into the report
+        first = view.highlighted_sentence
+        await pilot.press("v", "down", "down")  # three sentences (headings are skipped)
+        last = view.highlighted_sentence
+        assert view.passage == (first, last) and last.index > first.index
+        await pilot.press("q")
+        qid = screen.question_id
+        [quote] = screen.session.answer(qid).quotes
+        text = screen.current.document.text
+        assert (quote.start, quote.end) == (first.start, last.end)
+        assert quote.text == text[first.start : last.end] and view.passage_start is None
+        await pilot.press("Q")  # part of the highlighted sentence
+        assert isinstance(app.screen, QuotePartDialog)
+        await pilot.press("shift+right", "shift+right", "shift+right", "shift+right", "enter")
+        await pilot.pause()
+        quotes = screen.session.answer(qid).quotes
+        assert len(quotes) == 2
+        part = quotes[1]
+        assert part.start == last.start and part.end == last.start + 4
+        assert part.text == text[last.start : last.start + 4]

@@ -30,6 +30,7 @@ from robtui.tui.screens.dialogs import (
     ListDialog,
     OverrideChoice,
     OverrideDialog,
+    QuotePartDialog,
     SupportChoice,
     SupportDialog,
     TextDialog,
@@ -78,14 +79,16 @@ class AssessmentScreen(Screen[None]):
         Binding("right_square_bracket", "suggestion(1)", "Next sugg.", show=False),
         Binding("left_square_bracket", "suggestion(-1)", "Prev sugg.", show=False),
         Binding("q", "quote", "Quote", show=False),
+        Binding("v", "passage", "Mark a passage", show=False),
+        Binding("Q", "quote_part", "Quote part", show=False),
         Binding("x", "dismiss_suggestion", "Dismiss", show=False),
         Binding("e", "justify", "Justify", show=False),
         Binding("g", "guidance", "Guidance", show=False),
         Binding("slash", "search", "Search", show=False),
         Binding("o", "override('domain')", "Override", show=False),
         Binding("O", "override('overall')", "Override overall", show=False),
-        Binding("b", "support('domain')", "Support, direction of bias", show=False),
-        Binding("B", "support('overall')", "Overall direction of bias", show=False),
+        Binding("r", "support('domain')", "Support, direction of bias", show=False),
+        Binding("R", "support('overall')", "Overall direction of bias", show=False),
         Binding("s", "summary", "Summary", show=False),
         Binding("t", "effect", "Effect", show=False),
         Binding("c", "complete", "Complete", show=False),
@@ -120,19 +123,20 @@ class AssessmentScreen(Screen[None]):
             ("tab", "questions" if self.has_class("-reading") else "report", "switch_pane"),
             ("]/[", "suggestion", "suggestion(1)"),
             ("q", "quote", "quote"),
+            ("v/Q", "passage", "passage"),
             ("x", "dismiss", "dismiss_suggestion"),
             ("e", "justify", "justify"),
             ("g", "guidance", "guidance"),
             ("/", "search", "search"),
             ("o/O", "override", "override('domain')"),
-            ("b/B", "support", "support('domain')"),
+            ("r/R", "support", "support('domain')"),
             ("s", "summary", "summary"),
             ("c", "complete", "complete"),
         ]
         if len(self.loaded) > 1:
             hints.append(("d", "document", "next_document"))
         hints.append(("w", "planned", "planned"))
-        hints += [("esc", "overview", "back"), ("?", "help", "app.help"), ("^q", "quit", "app.quit")]
+        hints += [("esc", "overview", "back"), ("?", "help", "app.help")]  # ^q: overview, help
         return hints
 
     # -- layout ------------------------------------------------------------------------
@@ -495,10 +499,12 @@ class AssessmentScreen(Screen[None]):
         if answer:
             sha = loaded.document.sha256
             for quote in answer.quotes:
-                if quote.document_sha256 == sha:
-                    sentence = loaded.document.sentence_at(quote.start)
-                    if sentence is not None:
-                        quoted.add(sentence.index)
+                if quote.document_sha256 == sha:  # every sentence a passage touches
+                    quoted.update(
+                        s.index
+                        for s in loaded.document.sentences
+                        if s.start < quote.end and s.end > quote.start
+                    )
         view.mark(self.suggestions_for(qid), quoted)
 
     # -- events ------------------------------------------------------------------------
@@ -654,28 +660,88 @@ class AssessmentScreen(Screen[None]):
             )
         )
 
+    def _span_to_quote(self):
+        """The passage being marked (v), else the highlighted sentence: (first, last) or None."""
+        view = self.query_one("#report", ReportView)
+        if view.passage is not None:
+            return view.passage
+        sentence = view.highlighted_sentence
+        return None if sentence is None else (sentence, sentence)
+
     def action_quote(self) -> None:
+        """Attach the highlighted sentence, or the passage marked with v, as a quote."""
+        span = self._span_to_quote()
+        if span is None:
+            self._no_sentence()
+            return
+        self._attach_quote(span[0].start, span[1].end, span[0].page)
+
+    def action_passage(self) -> None:
+        """Start marking a passage across sentences at the highlighted one (v again: drop)."""
+        view = self.query_one("#report", ReportView)
+        if view.highlighted_sentence is None and view.passage_start is None:
+            self._no_sentence()
+            return
+        if view.start_passage():
+            self.query_one("#candidate-note", Static).update(
+                Text("Marking a passage: move to its last sentence, then q quotes it "
+                     "(Q: part of it; v: drop it).", style="bold")
+            )
+        else:
+            self.query_one("#candidate-note", Static).update(Text(CANDIDATE_NOTE, style="italic"))
+
+    def action_quote_part(self) -> None:
+        """Choose the words to quote inside the highlighted sentence or the marked passage."""
+        span = self._span_to_quote()
+        loaded = self.current
+        if span is None or loaded is None or loaded.document is None:
+            self._no_sentence()
+            return
+        start, end = span[0].start, span[1].end
+        text = loaded.document.text[start:end]
+        page = span[0].page
+
+        def chosen(picked: tuple[int, int] | None) -> None:
+            if picked is not None:
+                first, last = picked
+                while first < last and text[first].isspace():
+                    first += 1
+                while last > first and text[last - 1].isspace():
+                    last -= 1
+                if last > first:
+                    self._attach_quote(start + first, start + last, page)
+
+        self.app.push_screen(QuotePartDialog(f"Quote part of it for {self.question_id}", text),
+                             chosen)
+
+    def _no_sentence(self) -> None:
+        self.notify(
+            "highlight a sentence of the report first (tab moves to the report)",
+            severity="warning",
+        )
+
+    def _attach_quote(self, start: int, end: int, page: int | None) -> None:
+        """Attach document text [start, end) to the focused question (again: detach it)."""
         qid = self.question_id
         loaded = self.current
-        sentence = self.query_one("#report", ReportView).highlighted_sentence
-        if qid is None or loaded is None or loaded.document is None or sentence is None:
-            self.notify(
-                "highlight a sentence of the report first (tab moves to the report)",
-                severity="warning",
-            )
+        if qid is None or loaded is None or loaded.document is None:
+            self._no_sentence()
             return
         quote = Quote(
             document_sha256=loaded.document.sha256,
-            start=sentence.start,
-            end=sentence.end,
-            page=sentence.page,
-            text=sentence.text,
+            start=start,
+            end=end,
+            page=page,
+            text=loaded.document.text[start:end],
         )
         added: list[bool] = []
         if self._guard(lambda: added.append(self.session.toggle_quote(qid, quote))):
+            view = self.query_one("#report", ReportView)
+            if view.passage_start is not None:
+                self.action_passage()  # the passage is quoted: stop marking
             self._refresh_question_lines()
             self._mark_report()
-            where = f" (p.{sentence.page})" if sentence.page else ""
+            where = f" (p.{page})" if page else ""
             self.notify(
                 f"quote {'attached to' if added[0] else 'removed from'} {qid}{where}", timeout=2
             )
@@ -778,8 +844,8 @@ class AssessmentScreen(Screen[None]):
         self.app.push_screen(OverrideDialog(title, s.proposed(key), s.override(key), note), done)
 
     def action_support(self, which: str) -> None:
-        """The support of the domain's judgement and its predicted direction of bias (b), or
-        the overall direction (B), as the RoB 2 form has them."""
+        """The support of the domain's judgement and its predicted direction of bias (r), or
+        the overall direction (R), as the RoB 2 form has them."""
         key = OVERALL if which == "overall" else self.domain_id
         s = self.session
         if s.is_complete:

@@ -12,7 +12,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, OptionList, Static
+from textual.widgets import Button, Input, Label, OptionList, Static, TextArea
 from textual.widgets.option_list import Option
 
 from robtui.core.model import DIRECTION_LABELS
@@ -166,6 +166,52 @@ class SupportDialog(ModalScreen[SupportChoice | None]):
         if self.support is not None:
             support = self.query_one("#support-text", Input).value
         self.dismiss(SupportChoice(support, direction))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class QuotePartDialog(ModalScreen[tuple[int, int] | None]):
+    """Select part of a sentence or passage to quote: shift+arrows (or the mouse) select,
+    enter takes the selection (all of it when nothing is selected), escape cancels. Returns
+    offsets into the text shown."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel", "Cancel"),
+        Binding("enter", "take", "Quote the selection", priority=True),
+    ]
+
+    def __init__(self, title: str, text: str) -> None:
+        super().__init__()
+        self.title_text = title
+        self.text = text
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog wide"):
+            yield Label(Text(self.title_text, style="bold"))
+            yield Static(
+                "Select the words to quote with shift+arrows (shift+ctrl+arrows by word) or the "
+                "mouse; enter quotes the selection (all when none), esc cancels.",
+                classes="dialog-note",
+            )
+            yield TextArea(
+                self.text, read_only=True, soft_wrap=True, show_line_numbers=False,
+                id="quote-part", classes="dialog-list",
+            )
+
+    def on_mount(self) -> None:
+        self.query_one("#quote-part", TextArea).focus()
+
+    def action_take(self) -> None:
+        area = self.query_one("#quote-part", TextArea)
+        start, end = sorted(area.selection)
+        if start == end:
+            self.dismiss((0, len(self.text)))
+            return
+        document = area.document
+        self.dismiss(
+            (document.get_index_from_location(start), document.get_index_from_location(end))
+        )
 
     def action_cancel(self) -> None:
         self.dismiss(None)

@@ -25,7 +25,7 @@ INPUT_KEYS: tuple[tuple[str, str], ...] = (("enter", "done"), ("esc", "leave the
 
 def hint(key: str, what: str, action: str | None = None) -> Content:
     """One 'key what' pair; clicking it runs ``action`` when given."""
-    text = Content.assemble((f" {key} ", "bold reverse"), (f" {what}", ""))
+    text = Content.assemble((f" {key} ", "bold reverse"), (what, ""))
     return text.stylize(f"@click={action}") if action else text
 
 

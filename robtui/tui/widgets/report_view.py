@@ -19,6 +19,7 @@ from robtui.reading.document import Document, Sentence
 
 SUGGESTION_STYLE = "bold #111111 on #f2c078"
 QUOTE_MARK = "❝"
+PASSAGE_MARK = "┃"  # a sentence inside the passage being marked (v ... q)
 HEADING_STYLE = "bold #6fa8dc"
 CHUNK = 150  # sentences added per step when a long report is laid out
 GUTTER = 7  # page number column, then the sentence
@@ -40,6 +41,8 @@ class ReportView(OptionList):
         self._marks: dict[int, tuple[int, float]] = {}  # sentence index -> (rank, score)
         self._quoted: set[int] = set()
         self._sentences: dict[int, Sentence] = {}
+        self.passage_start: int | None = None  # sentence a passage being marked starts at (v)
+        self._in_passage: set[int] = set()
         self._built_width = self._width = 0
         self._generation = 0
         self._all_options: list[Option] = []
@@ -47,6 +50,7 @@ class ReportView(OptionList):
     # -- content -----------------------------------------------------------------------
     def show_document(self, document: Document) -> None:
         self.document = document
+        self.passage_start, self._in_passage = None, set()
         self._marks = {}
         self._quoted = set()
         self._sentences = {s.index: s for s in document.sentences}
@@ -114,6 +118,8 @@ class ReportView(OptionList):
             marks.append(" ")
         if sentence.index in self._quoted:
             marks.append(f"{QUOTE_MARK} ", style="bold")
+        if sentence.index in self._in_passage:
+            marks.append(f"{PASSAGE_MARK} ", style="bold reverse")
         heading = sentence.block == "heading"
         if heading:
             marks.append("§ ", style=HEADING_STYLE)
@@ -152,7 +158,38 @@ class ReportView(OptionList):
         changed = set(self._marks) ^ set(new_marks) | (self._quoted ^ new_quoted)
         changed |= {i for i in new_marks if self._marks.get(i) != new_marks[i]}
         self._marks, self._quoted = new_marks, new_quoted
-        for sentence_index in changed:
+        self._redraw(changed)
+
+    # -- a passage across sentences (v marks where it starts) ----------------------------
+    def start_passage(self) -> bool:
+        """Start a passage at the highlighted sentence, or drop the one being marked; True
+        when a passage is now being marked."""
+        here = self.highlighted_sentence
+        self.passage_start = None if self.passage_start is not None or here is None else here.index
+        self._show_passage()
+        return self.passage_start is not None
+
+    @property
+    def passage(self) -> tuple[Sentence, Sentence] | None:
+        """First and last sentence of the passage being marked (cursor and anchor, ordered)."""
+        here = self.highlighted_sentence
+        if self.passage_start is None or here is None or self.passage_start not in self._sentences:
+            return None
+        first, last = sorted((self.passage_start, here.index))
+        return self._sentences[first], self._sentences[last]
+
+    def _show_passage(self) -> None:
+        span = self.passage
+        inside = set(range(span[0].index, span[1].index + 1)) if span else set()
+        changed, self._in_passage = inside ^ self._in_passage, inside
+        self._redraw(changed)
+
+    def on_option_list_option_highlighted(self) -> None:
+        if self.passage_start is not None:
+            self._show_passage()
+
+    def _redraw(self, sentence_indexes: Iterable[int]) -> None:
+        for sentence_index in sentence_indexes:
             option_index = self._index_of.get(sentence_index)
             if option_index is None:
                 continue
