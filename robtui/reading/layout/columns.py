@@ -172,7 +172,11 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             if gutter and len(piece) == 1 and _LIST_LABEL.match(prev.text):
                 gutter = False  # a hanging list number or bullet belongs to its item
             # a side note set beside the text in much smaller type, a little apart
-            other_type = gap > 0.5 * size and abs(word.size - prev.size) > 0.15 * size
+            other_type = (
+                gap > 0.5 * size
+                and abs(word.size - prev.size) > 0.15 * size
+                and abs(word.box[3] - prev.box[3]) < 0.25 * size  # not a raised reference
+            )
             if gutter or other_type or gap > SPLIT_EM * max(size, word.size):
                 out.append(_segment(piece, cuts, width, index))
                 piece = [word]
