@@ -109,6 +109,8 @@ _QUOTES = str.maketrans({c: "'" for c in "\u2018\u2019\u201a\u201b\u2032\u00b4`"
                         | {c: "-" for c in "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\ufe63\uff0d"}
                         | {"\u00ad": None, "\u200b": None, "\ufeff": None})
 _LINE_END_HYPHEN = re.compile(r"-[ \t]*\n[ \t]*")
+# pdftotext keeps a soft hyphen (U+00AD) where the typesetter broke a word at a line end.
+_SOFT_LINE_END = re.compile("\u00ad(?=[ \t]*\n)")
 _SPACE = re.compile(r"\s+")
 
 
@@ -116,7 +118,7 @@ def normalise(text: str) -> str:
     """Text as the scoring compares it: NFKC (ligatures spelled out), soft hyphens dropped,
     quotes and dashes unified, hyphens dropped (so a line-end hyphen rejoined either way reads
     the same), combining marks composed, lower case, white space collapsed."""
-    text = unicodedata.normalize("NFKC", text).translate(_QUOTES)
+    text = _SOFT_LINE_END.sub("-", unicodedata.normalize("NFKC", text)).translate(_QUOTES)
     text = _LINE_END_HYPHEN.sub("", text).replace("-", "")
     return _SPACE.sub(" ", text).strip().lower()
 

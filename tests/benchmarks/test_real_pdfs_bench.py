@@ -30,6 +30,12 @@ def test_normalise_spells_out_ligatures_quotes_dashes_hyphens_and_space():
     assert normalise(raw) == "the efficacy of 'gel' was participantbased and fair"
 
 
+def test_a_soft_hyphen_ending_a_line_of_the_reference_rejoins_the_word():
+    # pdftotext keeps U+00AD where the typesetter broke "imbalance" across two lines
+    assert normalise("an imbal\u00ad\nance of flow") == normalise("an imbalance of flow")
+    assert normalise("an imbal\u00ad\nance") == "an imbalance"
+
+
 def test_a_split_word_is_not_the_same_text_as_the_whole_word():
     assert normalise("partici pant") != normalise("participant")
 
