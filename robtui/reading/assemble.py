@@ -6,6 +6,7 @@ hands them here, so sentence splitting and section tracking are the same for all
 
 from __future__ import annotations
 
+import bisect
 import re
 from dataclasses import dataclass, field
 
@@ -33,6 +34,7 @@ class Block:
     # (char_start, char_end, page, box) of each word, offsets into the document text.
     words: list[tuple[int, int, int, Box]] = field(default_factory=list)
     section: str | None = None  # set for text outside the article's flow (side notes)
+    word_ends: list[int] | None = field(default=None, repr=False)  # made on first use
 
 
 def looks_like_heading(line: str) -> bool:
@@ -177,8 +179,13 @@ def _locate(block: Block, a: int, b: int) -> tuple[int | None, Box | None]:
     page = None
     x0 = top = float("inf")
     x1 = bottom = float("-inf")
-    for ws, we, wpage, (bx0, btop, bx1, bbottom) in block.words:
-        if we <= a or ws >= b:
+    if block.word_ends is None:  # words come in text order: find the first one by bisection
+        block.word_ends = [w[1] for w in block.words]
+    first = bisect.bisect_right(block.word_ends, a)
+    for ws, we, wpage, (bx0, btop, bx1, bbottom) in block.words[first:]:
+        if ws >= b:
+            break
+        if we <= a:
             continue
         if page is None:
             page = wpage

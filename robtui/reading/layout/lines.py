@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import re
 import statistics
+from collections import Counter
 from functools import cache, cached_property
 import unicodedata
 from dataclasses import dataclass
@@ -93,8 +94,7 @@ class Line:
     @cached_property
     def font(self) -> str:
         """The font most of the line's words are set in."""
-        fonts = [w.font for w in self.words]
-        return max(set(fonts), key=fonts.count)
+        return Counter(w.font for w in self.words).most_common(1)[0][0]  # ties: first
 
 
 def make_line(words: list[Word]) -> Line:
