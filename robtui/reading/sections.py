@@ -229,6 +229,11 @@ _ABSTRACT_PHRASES = frozenset(
         "what this study adds",
     }
 )
+# The first subheading of a structured abstract printed without an "Abstract" heading (common
+# practice, no source); "Background" is left out, since it also opens an introduction.
+_ABSTRACT_OPENERS = frozenset(
+    {"purpose", "objective", "objectives", "aim", "aims", "context", "importance"}
+)
 # Past this many words, a structured abstract is over: the next top-level heading ends it.
 # Our own setting, no source: chosen above the word limits journals usually set for abstracts
 # (that those limits are lower is from memory).
@@ -386,6 +391,8 @@ class SectionTracker:
                 return self.current
             self.in_abstract = False
         joined = None if self.in_abstract else joined_abstract_subheading(title)
+        if joined is None and self._opens_unlabelled_abstract(norm):
+            joined = title  # "Purpose:" first on the page, with no "Abstract" above it
         label = "abstract" if joined else match_heading(title, self.current)
         if label is None:
             # Unknown subheading: stay in the enclosing top-level section.
@@ -400,6 +407,15 @@ class SectionTracker:
         self.current = label
         self.seen_top.add(top_section(label))
         return label
+
+    def _opens_unlabelled_abstract(self, norm: str) -> bool:
+        """A structured abstract's first subheading before any section: the abstract."""
+        return (
+            not self.in_abstract
+            and not self.seen_top
+            and top_section(self.current) in ("front", "title")
+            and norm in _ABSTRACT_OPENERS
+        )
 
     def run_in(self, label: str) -> None:
         """A run-in heading opens section ``label``."""

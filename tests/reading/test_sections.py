@@ -160,3 +160,17 @@ def test_title_and_abstract_sections() -> None:
     assert doc.sentences[0].section == "title"
     assert next(s for s in doc.sentences if s.text.startswith("Background:")).section == "abstract"
     assert next(s for s in doc.sentences if s.text == "People suffer.").section == "introduction"
+
+
+def test_a_structured_abstract_without_its_heading_opens_at_its_first_subheading() -> None:
+    tracker = SectionTracker()
+    assert tracker.heading("Purpose:") == "abstract"
+    for sub in ("Patients and Methods:", "Results:", "Conclusion:"):
+        assert tracker.heading(sub) == "abstract"
+    assert tracker.heading("Introduction") == "introduction"
+    assert tracker.heading("Methods") == "methods"
+    # once a section has been seen, the same words are a subheading, not a new abstract
+    assert tracker.heading("Objectives") != "abstract"
+    # "Background" first on a page opens an introduction, as before
+    other = SectionTracker()
+    assert other.heading("Background") == "introduction"
