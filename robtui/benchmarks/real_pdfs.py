@@ -383,6 +383,19 @@ def pooled(pairs: Sequence[Pair]) -> dict:
     out["flagged_answerable"] = [sum(p.flagged for p in answerable), len(answerable)]
     unanswerable = [p for p in pairs if not p.answerable]
     out["flagged_unanswerable"] = [sum(p.flagged for p in unanswerable), len(unanswerable)]
+    # the flag with a cut chosen on the real PDFs themselves, each article's by Youden's J on
+    # the other articles' pairs (as training chooses it on the corpus)
+    from robtui.evidence.training.train import youden_threshold
+
+    held_out = []
+    for name in dict.fromkeys(p.article for p in pairs):
+        rest = [p for p in pairs if p.article != name]
+        cut = youden_threshold([p.top_score for p in rest], [p.answerable for p in rest])
+        held_out += [(p, p.top_score < cut) for p in pairs if p.article == name]
+    out["loao_flagged_correct_first"] = [sum(f for p, f in held_out if p.answerable and p.rank == 1),
+                                         len(first_right)]
+    out["loao_flagged_unanswerable"] = [sum(f for p, f in held_out if not p.answerable),
+                                        len(unanswerable)]
     out["top3_reference_pairs"] = sum(p.top3_reference > 0 for p in pairs)
     out["top3_table_pairs"] = sum(p.top3_table > 0 for p in pairs)
     return out
@@ -414,6 +427,9 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
                                     "flagged_unanswerable"))
     print(f"  'no sentence found' flag: {c[0]}/{c[1]} correct first suggestions, "
           f"{a[0]}/{a[1]} answerable pairs, {u[0]}/{u[1]} unanswerable pairs")
+    c, u = figures["loao_flagged_correct_first"], figures["loao_flagged_unanswerable"]
+    print(f"  the flag with a cut chosen on the other articles (Youden's J, leave one article out): "
+          f"{c[0]}/{c[1]} correct first suggestions, {u[0]}/{u[1]} unanswerable pairs")
     print(f"  pairs with a reference among the top 3: {figures['top3_reference_pairs']}; "
           f"with a table cell: {figures['top3_table_pairs']} (reader's label or the "
           "independent check)")

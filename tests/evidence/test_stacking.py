@@ -43,7 +43,8 @@ def tiny():
     mapping = load_mapping(CORPUS)
     docs = labelled_documents(load_corpus(CORPUS)[:4], mapping, "txt")
     keys, texts = list(mapping.questions), question_texts()
-    settings = Settings(C=1.0, calibration_folds=2, item_folds=2)
+    # no simulated reader faults: the training rows must be the features `suggest` computes
+    settings = Settings(C=1.0, calibration_folds=2, item_folds=2, section_dropout=0.0)
     prep = prepare(docs, keys, settings, texts)
     weights = fit_weights(docs, keys, settings, texts, prepared=prep, item_map=mapping.questions)
     return weights, docs, prep, keys, texts, mapping
