@@ -14,8 +14,11 @@ from collections.abc import Sequence
 
 from robtui import __version__
 from robtui.errors import RobtuiError
+from robtui.terminal import SafeStream
 
 EXIT_USAGE = 2
+# Commands that hand the terminal to the workbench (Textual draws with control sequences).
+_FULL_SCREEN = frozenset({"open", "demo"})
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -44,6 +47,18 @@ def main(argv: Sequence[str] | None = None) -> int:
     if not getattr(args, "func", None):
         parser.print_help()
         return EXIT_USAGE
+    if getattr(args, "command", None) in _FULL_SCREEN:
+        return _run(args)
+    # Every line a command prints may hold user text: control characters are removed.
+    streams = sys.stdout, sys.stderr
+    sys.stdout, sys.stderr = SafeStream(sys.stdout), SafeStream(sys.stderr)
+    try:
+        return _run(args)
+    finally:
+        sys.stdout, sys.stderr = streams
+
+
+def _run(args: argparse.Namespace) -> int:
     try:
         return int(args.func(args) or 0)
     except RobtuiError as error:

@@ -25,5 +25,9 @@ class ReadingError(RobtuiError):
     """A report file could not be turned into a document (named file, named problem)."""
 
 
+class ReaderBugError(ReadingError):
+    """Reading failed because of a bug in robtui's own code, not because of the file."""
+
+
 class ModelFileError(RobtuiError):
     """The evidence ranker's weights are missing or damaged."""

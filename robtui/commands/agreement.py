@@ -8,7 +8,7 @@ from pathlib import Path
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
-    from robtui.commands._common import add_reviewer_options
+    from robtui.commands._common import add_asking, add_reviewer_options
 
     parser = subparsers.add_parser(
         "agreement",
@@ -24,6 +24,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     add_reviewer_options(parser)
     parser.add_argument("--result", help="only this result")
     parser.add_argument("--json", action="store_true", help="print JSON")
+    add_asking(parser)
     parser.set_defaults(func=run)
 
 
@@ -77,10 +78,10 @@ def _tables(stats: dict, qset, notes: list[str]) -> list[str]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace, warn
+    from robtui.commands._common import open_workspace_as_lead, warn
     from robtui.core.comparison import review_agreement
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui agreement")
     qset = ws.sets.combined()  # names of every domain in use (a review may mix designs)
     reviewers = ws.choose_reviewers(args.reviewers)
     pairs, problems = ws.pairs(reviewers, result=args.result)

@@ -14,6 +14,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from robtui.commands._common import add_asking
 from robtui.commands._parsing import IntermixedParser
 from robtui.core.model import DIRECTION_LABELS
 from robtui.core.questions import EFFECTS
@@ -96,6 +97,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="list the questions asked on the current path, with their text and answers",
     )
     parser.add_argument("--json", action="store_true", help="print the assessment as JSON")
+    add_asking(parser, unblind=True)
     parser.set_defaults(func=run)
     parser.__class__ = IntermixedParser
 
@@ -249,20 +251,44 @@ def run(args: argparse.Namespace) -> int:
     if not args.add_reviewer:
         folder.refuse_unlisted_reviewer(args.reviewer)
     qset = ws.question_set_for(args.study)
-    stored = ws.load_assessment(args.reviewer, args.study, args.result)
-    a = stored or assessing.new_assessment(
-        folder.review, args.study, args.result, args.reviewer, qset
-    )
-    a = assessing.recompute(a, qset)
+    rules = ws.rules_safely()[0]
+    asks_change = any(
+        (args.answers, args.why, args.quote, args.remove_quote, args.override),
+    ) or any((args.clear_override, args.effect, args.complete, args.reopen))
+    _check_asker(ws, args, changing=asks_change)
+    found: list = []
+    shown: list = []
     notes: list[str] = []
-    changed = apply_changes(a, qset, folder, args, notes)
-    if changed.model_dump(exclude={"updated"}) != a.model_dump(exclude={"updated"}):
-        if add_reviewer:
-            folder.add_reviewer(args.reviewer)
+
+    def change(stored):
+        # Runs under the review's lock on the file as it is now: another process's answers,
+        # saved while this command started, are the ones these changes are applied to.
+        if stored is not None:  # made with its study's question set, as it is now
+            path = folder.assessment_path(args.reviewer, args.study, args.result)
+            ws.require_usable(stored, path)
+        found.append(stored)
+        notes.clear()
+        a = stored or assessing.new_assessment(
+            folder.review, args.study, args.result, args.reviewer, qset
+        )
+        a = assessing.recompute(a, qset)
+        changed = apply_changes(a, qset, folder, args, notes)
+        if changed.model_dump(exclude={"updated"}) == a.model_dump(exclude={"updated"}):
+            shown.append(changed)
+            return None  # nothing to write
         # Record the answering-rules version the change was made under (None: unreadable).
-        changed = stamp_rules_version(changed, ws.rules_safely()[0])
-        path = folder.save_assessment(changed)
-        saved = f"saved {path}"
+        return stamp_rules_version(changed, rules)
+
+    with folder.locked():
+        if add_reviewer and asks_change:
+            folder.add_reviewer(args.reviewer)
+        changed, written = folder.update_assessment(
+            args.reviewer, args.study, args.result, change
+        )
+    stored = found[-1]
+    changed = changed if written else shown[-1]
+    if written:
+        saved = f"saved {folder.assessment_path(args.reviewer, args.study, args.result)}"
     else:
         saved = "nothing changed" if stored else "nothing saved yet (no answers given)"
     if args.json:
@@ -279,3 +305,24 @@ def run(args: argparse.Namespace) -> int:
     for note in missed:
         print(f"robtui: {note}", file=sys.stderr)
     return 1 if missed else 0
+
+
+def _check_asker(ws, args: argparse.Namespace, *, changing: bool) -> None:
+    """Blinding: acting on another reviewer's assessment is refused unless the lead asks,
+    with --unblind (robtui.core.blinding); without --as, the reviewer named is the asker."""
+    from robtui.commands._common import asker
+    from robtui.core.blinding import require_asker, require_may_use
+
+    name = asker(args)
+    if name is None or name == args.reviewer:
+        return
+    require_asker(name, ws.review, "robtui assess")
+    existing = ws.folder.load_assessment(args.reviewer, args.study, args.result)
+    require_may_use(
+        name,
+        args.reviewer,
+        ws.review,
+        complete=existing is not None and existing.status == "complete",
+        unblind=getattr(args, "unblind", False),
+        changing=changing,
+    )

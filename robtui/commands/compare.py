@@ -10,7 +10,12 @@ import argparse
 import json
 from pathlib import Path
 
-from robtui.commands._common import add_reviewer_options, open_workspace, warn
+from robtui.commands._common import (
+    add_asking,
+    add_reviewer_options,
+    open_workspace_as_lead,
+    warn,
+)
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
@@ -33,6 +38,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="show agreed answers in full too (default: one line each)",
     )
     parser.add_argument("--json", action="store_true", help="print JSON")
+    add_asking(parser)
     parser.set_defaults(func=run)
 
 
@@ -102,7 +108,7 @@ def format_comparison(comparison, all_questions: bool = False) -> list[str]:
 def run(args: argparse.Namespace) -> int:
     from robtui.core.comparison import compare_pair
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui compare")
     reviewers = ws.choose_reviewers(args.reviewers)
     pairs, problems = ws.pairs(reviewers, args.study, args.result)
     comparisons = [compare_pair(p, ws.question_set_for(p.study_id)) for p in pairs if p.comparable]

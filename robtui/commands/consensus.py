@@ -8,12 +8,27 @@ judgements are recomputed by the algorithm from the agreed answers.
 from __future__ import annotations
 
 import argparse
+import functools
 import json
 from pathlib import Path
 
 
+def under_review_lock(run):
+    """Run a command that reads, changes and saves a consensus record under the review's
+    lock, so no other writer comes between its read and its save."""
+
+    @functools.wraps(run)
+    def locked(args: argparse.Namespace) -> int:
+        from robtui.store.review_folder import ReviewFolder
+
+        with ReviewFolder.open(args.folder).locked():
+            return run(args)
+
+    return locked
+
+
 def register(subparsers: argparse._SubParsersAction) -> None:
-    from robtui.commands._common import add_reviewer_options
+    from robtui.commands._common import add_asking, add_reviewer_options
 
     parser = subparsers.add_parser(
         "consensus",
@@ -26,6 +41,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         sub.add_argument("folder", type=Path, metavar="DIR", help="review folder")
         sub.add_argument("--study", required=True, help="study id")
         sub.add_argument("--result", required=True, help="result id")
+        add_asking(sub)
 
     start = actions.add_parser("start", help="start a consensus record from two assessments")
     target(start)
@@ -66,6 +82,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
     listing = actions.add_parser("list", help="list consensus records and their status")
     listing.add_argument("folder", type=Path, metavar="DIR", help="review folder")
+    add_asking(listing)
     listing.set_defaults(func=run_list)
 
 
@@ -123,17 +140,23 @@ def _summary(record, qset, pair=None) -> list[str]:
     return lines
 
 
+@under_review_lock
 def run_start(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace
+    from robtui.commands._common import open_workspace_as_lead
     from robtui.core.consensus import start_consensus
     from robtui.errors import InputError
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     folder, qset = ws.folder, ws.question_set_for(args.study)
     reviewers = ws.choose_reviewers(args.reviewers)
     lead = args.lead or folder.review.lead
     if not lead:
         raise InputError("the review names no lead: give --lead NAME")
+    if folder.review.lead and lead != folder.review.lead:
+        raise InputError(
+            f"--lead {lead}: the review's lead is {folder.review.lead}; only the lead settles "
+            "(change the lead in review.toml if the team has agreed to)"
+        )
     existing = ws.load_consensus(args.study, args.result)
     if existing is not None:
         raise InputError(
@@ -150,12 +173,13 @@ def run_start(args: argparse.Namespace) -> int:
     return 0
 
 
+@under_review_lock
 def run_settle(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace
+    from robtui.commands._common import open_workspace_as_lead
     from robtui.core.consensus import settle
     from robtui.errors import InputError
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     folder, qset = ws.folder, ws.question_set_for(args.study)
     record = _existing(ws, args)
     if args.take is not None:
@@ -176,11 +200,12 @@ def run_settle(args: argparse.Namespace) -> int:
     return 0
 
 
+@under_review_lock
 def run_override(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace
+    from robtui.commands._common import open_workspace_as_lead
     from robtui.core.consensus import set_consensus_override
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     folder, qset = ws.folder, ws.question_set_for(args.study)
     record = _existing(ws, args)
     record = set_consensus_override(record, qset, args.domain, args.judgement, args.reason)
@@ -190,10 +215,10 @@ def run_override(args: argparse.Namespace) -> int:
 
 
 def run_show(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace
+    from robtui.commands._common import open_workspace_as_lead
     from robtui.core.consensus import pending_questions
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     qset = ws.question_set_for(args.study)
     record = _existing(ws, args)
     pair = _pair_of(ws, record)
@@ -209,11 +234,12 @@ def run_show(args: argparse.Namespace) -> int:
     return 0
 
 
+@under_review_lock
 def run_complete(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace
+    from robtui.commands._common import open_workspace_as_lead
     from robtui.core.consensus import complete_consensus
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     folder, qset = ws.folder, ws.question_set_for(args.study)
     record = _existing(ws, args)
     pair = _pair_of(ws, record)
@@ -223,11 +249,12 @@ def run_complete(args: argparse.Namespace) -> int:
     return 0
 
 
+@under_review_lock
 def run_reopen(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace
+    from robtui.commands._common import open_workspace_as_lead
     from robtui.core.consensus import reopen_consensus
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     folder, qset = ws.folder, ws.question_set_for(args.study)
     record = reopen_consensus(_existing(ws, args))
     folder.save_consensus(record)
@@ -236,10 +263,10 @@ def run_reopen(args: argparse.Namespace) -> int:
 
 
 def run_list(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace, warn
+    from robtui.commands._common import open_workspace_as_lead, warn
     from robtui.core.consensus import pending_questions
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui consensus")
     records, problems = ws.folder.consensus_records()
     for r in records:
         pending = pending_questions(r, ws.question_set_for(r.study_id))

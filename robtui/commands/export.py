@@ -10,6 +10,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.commands._common import add_asking
+
 FORMATS = ("html", "svg", "png", "pdf", "csv", "md", "tex")
 
 
@@ -46,15 +48,22 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         default="page",
         help="figure width: a journal page's text block (174 mm, default) or one column (84 mm)",
     )
+    parser.add_argument(
+        "--despite-problems",
+        action="store_true",
+        help="export even when some records cannot be used (unreadable files, or records for "
+        "studies or results review.toml does not list); their rows show as not judged",
+    )
+    add_asking(parser)
     parser.set_defaults(func=run)
 
 
 def run(args: argparse.Namespace) -> int:
-    from robtui.commands._common import open_workspace, warn
+    from robtui.commands._common import open_workspace_as_lead, warn
     from robtui.errors import InputError
     from robtui.export.writers import export_outcome
 
-    ws = open_workspace(args.folder)
+    ws = open_workspace_as_lead(args, "robtui export")
     folder = ws.folder
     if args.result:
         results = [folder.result_or_error(args.result).id]
@@ -72,6 +81,14 @@ def run(args: argparse.Namespace) -> int:
     assessments, problems = ws.assessments()  # each checked against its study's set
     consensus, consensus_problems = folder.consensus_records()
     warn(problems + consensus_problems)
+    if folder.unusable_records and not args.despite_problems:
+        # An export written now would show these records' rows as not judged and replace
+        # earlier, fuller exports: say so instead of writing.
+        raise InputError(
+            f"{len(folder.unusable_records)} record(s) of the review cannot be used (listed "
+            "above): nothing was exported, so earlier exports stay as they are; fix or restore "
+            "those files (or review.toml), or export anyway with --despite-problems"
+        )
     for result_id in results:
         name = args.out if len(results) == 1 or not args.out else f"{args.out}-{result_id}"
         outcome = None
@@ -102,4 +119,4 @@ def run(args: argparse.Namespace) -> int:
                 + " (a suggestion for the panel; our own rule of thumb)"
             )
             warn([f"{result_id}: not judged or not final: {p}" for p in outcome.problems])
-    return 0
+    return 1 if folder.unusable_records else 0

@@ -5,6 +5,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.commands._common import add_asking
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -19,6 +21,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("folder", type=Path, metavar="DIR")
     parser.add_argument("--reviewer", metavar="NAME", help="show one reviewer only")
     parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    add_asking(parser, unblind=True)
     parser.set_defaults(func=run)
 
 
@@ -33,9 +36,10 @@ def run(args: argparse.Namespace) -> int:
     if args.reviewer is not None:
         check_id(args.reviewer, "reviewer")
     rows, problems = review_progress(folder, args.reviewer)
+    rows, hidden = _blinded(folder, rows, args)
     if args.json:
         print(json.dumps(progress_json(folder, rows, problems), indent=2, ensure_ascii=False))
-        return 0
+        return 1 if problems else 0
     print(f"{folder.review.title} ({folder.root})")
     if not rows:
         print(
@@ -45,12 +49,49 @@ def run(args: argparse.Namespace) -> int:
     if rows:
         print(header)
     for r in rows:
-        count = f"{r.answered}/{r.asked}" if r.status != "not started" else "-"
+        blind = r.status == "not started" or r.status.endswith("(blind)")
+        count = "-" if blind else f"{r.answered}/{r.asked}"
         overall = JUDGEMENT_LABELS[r.overall] if r.overall else "-"
         print(f"{r.study:<16} {r.result:<16} {r.reviewer:<12} {r.status:<12} {count:<9} {overall}")
-    done = sum(r.status == "complete" for r in rows)
+    done = sum(r.status.startswith("complete") for r in rows)
     if rows:
         print(f"{done} of {len(rows)} assessments complete")
+    if hidden:
+        print(
+            f"{hidden} row(s) of other reviewers' work show no counts or judgements (blinding): "
+            "each reviewer sees their own (--as NAME); the lead sees complete work, and work "
+            "not yet complete with --unblind"
+        )
     for problem in problems:
         print(f"problem: {problem}")
     return 1 if problems else 0
+
+
+def _blinded(folder, rows, args):
+    """Rows with another reviewer's counts and judgement hidden unless the asker may see them
+    (robtui.core.blinding); the number of rows hidden."""
+    from dataclasses import replace
+
+    from robtui.commands._common import asker
+    from robtui.core.blinding import may_see, require_asker
+    from robtui.errors import InputError
+
+    name = asker(args) or args.reviewer
+    if name is not None and name != args.reviewer:
+        require_asker(name, folder.review, "robtui status")
+    if args.reviewer is not None and name not in (args.reviewer, folder.review.lead):
+        raise InputError(
+            f"status --reviewer {args.reviewer}: only {args.reviewer} or the lead may see that "
+            f"reviewer's progress through robtui (you asked as {name})"
+        )
+    unblind = getattr(args, "unblind", False) and name == folder.review.lead
+    shown, hidden = [], 0
+    for row in rows:
+        visible = row.status in ("not started", "unreadable") or may_see(
+            name, row.reviewer, folder.review, complete=row.status == "complete", unblind=unblind
+        )
+        if not visible:
+            row = replace(row, answered=0, asked=0, overall=None, status=f"{row.status} (blind)")
+            hidden += 1
+        shown.append(row)
+    return shown, hidden

@@ -14,12 +14,15 @@ from robtui.reading.text import blocks_from_text, decode_text_file
 
 _MD_HEADING = re.compile(r"^\s{0,3}#{1,6}\s+(.*?)\s*#*\s*$")
 _MD_TABLE_RULE = re.compile(r"^\s*\|?\s*:?-{3,}:?\s*(\|\s*:?-{3,}:?\s*)*\|?\s*$")
+# Every repeated part is bounded: an unbounded lazy or negated class re-scans the rest of the
+# paragraph from each opening mark, which is quadratic on a line of unclosed marks ("*a *a ...",
+# "![![![..."). Longer spans than these are left as written (the marks stay in the text).
 _MD_INLINE = [
-    (re.compile(r"!\[([^\]]*)\]\([^)]*\)"), r"\1"),
-    (re.compile(r"\[([^\]]+)\]\([^)]*\)"), r"\1"),
-    (re.compile(r"(\*\*|__)(.+?)\1"), r"\2"),
-    (re.compile(r"(?<![\w*])([*_])(?!\s)(.+?)(?<!\s)\1(?![\w*])"), r"\2"),
-    (re.compile(r"`([^`]+)`"), r"\1"),
+    (re.compile(r"!\[([^\]\n]{0,500})\]\([^)\s]{0,2000}\)"), r"\1"),
+    (re.compile(r"\[([^\]\n]{1,500})\]\([^)\s]{0,2000}\)"), r"\1"),
+    (re.compile(r"(\*\*|__)([^\n]{1,500}?)\1"), r"\2"),
+    (re.compile(r"(?<![\w*])([*_])(?!\s)([^\n]{1,500}?)(?<!\s)\1(?![\w*])"), r"\2"),
+    (re.compile(r"`([^`]{1,2000})`"), r"\1"),
 ]
 
 

@@ -183,11 +183,21 @@ def _continues(last: Line, first: Line) -> bool:
 
 
 def _open_error(path: Path, error: Exception) -> ReadingError:
-    name = type(error).__name__
-    if "Password" in name or "Encrypt" in name or "password" in str(error):
+    # pdfplumber wraps pdfminer's errors (PdfminerException(PDFPasswordIncorrect())); PDFium
+    # says "password" in its message.
+    inner = [error, *(a for a in error.args if isinstance(a, BaseException))]
+    names = " ".join(type(e).__name__ for e in inner)
+    if "Password" in names or "Encrypt" in names or "password" in str(error).lower():
         return ReadingError(
-            f"{path}: the PDF is encrypted (password protected); save an unprotected copy first"
+            f"{path}: the PDF is password protected (encrypted), so its text cannot be read; "
+            "open it with its password in a PDF viewer and save or print an unprotected copy, "
+            "then add that copy"
         )
+    from robtui.reading.reader import reader_failure, robtui_frame
+
+    if robtui_frame(error) is not None:  # a bug in robtui's own page code, not a bad file
+        return reader_failure(path, error)
+    name = type(error).__name__
     return ReadingError(
         f"{path}: not a readable PDF ({name}: {error or 'damaged file'}); "
         "it may be corrupt or truncated: download it again"

@@ -5,7 +5,7 @@ from __future__ import annotations
 import hashlib
 from pathlib import Path
 
-from robtui.errors import ReadingError
+from robtui.errors import ReaderBugError, ReadingError
 from robtui.reading.cache import load_cached, store_cached
 from robtui.reading.document import Document
 
@@ -34,6 +34,23 @@ def kind_of(path: Path) -> str:
     return kind
 
 
+# The largest files read (stated in the README). A trial report's text is well under 2 MB and
+# its PDF rarely above 50 MB; text is held several times over while sentences and features are
+# built, so its limit is lower.
+MAX_BYTES = {"pdf": 200 * 1024 * 1024, "txt": 20 * 1024 * 1024, "md": 20 * 1024 * 1024,
+             "html": 40 * 1024 * 1024}
+
+
+def check_size(path: Path, kind: str, size: int) -> None:
+    """ReadingError when a file is larger than robtui reads (the limit is in the message)."""
+    limit = MAX_BYTES[kind]
+    if size > limit:
+        raise ReadingError(
+            f"{path}: {size / 1024 / 1024:.0f} MB is more than robtui reads for a {kind} file "
+            f"({limit // (1024 * 1024)} MB): split it, or keep only the trial report's pages"
+        )
+
+
 def read_document(path: Path, *, use_cache: bool = True) -> Document:
     """Read ``path`` (PDF, text, Markdown, HTML) into a Document.
 
@@ -42,7 +59,10 @@ def read_document(path: Path, *, use_cache: bool = True) -> Document:
     path = Path(path)
     kind = kind_of(path)
     try:
-        data = path.read_bytes()
+        check_size(path, kind, path.stat().st_size)
+        with open(path, "rb") as handle:  # never more than the limit, even if it grows
+            data = handle.read(MAX_BYTES[kind] + 1)
+        check_size(path, kind, len(data))
     except FileNotFoundError:
         raise ReadingError(f"{path}: no such file") from None
     except IsADirectoryError:
@@ -85,8 +105,37 @@ def _parse(path: Path, kind: str, data: bytes, digest: str) -> Document:
         raise
     except RecursionError as error:
         raise ReadingError(f"{path}: the file is too deeply nested to read") from error
+    except MemoryError as error:
+        raise ReadingError(f"{path}: too large to read in the memory available") from error
     except Exception as error:  # a reader bug must not crash the caller; say what happened
-        raise ReadingError(
-            f"{path}: could not be read ({type(error).__name__}: {error}); "
-            "please report this file to the robtui developers"
-        ) from error
+        raise reader_failure(path, error) from error
+
+
+def reader_failure(path: Path, error: BaseException) -> ReadingError:
+    """A ReadingError for an unexpected exception: a bug in robtui's own code (the innermost
+    frame is robtui's) is reported as one, never as a damaged file."""
+    where = robtui_frame(error)
+    if where is not None:
+        return ReaderBugError(
+            f"{path}: robtui could not read this file because of a bug in robtui itself "
+            f"({type(error).__name__} at {where}: {error}); the file is probably fine and was "
+            "left as it is: please report this message with the file to the robtui developers"
+        )
+    return ReadingError(
+        f"{path}: could not be read ({type(error).__name__}: {error}); the file may be "
+        "damaged: check it opens in a viewer, or report it to the robtui developers"
+    )
+
+
+def robtui_frame(error: BaseException) -> str | None:
+    """'robtui/x.py:LINE' when the exception was raised in robtui's own code, else None."""
+    import traceback
+
+    package = Path(__file__).resolve().parents[1]
+    frames = traceback.extract_tb(error.__traceback__)
+    if not frames:
+        return None
+    innermost = Path(frames[-1].filename).resolve()
+    if package in innermost.parents:
+        return f"{innermost.relative_to(package.parent)}:{frames[-1].lineno}"
+    return None

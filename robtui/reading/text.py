@@ -103,29 +103,78 @@ def document_from_text(
 _BINARY_BYTES = set(range(9)) | {11} | set(range(14, 32)) - {27}
 
 
+# Byte-order marks, longest first (a UTF-32 LE mark starts like a UTF-16 LE one).
+_BOMS = (
+    (b"\xff\xfe\x00\x00", "utf-32-le", "UTF-32"),
+    (b"\x00\x00\xfe\xff", "utf-32-be", "UTF-32"),
+    (b"\xef\xbb\xbf", "utf-8", "UTF-8"),
+    (b"\xff\xfe", "utf-16-le", "UTF-16"),
+    (b"\xfe\xff", "utf-16-be", "UTF-16"),
+)
+
+
+def _wide_encoding(sample: bytes) -> str | None:
+    """UTF-16 or UTF-32 without a byte-order mark, told by where the zero bytes fall (text
+    in Latin script has a zero high byte in nearly every code unit)."""
+    n = len(sample) - len(sample) % 4
+    if n < 8:
+        return None
+    zeros = [sum(1 for i in range(k, n, 4) if sample[i] == 0) for k in range(4)]
+    units = n // 4
+    if zeros[1] > 0.7 * units and zeros[2] > 0.7 * units and zeros[3] > 0.7 * units:
+        return "utf-32-le"
+    if zeros[0] > 0.7 * units and zeros[1] > 0.7 * units and zeros[2] > 0.7 * units:
+        return "utf-32-be"
+    odd, even = zeros[1] + zeros[3], zeros[0] + zeros[2]
+    if odd > 0.7 * 2 * units and even < 0.1 * 2 * units:
+        return "utf-16-le"
+    if even > 0.7 * 2 * units and odd < 0.1 * 2 * units:
+        return "utf-16-be"
+    return None
+
+
 def decode_text_file(path: Path, data: bytes) -> tuple[str, list[str]]:
-    """The characters of a text file and any warnings; ReadingError for binary data."""
+    """The characters of a text file and any warnings; ReadingError for binary data.
+
+    UTF-8 (with or without a byte-order mark), UTF-16 and UTF-32 (with a mark, or told by
+    their zero bytes), else cp1252 / latin-1 with a warning.
+    """
     if not data.strip():
         raise ReadingError(f"{path}: the file is empty; nothing to read")
     if data.startswith(b"%PDF"):
         raise ReadingError(f"{path}: this is a PDF with a text-file name; rename it to .pdf")
+    for bom, codec, name in _BOMS:
+        if data.startswith(bom):
+            try:
+                text = data[len(bom) :].decode(codec)
+            except UnicodeDecodeError as error:
+                raise ReadingError(
+                    f"{path}: {name} text (by its byte-order mark) that does not decode at byte "
+                    f"{error.start + len(bom)}: save it again as UTF-8"
+                ) from None
+            note = "a UTF-8 byte-order mark was dropped" if codec == "utf-8" else f"the file is {name}"
+            return _checked_text(path, text), [f"{note}; offsets count its characters after the mark"]
     sample = data[:8192]
-    if b"\x00" in sample and not (sample.startswith((b"\xff\xfe", b"\xfe\xff"))):
-        raise ReadingError(
-            f"{path}: binary data, not text (it holds NUL bytes); open the original report instead"
-        )
+    if b"\x00" in sample:
+        codec = _wide_encoding(sample)
+        if codec is None:
+            raise ReadingError(
+                f"{path}: binary data, not text (it holds NUL bytes); open the original report "
+                "instead"
+            )
+        try:
+            text = data.decode(codec)
+        except UnicodeDecodeError as error:
+            raise ReadingError(
+                f"{path}: looks like {codec.upper()} text without a byte-order mark but does not "
+                f"decode at byte {error.start}: save it again as UTF-8"
+            ) from None
+        return _checked_text(path, text), [
+            f"the file is {codec.upper()} without a byte-order mark; offsets count its characters"
+        ]
     odd = sum(1 for byte in sample if byte in _BINARY_BYTES)
     if odd > max(4, len(sample) // 100):
         raise ReadingError(f"{path}: binary data, not text; open the original report instead")
-    if data.startswith(b"\xef\xbb\xbf"):
-        return data[3:].decode("utf-8", errors="strict"), [
-            "a UTF-8 byte-order mark was dropped; offsets count from the character after it"
-        ]
-    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
-        try:
-            return data.decode("utf-16"), ["the file is UTF-16; offsets count its characters"]
-        except UnicodeDecodeError as error:
-            raise ReadingError(f"{path}: UTF-16 text that does not decode ({error})") from error
     try:
         return data.decode("utf-8"), []
     except UnicodeDecodeError as error:
@@ -141,6 +190,13 @@ def decode_text_file(path: Path, data: bytes) -> tuple[str, list[str]]:
         "quotes match exactly"
     )
     return text, [warning]
+
+
+def _checked_text(path: Path, text: str) -> str:
+    odd = sum(1 for ch in text[:8192] if ord(ch) in _BINARY_BYTES)
+    if odd > max(4, len(text[:8192]) // 100):
+        raise ReadingError(f"{path}: binary data, not text; open the original report instead")
+    return text
 
 
 def read_text_file(path: Path, data: bytes, digest: str) -> Document:

@@ -102,17 +102,35 @@ def parse_record(model: type[M], data: Any, path: Path) -> M:
         ) from None
 
 
-def _read_text(path: Path) -> str:
+# A review file larger than this is not one robtui wrote (the largest real ones are kB).
+MAX_RECORD_BYTES = 16 * 1024 * 1024
+
+
+def _read_bytes(path: Path) -> bytes:
     try:
-        return path.read_text(encoding="utf-8")
+        with open(path, "rb") as handle:
+            data = handle.read(MAX_RECORD_BYTES + 1)
     except FileNotFoundError:
         raise DataFileError(f"{path}: file not found") from None
+    except IsADirectoryError:
+        raise DataFileError(f"{path}: is a folder, not a file: move it aside") from None
+    except OSError as error:
+        raise DataFileError(f"{path}: cannot be read ({error.strerror or error})") from None
+    if len(data) > MAX_RECORD_BYTES:
+        raise DataFileError(
+            f"{path}: larger than {MAX_RECORD_BYTES // (1024 * 1024)} MB, which no robtui "
+            "record is: restore it from git or a backup"
+        )
+    return data
+
+
+def _decode(data: bytes, path: Path) -> str:
+    try:
+        return data.decode("utf-8")
     except UnicodeDecodeError as error:
         raise DataFileError(
             f"{path}: not UTF-8 text ({error.reason} at byte {error.start})"
         ) from None
-    except OSError as error:
-        raise DataFileError(f"{path}: cannot be read ({error.strerror})") from None
 
 
 def _json_problem(error: json.JSONDecodeError) -> str:
@@ -129,23 +147,43 @@ _FORMATS = {
 }
 
 
-def _read_record(model: type[M], path: Path, kind: str) -> M:
+def read_text_file(path: Path) -> str:
+    """The UTF-8 text of a review file (size-guarded); DataFileError names the problem."""
+    return _decode(_read_bytes(path), path)
+
+
+def parse_record_bytes(model: type[M], data: bytes, path: Path, kind: str) -> M:
+    """Validate the bytes of a record file (``kind``: "json" or "toml")."""
     parse, decode_error, describe = _FORMATS[kind]
-    text = _read_text(path)
+    text = _decode(data, path)
     try:
-        data = parse(text)
+        parsed = parse(text)
     except decode_error as error:
         raise DataFileError(
             f"{path}: {describe(error)}: fix the file by hand or restore it from git"
         ) from None
-    return parse_record(model, data, path)
+    except RecursionError:
+        raise DataFileError(
+            f"{path}: nested too deeply to be a robtui record: restore it from git"
+        ) from None
+    return parse_record(model, parsed, path)
+
+
+def read_record_and_digest(model: type[M], path: Path) -> tuple[M, str]:
+    """Read and validate a record file (JSON or TOML by its suffix), with the sha256 of the
+    bytes read: a later save compares the file with it (robtui.files.refuse_if_changed)."""
+    import hashlib
+
+    data = _read_bytes(path)
+    kind = "toml" if Path(path).suffix == ".toml" else "json"
+    return parse_record_bytes(model, data, path, kind), hashlib.sha256(data).hexdigest()
 
 
 def read_json_record(model: type[M], path: Path) -> M:
     """Read and validate a JSON record file."""
-    return _read_record(model, path, "json")
+    return parse_record_bytes(model, _read_bytes(path), path, "json")
 
 
 def read_toml_record(model: type[M], path: Path) -> M:
     """Read and validate a TOML record file."""
-    return _read_record(model, path, "toml")
+    return parse_record_bytes(model, _read_bytes(path), path, "toml")

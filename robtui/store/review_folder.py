@@ -9,14 +9,17 @@ Layout::
     DIR/exports/                                      tables and plots
     DIR/rules.toml, DIR/learned/                      answering rules, the review's own ranker
 
-Every write is atomic; a file that cannot be read is reported and never written over.
+Every write is atomic and made under the review's lock (robtui.files.review_lock); a file
+that cannot be read is reported and never written over, and a file that changed on disk since
+this process read it is never replaced (StaleFileError: reload and change it again).
 """
 
 from __future__ import annotations
 
 import hashlib
 import re
-from collections.abc import Sequence
+from collections.abc import Callable, Iterator, Sequence
+from contextlib import contextmanager
 from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
@@ -30,29 +33,51 @@ from robtui.core.model import (
     Study,
 )
 from robtui.errors import DataFileError, InputError
-from robtui.files import write_bytes_atomic, write_text_atomic
+from robtui.files import (
+    confined,
+    digest_bytes,
+    refuse_if_changed,
+    remove_leftovers,
+    review_lock,
+    write_bytes_atomic,
+    write_text_atomic,
+)
 from robtui.store.records import (
     describe_validation,
-    read_json_record,
-    read_toml_record,
+    read_record_and_digest,
     record_to_json,
     record_to_toml,
 )
 
 REVIEW_FILE = "review.toml"
 SUBFOLDERS = ("reports", "assessments", "consensus", "exports")
-# Same pattern as the model's ids; "--" is kept out because it joins study and result in
-# file names.
-_ID = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.-]{0,63}$")
+# Same pattern as the model's ids, matched in full (a trailing newline is refused); "--" is
+# kept out because it joins study and result in file names.
+_ID = re.compile(r"[A-Za-z0-9][A-Za-z0-9_.-]{0,63}")
 _SEPARATOR = "--"
+# Names Windows reserves for devices, with or without an extension (Microsoft, "Naming Files,
+# Paths, and Namespaces"): a review folder may be shared with or copied to Windows.
+_RESERVED = re.compile(r"(CON|PRN|AUX|NUL|COM[0-9¹²³]|LPT[0-9¹²³])(\..*)?", re.IGNORECASE)
+
+
+def is_valid_id(value: object) -> bool:
+    """True when ``value`` can name a reviewer, study or result (and so a file)."""
+    return (
+        isinstance(value, str)
+        and _ID.fullmatch(value) is not None
+        and _SEPARATOR not in value
+        and not value.endswith(".")
+        and _RESERVED.fullmatch(value) is None
+    )
 
 
 def check_id(value: str, what: str) -> str:
     """Validate a reviewer, study or result id; InputError says what is allowed."""
-    if not isinstance(value, str) or not _ID.match(value) or _SEPARATOR in value:
+    if not is_valid_id(value):
         raise InputError(
             f"{what} id {value!r} is not allowed: use 1-64 letters, digits, '.', '_' or '-', "
-            "starting with a letter or digit, without '--'"
+            "starting with a letter or digit, not ending with '.', without '--', and not a "
+            "name Windows reserves (CON, PRN, AUX, NUL, COM1-9, LPT1-9)"
         )
     return value
 
@@ -85,9 +110,41 @@ def _with_kinds(files: Sequence[Path | tuple[Path, str]]) -> list[tuple[Path, st
 class ReviewFolder:
     """One review on disk. ``review`` is the in-memory Review; ``save_review`` writes it."""
 
-    def __init__(self, root: Path, review: Review) -> None:
+    def __init__(self, root: Path, review: Review, review_digest: str | None = None) -> None:
         self.root = Path(root)
         self.review = review
+        # sha256 of each file as this process last read or wrote it (None: it did not exist);
+        # a save compares the file on disk with it under the lock.
+        self._seen: dict[Path, str | None] = {self.inside(self.review_path): review_digest}
+        # Stored judgements that disagree with the answers, found while loading (reported).
+        self.judgement_problems: list[str] = []
+        self.set_catalogue = None  # the question sets records name (store.derived reads it)
+        # Records that could not be used (unreadable, or for studies/results review.toml does
+        # not list), found by the listings: an export refuses to leave them out silently.
+        self.unusable_records: list[str] = []
+
+    @contextmanager
+    def locked(self) -> Iterator[None]:
+        """Hold the review's lock (every read-modify-write of a review file does)."""
+        with review_lock(self.root):
+            yield
+
+    def inside(self, path: Path) -> Path:
+        """``path`` checked to stay inside the review (no symlinks, no '..')."""
+        return confined(self.root, path)
+
+    def _read(self, model: type[BaseModel], path: Path):
+        record, digest = read_record_and_digest(model, path)
+        self._seen[path] = digest
+        return record
+
+    def _write(self, path: Path, text: str) -> None:
+        """Write a review file under the lock, refusing when it changed since it was read."""
+        path = self.inside(path)
+        with self.locked():
+            refuse_if_changed(path, self._seen.get(path))
+            write_text_atomic(path, text, locked=True)
+            self._seen[path] = digest_bytes(text.encode("utf-8"))
 
     # -- paths -----------------------------------------------------------------------------
     @property
@@ -194,13 +251,8 @@ class ReviewFolder:
                 f"not a review folder: {root} (no {REVIEW_FILE}): run `robtui init {root} "
                 "--title TITLE` to make one, or give the folder that holds review.toml"
             )
-        review = read_toml_record(Review, root / REVIEW_FILE)
-        for name in [*review.reviewers, *([review.lead] if review.lead else [])]:
-            try:
-                check_id(name, "reviewer")
-            except InputError as error:
-                raise DataFileError(f"{root / REVIEW_FILE}: {error}") from None
-        return cls(root, review)
+        review, digest = _read_review(root / REVIEW_FILE)
+        return cls(root, review, digest)
 
     @classmethod
     def find(cls, start: Path) -> ReviewFolder:
@@ -212,21 +264,42 @@ class ReviewFolder:
         return cls.open(start)
 
     def save_review(self) -> None:
-        """Write review.toml atomically (refuses to replace one it cannot read)."""
+        """Write review.toml atomically: refuses to replace one it cannot read, or one that
+        changed since this process read it (StaleFileError)."""
         path = self.review_path
-        if path.exists():
-            read_toml_record(Review, path)  # raises if unreadable: never written over
-        write_text_atomic(path, record_to_toml(self.review))
+        with self.locked():
+            if path.exists():
+                _read_review(path)  # raises if unreadable: never written over
+            self._write(path, record_to_toml(self.review))
 
-    def _commit_review(self, changed: Review) -> None:
-        # Validate the whole review before anything is written, then keep it.
-        checked = _validated(Review, changed.model_dump(), "review")
-        previous, self.review = self.review, checked
+    def reload_review(self) -> bool:
+        """Read review.toml again when it changed on disk; True when it had."""
+        path = self.inside(self.review_path)
         try:
-            self.save_review()
-        except BaseException:
-            self.review = previous
-            raise
+            current = digest_bytes(path.read_bytes())
+        except FileNotFoundError:
+            current = None
+        if current == self._seen.get(path):
+            return False
+        self.review, self._seen[path] = _read_review(path)
+        return True
+
+    def edit_review(self, edit: Callable[[Review], Review | None]) -> Review:
+        """Change review.toml: under the lock, read it again if another process changed it,
+        apply ``edit`` to a copy of the fresh review (it may raise InputError), validate the
+        whole review and write it. Another process's additions are never lost."""
+        with self.locked():
+            self.reload_review()
+            draft = self.review.model_copy(deep=True)
+            changed = edit(draft) or draft
+            checked = _validated(Review, changed.model_dump(), "review")
+            previous, self.review = self.review, checked
+            try:
+                self.save_review()
+            except BaseException:
+                self.review = previous
+                raise
+        return self.review
 
     # -- reviewers, studies, results -------------------------------------------------------------
     def is_unlisted_reviewer(self, name: str) -> bool:
@@ -246,11 +319,14 @@ class ReviewFolder:
     def add_reviewer(self, name: str) -> None:
         """List a reviewer in review.toml (no change when already listed)."""
         check_id(name, "reviewer")
-        if name in self.review.reviewers:
+        if name in self.review.reviewers and not self.reload_review():
             return
-        changed = self.review.model_copy(deep=True)
-        changed.reviewers.append(name)
-        self._commit_review(changed)
+
+        def add(review: Review) -> None:
+            if name not in review.reviewers:
+                review.reviewers.append(name)
+
+        self.edit_review(add)
 
     def add_study(
         self,
@@ -266,11 +342,6 @@ class ReviewFolder:
         question set; it must name a set the review can use.
         """
         check_id(study_id, "study")
-        if self.review.study(study_id) is not None:
-            raise InputError(
-                f"study {study_id!r} is already in the review: choose another id, or add a "
-                "report to it with `robtui study report`"
-            )
         fields = {"id": study_id, "label": label}
         if design is not None:
             from robtui.store.question_sets import review_catalogue
@@ -278,11 +349,17 @@ class ReviewFolder:
             review_catalogue(self.root).resolve(design)  # InputError lists what can be used
             fields["design"] = design
         study = _validated(Study, fields, f"study {study_id}")
-        reports = self._copy_reports(study_id, _with_kinds(files), existing=[])
-        study.reports = reports
-        changed = self.review.model_copy(deep=True)
-        changed.studies.append(study)
-        self._commit_review(changed)
+
+        def add(review: Review) -> None:
+            if review.study(study_id) is not None:
+                raise InputError(
+                    f"study {study_id!r} is already in the review: choose another id, or add "
+                    "a report to it with `robtui study report`"
+                )
+            study.reports = self._copy_reports(study_id, _with_kinds(files), existing=[])
+            review.studies.append(study)
+
+        self.edit_review(add)
         return self.review.study(study_id)
 
     def add_report(self, study_id: str, file: Path, kind: str = "report") -> ReportFile:
@@ -292,12 +369,18 @@ class ReviewFolder:
     def add_reports(
         self, study_id: str, files: Sequence[Path | tuple[Path, str]]
     ) -> list[ReportFile]:
-        """Add more source documents to an existing study (path, or (path, kind))."""
-        study = self.study_or_error(study_id)
-        added = self._copy_reports(study_id, _with_kinds(files), existing=study.reports)
-        changed = self.review.model_copy(deep=True)
-        changed.study(study_id).reports.extend(added)
-        self._commit_review(changed)
+        """Add more source documents to an existing study (path, or (path, kind)), under the
+        lock on review.toml as it is now."""
+        added: list[ReportFile] = []
+
+        def add(review: Review) -> None:
+            study = review.study(study_id)
+            if study is None:
+                self.study_or_error(study_id)  # raises with the list of studies
+            added[:] = self._copy_reports(study_id, _with_kinds(files), existing=study.reports)
+            study.reports.extend(added)
+
+        self.edit_review(add)
         return added
 
     def _copy_reports(
@@ -323,7 +406,7 @@ class ReviewFolder:
             report = _validated(
                 ReportFile, {"path": rel, "sha256": sha, "kind": kinds[f]}, f"report {f}"
             )
-            target = self.reports_dir / rel
+            target = self.inside(self.reports_dir / rel)
             if target.exists() and sha256_of(target) != sha:
                 raise InputError(
                     f"{target} already exists with other content: it was not overwritten; "
@@ -332,24 +415,29 @@ class ReviewFolder:
             planned.append((target, data, report))
         for target, data, _ in planned:
             if not target.exists():
-                write_bytes_atomic(target, data)
+                with self.locked():
+                    write_bytes_atomic(target, data, locked=True)
         return [report for _, _, report in planned]
 
     def add_result(self, spec: ResultSpec) -> None:
         """Add a result to assess (refuses an id already used)."""
         check_id(spec.id, "result")
-        if self.review.result(spec.id) is not None:
-            raise InputError(f"result {spec.id!r} is already in the review: choose another id")
         spec = _validated(ResultSpec, spec.model_dump(), f"result {spec.id}")
-        unknown = [s for s in spec.weights if self.review.study(s) is None]
-        if unknown:
-            raise InputError(
-                f"result {spec.id}: weights name unknown studies ({', '.join(unknown)}): "
-                "add the studies first"
-            )
-        changed = self.review.model_copy(deep=True)
-        changed.results.append(spec)
-        self._commit_review(changed)
+
+        def add(review: Review) -> None:
+            if review.result(spec.id) is not None:
+                raise InputError(
+                    f"result {spec.id!r} is already in the review: choose another id"
+                )
+            unknown = [s for s in spec.weights if review.study(s) is None]
+            if unknown:
+                raise InputError(
+                    f"result {spec.id}: weights name unknown studies ({', '.join(unknown)}): "
+                    "add the studies first"
+                )
+            review.results.append(spec)
+
+        self.edit_review(add)
 
     def set_result_effect(self, result_id: str, effect: str, by: str) -> None:
         """The lead changes a result's effect of interest (nobody else: every reviewer answers
@@ -361,12 +449,16 @@ class ReviewFolder:
                 f"interest; {by!r} may not: ask the lead"
             )
         self.result_or_error(result_id)
-        changed = self.review.model_copy(deep=True)
-        spec = changed.result(result_id)
-        changed.results[changed.results.index(spec)] = _validated(
-            ResultSpec, {**spec.model_dump(), "effect": effect}, f"result {result_id}"
-        )
-        self._commit_review(changed)
+
+        def change(review: Review) -> None:
+            spec = review.result(result_id)
+            if spec is None:
+                self.result_or_error(result_id)
+            review.results[review.results.index(spec)] = _validated(
+                ResultSpec, {**spec.model_dump(), "effect": effect}, f"result {result_id}"
+            )
+
+        self.edit_review(change)
 
     def study_or_error(self, study_id: str) -> Study:
         study = self.review.study(study_id)
@@ -390,11 +482,15 @@ class ReviewFolder:
 
     # -- report files ---------------------------------------------------------------------------
     def report_path(self, report: ReportFile) -> Path:
-        return self.reports_dir / report.path
+        """Where a report's copy is (OutsideReviewError when review.toml points outside)."""
+        return self.inside(self.reports_dir / report.path)
 
     def check_report(self, report: ReportFile) -> str | None:
         """The problem with a report's copy (missing, or changed since it was added), or None."""
-        path = self.report_path(report)
+        try:
+            path = self.report_path(report)
+        except DataFileError as error:
+            return f"{self.review_path}: report {report.path!r}: {error}"
         if not path.is_file():
             return f"report file missing: {path}: restore it (e.g. from git) or add it again"
         actual = sha256_of(path)
@@ -409,19 +505,48 @@ class ReviewFolder:
     # -- assessments ----------------------------------------------------------------------------
     def load_assessment(self, reviewer: str, study_id: str, result_id: str) -> Assessment | None:
         """The stored assessment, None when absent; DataFileError when unreadable."""
-        path = self.assessment_path(reviewer, study_id, result_id)
+        path = self.inside(self.assessment_path(reviewer, study_id, result_id))
         if not path.exists():
+            self._seen[path] = None
             return None
-        record = read_json_record(Assessment, path)
+        record = self._read(Assessment, path)
         _check_names(path, record, reviewer=reviewer)
-        return record
+        return self._checked(path, record)
 
     def save_assessment(self, assessment: Assessment) -> Path:
-        """Write an assessment atomically; refuses to replace a file it cannot read."""
+        """Write an assessment atomically; refuses to replace a file it cannot read, or one
+        another process changed since this one read it (StaleFileError)."""
         self.study_or_error(assessment.study_id)
         self.result_or_error(assessment.result_id)
         path = self.assessment_path(assessment.reviewer, assessment.study_id, assessment.result_id)
-        return self._save_record(path, assessment, Assessment)
+        return self._save_record(path, self._derived(path, assessment), Assessment)
+
+    def update_assessment(
+        self,
+        reviewer: str,
+        study_id: str,
+        result_id: str,
+        change: Callable[[Assessment | None], Assessment | None],
+    ) -> tuple[Assessment | None, bool]:
+        """Read-modify-write under the lock: ``change`` gets the assessment as it is on disk
+        now (None when there is none) and returns the new one (None: nothing to write), which
+        is saved when it differs. Returns the assessment and whether it was written."""
+        with self.locked():
+            current = self.load_assessment(reviewer, study_id, result_id)
+            changed = change(current)
+            if changed is None or (current is not None and _same_content(current, changed)):
+                return current, False
+            self.save_assessment(changed)
+            return changed, True
+
+    def _checked(self, path: Path, record):
+        """The record with its judgements derived from its answers (one source of truth)."""
+        from robtui.store.derived import derived_assessment, derived_consensus
+
+        derive = derived_consensus if isinstance(record, Consensus) else derived_assessment
+        record, problems = derive(self, path, record)
+        self.judgement_problems.extend(p for p in problems if p not in self.judgement_problems)
+        return record
 
     def assessments(self, reviewer: str | None = None) -> tuple[list[Assessment], list[str]]:
         """All readable assessments (of one reviewer or all) and the problems with the rest."""
@@ -432,65 +557,151 @@ class ReviewFolder:
             check_id(name, "reviewer")
             for path in _record_files(self.assessments_dir / name):
                 try:
-                    record = read_json_record(Assessment, path)
+                    record = self._read(Assessment, self.inside(path))
                     _check_names(path, record, reviewer=name)
+                    before = len(self.judgement_problems)
+                    record = self._checked(path, record)
+                    problems.extend(self.judgement_problems[before:])
                 except DataFileError as error:
                     problems.append(str(error))
+                    self.unusable_records.append(str(error))
                     continue
                 found.append(record)
+        unlisted = self.unlisted_record_problems(found)
+        self.unusable_records.extend(unlisted)
+        problems.extend(unlisted)
         return found, problems
+
+    def unlisted_record_problems(self, records: Sequence[Assessment | Consensus]) -> list[str]:
+        """Records for studies or results review.toml does not list (said loudly: a cut or
+        hand-edited review.toml must not make work disappear in silence)."""
+        problems = []
+        for r in records:
+            missing = []
+            if self.review.study(r.study_id) is None:
+                missing.append(f"study {r.study_id}")
+            if self.review.result(r.result_id) is None:
+                missing.append(f"result {r.result_id}")
+            if missing:
+                owner = f" by {r.reviewer}" if isinstance(r, Assessment) else " (consensus)"
+                problems.append(
+                    f"{r.study_id} / {r.result_id}{owner}: {' and '.join(missing)} not in "
+                    f"{self.review_path}: the record is left out; check that review.toml is "
+                    "complete (restore it from git or a backup) or remove the record"
+                )
+        return problems
 
     def reviewers_on_disk(self) -> list[str]:
         """Reviewers with a folder under assessments/ (sorted)."""
         if not self.assessments_dir.is_dir():
             return []
         return sorted(
-            p.name
-            for p in self.assessments_dir.iterdir()
-            if p.is_dir() and _ID.match(p.name) and _SEPARATOR not in p.name
+            p.name for p in self.assessments_dir.iterdir() if p.is_dir() and is_valid_id(p.name)
         )
 
     # -- consensus ------------------------------------------------------------------------------
     def load_consensus(self, study_id: str, result_id: str) -> Consensus | None:
-        path = self.consensus_path(study_id, result_id)
+        path = self.inside(self.consensus_path(study_id, result_id))
         if not path.exists():
+            self._seen[path] = None
             return None
-        record = read_json_record(Consensus, path)
+        record = self._read(Consensus, path)
         _check_names(path, record)
-        return record
+        return self._checked(path, record)
 
     def save_consensus(self, c: Consensus) -> Path:
         self.study_or_error(c.study_id)
         self.result_or_error(c.result_id)
-        return self._save_record(self.consensus_path(c.study_id, c.result_id), c, Consensus)
+        path = self.consensus_path(c.study_id, c.result_id)
+        return self._save_record(path, self._derived(path, c), Consensus)
+
+    def _derived(self, path: Path, record):
+        """What is written: judgements derived from the answers, codes checked."""
+        from robtui.store.derived import derived_assessment, derived_consensus
+
+        derive = derived_consensus if isinstance(record, Consensus) else derived_assessment
+        return derive(self, path, record)[0]
 
     def consensus_records(self) -> tuple[list[Consensus], list[str]]:
         found: list[Consensus] = []
         problems: list[str] = []
         for path in _record_files(self.consensus_dir):
             try:
-                record = read_json_record(Consensus, path)
+                record = self._read(Consensus, self.inside(path))
                 _check_names(path, record)
+                before = len(self.judgement_problems)
+                record = self._checked(path, record)
+                problems.extend(self.judgement_problems[before:])
             except DataFileError as error:
                 problems.append(str(error))
+                self.unusable_records.append(str(error))
                 continue
             found.append(record)
+        unlisted = self.unlisted_record_problems(found)
+        self.unusable_records.extend(unlisted)
+        problems.extend(unlisted)
         return found, problems
 
     # -- shared -----------------------------------------------------------------------------------
     def _save_record(self, path: Path, record: BaseModel, model: type[BaseModel]) -> Path:
-        if path.exists():
-            try:
-                read_json_record(model, path)
-            except DataFileError as error:
-                raise type(error)(
-                    f"{error} (not saved: the unreadable file was left as it is; "
-                    "fix or move it aside, then save again)"
-                ) from None
+        path = self.inside(path)
         # Validate once more: a record changed in memory with model_construct must not reach disk.
         _validated(model, record.model_dump(), str(path))
-        write_text_atomic(path, record_to_json(record))
+        with self.locked():
+            if path.exists():
+                try:
+                    read_record_and_digest(model, path)
+                except DataFileError as error:
+                    raise type(error)(
+                        f"{error} (not saved: the unreadable file was left as it is; "
+                        "fix or move it aside, then save again)"
+                    ) from None
+            self._write(path, record_to_json(record))
         return path
+
+    def sweep_leftovers(self) -> list[Path]:
+        """Remove temp files that killed saves left in the review's record folders (under
+        the lock, so none belongs to a save still running)."""
+        removed: list[Path] = []
+        with self.locked():
+            folders = [self.root, self.consensus_dir, self.assessments_dir]
+            if self.assessments_dir.is_dir():
+                folders += [p for p in self.assessments_dir.iterdir() if p.is_dir()]
+            for folder in folders:
+                if not folder.is_dir() or folder.is_symlink():
+                    continue
+                for leftover in folder.glob(".*.tmp"):
+                    name = leftover.name[1:].rsplit(".", 2)[0]
+                    removed += remove_leftovers(folder / name, 0.0)
+        return removed
+
+
+def _read_review(path: Path) -> tuple[Review, str]:
+    review, digest = read_record_and_digest(Review, path)
+    for name in [*review.reviewers, *([review.lead] if review.lead else [])]:
+        try:
+            check_id(name, "reviewer")
+        except InputError as error:
+            raise DataFileError(f"{path}: {error}") from None
+    for ident, what in [*((s.id, "study") for s in review.studies),
+                        *((r.id, "result") for r in review.results)]:
+        try:
+            check_id(ident, what)
+        except InputError as error:
+            raise DataFileError(f"{path}: {error}") from None
+    for study in review.studies:
+        for report in study.reports:
+            rel = Path(report.path)
+            if rel.is_absolute() or ".." in rel.parts or "\\" in report.path:
+                raise DataFileError(
+                    f"{path}: study {study.id}: report path {report.path!r} leads outside the "
+                    "review's reports/ folder: give it as STUDY/FILE inside reports/"
+                )
+    return review, digest
+
+
+def _same_content(a: BaseModel, b: BaseModel) -> bool:
+    return a.model_dump(exclude={"updated"}) == b.model_dump(exclude={"updated"})
 
 
 def _record_files(folder: Path) -> list[Path]:

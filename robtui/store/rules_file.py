@@ -45,8 +45,8 @@ from robtui.core.rules import (
 )
 from robtui.errors import DataFileError, InputError
 from robtui.files import write_text_atomic
-from robtui.store.records import _read_text as read_text
 from robtui.store.records import check_schema
+from robtui.store.records import read_text_file as read_text
 
 RULES_FILE = "rules.toml"
 HISTORY_DIR = "rules_history"

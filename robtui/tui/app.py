@@ -15,6 +15,7 @@ from typing import Any, ClassVar
 
 from textual.app import App, SystemCommand
 from textual.binding import Binding, BindingType
+from textual.notifications import SeverityLevel
 from textual.reactive import reactive
 from textual.screen import Screen
 
@@ -52,6 +53,18 @@ class Workbench(App[int]):
         Binding("ctrl+q", "quit", "Quit", priority=True),
         Binding("f1", "help", "Help", show=False),
     ]
+
+    def notify(
+        self,
+        message: str,
+        *,
+        title: str = "",
+        severity: SeverityLevel = "information",
+        timeout: float | None = None,
+        markup: bool = False,
+    ) -> None:
+        """A toast; never markup: messages carry user text (ids, labels, searches, paths)."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=False)
 
     def __init__(
         self,

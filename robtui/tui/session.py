@@ -6,7 +6,10 @@ reviewer's name); another reviewer's answers reach the screen only through the l
 comparison (``ReviewSession.comparison_pairs``), which refuses anyone but the review's lead.
 
 An ``AssessmentSession`` wraps one assessment: every change goes through
-robtui.core.assessing and is saved at once (``ReviewFolder.save_assessment`` is atomic).
+robtui.core.assessing and is saved at once (``ReviewFolder.save_assessment`` is atomic and
+refuses a file another process changed since it was read). When that happens the session
+reads the file again, applies the same change on top of the other process's work, saves, and
+tells the screen (``on_reloaded``): neither writer's answers are lost.
 """
 
 from __future__ import annotations
@@ -27,6 +30,7 @@ from robtui.core.rules import (
     stamp_rules_version,
 )
 from robtui.errors import DataFileError, InputError, RobtuiError
+from robtui.files import StaleFileError
 from robtui.store.progress import assessment_progress
 from robtui.store.review_folder import ReviewFolder
 from robtui.workspace import Workspace, check_reviewer_name
@@ -237,6 +241,8 @@ class AssessmentSession:
     assessment: Assessment
     on_saved: Callable[[Path], None] | None = None
     unsaved_error: str | None = field(default=None)
+    # Called with a sentence when the file had changed on disk and was read again.
+    on_reloaded: Callable[[str], None] | None = None
 
     @property
     def folder(self) -> ReviewFolder:
@@ -349,6 +355,8 @@ class AssessmentSession:
             self.assessment = stamp_rules_version(self.assessment, self.review_session.rules)
         try:
             path = self.folder.save_assessment(self.assessment)
+        except StaleFileError:
+            raise  # _commit reads the file again and applies the change on top
         except (RobtuiError, OSError) as error:
             self.unsaved_error = str(error)
             raise DataFileError(f"could not save the assessment: {error}") from error
@@ -357,9 +365,41 @@ class AssessmentSession:
             self.on_saved(path)
         return path
 
-    def _commit(self, assessment: Assessment, *, stamp: bool = True) -> None:
-        self.assessment = assessment
-        self.save(stamp=stamp)
+    def _commit(self, change: Callable[[Assessment], Assessment], *, stamp: bool = True) -> None:
+        """Apply ``change`` and save; when another process saved the file meanwhile, read
+        theirs, apply the same change to it and save that (nothing of theirs is lost)."""
+        before = self.assessment
+        self.assessment = change(before)
+        try:
+            self.save(stamp=stamp)
+            return
+        except StaleFileError:
+            self.assessment = before
+        a = self.assessment
+        with self.folder.locked():
+            fresh = self.folder.load_assessment(a.reviewer, a.study_id, a.result_id)
+            if fresh is None:
+                raise DataFileError(
+                    f"{self.folder.assessment_path(a.reviewer, a.study_id, a.result_id)} was "
+                    "removed by another process: nothing was saved; reopen the assessment"
+                )
+            self.assessment = fresh
+            self.assessment = change(fresh)
+            self.save(stamp=stamp)
+        if self.on_reloaded:
+            self.on_reloaded(
+                "this assessment was changed by another robtui process or an editor: it was "
+                "read again and your change was saved on top of theirs"
+            )
+
+    def reload(self) -> bool:
+        """Read the assessment again if it changed on disk; True when it had."""
+        a = self.assessment
+        fresh = self.folder.load_assessment(a.reviewer, a.study_id, a.result_id)
+        if fresh is None or fresh == a:
+            return False
+        self.assessment = fresh
+        return True
 
     def _editable(self) -> None:
         if self.is_complete:
@@ -376,7 +416,7 @@ class AssessmentSession:
             allowed = ", ".join(question.options)
             raise InputError(f"{response} is not an option for {question_id} (choose {allowed})")
         self._commit(
-            assessing.set_response(self._at(question_id), self.qset, question_id, response)
+            lambda a: assessing.set_response(_at(a, question_id), self.qset, question_id, response)
         )
 
     def set_justification(self, question_id: str, text: str) -> None:
@@ -385,26 +425,30 @@ class AssessmentSession:
         if (answer.justification if answer else "") == text:
             return
         self._commit(
-            assessing.set_justification(self._at(question_id), self.qset, question_id, text)
+            lambda a: assessing.set_justification(_at(a, question_id), self.qset, question_id, text)
         )
 
     def toggle_quote(self, question_id: str, quote: Quote) -> bool:
         """Attach ``quote`` to the question, or detach it when already there; True if added."""
         self._editable()
-        answer = self.answer(question_id)
-        quotes = answer.quotes if answer else []
-        for index, existing in enumerate(quotes):
-            if (existing.document_sha256, existing.start, existing.end) == (
-                quote.document_sha256,
-                quote.start,
-                quote.end,
-            ):
-                self._commit(
-                    assessing.remove_quote(self._at(question_id), self.qset, question_id, index)
-                )
-                return False
-        self._commit(assessing.add_quote(self._at(question_id), self.qset, question_id, quote))
-        return True
+        added: list[bool] = []
+
+        def toggle(a: Assessment) -> Assessment:
+            added.clear()
+            answer = a.answers.get(question_id)
+            for index, existing in enumerate(answer.quotes if answer else []):
+                if (existing.document_sha256, existing.start, existing.end) == (
+                    quote.document_sha256,
+                    quote.start,
+                    quote.end,
+                ):
+                    added.append(False)
+                    return assessing.remove_quote(_at(a, question_id), self.qset, question_id, index)
+            added.append(True)
+            return assessing.add_quote(_at(a, question_id), self.qset, question_id, quote)
+
+        self._commit(toggle)
+        return added[-1]
 
     def dismiss(self, question_id: str, sha256: str, start: int, end: int) -> None:
         """Record that a suggested sentence does not answer the question."""
@@ -414,10 +458,13 @@ class AssessmentSession:
         record = DismissedSuggestion(
             question_id=question_id, document_sha256=sha256, start=start, end=end
         )
-        updated = self._at(question_id).model_copy(
-            update={"dismissed": [*self.assessment.dismissed, record]}
-        )
-        self._commit(updated)
+
+        def dismiss(a: Assessment) -> Assessment:
+            if record in a.dismissed:
+                return a
+            return _at(a, question_id).model_copy(update={"dismissed": [*a.dismissed, record]})
+
+        self._commit(dismiss)
 
     @property
     def effect_differs(self) -> str | None:
@@ -434,14 +481,14 @@ class AssessmentSession:
         wanted = self.effect_differs
         if wanted is None or self.is_complete:
             return False
-        self._commit(assessing.set_effect(self.assessment, self.qset, wanted))
+        self._commit(lambda a: assessing.set_effect(a, self.qset, wanted))
         return True
 
     def set_override(self, key: str, judgement: str, reason: str) -> None:
         self._editable()
         if not reason.strip():
             raise InputError("an override needs a reason: say why the judgement differs")
-        self._commit(assessing.set_override(self.assessment, self.qset, key, judgement, reason))
+        self._commit(lambda a: assessing.set_override(a, self.qset, key, judgement, reason))
 
     def set_support_and_direction(
         self, key: str, support: str | None, direction: str | None
@@ -459,23 +506,25 @@ class AssessmentSession:
     def clear_override(self, key: str) -> None:
         self._editable()
         if key in self.assessment.overrides:
-            self._commit(assessing.clear_override(self.assessment, self.qset, key))
+            self._commit(lambda a: assessing.clear_override(a, self.qset, key))
 
     def remember_position(self, question_id: str) -> None:
         """Record where the reviewer is, so reopening resumes there (saved)."""
         if self.assessment.last_question == question_id:
             return
-        self._commit(self._at(question_id), stamp=False)
+        self._commit(lambda a: _at(a, question_id), stamp=False)
 
     def mark_complete(self) -> None:
         """Mark complete; InputError listing what is missing when it cannot be."""
-        self._commit(assessing.mark_complete(self.assessment, self.qset))
+        self._commit(lambda a: assessing.mark_complete(a, self.qset))
 
     def reopen(self) -> None:
-        self._commit(assessing.reopen(self.assessment))
+        self._commit(assessing.reopen)
         self.follow_result_effect()
 
-    def _at(self, question_id: str) -> Assessment:
-        if self.assessment.last_question == question_id:
-            return self.assessment
-        return self.assessment.model_copy(update={"last_question": question_id})
+
+def _at(a: Assessment, question_id: str) -> Assessment:
+    """``a`` with the reviewer's position at ``question_id``."""
+    if a.last_question == question_id:
+        return a
+    return a.model_copy(update={"last_question": question_id})

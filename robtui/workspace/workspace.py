@@ -50,14 +50,14 @@ class Workspace:
         not match; the file is left untouched)."""
         found = self.folder.load_assessment(reviewer, study_id, result_id)
         if found is not None:
-            self._require_usable(found, self.folder.assessment_path(reviewer, study_id, result_id))
+            self.require_usable(found, self.folder.assessment_path(reviewer, study_id, result_id))
         return found
 
     def load_consensus(self, study_id: str, result_id: str) -> Consensus | None:
         """The consensus record of a result, checked likewise."""
         found = self.folder.load_consensus(study_id, result_id)
         if found is not None:
-            self._require_usable(found, self.folder.consensus_path(study_id, result_id))
+            self.require_usable(found, self.folder.consensus_path(study_id, result_id))
         return found
 
     def assessments(self, reviewer: str | None = None) -> tuple[list[Assessment], list[str]]:
@@ -73,7 +73,7 @@ class Workspace:
                 problems.append(problem)
         return usable, problems
 
-    def _require_usable(self, record: Assessment | Consensus, path: Path) -> None:
+    def require_usable(self, record: Assessment | Consensus, path: Path) -> None:
         problem = self.record_problem(record)
         if problem is not None:
             raise DataFileError(f"{path}: {problem}")

@@ -53,7 +53,7 @@ def test_export_when_exports_is_not_a_folder(tmp_path, capsys):
     exports = review / "exports"
     exports.rmdir()
     exports.write_text("a file where the exports folder should be\n", encoding="utf-8")
-    code, _out, err = robtui(capsys, "export", review, "--format", "csv")
+    code, _out, err = robtui(capsys, "export", review, "--as", "ana", "--format", "csv")
     assert code == 2
     assert err.startswith("robtui: cannot write the csv export of pain")
     assert "make sure exports/ is a folder you can write to" in err

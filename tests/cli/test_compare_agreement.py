@@ -14,6 +14,14 @@ from robtui.cli import main
 from robtui.core import assessing
 
 
+@pytest.fixture(autouse=True)
+def _asking_as(monkeypatch):
+    """These tests ask as the review's lead: robtui shows reviewers' work only to someone named
+    (robtui.core.blinding)."""
+    monkeypatch.setenv("ROBTUI_REVIEWER", "lead")
+
+
+
 @pytest.fixture(scope="module")
 def review_dir(tmp_path_factory):
     root = tmp_path_factory.mktemp("cmp") / "review"
@@ -115,7 +123,7 @@ def test_agreement_counts_a_study_once_when_its_results_share_it(tmp_path, capsy
     assert "Unit of analysis: study" in out and "Result outcome-2 on its own" in out
 
 
-def test_on_the_demo_review(tmp_path, capsys):
+def test_on_the_demo_review(tmp_path, capsys, monkeypatch):
     from robtui.errors import DataFileError
     from robtui.store.demo import build_demo_review
 
@@ -126,6 +134,7 @@ def test_on_the_demo_review(tmp_path, capsys):
     if len(folder.review.reviewers) < 2:
         pytest.skip("demo review names fewer than two reviewers")
     root = str(folder.root)
+    monkeypatch.setenv("ROBTUI_REVIEWER", folder.review.lead)  # the demo's lead asks
     assert main(["compare", root, "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert len(data["pairs"]) + len(data["not_compared"]) == len(folder.review.studies) * len(

@@ -90,7 +90,7 @@ def test_full_flow(review: Path, capsys):
     assert code == 0 and "ana: complete" in out
     assert json.loads(path.read_text(encoding="utf-8"))["status"] == "complete"
 
-    code, out, _ = robtui(capsys, "status", review, "--json")
+    code, out, _ = robtui(capsys, "status", review, "--as", "ana", "--json")
     rows = json.loads(out)["rows"]
     assert rows == [
         {
@@ -103,7 +103,7 @@ def test_full_flow(review: Path, capsys):
             "overall": "low",
         }
     ]
-    code, out, _ = robtui(capsys, "status", review)
+    code, out, _ = robtui(capsys, "status", review, "--as", "ana")
     assert code == 0 and "1 of 1 assessments complete" in out
 
 

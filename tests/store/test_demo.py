@@ -365,7 +365,7 @@ def test_export_of_the_demo_judges_every_study_of_primary_itt(bundled_demo, tmp_
 
     root = tmp_path / "demo"
     shutil.copytree(bundled_demo.root, root)
-    assert main(["export", str(root), "--format", "html", "--result", "primary-itt"]) == 0
+    assert main(["export", str(root), "--as", "ines", "--format", "html", "--result", "primary-itt"]) == 0
     page = (root / "exports" / "primary-itt.html").read_text(encoding="utf-8")
     assert "not judged" not in capsys.readouterr().err
     assert "· Not judged</td>" not in page and 'class="j k-incomplete' not in page
@@ -374,7 +374,7 @@ def test_export_of_the_demo_judges_every_study_of_primary_itt(bundled_demo, tmp_
     # the traffic-light table's source column: every row from a complete consensus
     assert page.count('<td class="note">consensus</td>') == len(bundled_demo.review.studies)
     # the same check fails where the user still has to settle: primary-adh is mostly open
-    assert main(["export", str(root), "--format", "html", "--result", "primary-adh"]) == 0
+    assert main(["export", str(root), "--as", "ines", "--format", "html", "--result", "primary-adh"]) == 0
     assert "not judged" in capsys.readouterr().err
     assert "· Not judged</td>" in (root / "exports" / "primary-adh.html").read_text("utf-8")
 

@@ -90,7 +90,11 @@ def test_review_round_trip_and_report_copied(folder: ReviewFolder):
 
 
 def test_assessment_round_trip_is_stable(folder: ReviewFolder):
-    a = full_assessment()
+    from robtui.core.assessing import recompute
+    from robtui.store.question_sets import builtin_question_set
+
+    # Judgements as the algorithm gives them: a load derives them from the answers again.
+    a = recompute(full_assessment(), builtin_question_set("rob2-parallel"))
     path = folder.save_assessment(a)
     assert path == folder.root / "assessments" / "ana" / "S1--pain12.json"
     first = path.read_bytes()
@@ -103,7 +107,7 @@ def test_assessment_round_trip_is_stable(folder: ReviewFolder):
     data = json.loads(text)
     assert list(data) == list(Assessment.model_fields)
     assert list(data["answers"]) == ["1.1", "1.2", "1.10"]
-    assert list(data["proposed"]) == ["1", "overall"]
+    assert list(data["proposed"]) == ["1", "2", "3", "4", "5", "overall"]
 
 
 def test_consensus_round_trip(folder: ReviewFolder):
@@ -117,9 +121,15 @@ def test_consensus_round_trip(folder: ReviewFolder):
     )
     path = folder.save_consensus(c)
     assert path == folder.root / "consensus" / "S1--pain12.json"
-    assert folder.load_consensus("S1", "pain12") == c
+    from robtui.core.comparison import recompute_consensus
+    from robtui.store.question_sets import builtin_question_set
+
+    derived = recompute_consensus(c, builtin_question_set("rob2-parallel")).model_copy(
+        update={"updated": c.updated}
+    )
+    assert folder.load_consensus("S1", "pain12") == derived, "judgements from the answers"
     records, problems = folder.consensus_records()
-    assert records == [c] and problems == []
+    assert records == [derived] and problems == []
 
 
 def test_missing_assessment_is_none_and_listing(folder: ReviewFolder):

@@ -176,6 +176,7 @@ class AssessmentScreen(Screen[None]):
         yield KeyHints()
 
     def on_mount(self) -> None:
+        self.session.on_reloaded = self._reloaded
         self.query_one("#search", Input).display = False
         before = self.session.effect
         self._guard(self.session.follow_result_effect)
@@ -205,6 +206,11 @@ class AssessmentScreen(Screen[None]):
             self.planned = prespecification(self.session.folder, a.study_id, a.result_id)
         except RobtuiError:
             self.planned = None  # the panel says why when it is opened
+
+    def _reloaded(self, message: str) -> None:
+        """The file changed on disk and was read again: show what it holds now."""
+        self.notify(message, severity="warning", markup=False)
+        self.call_after_refresh(self.refresh_form, self.question_id)
 
     # -- reading the report (worker) -------------------------------------------------
     @work(thread=True, exclusive=True, group="report")
@@ -594,7 +600,7 @@ class AssessmentScreen(Screen[None]):
     def _search_next(self, event: Input.Submitted) -> None:
         found = self.query_one("#report", ReportView).find(event.value)
         if found is None:
-            self.notify(f"no sentence contains {event.value!r}", severity="warning")
+            self.notify(f"no sentence contains {event.value!r}", severity="warning", markup=False)
         else:
             self.notify(f"match {found[0]} of {found[1]}", timeout=2)
 

@@ -72,7 +72,7 @@ class ReviewerScreen(Screen[str]):
         try:
             name = check_reviewer_name(name)
         except InputError as error:
-            self.query_one("#reviewer-error", Static).update(str(error))
+            self.query_one("#reviewer-error", Static).update(Text(str(error)))
             return
         self.dismiss(name)
 
@@ -89,6 +89,6 @@ class ProblemScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="start-box"):
             yield Label(Text("This review cannot be opened", style="bold"))
-            yield Static(self.message, id="problem-message", classes="error-text")
+            yield Static(Text(self.message), id="problem-message", classes="error-text")
             yield Static("Nothing was changed on disk. Press q to quit.")
         yield KeyHints()
