@@ -267,7 +267,11 @@ def learn_from_assessment(
     Call it when a reviewer saves an assessment; a damaged model file raises DataFileError
     and is left untouched.
     """
+    from robtui.files import review_lock
+
     positives, negatives = examples_from_assessment(assessment, documents, ranker)
-    model = update_review_model(load_review_model(learned_dir), positives, negatives)
-    save_review_model(model, learned_dir)
+    Path(learned_dir).mkdir(parents=True, exist_ok=True)
+    with review_lock(learned_dir):  # another session's examples are never written over
+        model = update_review_model(load_review_model(learned_dir), positives, negatives)
+        save_review_model(model, learned_dir)
     return model

@@ -5,6 +5,7 @@ from __future__ import annotations
 import html
 import os
 import re
+import unicodedata
 from pathlib import Path, PurePath
 
 from robtui.errors import InputError
@@ -40,9 +41,92 @@ _TEX_SPECIALS = {
 }
 
 
+# A bracket right after \\ or \item would open an optional argument (a label "[A] trial"
+# must not become one): braces keep it text.
+_TEX_SPECIALS.update({"[": "{[}", "]": "{]}"})
+
+# Characters outside what pdfLaTeX's utf8 input with T1 fonts sets (Latin-1 and Latin
+# Extended-A, dashes, quotes) that trial reports use: the math or text commands for them
+# (LaTeX's own symbol names, from memory of the standard symbol lists). U+2212 is kept on
+# purpose by the readers, so it must print.
+_TEX_SYMBOLS = {
+    "\u2212": r"\textminus{}", "\u2264": r"\ensuremath{\leq}", "\u2265": r"\ensuremath{\geq}",
+    "\u2260": r"\ensuremath{\neq}", "\u2248": r"\ensuremath{\approx}", "\u223c": r"\ensuremath{\sim}",
+    "\u00b1": r"\ensuremath{\pm}", "\u2213": r"\ensuremath{\mp}", "\u00d7": r"\texttimes{}",
+    "\u22c5": r"\ensuremath{\cdot}", "\u221e": r"\ensuremath{\infty}", "\u2192": r"\ensuremath{\rightarrow}",
+    "\u2190": r"\ensuremath{\leftarrow}", "\u2191": r"\ensuremath{\uparrow}", "\u2193": r"\ensuremath{\downarrow}",
+    "\u2194": r"\ensuremath{\leftrightarrow}", "\u2032": r"\ensuremath{'}", "\u2033": r"\ensuremath{''}",
+    "\u2030": r"\textperthousand{}", "\u2122": r"\texttrademark{}", "\u2020": r"\textdagger{}",
+    "\u2021": r"\textdaggerdbl{}", "\u2022": r"\textbullet{}", "\u2026": r"\ldots{}", "\u20ac": r"\texteuro{}",
+    "\u2009": r"\,", "\u202f": r"\,", "\u2002": " ", "\u2003": " ", "\u2011": "-", "\u2010": "-",
+    "\u2018": "`", "\u2019": "'", "\u201c": "``", "\u201d": "''", "\u2013": "--", "\u2014": "---",
+    "\u03f5": r"\ensuremath{\epsilon}", "\u03d1": r"\ensuremath{\vartheta}", "\u03d5": r"\ensuremath{\phi}",
+}
+_GREEK = [
+    "alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta", "iota", "kappa",
+    "lambda", "mu", "nu", "xi", "o", "pi", "rho", "varsigma", "sigma", "tau", "upsilon", "phi",
+    "chi", "psi", "omega",
+]
+# Capitals with a command of their own; the others look like Latin letters and are set so.
+_GREEK_CAPITALS = [
+    "Gamma", "Delta", "Theta", "Lambda", "Xi", "Pi", "Sigma", "Upsilon", "Phi", "Psi", "Omega",
+]
+for _i, _name in enumerate(_GREEK):
+    _TEX_SYMBOLS[chr(0x3B1 + _i)] = "o" if _name == "o" else f"\\ensuremath{{\\{_name}}}"
+    if _name.capitalize() in _GREEK_CAPITALS:
+        _TEX_SYMBOLS[chr(0x391 + _i)] = f"\\ensuremath{{\\{_name.capitalize()}}}"
+_TEX_SYMBOLS.update(zip("\u0391\u0392\u0395\u0396\u0397\u0399\u039a\u039c\u039d\u039f\u03a1\u03a4\u03a7",
+                        "ABEZHIKMNOPTX"))
+_TEX_SYMBOLS["\u00b5"] = r"\ensuremath{\mu}"  # micro sign
+
+
+# What pdfLaTeX's utf8 input sets with T1 and TS1 fonts (the code points declared in LaTeX's
+# t1enc.dfu and ts1enc.dfu, TeX Live 2022): passed through as they are.
+_TEX_SETS = (
+    (0x00A0, 0x00B7), (0x00B9, 0x0125), (0x0128, 0x0137), (0x0139, 0x013E), (0x0141, 0x0148),
+    (0x014A, 0x0165), (0x0168, 0x017E), (0x0192, 0x0192), (0x01C4, 0x01D4), (0x01E2, 0x01E3),
+    (0x01E6, 0x01EB), (0x01F0, 0x01F0), (0x01F4, 0x01F5), (0x0218, 0x021B), (0x0232, 0x0233),
+    (0x0237, 0x0237), (0x02C7, 0x02C7), (0x02D8, 0x02D9), (0x02DB, 0x02DB), (0x02DD, 0x02DD),
+    (0x1E02, 0x1E03), (0x1E0D, 0x1E0D), (0x1E1E, 0x1E21), (0x1E25, 0x1E25), (0x1E30, 0x1E31),
+    (0x1E37, 0x1E37), (0x1E43, 0x1E43), (0x1E45, 0x1E45), (0x1E47, 0x1E47), (0x1E5B, 0x1E5B),
+    (0x1E63, 0x1E63), (0x1E6D, 0x1E6D), (0x1E8E, 0x1E91), (0x1E9E, 0x1E9E), (0x1EF2, 0x1EF3),
+    (0x2010, 0x2016), (0x2018, 0x201A), (0x201C, 0x201E), (0x2020, 0x2022), (0x2030, 0x2031),
+    (0x2039, 0x203B), (0x203D, 0x203D), (0x2044, 0x2044), (0x20AC, 0x20AC), (0x2103, 0x2103),
+    (0x2116, 0x2117), (0x2122, 0x2122), (0x2126, 0x2127), (0x2190, 0x2193), (0xFB00, 0xFB06),
+)
+
+
+def _tex_sets(code: int) -> bool:
+    return 0x20 <= code < 0x7F or any(a <= code <= b for a, b in _TEX_SETS)
+
+
+def _tex_char(ch: str) -> str:
+    if ch in _TEX_SPECIALS:
+        return _TEX_SPECIALS[ch]
+    if ch in _TEX_SYMBOLS:
+        return _TEX_SYMBOLS[ch]
+    category = unicodedata.category(ch)
+    if category == "Zs" or ch in "\t\n\r":
+        return " "
+    if category[0] in "CZ":  # controls, format marks (BOM, joiners), line separators
+        return ""
+    if _tex_sets(ord(ch)):
+        return ch
+    decomposed = unicodedata.normalize("NFKD", ch)
+    if decomposed != ch:
+        kept = "".join(_tex_char(c) for c in decomposed if not unicodedata.combining(c))
+        if kept and "<U+" not in kept:
+            return kept
+    # Beyond what the fonts set (CJK, emoji, rare scripts): its code point, visibly.
+    return f"\\textsf{{<U+{ord(ch):04X}>}}"
+
+
 def tex(text: object) -> str:
-    """Escape text for LaTeX."""
-    return "".join(_TEX_SPECIALS.get(ch, ch) for ch in ("" if text is None else str(text)))
+    """Escape text for pdfLaTeX (utf8 input, T1 fonts): specials escaped, brackets braced,
+    symbols and Greek as commands, accented letters reduced to what the fonts set, control
+    characters dropped, and anything else (CJK, emoji) as its code point, so any text a
+    report can contain compiles."""
+    return "".join(_tex_char(ch) for ch in ("" if text is None else str(text)))
 
 
 # Markdown text stays readable as plain text: instead of HTML entities (&#x27;, &gt;) the few

@@ -19,7 +19,7 @@ from robtui.core.calibration import CalibrationRound, MissingAssessment
 from robtui.core.comparison import AssessmentPair
 from robtui.core.model import SCHEMA_VERSION, Assessment, Review
 from robtui.errors import DataFileError, InputError
-from robtui.files import write_text_atomic
+from robtui.files import review_lock, write_text_atomic
 from robtui.store.records import check_schema, describe_validation, record_to_json
 
 ROUNDS_DIR = "calibration"
@@ -155,9 +155,12 @@ def load_rounds(root: Path) -> tuple[list[CalibrationRound], list[str]]:
 def save_round(root: Path, r: CalibrationRound) -> Path:
     """Write a new round file atomically; an existing round is never replaced."""
     path = round_path(root, r.number)
-    if path.exists():
-        raise InputError(f"{path} already exists: rounds are never replaced; record a new round")
-    write_text_atomic(path, record_to_json(_to_record(r)))
+    with review_lock(root):  # two rounds recorded at once never take the same file
+        if path.exists():
+            raise InputError(
+                f"{path} already exists: rounds are never replaced; record a new round"
+            )
+        write_text_atomic(path, record_to_json(_to_record(r)), locked=True)
     return path
 
 
@@ -178,13 +181,9 @@ def set_calibration_set(folder, study_ids: Sequence[str]) -> list[str]:
             "nothing was changed"
         )
     chosen = list(dict.fromkeys(chosen))
-    data = folder.review.model_dump()
-    data["calibration_studies"] = chosen
-    previous = folder.review
-    folder.review = Review.model_validate(data)
-    try:
-        folder.save_review()
-    except BaseException:
-        folder.review = previous
-        raise
+
+    def choose(review: Review) -> None:
+        review.calibration_studies = chosen
+
+    folder.edit_review(choose)  # under the lock, on review.toml as it is now
     return chosen

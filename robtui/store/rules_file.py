@@ -44,7 +44,7 @@ from robtui.core.rules import (
     validate_rulebook,
 )
 from robtui.errors import DataFileError, InputError
-from robtui.files import write_text_atomic
+from robtui.files import review_lock, write_text_atomic
 from robtui.store.records import check_schema
 from robtui.store.records import read_text_file as read_text
 
@@ -233,6 +233,12 @@ def save_rulebook(
     path = Path(path)
     if qset is not None:
         check_rulebook(book, qset, path)
+    # The check of the version on disk and the write happen under the review's lock.
+    with review_lock(path.parent):
+        return _save_rulebook_locked(path, book, expected_version)
+
+
+def _save_rulebook_locked(path: Path, book: RuleBook, expected_version: int) -> RuleBook:
     previous_text = None
     if path.exists():
         try:
