@@ -37,13 +37,17 @@ def kind_of(path: Path) -> str:
 # The largest files read (stated in the README). A trial report's text is well under 2 MB and
 # its PDF rarely above 50 MB; text is held several times over while sentences and features are
 # built, so its limit is lower.
-MAX_BYTES = {"pdf": 200 * 1024 * 1024, "txt": 20 * 1024 * 1024, "md": 20 * 1024 * 1024,
-             "html": 40 * 1024 * 1024}
+MAX_BYTES = {"pdf": 200 * 1024 * 1024, "html": 40 * 1024 * 1024}
+MAX_TEXT_BYTES = 20 * 1024 * 1024  # text, Markdown, registry records
+
+
+def size_limit(kind: str) -> int:
+    return MAX_BYTES.get(kind, MAX_TEXT_BYTES)
 
 
 def check_size(path: Path, kind: str, size: int) -> None:
     """ReadingError when a file is larger than robtui reads (the limit is in the message)."""
-    limit = MAX_BYTES[kind]
+    limit = size_limit(kind)
     if size > limit:
         raise ReadingError(
             f"{path}: {size / 1024 / 1024:.0f} MB is more than robtui reads for a {kind} file "
@@ -61,7 +65,7 @@ def read_document(path: Path, *, use_cache: bool = True) -> Document:
     try:
         check_size(path, kind, path.stat().st_size)
         with open(path, "rb") as handle:  # never more than the limit, even if it grows
-            data = handle.read(MAX_BYTES[kind] + 1)
+            data = handle.read(size_limit(kind) + 1)
         check_size(path, kind, len(data))
     except FileNotFoundError:
         raise ReadingError(f"{path}: no such file") from None
