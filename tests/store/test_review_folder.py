@@ -121,7 +121,7 @@ def test_consensus_round_trip(folder: ReviewFolder):
     )
     path = folder.save_consensus(c)
     assert path == folder.root / "consensus" / "S1--pain12.json"
-    from robtui.core.comparison import recompute_consensus
+    from robtui.core.consensus import recompute_consensus
     from robtui.store.question_sets import builtin_question_set
 
     derived = recompute_consensus(c, builtin_question_set("rob2-parallel")).model_copy(
