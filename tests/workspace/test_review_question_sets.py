@@ -112,7 +112,7 @@ def assess(capsys, root: Path, reviewer: str, study: str, answers: dict[str, str
     assert code == 0, err
 
 
-def test_an_own_set_goes_through_assess_compare_consensus_and_export(review, capsys):
+def test_an_own_set_goes_through_assess_compare_consensus_and_export(review, capsys, monkeypatch):
     ws = Workspace.open(review)
     extra = ws.question_set_for("W1")
     assert extra.id == "team-extra" and "1x" in extra.domain_ids()
@@ -130,6 +130,7 @@ def test_an_own_set_goes_through_assess_compare_consensus_and_export(review, cap
     assert (stored.question_set, stored.question_set_version) == ("team-extra", "1")
     assert stored.final["1x"] == "low" and "1x" in stored.proposed
 
+    monkeypatch.setenv("ROBTUI_REVIEWER", "lee")  # from here the lead asks (core/blinding.py)
     code, out, err = run(capsys, "compare", review, "--study", "W1", "--json")
     assert code == 0, err
     [pair] = json.loads(out)["pairs"]
