@@ -196,13 +196,13 @@ def refuse_if_changed(path: Path, expected: str | None) -> None:
 
 # -- confinement -----------------------------------------------------------------------------
 def confined(root: Path, path: Path) -> Path:
-    """``path`` (absolute, or relative to ``root``) when it stays inside ``root``.
+    """``path`` (absolute, or relative to the working folder, as ``root`` is) when it stays
+    inside ``root``; returned absolute.
 
     Every existing part of the path below ``root`` must be a real file or folder: a symlink
     is refused (it could point anywhere later), as are '..' and absolute paths outside.
     """
-    root = Path(root)
-    path = Path(path) if Path(path).is_absolute() else root / path
+    root, path = Path(root), Path(path)
     real_root = root.resolve()
     try:
         relative = Path(os.path.abspath(path)).relative_to(os.path.abspath(root))

@@ -126,3 +126,19 @@ def test_files_take_their_mode_from_the_umask(tmp_path):
         assert stat.S_IMODE(lock.stat().st_mode) == 0o664, "the group can take the lock too"
     finally:
         os.umask(old)
+
+
+def test_a_review_given_by_a_relative_path_works(root, monkeypatch, capsys):
+    from robtui.cli import main
+
+    monkeypatch.chdir(root.parent)
+    report = root.parent / "more.txt"
+    report.write_text("Allocation was concealed.\n", encoding="utf-8")
+    study = ["study", "add", root.name, "--id", "S2", "--label", "Two", "--report", "more.txt"]
+    assert main(study) == 0
+    assert main(["assess", root.name, "--reviewer", "ana", "--study", "S2", "--result", "r1",
+                 "1.1=Y"]) == 0  # fmt: skip
+    capsys.readouterr()
+    folder = ReviewFolder.open(root)
+    assert [s.id for s in folder.review.studies] == ["S1", "S2"]
+    assert folder.load_assessment("ana", "S2", "r1").answers["1.1"].response == "Y"
