@@ -45,14 +45,14 @@ def run(args: argparse.Namespace) -> int:
         print(
             "nothing to assess yet: add studies (`robtui study add`) and results (`robtui result add`)"
         )
-    header = f"{'study':<16} {'result':<16} {'reviewer':<12} {'status':<12} {'answered':<9} overall"
+    header = f"{'study':<16} {'result':<16} {'reviewer':<12} {'status':<16} {'answered':<9} overall"
     if rows:
         print(header)
     for r in rows:
         blind = r.status == "not started" or r.status.endswith("(blind)")
         count = "-" if blind else f"{r.answered}/{r.asked}"
         overall = JUDGEMENT_LABELS[r.overall] if r.overall else "-"
-        print(f"{r.study:<16} {r.result:<16} {r.reviewer:<12} {r.status:<12} {count:<9} {overall}")
+        print(f"{r.study:<16} {r.result:<16} {r.reviewer:<12} {r.status:<16} {count:<9} {overall}")
     done = sum(r.status.startswith("complete") for r in rows)
     if rows:
         print(f"{done} of {len(rows)} assessments complete")
