@@ -14,6 +14,14 @@ from robtui.cli import main
 from robtui.store.demo import build_demo_review
 
 
+@pytest.fixture(autouse=True)
+def _asking_as_the_lead(monkeypatch):
+    """compare, agreement and export show both reviewers' work: the demo's lead asks
+    (robtui.core.blinding)."""
+    monkeypatch.setenv("ROBTUI_REVIEWER", "ines")
+
+
+
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory):
     return build_demo_review(tmp_path_factory.mktemp("mixed") / "demo").root

@@ -57,7 +57,7 @@ def test_a_bug_in_robtuis_pdf_code_is_reported_as_a_bug_not_a_damaged_file(tmp_p
 
     path = tmp_path / "fine.pdf"
     render_text_as_pdf(TEXT, path)
-    monkeypatch.setattr(pdf, "extract_page", lambda *a, **k: normalise_chars(None))
+    monkeypatch.setattr(pdf, "analyse_page", lambda *a, **k: normalise_chars(None))
     with pytest.raises(ReaderBugError, match="bug in robtui itself") as caught:
         read_document(path, use_cache=False)
     assert "robtui/reading/normalise.py" in str(caught.value)
