@@ -143,7 +143,7 @@ def _confinement(work: Path) -> None:
     (root / "reports" / "S1").symlink_to(work / "moved-reports", target_is_directory=True)
     report = outside / "extra.txt"
     report.write_text("Allocation was concealed.\n", encoding="utf-8")
-    refused += cli(["study", "report", str(root), "--id", "S1", str(report)]) != 0
+    refused += cli(["study", "report", str(root), "--study", "S1", "--report", str(report)]) != 0
     written = sorted(p.name for p in outside.iterdir() if p.name != "extra.txt")
     print(
         f"confinement: {len(probes) + 1} probes, {refused} refused, "

@@ -134,7 +134,7 @@ def test_a_review_given_by_a_relative_path_works(root, monkeypatch, capsys):
     monkeypatch.chdir(root.parent)
     report = root.parent / "more.txt"
     report.write_text("Allocation was concealed.\n", encoding="utf-8")
-    study = ["study", "add", root.name, "--id", "S2", "--label", "Two", "--report", "more.txt"]
+    study = ["study", "add", root.name, "--study", "S2", "--label", "Two", "--report", "more.txt"]
     assert main(study) == 0
     assert main(["assess", root.name, "--reviewer", "ana", "--study", "S2", "--result", "r1",
                  "1.1=Y"]) == 0  # fmt: skip
