@@ -496,12 +496,14 @@ class AssessmentSession:
         """The RoB 2 form's support of a domain judgement (None: leave it) and the optional
         predicted direction of bias of a domain or the overall."""
         self._editable()
-        updated = self.assessment
-        if support is not None:
-            updated = assessing.set_support(updated, self.qset, key, support)
-        updated = assessing.set_direction(updated, self.qset, key, direction)
-        if updated is not self.assessment:
-            self._commit(updated)
+
+        def change(a: Assessment) -> Assessment:
+            if support is not None:
+                a = assessing.set_support(a, self.qset, key, support)
+            return assessing.set_direction(a, self.qset, key, direction)
+
+        if change(self.assessment) is not self.assessment:
+            self._commit(change)
 
     def clear_override(self, key: str) -> None:
         self._editable()
