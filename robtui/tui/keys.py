@@ -125,6 +125,21 @@ KEY_MAP: tuple[KeyHelp, ...] = (
 )
 
 
+def domain_bindings(qset, taken: set[str]) -> dict[str, str]:
+    """Key -> domain id from the question set (QuestionSet.domain_keys), leaving out keys the
+    screen already uses for something else."""
+    return {k: d for k, d in qset.domain_keys().items() if k not in taken}
+
+
+def keys_label(keys: list[str]) -> str:
+    """Domain keys for the footer: consecutive digits as a range, others after ("1-5 b")."""
+    digits = [k for k in keys if k.isdigit()]
+    others = [k for k in keys if not k.isdigit()]
+    run = digits and [int(k) for k in digits] == list(range(int(digits[0]), int(digits[-1]) + 1))
+    head = f"{digits[0]}-{digits[-1]}" if run and len(digits) > 1 else "/".join(digits)
+    return " ".join(part for part in (head, "/".join(others)) if part)
+
+
 def key_map_markdown() -> str:
     """The key map as a Markdown table (for the README)."""
     lines = ["| Where | Keys | What |", "| --- | --- | --- |"]

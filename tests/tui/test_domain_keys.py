@@ -7,7 +7,8 @@ import pytest
 from robtui.store.question_sets import available_question_sets, builtin_question_set
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
-from robtui.tui.screens.assessment import AssessmentScreen, domain_bindings, keys_label
+from robtui.tui.keys import domain_bindings, keys_label
+from robtui.tui.screens.assessment import AssessmentScreen
 
 from .conftest import SIZE
 from .helpers import open_selected

@@ -79,7 +79,7 @@ async def test_justification_typed_just_before_quitting_is_saved(demo_dir):
 
 
 async def test_justification_of_several_lines_is_saved_when_typing_pauses(demo_dir):
-    from robtui.tui.screens.assessment import JUSTIFICATION_SAVE_DELAY
+    from robtui.tui.screens.assessment.justifying import JUSTIFICATION_SAVE_DELAY
     from robtui.tui.widgets.justification import JustificationArea
     from robtui.tui.widgets.question_list import QuestionList
 
