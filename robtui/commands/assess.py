@@ -236,8 +236,8 @@ def question_lines(a, qset) -> list[str]:
 def run(args: argparse.Namespace) -> int:
     from robtui.core import assessing
     from robtui.core.rules import stamp_rules_version
+    from robtui.store.ids import check_id
     from robtui.store.records import record_to_json
-    from robtui.store.review_folder import check_id
     from robtui.workspace import Workspace
 
     ws = Workspace.open(args.folder)

@@ -44,7 +44,7 @@ def fresh_demo_dir() -> Path:
 def run(args: argparse.Namespace) -> int:
     from robtui.errors import InputError
     from robtui.store.demo import build_demo_review
-    from robtui.store.review_folder import check_id
+    from robtui.store.ids import check_id
 
     if args.reviewer is not None:
         check_id(args.reviewer, "reviewer")

@@ -29,8 +29,9 @@ def run(args: argparse.Namespace) -> int:
     import json
 
     from robtui.core.questions import JUDGEMENT_LABELS
+    from robtui.store.ids import check_id
     from robtui.store.progress import progress_json, review_progress
-    from robtui.store.review_folder import ReviewFolder, check_id
+    from robtui.store.review_folder import ReviewFolder
 
     folder = ReviewFolder.open(args.folder)
     if args.reviewer is not None:

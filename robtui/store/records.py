@@ -16,7 +16,7 @@ import tomli_w
 from pydantic import BaseModel, ValidationError
 
 from robtui.core.model import OVERALL, SCHEMA_VERSION
-from robtui.errors import DataFileError, NewerSchemaError
+from robtui.errors import DataFileError, InputError, NewerSchemaError
 
 M = TypeVar("M", bound=BaseModel)
 
@@ -187,3 +187,11 @@ def read_json_record(model: type[M], path: Path) -> M:
 def read_toml_record(model: type[M], path: Path) -> M:
     """Read and validate a TOML record file."""
     return parse_record_bytes(model, _read_bytes(path), path, "toml")
+
+
+def validated(model: type[M], data: dict, what: str) -> M:
+    """``data`` as a ``model`` record; InputError names ``what`` and the fields at fault."""
+    try:
+        return model.model_validate(data)
+    except ValidationError as error:
+        raise InputError(f"{what}: {describe_validation(error)}") from None

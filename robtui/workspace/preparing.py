@@ -123,7 +123,7 @@ def default_workers() -> int:
 def jobs_for_files(paths: Iterable[Path], effects: Sequence[str] = ("assignment",)
                    ) -> tuple[list[PrepareJob], list[ReportOutcome]]:
     """A job per readable file; files that cannot even be opened come back as failures."""
-    from robtui.store.review_folder import sha256_of
+    from robtui.store.report_copies import sha256_of
 
     jobs, failures = [], []
     for path in paths:

@@ -12,7 +12,8 @@ from robtui.cli import main
 from robtui.errors import DataFileError, InputError
 from robtui.files import OutsideReviewError
 from robtui.store.demo import build_demo_review
-from robtui.store.review_folder import ReviewFolder, check_id
+from robtui.store.ids import check_id
+from robtui.store.review_folder import ReviewFolder
 
 
 @pytest.fixture(scope="module")
