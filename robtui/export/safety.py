@@ -100,33 +100,102 @@ def _tex_sets(code: int) -> bool:
     return 0x20 <= code < 0x7F or any(a <= code <= b for a, b in _TEX_SETS)
 
 
+def _pdflatex_fallback(ch: str) -> str:
+    """What pdfLaTeX sets for a character its fonts lack: the symbol command, the letters of
+    its compatibility decomposition, or else its code point, visibly."""
+    if ch in _TEX_SYMBOLS:
+        return _TEX_SYMBOLS[ch]
+    decomposed = unicodedata.normalize("NFKD", ch)
+    if decomposed != ch:
+        kept = "".join(_tex_char(c) for c in decomposed if not unicodedata.combining(c))
+        if kept and "<U+" not in kept and "\\rtchar" not in kept:
+            return kept
+    return f"\\textsf{{<U+{ord(ch):04X}>}}\\allowbreak{{}}"
+
+
 def _tex_char(ch: str) -> str:
     if ch in _TEX_SPECIALS:
         return _TEX_SPECIALS[ch]
-    if ch in _TEX_SYMBOLS:
-        return _TEX_SYMBOLS[ch]
+    code = ord(ch)
+    if ch in _TEX_SYMBOLS and _tex_sets(code):
+        return _TEX_SYMBOLS[ch]  # dashes, quotes, spaces: TeX's own ligatures and commands
     category = unicodedata.category(ch)
     if category == "Zs" or ch in "\t\n\r":
         return " "
     if category[0] in "CZ":  # controls, format marks (BOM, joiners), line separators
         return ""
-    if _tex_sets(ord(ch)):
-        return ch
-    decomposed = unicodedata.normalize("NFKD", ch)
-    if decomposed != ch:
-        kept = "".join(_tex_char(c) for c in decomposed if not unicodedata.combining(c))
-        if kept and "<U+" not in kept:
-            return kept
-    # Beyond what the fonts set (CJK, emoji, rare scripts): its code point, visibly.
-    return f"\\textsf{{<U+{ord(ch):04X}>}}"
+    if code < 0x180 and _tex_sets(code):
+        return ch  # Latin-1 and Latin Extended-A: in Latin Modern for every engine
+    # Beyond (rarer Latin, Greek, maths, CJK, emoji, other scripts): the character itself for
+    # a Unicode engine, which sets it in the first font that has it, and for pdfLaTeX the
+    # character if its T1/TS1 fonts set it, else a fallback (see TEX_FONT_SETUP).
+    fallback = ch if _tex_sets(code) else _pdflatex_fallback(ch)
+    return f"\\rtchar{{{ch}}}{{{code:X}}}{{{fallback}}}"
 
 
 def tex(text: object) -> str:
-    """Escape text for pdfLaTeX (utf8 input, T1 fonts): specials escaped, brackets braced,
-    symbols and Greek as commands, accented letters reduced to what the fonts set, control
-    characters dropped, and anything else (CJK, emoji) as its code point, so any text a
-    report can contain compiles."""
-    return "".join(_tex_char(ch) for ch in ("" if text is None else str(text)))
+    """Escape text for the .tex export, which compiles with pdfLaTeX, LuaLaTeX and XeLaTeX:
+    specials escaped, brackets braced, control characters dropped; a character pdfLaTeX's
+    T1/TS1 fonts lack goes through ``\\rtchar``, so a Unicode engine prints it (in a fallback
+    font when Latin Modern lacks it) and pdfLaTeX prints a command, its decomposition or its
+    code point. Text is composed (NFC) first, so accents travel with their letters."""
+    composed = unicodedata.normalize("NFC", "" if text is None else str(text))
+    out, line = [], 0
+    for ch in composed:
+        piece = _tex_char(ch)
+        out.append(piece)
+        line += len(piece)
+        if line > 120:
+            # TeX reads a file line by line into a fixed buffer (TeX Live: buf_size 200,000):
+            # a comment ending the line keeps any text of any length inside it, adding no space.
+            out.append("%\n")
+            line = 0
+    return "".join(out)
+
+
+# Fonts a Unicode engine tries, in turn, for a character Latin Modern lacks: free fonts with
+# broad coverage that TeX distributions and Linux systems commonly carry (common practice, no
+# source). Only those installed where the .tex is compiled are used; a character none of them
+# has is printed as its code point, never dropped.
+TEX_FALLBACK_FONTS = (
+    "DejaVu Serif", "DejaVu Sans", "FreeSerif", "Noto Serif", "Noto Sans",
+    "Noto Serif CJK SC", "Noto Sans CJK SC", "Droid Sans Fallback", "Noto Sans Symbols",
+    "Noto Sans Symbols2", "Symbola", "Noto Emoji",
+)  # fmt: skip
+
+# The preamble lines that choose the fonts by engine (iftex): LuaLaTeX and XeLaTeX load
+# fontspec (Latin Modern, as pdfLaTeX) and define \rtchar{char}{hex}{fallback} to set the
+# character in the current font if it has it (\iffontchar), else in the first fallback font
+# that has it, else the fallback; pdfLaTeX loads T1 Latin Modern and sets the fallback.
+TEX_FONT_SETUP = [
+    r"\usepackage{iftex}",
+    r"\makeatletter",
+    r"\iftutex",
+    r"  \usepackage{fontspec}",
+    r"  \newcount\rt@fonts \let\rt@chain\@empty",
+    r"  \newcommand*\rt@fallback[1]{\IfFontExistsTF{#1}{\global\advance\rt@fonts\@ne",
+    r"    \expandafter\newfontfamily\csname rt@font\romannumeral\rt@fonts\endcsname{#1}",
+    r"    \expandafter\g@addto@macro\expandafter\rt@chain\expandafter",
+    r"      {\csname rt@font\romannumeral\rt@fonts\endcsname}}{}}",
+    r"  \@for\rt@name:={" + ",".join(TEX_FALLBACK_FONTS) + "}\\do",
+    r"    {\expandafter\rt@fallback\expandafter{\rt@name}}",
+    r'  \newcommand\rt@has[3]{\iffontchar\font"#1 \expandafter\@firstoftwo',
+    r"    \else\expandafter\@secondoftwo\fi{#2}{#3}}",
+    r"  \def\rt@stop{\rt@stop}\def\rt@skip#1\rt@stop{}",
+    r"  \def\rt@walk#1#2#3#4{\ifx#4\rt@stop\expandafter\@firstoftwo\else",
+    r"    \expandafter\@secondoftwo\fi{#3}{\begingroup#4\rt@has{#2}{#1\endgroup\rt@skip}",
+    r"    {\endgroup\rt@walk{#1}{#2}{#3}}}}",
+    r"  \def\rt@start#1\rt@stop#2#3#4{\rt@walk{#2}{#3}{#4}#1\rt@stop}",
+    r"  \DeclareRobustCommand\rtchar[3]{\rt@has{#2}{#1}",
+    r"    {\expandafter\rt@start\rt@chain\rt@stop{#1}{#2}{#3}}}",
+    r"\else",
+    r"  \usepackage[utf8]{inputenc}",
+    r"  \usepackage[T1]{fontenc}",
+    r"  \usepackage{lmodern}",  # Latin Modern: vector Type 1 fonts, embedded by pdfTeX
+    r"  \DeclareRobustCommand\rtchar[3]{#3}",
+    r"\fi",
+    r"\makeatother",
+]
 
 
 # Markdown text stays readable as plain text: instead of HTML entities (&#x27;, &gt;) the few

@@ -16,7 +16,7 @@ from pathlib import Path
 from robtui.core.model import JUDGEMENTS, Assessment, Consensus
 from robtui.core.review_sets import review_sets
 from robtui.export.palette import OUTLINE, SWATCHES, swatch
-from robtui.export.safety import csv_cell, export_path, markup, md, tex
+from robtui.export.safety import TEX_FONT_SETUP, csv_cell, export_path, markup, md, tex
 from robtui.export.tables import OutcomeExport, build_outcome_export, column_titles
 from robtui.files import write_bytes_atomic, write_text_atomic
 
@@ -343,9 +343,7 @@ def _share(fraction: float) -> str:
 
 _TEX_PREAMBLE = [
     r"\documentclass[a4paper,10pt]{article}",
-    r"\usepackage[utf8]{inputenc}",
-    r"\usepackage[T1]{fontenc}",
-    r"\usepackage{lmodern}",  # Latin Modern: vector Type 1 fonts, embedded by pdfTeX
+    *TEX_FONT_SETUP,  # pdfLaTeX, or LuaLaTeX/XeLaTeX with fallback fonts for any Unicode
     r"\usepackage[table]{xcolor}",
     r"\usepackage{array,longtable}",
     r"\usepackage[margin=20mm]{geometry}",
