@@ -24,6 +24,7 @@ import os
 import statistics
 import tempfile
 import time
+from dataclasses import dataclass, field
 from pathlib import Path
 
 TARGET_PAGES = 12
@@ -100,6 +101,8 @@ def _quiet_init() -> None:
 
 
 def _run(paths: list[Path], workers: int, cache: Path):
+    """Prepare ``paths`` with an empty cache of their own; the summary and the load average
+    and this (parent) process's CPU seconds over the run."""
     from robtui.workspace.preparing import jobs_for_files, prepare
 
     os.environ["ROBTUI_CACHE_DIR"] = str(cache)  # inherited by the spawned workers
@@ -107,7 +110,11 @@ def _run(paths: list[Path], workers: int, cache: Path):
     jobs, problems = jobs_for_files(paths)
     if problems:
         raise SystemExit(f"could not read {problems[0].path}: {problems[0].error}")
-    return prepare(jobs, workers=workers)
+    before = os.times()
+    summary = prepare(jobs, workers=workers)
+    after = os.times()
+    parent_cpu = (after.user - before.user) + (after.system - before.system)
+    return summary, os.getloadavg()[0], parent_cpu
 
 
 def _forget_fingerprints() -> None:
@@ -118,17 +125,45 @@ def _forget_fingerprints() -> None:
     reader_fingerprint.cache_clear()
 
 
-def _figures(name: str, summary) -> tuple[float, float]:
-    reports = len(summary.prepared)
-    pages = sum(o.pages for o in summary.prepared)
-    per_minute = 60.0 * reports / summary.seconds
-    per_second = pages / summary.seconds
-    print(f"{name}: {reports} reports, {pages} pages ({pages / max(reports, 1):.1f} per report) "
-          f"in {summary.seconds:.1f} s: {per_minute:.1f} reports/min, {per_second:.2f} pages/s"
-          + (f"; {len(summary.failures)} failed" if summary.failures else ""))
+@dataclass
+class Rate:
+    """Reports and pages prepared over some wall-clock seconds, and the CPU seconds they took."""
+
+    reports: int = 0
+    pages: int = 0
+    seconds: float = 0.0
+    cpu: float = 0.0
+    loads: list[float] = field(default_factory=list)
+
+    def add(self, summary, load: float) -> Rate:
+        self.reports += len(summary.prepared)
+        self.pages += sum(o.pages for o in summary.prepared)
+        self.seconds += summary.seconds
+        self.cpu += sum(o.cpu_seconds for o in summary.prepared)
+        self.loads.append(load)
+        return self
+
+    @property
+    def per_minute(self) -> float:
+        return 60.0 * self.reports / self.seconds if self.seconds else 0.0
+
+    @property
+    def pages_per_second(self) -> float:
+        return self.pages / self.seconds if self.seconds else 0.0
+
+    def line(self, name: str) -> str:
+        return (f"{name}: {self.reports} reports, {self.pages} pages "
+                f"({self.pages / max(self.reports, 1):.1f} per report) in {self.seconds:.1f} s: "
+                f"{self.per_minute:.1f} reports/min, {self.pages_per_second:.2f} pages/s; "
+                f"{self.cpu / max(self.reports, 1):.2f} CPU s per report; load average "
+                + ", ".join(f"{x:.2f}" for x in self.loads))
+
+
+def _failures(summary) -> None:
     for failure in summary.failures[:3]:
         print(f"  failed: {failure.error}")
-    return per_minute, per_second
+    if summary.failures:
+        print(f"  ({len(summary.failures)} failed)")
 
 
 def _memory(summary) -> None:
@@ -139,6 +174,55 @@ def _memory(summary) -> None:
         quarter = peaks[max(0, len(peaks) // 4 - 1)]
         print(f"  worker {pid}: {len(peaks)} reports, peak memory {max(peaks):.0f} MB "
               f"(after its first quarter {quarter:.0f} MB)")
+
+
+def _where_time_went(summary, parent_cpu: float) -> None:
+    """The pool's wall time split: workers starting, preparing, idle at the tail; how much of a
+    core the workers had while preparing (below 1: other processes held the cores)."""
+    by_worker: dict[int, list] = {}
+    for outcome in summary.outcomes:
+        by_worker.setdefault(outcome.worker, []).append(outcome)
+    if not by_worker:
+        return
+    end = summary.began + summary.seconds
+    workers = len(by_worker)
+    start_up = [min(o.started for o in mine) - summary.began for mine in by_worker.values()]
+    busy = sum(o.ended - o.started for o in summary.outcomes)
+    cpu = sum(o.cpu_seconds for o in summary.outcomes)
+    last_ends = sorted(max(o.ended for o in mine) for mine in by_worker.values())
+    tail = last_ends[-1] - last_ends[0]
+    print(f"  where the pool's {summary.seconds:.1f} s went: workers starting "
+          f"{statistics.mean(start_up):.2f} s each (spawn, imports, ranker); preparing "
+          f"{100 * busy / (workers * summary.seconds):.1f}% of {workers} x the run; tail (one "
+          f"worker idle at the end) {tail:.2f} s; between reports and after the last "
+          f"{sum(max(0.0, end - o) for o in last_ends) / workers:.2f} s per worker; "
+          f"the workers had {cpu / busy:.2f} of a core each while preparing (1.00: a core to "
+          f"itself); the parent used {parent_cpu:.2f} CPU s")
+
+
+def _ceiling(additions: int = 20_000_000) -> float:
+    """How much faster two copies of a plain CPU loop run at once than one alone, right now:
+    what the machine (cores, hypervisor, other work) gives a pool of two at best."""
+    import multiprocessing
+
+    context = multiprocessing.get_context("spawn")
+    started = time.perf_counter()
+    _spin(additions)
+    alone = time.perf_counter() - started
+    with context.Pool(2) as pool:
+        pool.map(_spin, [1000, 1000], chunksize=1)  # both started first
+        started = time.perf_counter()
+        pool.map(_spin, [additions, additions], chunksize=1)
+        both = time.perf_counter() - started
+    return 2 * alone / both
+
+
+def _spin(additions: int) -> int:
+    """A fixed amount of pure-Python work (about a second on a free core of this machine)."""
+    total = 0
+    for i in range(additions):
+        total += i
+    return total
 
 
 def _open_times(paths: list[Path], cache: Path, count: int) -> list[float]:
@@ -205,6 +289,61 @@ async def _open_panel(root: Path, opens: int) -> list[float]:
     return times
 
 
+def _measure_once(paths: list[Path], baseline: int, workers: int, tmp: Path
+                  ) -> tuple[Rate, Rate, list]:
+    """One process on half the baseline, the pool on every report, one process on the other
+    half (a load that drifts during the run weighs on both)."""
+    half = max(1, baseline // 2)
+    one, pool = Rate(), Rate()
+    runs = []
+    first, load, _cpu = _run(paths[:half], 0, tmp / "cache-one-a")
+    one.add(first, load)
+    runs.append(first)
+    summary, load, parent_cpu = _run(paths, workers, tmp / "cache-pool")
+    pool.add(summary, load)
+    if baseline > half:
+        second, load, _cpu = _run(paths[half:baseline], 0, tmp / "cache-one-b")
+        one.add(second, load)
+        runs.append(second)
+    print(one.line("one process (half before the pool, half after)"))
+    for run in runs:
+        _failures(run)
+    _memory(runs[0])
+    print(pool.line(f"pool of {workers}"))
+    _failures(summary)
+    _memory(summary)
+    _where_time_went(summary, parent_cpu)
+    return one, pool, [summary]
+
+
+def _measure_in_rounds(paths: list[Path], baseline: int, workers: int, rounds: int, tmp: Path
+                       ) -> tuple[Rate, Rate, list]:
+    """Rounds of one process then the pool, each on its own slice of the reports: on a busy
+    machine each round's ratio is taken under about the same load."""
+    one, pool, ratios, summaries = Rate(), Rate(), [], []
+    for number in range(rounds):
+        chunk = paths[number * len(paths) // rounds:(number + 1) * len(paths) // rounds]
+        alone = chunk[:max(1, baseline // rounds)]
+        single, load_one, _cpu = _run(alone, 0, tmp / f"cache-one-{number}")
+        summary, load_pool, parent_cpu = _run(chunk, workers, tmp / f"cache-pool-{number}")
+        a, b = Rate().add(single, load_one), Rate().add(summary, load_pool)
+        one.add(single, load_one)
+        pool.add(summary, load_pool)
+        ratios.append(b.per_minute / a.per_minute if a.per_minute else 0.0)
+        summaries.append(summary)
+        print(f"round {number + 1}: one process {a.per_minute:.1f} reports/min "
+              f"({len(alone)} reports, load {load_one:.2f}), pool {b.per_minute:.1f} reports/min "
+              f"({len(chunk)} reports, load {load_pool:.2f}): {ratios[-1]:.2f}x")
+        _where_time_went(summary, parent_cpu)
+    print(one.line("one process, all rounds"))
+    print(pool.line(f"pool of {workers}, all rounds"))
+    for summary in summaries:
+        _failures(summary)
+        _memory(summary)
+    print(f"median of the rounds' speed-ups: {statistics.median(ratios):.2f}x")
+    return one, pool, summaries
+
+
 def main(argv: list[str] | None = None) -> int:
     from robtui.workspace.preparing import default_workers
 
@@ -215,35 +354,46 @@ def main(argv: list[str] | None = None) -> int:
                         help="reports prepared in one process (default: all of them)")
     parser.add_argument("--workers", type=int, default=default_workers(),
                         help=f"pool size (default: all cores, here {default_workers()})")
+    parser.add_argument("--rounds", type=int, default=1, metavar="R",
+                        help="alternate one process and the pool in R rounds, each on its own "
+                             "slice of the reports (for a busy machine; default 1: the pool "
+                             "prepares every report in one run)")
     parser.add_argument("--keep", type=Path, default=None, metavar="DIR",
                         help="keep the rendered reports in DIR and reuse them next time")
     parser.add_argument("--open", type=int, default=20, metavar="N",
                         help="prepared reports opened as the workbench does (20)")
     args = parser.parse_args(argv)
-    if args.reports < 1 or args.workers < 1:
-        parser.error("--reports and --workers must be at least 1")
+    if args.reports < 1 or args.workers < 1 or args.rounds < 1:
+        parser.error("--reports, --workers and --rounds must be at least 1")
     baseline = min(args.baseline or args.reports, args.reports)
     print(f"load average before: {' '.join(f'{x:.2f}' for x in os.getloadavg())} "
-          f"({os.cpu_count()} cores)")
+          f"({os.cpu_count()} cores; niceness {os.nice(0)})")
+    print(f"two plain CPU loops at once ran {_ceiling():.2f}x as fast as one alone "
+          f"(what this machine gives two processes right now)")
     with tempfile.TemporaryDirectory(prefix="robtui-bench-prepare-") as tmp:
         tmp = Path(tmp)
         paths = build_reports(args.keep or tmp / "reports", args.reports, args.workers)
-        single = _run(paths[:baseline], 0, tmp / "cache-one")
-        one_rate, one_pages = _figures("one process", single)
-        _memory(single)
-        pool = _run(paths, args.workers, tmp / "cache-pool")
-        pool_rate, pool_pages = _figures(f"pool of {args.workers}", pool)
-        _memory(pool)
-        print(f"speed-up over one process: {pool_rate / one_rate:.2f}x reports/min, "
-              f"{pool_pages / one_pages:.2f}x pages/s")
-        opened = _open_times(paths, tmp / "cache-pool", min(args.open, len(paths)))
+        if args.rounds == 1:
+            one, pool, summaries = _measure_once(paths, baseline, args.workers, tmp)
+        else:
+            one, pool, summaries = _measure_in_rounds(paths, baseline, args.workers,
+                                                      args.rounds, tmp)
+        print(f"speed-up over one process: {pool.per_minute / one.per_minute:.2f}x reports/min, "
+              f"{pool.pages_per_second / one.pages_per_second:.2f}x pages/s; CPU seconds per "
+              f"report {pool.cpu / max(pool.reports, 1) / (one.cpu / max(one.reports, 1)):.2f}x "
+              f"the one process's (target: 1.8x reports/min on 2 cores)")
+        peak = max((o.peak_rss_mb for s in summaries for o in s.outcomes), default=0.0)
+        print(f"peak memory of any worker: {peak:.0f} MB")
+        prepared_cache = tmp / ("cache-pool" if args.rounds == 1 else "cache-pool-0")
+        prepared_paths = paths if args.rounds == 1 else paths[:len(paths) // args.rounds]
+        opened = _open_times(prepared_paths, prepared_cache, min(args.open, len(prepared_paths)))
         print(f"workbench opens a prepared report's suggestions: median "
               f"{statistics.median(opened) * 1000:.0f} ms, max {max(opened) * 1000:.0f} ms "
-              f"(n={len(opened)}; first open includes loading modules)")
+              f"(n={len(opened)}; first open includes loading modules; target 200 ms)")
         panel = _panel_times(tmp / "demo", tmp / "cache-demo")
         print(f"pre-specification panel of a prepared demo study, opening to findings shown: "
               f"first {panel[0] * 1000:.0f} ms, then median "
               f"{statistics.median(panel[1:]) * 1000:.0f} ms, max {max(panel[1:]) * 1000:.0f} ms "
-              f"(n={len(panel)}, the workbench under Textual's test driver)")
+              f"(n={len(panel)}, the workbench under Textual's test driver; target 200 ms)")
     print(f"load average after: {' '.join(f'{x:.2f}' for x in os.getloadavg())}")
     return 0

@@ -13,21 +13,44 @@ tokens" attacks, and the Expat bundled here may be older):
   study-data-structure, as listed by DesayoEm/Clinexa-ETL-ELT-Pipeline
   documentation/data/single_fields.md) and the Protocol Registration Data Element Definitions
   (clinicaltrials.gov/policy/protocol-definitions).
-- ClinicalTrials.gov classic record XML (``<clinical_study>``, public.xsd): ``id_info/nct_id``,
+- ClinicalTrials.gov classic record XML (``<clinical_study>``): ``id_info/nct_id``,
   ``study_first_submitted``, ``start_date`` (type Actual/Anticipated), ``last_update_submitted``,
   ``primary_outcome``/``secondary_outcome``/``other_outcome`` with ``measure``, ``time_frame``,
-  ``description``. Source: the element guide MoravianCollege/clashboard
-  ClinicalTrialXMLREADME.md (after public.xsd); ``last_update_submitted`` from memory.
-- WHO ICTRP export XML (``<Trials_downloaded_from_ICTRP>`` of ``<Trial>`` elements, or one
-  ``<Trial>``), the WHO Trial Registration Data Set (TRDS v1.3.1, who.int/clinical-trials-
-  registry-platform/network/who-data-set): items 1 (primary registry and trial identifying
-  number: ``TrialID``, ``Source_Register``), 2 (date of registration: ``Date_registration``),
-  16 (date of first enrolment: ``Date_enrollement``, the export's spelling, or
-  ``Date_enrollment``), 19 and 20 (primary and key secondary outcomes: ``Primary_outcome``,
-  ``Secondary_outcome``), ``Last_Refreshed_on``. The element names are from memory of the
-  ICTRP export (the field list of its CSV export, worcjamessmith/COVID-trial-characteristics
-  README, names ``Date_registration`` and ``Date_enrollment``); outcomes are free text there,
-  one per line or separated by semicolons, with any time frame written inside.
+  ``description``; records saved before May 2018 carry ``firstreceived_date`` and
+  ``lastchanged_date`` instead; dates are "Month D, YYYY" or "Month YYYY". Source: NLM's
+  public.xsd version 2019.02.14, its change history (08/30/2017 and 05/03/2018 entries) and
+  ``variable_date_type`` (copy in lauramiron/CTMetadataAnalysis public.xsd); the element guide
+  MoravianCollege/clashboard ClinicalTrialXMLREADME.md.
+- WHO ICTRP XML, fields of the WHO Trial Registration Data Set (TRDS v1.3.1, 24 items,
+  who.int/clinical-trials-registry-platform/network/who-data-set; items 1-20 numbered as in
+  J Biomed Semantics 2017;8:19, Table 1): item 1 (primary registry and trial identifying number),
+  2 (date of registration in primary registry), 16 (date of first enrolment), 19 and 20 (primary
+  and key secondary outcomes). Two layouts, element names matched whatever their case:
+
+  - the search portal's "Export results to XML" (``<Trials_downloaded_from_ICTRP>`` of
+    ``<Trial>`` elements with flat fields): ``TrialID``, ``Source_Register``,
+    ``Date_registration`` (YYYY-MM-DD) and ``Date_registration3`` (YYYYMMDD),
+    ``Date_enrollement`` (the portal's spelling), ``Last_Refreshed_on`` ("21 September 2026"),
+    ``Primary_outcome`` / ``Secondary_outcome`` as free text, outcomes separated by ";" with
+    literal ``<br>``. Sources: the portal's field labels (opentrials/collectors
+    collectors/ictrp/parser.py: TrialID, Date_registration, Date_enrollement; record.py reads
+    the refresh date as "%d %B %Y"); a field list and sample record of a 3,030-trial export
+    made on 2026-10-04, kept as a note in a public repository (found by code search, which did
+    not name the repository).
+  - the data dumps and registry feeds with a ``<main>`` block (``<trials><trial><main>``):
+    ``trial_id``, ``reg_name``, ``date_registration`` day first ("03/12/2010" in a file dated
+    2010-12-03), ``date_enrolment`` with ``type_enrolment`` (anticipated/actual), or
+    ``Date_enrolement`` ("Apr  1 2007"), ``last_updated`` ("3 November 2009"), outcomes as
+    ``primary_outcome/prim_outcome``, ``Primary_outcome/Outcome_Name`` and the secondary
+    equivalents. Source: bireme/opentrials docs/ictrp/ICTRP_export_2010-12-03.xml and
+    docs/ictrp/ICTRPTrials.xml (an "ICTRP Data Dump" of ISRCTN86750102, registered
+    10/09/2004).
+
+  Slashed dates: the feeds above write them day first, while the portal's own ``Export_date``
+  is month first ("08/28/2026 20:14:44"). So a slashed date whose first two numbers could both
+  be a month is read both ways: it spans both readings (``RecordDate.swappable``) and
+  registration timing says "cannot tell" when the two readings disagree. The field names and
+  forms of other registries' own exports were not checked.
 
 History of changes: none of these single-record exports carries the registry's change log, so
 the history comes from comparing versions: several records of the same registration number
@@ -63,17 +86,28 @@ class RecordDate(BaseModel):
     month: int | None = None
     day: int | None = None
     text: str = ""  # as written in the record
+    swappable: bool = False  # a slashed date that reads as a date month first too
+
+    @property
+    def other_reading(self) -> date | None:
+        """The date with day and month swapped, when the record's form allows both."""
+        return date(self.year, self.day, self.month) if self.swappable else None
 
     @property
     def earliest(self) -> date:
-        return date(self.year, self.month or 1, self.day or 1)
+        first = date(self.year, self.month or 1, self.day or 1)
+        return min(first, self.other_reading or first)
 
     @property
     def latest(self) -> date:
         month = self.month or 12
-        return date(self.year, month, self.day or calendar.monthrange(self.year, month)[1])
+        last = date(self.year, month, self.day or calendar.monthrange(self.year, month)[1])
+        return max(last, self.other_reading or last)
 
     def __str__(self) -> str:
+        if self.swappable:
+            return (f"{self.year:04d}-{self.month:02d}-{self.day:02d} or "
+                    f"{self.other_reading.isoformat()} (written {self.text})")
         if self.day:
             return f"{self.year:04d}-{self.month:02d}-{self.day:02d}"
         if self.month:
@@ -125,16 +159,18 @@ class RegistryRecord(BaseModel):
 
 
 # -- dates ------------------------------------------------------------------------------------
-_DAY_FORMATS = ("%Y-%m-%d", "%B %d, %Y", "%b %d, %Y", "%d %B %Y", "%d %b %Y", "%d/%m/%Y",
-                "%d.%m.%Y", "%Y%m%d", "%d-%m-%Y", "%Y/%m/%d")
+_DAY_FORMATS = ("%Y-%m-%d", "%B %d, %Y", "%b %d, %Y", "%B %d %Y", "%b %d %Y", "%d %B %Y",
+                "%d %b %Y", "%d/%m/%Y", "%d.%m.%Y", "%Y%m%d", "%d-%m-%Y", "%Y/%m/%d")
+_SLASHED = ("%d/%m/%Y", "%d-%m-%Y", "%d.%m.%Y")  # day first in the ICTRP feeds (sources above)
 _MONTH_FORMATS = ("%Y-%m", "%B %Y", "%b %Y", "%m/%Y", "%Y/%m")
 
 
 def parse_record_date(text: str | None) -> RecordDate | None:
     """A registry date in any of the formats registries write; None when empty or unknown.
 
-    Slashed day-first dates (``14/03/2031``) are read day first, as the ICTRP export writes
-    them (from memory). A time after the date (``2031-03-14T10:00``) is ignored.
+    Slashed dates are read day first (``14/03/2031``), as the ICTRP feeds write them; one whose
+    day could also be a month (``04/03/2030``) is marked ``swappable`` and spans both readings
+    (see the module's sources). A time after the date (``2031-03-14T10:00``) is ignored.
     """
     if not text or not text.strip():
         return None
@@ -145,7 +181,8 @@ def parse_record_date(text: str | None) -> RecordDate | None:
             d = datetime.strptime(value, fmt)
         except ValueError:
             continue
-        return RecordDate(year=d.year, month=d.month, day=d.day, text=raw)
+        swappable = fmt in _SLASHED and d.day <= 12 and d.day != d.month
+        return RecordDate(year=d.year, month=d.month, day=d.day, text=raw, swappable=swappable)
     for fmt in _MONTH_FORMATS:
         try:
             d = datetime.strptime(value, fmt)
@@ -271,12 +308,13 @@ def _child_text(element: ET.Element, tag: str) -> str:
 
 
 def _from_xml(root: ET.Element, name: str) -> RegistryRecord:
-    if root.tag == "clinical_study":
+    tag = root.tag.lower()
+    if tag == "clinical_study":
         return _from_ctgov_xml(root, name)
-    if root.tag == "Trial":
+    if tag == "trial":
         return _from_ictrp(root, name)
-    if root.tag.startswith("Trials"):
-        trials = root.findall("Trial")
+    if tag.startswith("trials"):
+        trials = [child for child in root if child.tag.lower() == "trial"]
         if len(trials) != 1:
             raise ReadingError(f"{name}: holds {len(trials)} trials; export one trial per file")
         return _from_ictrp(trials[0], name)
@@ -302,10 +340,12 @@ def _from_ctgov_xml(root: ET.Element, name: str) -> RegistryRecord:
     return RegistryRecord(
         source_format="ctgov-xml", registry="ClinicalTrials.gov", registration_number=number,
         title=_child_text(root, "official_title") or _child_text(root, "brief_title"),
-        registered=parse_record_date(_child_text(root, "study_first_submitted")),
+        registered=parse_record_date(_child_text(root, "study_first_submitted")
+                                     or _child_text(root, "firstreceived_date")),
         first_enrolment=parse_record_date(_child_text(root, "start_date")),
         first_enrolment_anticipated=(start_type == "anticipated") if start_type else None,
-        last_update=parse_record_date(_child_text(root, "last_update_submitted")),
+        last_update=parse_record_date(_child_text(root, "last_update_submitted")
+                                      or _child_text(root, "lastchanged_date")),
         outcomes=outcomes,
     )
 
@@ -342,37 +382,59 @@ def split_outcome_text(text: str) -> list[tuple[str, str]]:
     return [(m, t) for m, t in out if m]
 
 
-def _from_ictrp(trial: ET.Element, name: str) -> RegistryRecord:
-    main = trial.find("Main")
-    fields = main if main is not None else trial
+def _ictrp_fields(trial: ET.Element) -> dict[str, ET.Element]:
+    """A trial's field elements by lower-cased name (the ``main`` block's first)."""
+    main = next((child for child in trial if child.tag.lower() == "main"), None)
+    fields: dict[str, ET.Element] = {}
+    for parent in (main, trial):
+        if parent is not None:
+            for child in parent:
+                fields.setdefault(child.tag.lower(), child)
+    return fields
 
-    def field(*tags: str) -> str:
-        for tag in tags:
-            value = _child_text(fields, tag) or _child_text(trial, tag)
+
+def _ictrp_outcomes(element: ET.Element | None) -> list[str]:
+    """An outcome field's free texts: the element's own text, or each child's (one outcome per
+    ``Outcome_Name`` / ``prim_outcome`` / ``sec_outcome``)."""
+    if element is None:
+        return []
+    children = list(element)
+    if not children:
+        return ["".join(element.itertext())]
+    return ["".join(child.itertext()) for child in children]
+
+
+def _from_ictrp(trial: ET.Element, name: str) -> RegistryRecord:
+    fields = _ictrp_fields(trial)
+
+    def field(*names: str) -> str:
+        for key in names:
+            found = fields.get(key)
+            value = _text("".join(found.itertext())) if found is not None else ""
             if value:
                 return value
         return ""
 
-    def raw_field(tag: str) -> str:
-        found = fields.find(tag)
-        if found is None:
-            found = trial.find(tag)
-        return "".join(found.itertext()) if found is not None else ""
-
-    number = field("TrialID")
+    number = field("trialid", "trial_id")
     if not number:
         raise ReadingError(f"{name}: WHO ICTRP <Trial> without TrialID")
     outcomes = []
-    for tag, kind in (("Primary_outcome", "primary"), ("Secondary_outcome", "secondary")):
-        for measure, frame in split_outcome_text(raw_field(tag)):
-            outcomes.append(RegisteredOutcome(kind=kind, measure=measure, time_frame=frame))
+    for tag, kind in (("primary_outcome", "primary"), ("secondary_outcome", "secondary")):
+        for text in _ictrp_outcomes(fields.get(tag)):
+            for measure, frame in split_outcome_text(text):
+                outcomes.append(RegisteredOutcome(kind=kind, measure=measure, time_frame=frame))
+    enrolment_type = field("type_enrolment").lower()
     return RegistryRecord(
-        source_format="who-ictrp-xml", registry=field("Source_Register") or "WHO ICTRP",
+        source_format="who-ictrp-xml",
+        registry=field("source_register", "reg_name") or "WHO ICTRP",
         registration_number=number,
-        title=field("Scientific_title", "Public_title"),
-        registered=parse_record_date(field("Date_registration")),
-        first_enrolment=parse_record_date(field("Date_enrollement", "Date_enrollment")),
-        last_update=parse_record_date(field("Last_Refreshed_on")),
+        title=field("scientific_title", "public_title"),
+        registered=parse_record_date(field("date_registration", "date_registration3")),
+        first_enrolment=parse_record_date(field("date_enrollement", "date_enrolement",
+                                                "date_enrolment", "date_enrollment")),
+        first_enrolment_anticipated=({"anticipated": True, "actual": False}
+                                     .get(enrolment_type)),
+        last_update=parse_record_date(field("last_refreshed_on", "last_updated")),
         outcomes=outcomes,
     )
 

@@ -55,6 +55,12 @@ class ReportOutcome:
     worker: int = 0  # process id
     peak_rss_mb: float = 0.0  # the worker's peak resident memory after this report
     already: bool = False  # another process prepared it meanwhile (nothing was done here)
+    # where the time went (wall clock, time.time(), comparable across processes)
+    started: float = 0.0
+    ended: float = 0.0
+    cpu_seconds: float = 0.0  # this process's CPU time on the report (less than the wall
+    #                           time when other processes had the core)
+    worker_ready: float = 0.0  # when the worker had started and loaded the ranker (0: in-process)
 
     @property
     def ok(self) -> bool:
@@ -96,6 +102,7 @@ class PrepareSummary:
     workers: int = 0
     seconds: float = 0.0
     interrupted: bool = False
+    began: float = 0.0  # time.time() at the start (for the outcomes' timestamps)
 
     @property
     def failures(self) -> list[ReportOutcome]:
@@ -153,6 +160,7 @@ def is_prepared(job: PrepareJob) -> bool:
 # -- the worker side ---------------------------------------------------------------------------
 _worker_ranker = None
 _worker_problem: str | None = None
+_worker_ready = 0.0
 
 
 def _init_worker() -> None:
@@ -164,11 +172,13 @@ def _init_worker() -> None:
     logging.getLogger("pdfminer").setLevel(logging.ERROR)
     from robtui.errors import RobtuiError
 
+    global _worker_ready
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     try:
         worker_ranker()
     except RobtuiError:
         pass  # every task of this worker reports the problem
+    _worker_ready = time.time()
 
 
 def worker_ranker():
@@ -201,12 +211,16 @@ def prepare_one(job: PrepareJob) -> ReportOutcome:
     from robtui.evidence.prepared import rank_for_preparation, store_prepared
     from robtui.reading.reader import read_document
 
-    outcome = ReportOutcome(job.label, job.path, job.sha256, worker=os.getpid())
+    outcome = ReportOutcome(job.label, job.path, job.sha256, worker=os.getpid(),
+                            started=time.time(), worker_ready=_worker_ready)
+    cpu = time.process_time()  # restarted once the ranker is loaded (a worker's start-up)
     if is_prepared(job):  # e.g. a second robtui preparing the same review at the same time
         outcome.already = True
+        outcome.ended = time.time()
         return outcome
     try:
         ranker = worker_ranker()
+        cpu = time.process_time()
         started = time.perf_counter()
         document = read_document(Path(job.path))
         outcome.read_seconds = time.perf_counter() - started
@@ -223,6 +237,8 @@ def prepare_one(job: PrepareJob) -> ReportOutcome:
     except Exception as error:  # noqa: BLE001 - one bad report must not stop the others
         outcome.error = f"{job.path}: {type(error).__name__}: {error}"
     outcome.peak_rss_mb = _peak_rss_mb()
+    outcome.cpu_seconds = time.process_time() - cpu
+    outcome.ended = time.time()
     return outcome
 
 
@@ -247,8 +263,10 @@ def prepare(
         raise InputError(f"workers must be 0 (in this process) or more (got {workers})")
     cancel = cancel or threading.Event()
     todo = [job for job in jobs if not (skip_prepared and is_prepared(job))]
+    # largest first: the long ones start early, so no worker is left with one at the end
+    todo.sort(key=_file_size, reverse=True)
     state = PrepareProgress(total=len(todo), skipped=len(jobs) - len(todo))
-    summary = PrepareSummary(skipped=state.skipped, workers=workers)
+    summary = PrepareSummary(skipped=state.skipped, workers=workers, began=time.time())
     started = time.perf_counter()
 
     def finished(outcome: ReportOutcome) -> None:
@@ -274,6 +292,13 @@ def prepare(
         summary.interrupted = True
     summary.seconds = time.perf_counter() - started
     return summary
+
+
+def _file_size(job: PrepareJob) -> int:
+    try:
+        return os.path.getsize(job.path)
+    except OSError:
+        return 0  # reported as a failure when the worker tries to read it
 
 
 def _run_pool(todo: Sequence[PrepareJob], workers: int,

@@ -61,7 +61,12 @@ def test_who_ictrp_export_flat_and_with_main():
     flat = read_registry_record(DATA / "ictrp-flat.xml")
     assert (flat.registry, flat.registration_number) == ("Registry of Invented Trials",
                                                          "RIT-2031-07777")
-    assert str(flat.registered) == "2031-11-15" and str(flat.first_enrolment) == "2031-11-02"
+    assert str(flat.registered) == "2031-11-15"  # 15 can only be the day
+    # 02/11/2031 reads as 2 November or, month first, 11 February: both readings are kept
+    assert flat.first_enrolment.swappable
+    assert (flat.first_enrolment.earliest, flat.first_enrolment.latest) == (
+        date(2031, 2, 11), date(2031, 11, 2))
+    assert str(flat.first_enrolment) == "2031-11-02 or 2031-02-11 (written 02/11/2031)"
     assert [(o.kind, o.measure, o.time_frame) for o in flat.outcomes] == [
         ("primary", "Days with cold symptoms", "14 days"),
         ("secondary", "Symptom score at 7 days", ""), ("secondary", "Time off work", "")]
@@ -70,10 +75,41 @@ def test_who_ictrp_export_flat_and_with_main():
     assert str(main.registered) == "2030-06-18" and str(main.first_enrolment) == "2030-01-13"
 
 
+def test_who_ictrp_feed_in_lower_case_with_outcome_children():
+    r = read_registry_record(DATA / "ictrp-feed.xml")
+    assert (r.registry, r.registration_number, r.title) == (
+        "Registry of Invented Trials", "RIT-2032-00031", "Invented balm for chapped hands")
+    assert str(r.registered) == "2032-01-21" and str(r.last_update) == "2032-11-03"
+    assert str(r.first_enrolment) == "2032-02-01 or 2032-01-02 (written 01/02/2032)"
+    assert r.first_enrolment_anticipated is True
+    assert [(o.kind, o.measure, o.time_frame) for o in r.outcomes] == [
+        ("primary", "Skin cracking score", "2 weeks"),
+        ("secondary", "Itch on a 0 to 10 scale", ""), ("secondary", "Use of other creams", "")]
+
+
+def test_classic_xml_saved_before_2018_uses_the_retired_date_names():
+    r = read_registry_record(DATA / "ctgov-classic-2016.xml")
+    assert str(r.registered) == "2016-01-12" and str(r.last_update) == "2016-06-03"
+    assert str(r.first_enrolment) == "2016-03" and r.first_enrolment_anticipated is None
+
+
+def test_swapped_readings_make_registration_timing_uncertain():
+    from robtui.core.prespecification import Registration, registration_timing
+
+    registered = parse_record_date("04/03/2030")  # 4 March, or 3 April month first
+    enrolled = parse_record_date("2030-03-20")
+    timing, text = registration_timing(Registration(
+        "RIT-1", (registered.earliest, registered.latest), (enrolled.earliest, enrolled.latest)))
+    assert timing == "cannot tell" and "2030-03-04 to 2030-04-03" in text
+    unambiguous = parse_record_date("14/03/2030")
+    assert not unambiguous.swappable and parse_record_date("05/05/2030").swappable is False
+
+
 @pytest.mark.parametrize(("text", "expected"), [
     ("2031-03-14", "2031-03-14"), ("2031-03", "2031-03"), ("March 14, 2031", "2031-03-14"),
     ("March 2031", "2031-03"), ("14/03/2031", "2031-03-14"), ("14 March 2031", "2031-03-14"),
     ("2031-03-14T10:20:00", "2031-03-14"), ("20310314", "2031-03-14"), ("2031", "2031"),
+    ("Apr  1 2007", "2007-04-01"), ("3 November 2009", "2009-11-03"), ("Unknown", "None"),
 ])
 def test_dates_in_the_registries_formats(text, expected):
     assert str(parse_record_date(text)) == expected
