@@ -30,8 +30,8 @@ def demo(tmp_path_factory):
 def test_study_list_names_each_studys_set(demo, capsys):
     assert main(["study", "list", str(demo)]) == 0
     out = capsys.readouterr().out
-    assert "FIR2030" in out and "[rob2-cluster v1]" in out
-    assert "HAZEL2031" in out and "[rob2-crossover v1]" in out
+    assert "FIR2030" in out and "[rob2-cluster v2]" in out
+    assert "HAZEL2031" in out and "[rob2-crossover v2]" in out
 
 
 def test_compare_shows_the_cluster_domain_and_its_difference(demo, capsys):

@@ -2,23 +2,24 @@
 
 The expected behaviour here is written independently of the data files: each domain's
 questions, the condition under which each is asked and its algorithm are hand-written Python
-below, transcribed from the algorithm text of the published variants, and compared with what
-robtui computes from signalling_questions/rob2-cluster.toml and rob2-crossover.toml over every
-reachable answer path (and, for the smaller domains, over every combination of answers to all
-questions, asked or not). The parallel set is checked with the same functions where it shares a
-domain, as a cross-check of both.
+below, and compared with what robtui computes from signalling_questions/rob2-cluster.toml and
+rob2-crossover.toml over every reachable answer path, and with answers to questions off the
+path added (every combination where a domain has at most 20,000; otherwise each path with its
+off-path questions filled in every option). The parallel set is checked with the same
+functions where it shares a domain, as a cross-check of both.
 
-Sources (see signalling_questions/README.md for what was looked up and what is from memory):
-  Eldridge S, Campbell MK, Campbell MJ, Drahota AK, Giraudeau B, Reeves BC, Siegfried N,
-  Higgins JPT. RoB 2 additional considerations for cluster-randomized trials (RoB 2 CRT),
-  10 November 2020, revised 18 March 2021. LOOKED UP in a third-party transcription of the
-  cribsheet's text and flowcharts (the primary PDF could not be read), except where marked.
-  Higgins JPT, Li T, Sterne JAC. RoB 2 additional considerations for crossover trials,
-  8 December 2020, revised 18 March 2021. Domain S is FROM MEMORY (not looked up).
-  Higgins JPT, Eldridge S, Li T (eds). Cochrane Handbook v6 (2019), chapter 23 (the variants
-  and their extra domains; looked up).
-  RoB 2 of 22 August 2019 (Sterne JAC et al. BMJ 2019;366:l4898) for the shared domains, as in
-  tests/core/test_algorithm.py.
+Sources, tagged as in the data files' headers (signalling_questions/README.md lists every row):
+  [T3]  PubMed Central PMC10245087, Table 3: a published reproduction of the completed 2021
+        RoB 2 CRT template (questions 1a.1-1a.3, 1b.1-1b.3, 2.1a-2.6 with their conditions).
+  [R19] RoB 2 of 22 August 2019 (Sterne JAC et al. BMJ 2019;366:l4898; template and
+        algorithms), as in tests/core/test_algorithm.py.
+  [H23] Cochrane Handbook v6 (2019), chapter 23 (Higgins JPT, Eldridge S, Li T): the variants
+        and the concerns of their extra domains.
+  [E09] Eldridge S, Kerry S, Torgerson DJ. BMJ 2009;339:b4006 (identifying and recruiting
+        participants in cluster randomised trials).
+  [MEM] From memory, or our own reasoning: every algorithm row specific to a variant (the
+        variants' flowcharts could not be read), domain S entirely, and the cluster questions
+        3.1a, 3.1b, 4.3a and 4.3b.
 """
 
 from __future__ import annotations
@@ -102,8 +103,7 @@ def least_favourable(*parts: str) -> str:
 
 
 # --- Domain 1, randomisation (cluster 1a; crossover and parallel 1) ----------------------------
-# RoB 2 template (22 August 2019) algorithm; the CRT variant: "as for individually randomized
-# trials" (transcription agrees); the crossover variant keeps it (from memory).
+# [R19]; that both variants keep it: [MEM]. Cluster questions 1a.1-1a.3: [T3].
 def randomisation(a: Answers) -> str:
     if no(a["1.2"]):
         return HIGH
@@ -117,18 +117,22 @@ def randomisation(a: Answers) -> str:
 RANDOMISATION = Spec((Q("1.1", ANY5), Q("1.2", ANY5), Q("1.3", ANY5)), randomisation, 125)
 
 
-# --- Cluster domain 1b, timing of identification and recruitment (NEW) ------------------------
-# Transcription of the 2021 CRT cribsheet flowchart: 1b.1 Y/PY -> low; else 1b.2 Y/PY -> high;
-# 1b.2 N/PN -> 1b.3 Y/PY some concerns, N/PN/NI low; 1b.2 NI -> 1b.3 Y/PY high, else some
-# concerns. 1b.3 is asked whatever 1b.1 is.
+# --- Cluster domain 1b, timing of identification or recruitment (NEW) ------------------------
+# Questions and the condition of 1b.2: [T3]. Algorithm: [MEM], our own rule, built like domain 1
+# [R19] with 1b.2 in the place of concealment and 1b.3 in that of baseline differences, and
+# recruitment before the clusters were allocated ([E09]'s remedy) as the concealed case:
+#   1b.1 Y/PY: low, unless 1b.3 Y/PY (some concerns);
+#   1b.2 Y/PY: high;  1b.2 N/PN: low, unless 1b.3 Y/PY (some concerns);
+#   1b.2 NI: high when 1b.3 Y/PY, else some concerns.
 def recruitment(a: Answers) -> str:
+    imbalance = yes(a["1b.3"])
     if yes(a["1b.1"]):
-        return LOW
+        return SOME if imbalance else LOW
     if yes(a["1b.2"]):
         return HIGH
     if no(a["1b.2"]):
-        return SOME if yes(a["1b.3"]) else LOW
-    return HIGH if yes(a["1b.3"]) else SOME
+        return SOME if imbalance else LOW
+    return HIGH if imbalance else SOME
 
 
 RECRUITMENT = Spec(
@@ -144,14 +148,12 @@ RECRUITMENT = Spec(
 
 # --- Domain 2, effect of assignment -----------------------------------------------------------
 def _trial_context_part(aware: bool, a: Answers) -> str:
-    """Part 1 after the awareness questions (template 2019; CRT: same after the 2021 revision)."""
+    """Part 1 after the awareness questions [R19]; the CRT variant keeps it [MEM]."""
     if not aware or no(a["2.3"]):
         return LOW
     if a["2.3"] == "NI":
         return SOME
     if no(a["2.4"]):
-        # Main RoB 2 algorithm. The CRT transcription says low here; we keep the main one
-        # (the 2021 revision made domain 2 consistent with the main version; see README).
         return SOME
     return SOME if yes(a["2.5"]) else HIGH
 
@@ -168,8 +170,9 @@ def assignment_parallel(a: Answers) -> str:
 
 
 def assignment_cluster(a: Answers) -> str:
-    # Participants count as unaware when they did not know they were in a trial (2.1a) or did
-    # not know their assignment (2.1b) (transcription of the 2021 CRT cribsheet).
+    # Participants count as unaware when they did not know they were in a trial (2.1a N/PN:
+    # 2.1b is then not asked [T3]) or did not know their assignment (2.1b N/PN). [MEM], forced by
+    # the conditions [T3]: without 2.3 the path must end as [R19] ends 2.1 and 2.2 both N/PN.
     participants_aware = not (no(a["2.1a"]) or no(a.get("2.1b")))
     aware = participants_aware or not no(a["2.2"])
     return least_favourable(_trial_context_part(aware, a), _analysis_part(a))
@@ -241,7 +244,7 @@ def missing_parallel(a: Answers) -> str:
 
 
 def missing_cluster(a: Answers) -> str:
-    # CRT transcription: data from every cluster (3.1a) and nearly all participants (3.1b).
+    # [MEM]: complete means from every cluster (3.1a) and within clusters (3.1b).
     return LOW if yes(a["3.1a"]) and yes(a["3.1b"]) else _missingness(a)
 
 
@@ -285,7 +288,7 @@ def measurement_parallel(a: Answers) -> str:
 
 
 def measurement_cluster(a: Answers) -> str:
-    # CRT transcription: assessors unaware of the trial (4.3a) count like blinded ones (4.3b).
+    # [MEM]: assessors unaware of the trial (4.3a) count like blinded ones (4.3b).
     return _measurement(a, no(a.get("4.3a")) or no(a.get("4.3b")))
 
 
@@ -331,10 +334,10 @@ def reported(a: Answers) -> str:
 REPORTED = Spec((Q("5.1", ANY5), Q("5.2", ANY5), Q("5.3", ANY5)), reported, 125)
 
 
-# --- Crossover domain S, period and carryover effects (NEW; FROM MEMORY) -----------------------
-# From memory of the crossover variant's algorithm: S.3 N/PN -> high; S.3 NI -> some concerns;
-# S.3 Y/PY -> low when the sequences are (nearly) equal (S.1) or period effects were analysed
-# (S.2), else some concerns.
+# --- Crossover domain S, period and carryover effects (NEW; [MEM]) -----------------------------
+# Questions, condition and algorithm [MEM] (our own rule; subject of the domain: [H23]):
+# S.3 N/PN -> high; S.3 NI -> some concerns; S.3 Y/PY -> low when the two orders had about as
+# many participants (S.1) or the analysis allowed for the periods (S.2), else some concerns.
 def carryover(a: Answers) -> str:
     if no(a["S.3"]):
         return HIGH
@@ -405,25 +408,57 @@ def test_every_path_matches_the_published_algorithm(case):
     assert not wrong, wrong[:5]
 
 
+COMBINATION_LIMIT = 20_000
+
+
+def _on_path(spec: Spec, full: Answers) -> Answers:
+    """The answers the hand-written conditions count, from answers to every question."""
+    on_path: Answers = {}
+    for q in spec.questions:
+        if q.asked(on_path):
+            on_path[q.id] = full[q.id]
+    return on_path
+
+
+def _with_off_path_answers(spec: Spec) -> Iterator[Answers]:
+    """Answers to every question, asked or not. Up to COMBINATION_LIMIT combinations: all of
+    them. Above: every reachable path, with the questions off it answered in every option (the
+    k-th filling gives off-path question i its option (k + i) mod n), so every path is met
+    with each off-path option at least once."""
+    sizes = [len(q.options) for q in spec.questions]
+    if _product(sizes) <= COMBINATION_LIMIT:
+        ids = [q.id for q in spec.questions]
+        for codes in itertools.product(*(q.options for q in spec.questions)):
+            yield dict(zip(ids, codes))
+        return
+    for path in walk(spec):
+        off = [q for q in spec.questions if q.id not in path]
+        for k in range(max((len(q.options) for q in off), default=1)):
+            full = dict(path)
+            for i, q in enumerate(off):
+                full[q.id] = q.options[(k + i) % len(q.options)]
+            yield full
+
+
+def _product(sizes: list[int]) -> int:
+    total = 1
+    for n in sizes:
+        total *= n
+    return total
+
+
 @pytest.mark.parametrize("case", CASES, ids=_case_id)
-def test_every_combination_of_all_answers_in_the_smaller_domains(case):
-    """Answers to every question at once, asked or not: the judgement follows the path only."""
+def test_answers_off_the_path_never_change_the_judgement(case):
+    """Answers to questions that are not asked (stale answers kept in a file) are ignored."""
     set_id, key = case
     spec = SETS[set_id][key]
-    combinations = 1
-    for q in spec.questions:
-        combinations *= len(q.options)
-    if combinations > 20_000:
-        pytest.skip(f"{combinations} combinations: covered path by path above")
     domain = builtin_question_set(set_id).domain(*key)
-    ids = [q.id for q in spec.questions]
-    for codes in itertools.product(*(q.options for q in spec.questions)):
-        full = dict(zip(ids, codes))
-        on_path: Answers = {}
-        for q in spec.questions:  # the hand-written conditions decide what counts
-            if q.asked(on_path):
-                on_path[q.id] = full[q.id]
+    paths_met: set[tuple] = set()
+    for full in _with_off_path_answers(spec):
+        on_path = _on_path(spec, full)
+        paths_met.add(tuple(on_path.items()))
         assert judge_domain(domain, full) == spec.judge(on_path), full
+    assert len(paths_met) == spec.paths  # every reachable path was met
 
 
 @pytest.mark.parametrize("case", CASES, ids=_case_id)
@@ -456,14 +491,15 @@ def test_the_variant_sets_are_bundled_beside_the_parallel_one():
 def test_new_domain_names_and_wording():
     cluster = builtin_question_set("rob2-cluster")
     crossover = builtin_question_set("rob2-crossover")
-    # Transcription of the 2021 CRT cribsheet (looked up there).
+    # [T3]: the published reproduction of the 2021 CRT template.
     assert cluster.domain("1b").name == (
-        "Bias arising from the timing of identification and recruitment of participants"
+        "Bias arising from the timing of identification or recruitment of participants"
     )
     assert cluster.domain("1b").question("1b.1").text == (
         "Were all the individual participants identified and recruited (if appropriate)"
         " before randomization of clusters?"
     )
+    assert cluster.domain("1b").question("1b.2").condition_text == "If N/PN/NI to 1b.1"
     assert cluster.domain("1").question("1.2").text == (
         "Was the allocation sequence concealed until clusters were enrolled and assigned to"
         " interventions?"
@@ -471,14 +507,46 @@ def test_new_domain_names_and_wording():
     assert cluster.domain("2").question("2.1a").text == (
         "Were participants aware that they were in a trial?"
     )
-    # Domain name: Cochrane Handbook v6 ch. 23 and the variant's domain list (looked up).
+    assert cluster.domain("2").question("2.1b").condition_text == "If Y/PY/NI to 2.1a"
+    assert cluster.domain("2").question("2.3").condition_text == "If Y/PY/NI to 2.1b or 2.2"
+    # Subject of the crossover domain: [H23]; its name and questions are [MEM].
     assert crossover.domain("S").name == "Bias arising from period and carryover effects"
-    # Shared domains keep the parallel wording and names.
+    # Shared domains keep the parallel wording and names [R19].
     parallel = builtin_question_set("rob2-parallel")
     for qset in (cluster, crossover):
         for did in ("2", "3", "4", "5"):
             assert qset.domain(did).name == parallel.domain(did).name
         assert qset.domain("5").question("5.1").text == parallel.domain("5").question("5.1").text
+
+
+def test_every_question_of_the_variants_names_its_source():
+    """Each question and rule table of the variant files carries a source tag or a note saying
+    where it comes from (the provenance check of the data files' rows)."""
+    import re
+
+    from robtui.paths import bundled_dir
+
+    tags = re.compile(r"\[(T3|R19|MEM|H23|H51|L15|E09)\]|from memory")
+    for name in ("rob2-cluster.toml", "rob2-crossover.toml"):
+        lines = (bundled_dir("signalling_questions") / name).read_text(encoding="utf-8").splitlines()
+        for i, line in enumerate(lines):
+            if line.startswith("[[domain.question]]"):
+                assert tags.search(line) or _table_or_domain_note(lines, i), (name, i + 1)
+            if line.startswith("[[domain.table]]"):
+                note = " ".join(lines[i + 1 : i + 8])
+                assert tags.search(note), (name, i + 1)
+        text = "\n".join(lines).lower()
+        assert "third-party" not in text and "transcription" not in text
+
+
+def _table_or_domain_note(lines: list[str], i: int) -> bool:
+    """A question without its own tag is covered by its domain's note ("Questions and rows")."""
+    for line in lines[i:]:
+        if line.startswith("# Questions and rows"):
+            return True
+        if line.startswith("# ----"):
+            return False
+    return False
 
 
 def test_overall_covers_the_extra_domain():

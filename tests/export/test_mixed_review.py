@@ -193,6 +193,6 @@ def test_figures_have_the_extra_columns_and_say_how_many_studies_have_them(expor
     summary = files["-summary.svg"].decode()
     # fonts are drawn as outlines: the words sit in the SVG's text comments / ids
     for text in (lights, summary):
-        assert "Bias arising from the timing of identification and recruitment" in text
+        assert "Bias arising from the timing of identification or recruitment" in text
         assert "Bias arising from period and carryover effects" in text
     assert "D1b (1 of 4)" in summary and "DS (1 of 4)" in summary

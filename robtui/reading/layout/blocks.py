@@ -14,10 +14,10 @@ import statistics
 from collections import Counter
 from dataclasses import dataclass, field
 
-from robtui.reading.assemble import Box, is_caption, looks_like_heading
-from robtui.reading.sections import TOP_LEVEL, match_heading, normalise_heading, run_in_heading
+from robtui.reading.assemble import is_caption, looks_like_heading
 from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, PageLines
+from robtui.reading.sections import TOP_LEVEL, match_heading, normalise_heading, run_in_heading
 
 _PAGE_NUMBER = re.compile(r"^(?:page\s*)?#+(?:\s*(?:of|/)\s*#+)?$", re.IGNORECASE)
 # Publishers' notes where a block breaks across pages or columns (not the article's text).
