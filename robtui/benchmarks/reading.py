@@ -10,7 +10,11 @@ two-column PDFs (render_text_as_pdf, then read_document):
 - section-label accuracy for sentences in the methods, against a gold mapping of the corpus's
   own heading titles written here independently of the reader's vocabulary — target >= 0.9;
 - speed: a ~15-page two-column PDF read cold (target <= 1.5 s) and reopened from the cache
-  (target <= 0.1 s); peak memory reading a ~300-page PDF against the ~15-page one.
+  (target <= 0.1 s); peak memory reading a ~300-page PDF against the ~15-page one;
+  that PDF read page by page in a new process: seconds per page (median, 95th centile, the
+  slowest page; issue 13's target: no page over 0.3 s) and resident memory after each page
+  (flat: pages are released as they are read), beside poppler's ``pdftotext`` on the same file.
+  ``--pages-of PDF ...`` prints only those figures, for any PDFs.
 """
 
 from __future__ import annotations
@@ -32,6 +36,7 @@ from robtui.evidence.training.corpus import Article, default_corpus_dir, load_co
 from robtui.reading.document import Document, top_section
 
 RECOVERY_CUTOFF = 90.0
+PAGE_TARGET_S = 0.3  # issue 13: no page over 0.3 s
 
 # Gold: which canonical labels are right for the sentences under each methods subheading of the
 # corpus (lower-cased titles). Written by hand from the titles, independently of
@@ -382,6 +387,88 @@ def _child_peak(pdf: Path) -> dict:
     return out
 
 
+def _rss_kb() -> int:
+    """This process's resident memory now (Linux /proc; elsewhere the peak from getrusage)."""
+    try:
+        with open("/proc/self/status", encoding="ascii") as status:
+            for line in status:
+                if line.startswith("VmRSS"):
+                    return int(line.split()[1])
+    except OSError:
+        pass
+    import resource
+
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+
+
+def page_profile_child(pdf: str) -> None:
+    """In a fresh process: read ``pdf`` page by page, printing JSON with each page's seconds
+    and the resident memory after it (what `page_profile` runs)."""
+    import hashlib
+
+    from robtui.reading.pdf import read_pdf
+
+    data = Path(pdf).read_bytes()
+    seconds: dict[int, float] = {}
+    rss: dict[int, int] = {}
+
+    def seen(number: int, spent: float) -> None:
+        seconds[number] = seconds.get(number, 0.0) + spent
+        rss[number] = _rss_kb()
+
+    before = _rss_kb()
+    t = time.perf_counter()
+    document = read_pdf(Path(pdf), data, hashlib.sha256(data).hexdigest(), on_page=seen)
+    total = time.perf_counter() - t
+    print(json.dumps({"pages": document.pages, "seconds": total, "base_kb": before,
+                      "page_seconds": [seconds[n] for n in sorted(seconds)],
+                      "page_rss_kb": [rss[n] for n in sorted(rss)],
+                      "sentences": len(document.sentences), "text_chars": len(document.text)}))
+
+
+def page_profile(pdf: Path) -> dict:
+    """Per-page seconds and memory of reading ``pdf`` in a new process, with poppler's
+    ``pdftotext`` time on the same file when it is installed (a yardstick, not a dependency)."""
+    import shutil
+
+    code = "import sys;from robtui.benchmarks.reading import page_profile_child as c;c(sys.argv[1])"
+    done = subprocess.run([sys.executable, "-c", code, str(pdf)], capture_output=True, text=True,
+                          check=True)
+    out = json.loads(done.stdout)
+    exe = shutil.which("pdftotext")
+    if exe is not None:
+        t = time.perf_counter()
+        subprocess.run([exe, "-enc", "UTF-8", str(pdf), os.devnull], capture_output=True,
+                       check=False)
+        out["pdftotext_seconds"] = time.perf_counter() - t
+    return out
+
+
+def print_page_profile(name: str, f: dict) -> None:
+    """Per-page time (median, 95th centile, slowest page, pages over PAGE_TARGET_S) and the
+    resident memory along the file, with the ratio to pdftotext."""
+    times = f["page_seconds"]
+    ordered = sorted(times)
+    slowest = max(range(len(times)), key=times.__getitem__)
+    over = sum(t > PAGE_TARGET_S for t in times)
+    line = (f"  {name}: {f['pages']} pages in {f['seconds']:.1f} s; per page median "
+            f"{statistics.median(times):.3f} s, 95th centile {ordered[int(0.95 * (len(ordered) - 1))]:.3f} s, "
+            f"slowest page {slowest + 1} {times[slowest]:.3f} s; pages over {PAGE_TARGET_S} s: {over}")
+    print(line)
+    if "pdftotext_seconds" in f:
+        theirs = f["pdftotext_seconds"]
+        print(f"    pdftotext: {theirs:.2f} s for the file ({theirs / f['pages']:.4f} s per page); "
+              f"robtui / pdftotext = {f['seconds'] / max(theirs, 1e-9):.0f}x")
+    rss = f["page_rss_kb"]
+    marks = sorted({0, len(rss) // 4, len(rss) // 2, 3 * len(rss) // 4, len(rss) - 1})
+    along = ", ".join(f"p{i + 1} {rss[i] / 1024:.0f}" for i in marks)
+    first_tenth = rss[max(0, len(rss) // 10 - 1)]
+    growth = (rss[-1] - first_tenth) / 1024 / max(1, len(rss) - len(rss) // 10) * 100
+    print(f"    resident memory (MB) after page: {along} (before reading {f['base_kb'] / 1024:.0f}); "
+          f"growth after the first tenth {growth:.1f} MB per 100 pages "
+          f"(the document kept: {f['sentences']} sentences, {f['text_chars'] / 1e6:.1f} M characters)")
+
+
 def speed_and_memory(text_source: list[str], large_pages: int, workdir: Path) -> dict:
     from robtui.reading.reader import read_document
 
@@ -407,6 +494,7 @@ def speed_and_memory(text_source: list[str], large_pages: int, workdir: Path) ->
         large = workdir / "large.pdf"
         figures["large_pages"] = render_pages(text_source, large_pages, large)
         figures["large_memory"] = _child_peak(large)
+        figures["large_profile"] = page_profile(large)
     return figures
 
 
@@ -420,7 +508,14 @@ def main(argv: list[str]) -> int:
         "--large-pages", type=int, default=300, help="pages of the memory test PDF (0 skips it)"
     )
     parser.add_argument("--skip-corpus", action="store_true", help="speed and memory only")
+    parser.add_argument("--pages-of", type=Path, nargs="+", default=None, metavar="PDF",
+                        help="only the page-by-page time and memory of these PDFs")
     args = parser.parse_args(argv)
+    if args.pages_of:
+        print("page by page, each PDF in a new process (seconds per page, resident memory)")
+        for pdf in args.pages_of:
+            print_page_profile(pdf.name, page_profile(pdf))
+        return 0
     corpus = args.corpus or default_corpus_dir()
     articles = load_corpus(corpus) if corpus else []
     if args.limit:
@@ -494,6 +589,7 @@ def _print_speed(f: dict) -> None:
             f"{large['traced_peak_mb']:.1f} MB (the document itself {large['kept_mb']:.1f} MB), "
             f"read in {large['seconds']:.1f} s"
         )
+        print_page_profile("page by page, a new process", f["large_profile"])
         ratio = large["traced_peak_mb"] / max(1e-9, small["traced_peak_mb"])
         pages = large["pages"] / max(1, small["pages"])
         print(f"        traced peak grows {ratio:.1f}x for {pages:.0f}x the pages")

@@ -283,10 +283,24 @@ class Reading:
     suggest_s: float | None  # `robtui suggest --json` in a new process with an empty cache
     warnings: list[str] = field(default_factory=list)
     broken: list[str] = field(default_factory=list)
+    page_s: list[float] = field(default_factory=list)  # in-process read, each page's seconds
 
     @property
     def integrity(self) -> float:
         return self.intact / self.prose if self.prose else float("nan")
+
+
+class PageSeconds:
+    """Seconds per page as the PDF reader reports them (a page may be reported twice)."""
+
+    def __init__(self) -> None:
+        self.seconds: dict[int, float] = {}
+
+    def seen(self, number: int, spent: float) -> None:
+        self.seconds[number] = self.seconds.get(number, 0.0) + spent
+
+    def by_page(self) -> list[float]:
+        return [self.seconds[n] for n in sorted(self.seconds)]
 
 
 def _suggest_process_seconds(path: Path) -> float:
@@ -309,7 +323,8 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
     reference = pdftotext(path)
     ref_text, ref_s = reference if reference is not None else ("", None)
     t = time.perf_counter()
-    document = read_document(path, use_cache=False)
+    page_s = PageSeconds()
+    document = read_document(path, use_cache=False, on_page=page_s.seen)
     read_s = time.perf_counter() - t
     suggest_s = _suggest_process_seconds(path) if process else None
 
@@ -321,7 +336,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
                    key=KEY_SECTIONS.index)
     reading = Reading(path.name, document.pages or 0, len(document.sentences), len(prose),
                       len(prose) - len(broken) if ref_text else 0, found, read_s, ref_s,
-                      suggest_s, list(document.warnings), broken)
+                      suggest_s, list(document.warnings), broken, page_s.by_page())
 
     by_score = ranker.rank(document, questions, top=None)
     spread = ranker.rank(document, questions, top=None, spread=True)
@@ -480,6 +495,11 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
         line += (f", pdftotext {np.median(ref):.4f} (ratio of medians "
                  f"{np.median(read) / np.median(ref):.0f}x)")
     print(line)
+    pages = [(t, r.article, n) for r in readings for n, t in enumerate(r.page_s, 1)]
+    if pages:
+        worst = max(pages)
+        print(f"  slowest page (in process, no cache): {worst[0]:.3f} s ({worst[1][:24]} page "
+              f"{worst[2]}); pages over 0.3 s: {sum(t > 0.3 for t, _, _ in pages)} of {len(pages)}")
     cold = [r.suggest_s for r in readings if r.suggest_s is not None]
     if cold:
         print(f"  cold `robtui suggest --json` (new process, empty cache): median "

@@ -8,6 +8,8 @@ unfinished paragraph are emitted after it, never inside it.
 from __future__ import annotations
 
 import re
+import time
+from collections.abc import Callable
 from pathlib import Path
 
 from robtui.errors import ReadingError
@@ -213,9 +215,21 @@ def _flow_page(flow: BlockFlow, page: PageLines, running: set[str]) -> None:
         last_column = column
 
 
-def read_pdf(path: Path, data: bytes, digest: str) -> Document:
-    """A PDF file as a Document; ReadingError for encrypted, damaged or image-only files."""
+def read_pdf(
+    path: Path, data: bytes, digest: str, *, on_page: Callable[[int, float], None] | None = None
+) -> Document:
+    """A PDF file as a Document; ReadingError for encrypted, damaged or image-only files.
+
+    ``on_page(number, seconds)`` (benchmarks) is told the time spent on each page: reading and
+    analysing it, and putting its blocks into the text (for the first pages, held until the
+    running heads are known, that second part comes in a later call for the same page)."""
     import pypdfium2
+
+    def timed_flow(page: PageLines) -> None:
+        start = time.perf_counter()
+        _flow_page(flow, page, running)
+        if on_page is not None:
+            on_page(page.number, time.perf_counter() - start)
 
     if not data.lstrip()[:5].startswith(b"%PDF"):
         raise ReadingError(f"{path}: not a PDF (no %PDF header); check the file")
@@ -236,6 +250,7 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
         pdf = pypdfium2.PdfDocument(data)
         try:
             for number in range(1, len(pdf) + 1):
+                started = time.perf_counter()
                 page = pdf[number - 1]
                 try:
                     glyphs = read_glyphs(page, number)
@@ -243,6 +258,9 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
                     page.close()
                 images += glyphs.images
                 lines = analyse_page(glyphs)
+                del glyphs
+                if on_page is not None:
+                    on_page(number, time.perf_counter() - started)
                 page_warnings.extend(lines.warnings)
                 count = number
                 if lines.lines or lines.tables:
@@ -255,10 +273,10 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
                         continue
                     running = running_signatures(buffered)
                     for held in buffered:
-                        _flow_page(flow, held, running)
+                        timed_flow(held)
                     buffered = []
                 else:
-                    _flow_page(flow, lines, running)
+                    timed_flow(lines)
         finally:
             pdf.close()
     except ReadingError:
@@ -276,7 +294,7 @@ def read_pdf(path: Path, data: bytes, digest: str) -> Document:
     if running is None:
         running = running_signatures(buffered)
         for held in buffered:
-            _flow_page(flow, held, running)
+            timed_flow(held)
     flow.close()
     text = builder.text
     sentences = builder.maker.sentences

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import hashlib
+from collections.abc import Callable
 from pathlib import Path
 
 from robtui.errors import ReaderBugError, ReadingError
@@ -55,10 +56,13 @@ def check_size(path: Path, kind: str, size: int) -> None:
         )
 
 
-def read_document(path: Path, *, use_cache: bool = True) -> Document:
+def read_document(
+    path: Path, *, use_cache: bool = True, on_page: Callable[[int, float], None] | None = None
+) -> Document:
     """Read ``path`` (PDF, text, Markdown, HTML) into a Document.
 
     Raises ReadingError naming the file and the problem. Only a complete document is cached.
+    ``on_page(number, seconds)`` is told each PDF page's time (benchmarks; see read_pdf).
     """
     path = Path(path)
     kind = kind_of(path)
@@ -80,7 +84,7 @@ def read_document(path: Path, *, use_cache: bool = True) -> Document:
         cached = load_cached(digest, kind, str(path))
         if cached is not None:
             return cached
-    document = _parse(path, kind, data, digest)
+    document = _parse(path, kind, data, digest, on_page)
     if not document.sentences:
         raise ReadingError(f"{path}: no text found in the file")
     if use_cache:
@@ -88,12 +92,14 @@ def read_document(path: Path, *, use_cache: bool = True) -> Document:
     return document
 
 
-def _parse(path: Path, kind: str, data: bytes, digest: str) -> Document:
+def _parse(
+    path: Path, kind: str, data: bytes, digest: str, on_page: Callable[[int, float], None] | None
+) -> Document:
     try:
         if kind == "pdf":
             from robtui.reading.pdf import read_pdf
 
-            return read_pdf(path, data, digest)
+            return read_pdf(path, data, digest, on_page=on_page)
         if kind == "registry":
             from robtui.reading.registry import read_registry_document
 

@@ -110,3 +110,16 @@ def test_bench_runs_on_one_real_article(capsys, tmp_path):
     assert figures["figures"]["rank"]["recall@3"] == recall(ranks, 3)
     assert 0.0 < figures["figures"]["per_article"]["trials2015_oral_malodor_hygiene_rct.pdf"][
         "integrity"] <= 1.0
+
+
+def test_page_profile_prints_the_slowest_page_and_memory_along_the_file(capsys) -> None:
+    from robtui.benchmarks.reading import print_page_profile
+
+    print_page_profile("x.pdf", {"pages": 4, "seconds": 1.0, "base_kb": 1024,
+                                 "page_seconds": [0.1, 0.5, 0.2, 0.2],
+                                 "page_rss_kb": [2048, 2048, 3072, 3072],
+                                 "sentences": 10, "text_chars": 100, "pdftotext_seconds": 0.1})
+    out = capsys.readouterr().out
+    assert "slowest page 2 0.500 s; pages over 0.3 s: 1" in out
+    assert "robtui / pdftotext = 10x" in out
+    assert "p1 2, p2 2, p3 3, p4 3" in out

@@ -218,3 +218,14 @@ def test_one_column_pages_read_top_to_bottom(tmp_path) -> None:
     assert [s.text for s in doc.sentences if s.block == "body"] == expected
     assert HEADER not in doc.text
     assert {s.section for s in doc.sentences if s.block == "body"} == {"methods"}
+
+
+def test_every_page_is_timed_for_the_benchmarks(sample_pdf) -> None:
+    seen: dict[int, float] = {}
+
+    def on_page(number: int, seconds: float) -> None:
+        assert seconds >= 0
+        seen[number] = seen.get(number, 0.0) + seconds
+
+    document = read_document(sample_pdf, use_cache=False, on_page=on_page)
+    assert sorted(seen) == list(range(1, document.pages + 1))

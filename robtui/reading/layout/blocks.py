@@ -2,7 +2,9 @@
 
 Rules (common practice for journal PDFs, no source): lines at the top or bottom of pages that
 repeat on many pages (digits ignored), bare page numbers and small print above the text are
-running heads. Blocks break at a change of column, wider line gaps and font changes; blocks
+running heads, but only when they are set apart from the page's text (a paragraph running on
+from the margin into the page is text, however often its wording comes back) and, for lines
+that repeat with other numbers, when those numbers follow the page number. Blocks break at a change of column, wider line gaps and font changes; blocks
 opening with "Table n" / "Figure n" are captions; table regions are tables, after the text.
 """
 
@@ -19,10 +21,14 @@ from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, PageLines
 from robtui.reading.sections import TOP_LEVEL, match_heading, normalise_heading, run_in_heading
 
+# A white band at least this share of the body size tall sets a margin line apart from the text
+# (lines of one paragraph are about 0.2 apart in their glyph boxes; our own setting, no source).
+SET_APART = 0.6
+HEAD_ROWS = 4  # a running head or footer has at most this many rows
 _PAGE_NUMBER = re.compile(r"^(?:page\s*)?#+(?:\s*(?:of|/)\s*#+)?$", re.IGNORECASE)
 # Publishers' notes where a block breaks across pages or columns (not the article's text).
 _CONTINUED = re.compile(
-    r"^\(?(?:continued|cont'?d\.?)(?: (?:on|from|in) (?:the )?(?:next|previous|following)"
+    r"^(?:(?:figure|fig\.|table)\s*\d+[a-z]?\s+)?\(?(?:continued|cont'?d\.?)(?: (?:on|from|in) (?:the )?(?:next|previous|following)"
     r" (?:page|column))?\)?$",
     re.IGNORECASE,
 )
@@ -48,18 +54,66 @@ def _signature(line: Line) -> str:
 
 
 def _margin_lines(page: PageLines) -> list[Line]:
+    """Lines in the top or bottom margin that are set apart from the page's text: the run of
+    closely spaced lines holding them (lines closer than SET_APART of the body size, whatever
+    their column) lies in the margin, or opens (closes) in it with at most HEAD_ROWS rows. A
+    paragraph running on from the margin into the page is text."""
     top_zone = page.height * MARGIN_SHARE
     bottom_zone = page.height * (1 - MARGIN_SHARE)
-    return [ln for ln in page.lines if ln.bottom <= top_zone or ln.top >= bottom_zone]
+    out: list[Line] = []
+    for run in _vertical_runs(page.lines, SET_APART * max(page.body_size, 4.0)):
+        inside = max(ln.bottom for ln in run) <= top_zone or min(ln.top for ln in run) >= bottom_zone
+        if not inside and len({round(ln.top) for ln in run}) > HEAD_ROWS:
+            continue
+        if min(ln.bottom for ln in run) <= top_zone:
+            out.extend(ln for ln in run if ln.bottom <= top_zone)
+        elif max(ln.top for ln in run) >= bottom_zone:
+            out.extend(ln for ln in run if ln.top >= bottom_zone)
+    return out
+
+
+def _vertical_runs(lines: list[Line], gap: float) -> list[list[Line]]:
+    """Lines grouped top to bottom into runs separated by white bands taller than ``gap``."""
+    runs: list[list[Line]] = []
+    bottom = float("-inf")
+    for line in sorted(lines, key=lambda ln: ln.top):
+        if runs and line.top - bottom <= gap:
+            runs[-1].append(line)
+        else:
+            runs.append([line])
+            bottom = float("-inf")
+        bottom = max(bottom, line.bottom)
+    return runs
 
 
 def running_signatures(pages: list[PageLines]) -> set[str]:
-    """Signatures of margin lines that repeat on enough pages to be running heads."""
+    """Signatures of margin lines that repeat on enough pages to be running heads, and whose
+    numbers stay the same or follow the page number (a journal's volume and page); a line
+    whose numbers change otherwise from page to page (line numbers, counts) is text."""
     counts: Counter[str] = Counter()
+    numbers: dict[str, dict[int, tuple[int, ...]]] = {}
     for page in pages:
-        counts.update({_signature(ln) for ln in _margin_lines(page)})
+        for line in _margin_lines(page):
+            signature = _signature(line)
+            seen = numbers.setdefault(signature, {})
+            if page.number not in seen:
+                seen[page.number] = tuple(int(n) for n in re.findall(r"\d+", line.text)[:8])
+                counts[signature] += 1
     needed = max(2, int(0.4 * len(pages) + 0.5))
-    return {sig for sig, n in counts.items() if n >= needed}
+    return {sig for sig, n in counts.items() if n >= needed and _page_bound(numbers[sig])}
+
+
+def _page_bound(numbers: dict[int, tuple[int, ...]]) -> bool:
+    """Whether each number of a repeated line is the same on every page or moves with the
+    page number (a constant offset from it)."""
+    if len({len(found) for found in numbers.values()}) != 1:
+        return True  # digits split differently ("12" vs "1 2"): no evidence either way
+    for i in range(len(next(iter(numbers.values())))):
+        values = {found[i] for found in numbers.values()}
+        offsets = {found[i] - page for page, found in numbers.items()}
+        if len(values) > 1 and len(offsets) > 1:
+            return False
+    return True
 
 
 def strip_running(page: PageLines, running: set[str]) -> PageLines:

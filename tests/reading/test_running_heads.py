@@ -1,0 +1,56 @@
+"""Running heads against body text that comes back page after page with other numbers (issue 14:
+a long file whose every page opened with such lines was read as "no text found")."""
+
+from __future__ import annotations
+
+import pytest
+
+from robtui.reading.reader import read_document
+
+reportlab = pytest.importorskip("reportlab")
+
+HEAD = "Invented Journal of Trials, volume 3"
+
+
+def _log_pdf(path, pages: int, lines_per_page: int, *, head: bool) -> list[str]:
+    """A PDF whose text is numbered log entries from the top margin to the bottom one; with
+    ``head``, a running head and a page number set apart above and below. Returns the
+    entries."""
+    from reportlab.lib.pagesizes import A4
+    from reportlab.pdfgen import canvas
+
+    width, height = A4
+    c = canvas.Canvas(str(path), pagesize=A4)
+    entries = []
+    for page in range(1, pages + 1):
+        if head:
+            c.setFont("Helvetica", 8)
+            c.drawString(72, height - 30, f"{HEAD}, page {page + 40}")
+            c.drawString(width / 2, 20, str(page))
+        c.setFont("Helvetica", 10)
+        y = height - 52  # the first entry sits in the top margin, as in a dense log
+        for _ in range(lines_per_page):
+            n = len(entries) + 1
+            entry = f"Entry {n} records that participant {n * 7} was randomised in week {n % 9 + 1}."
+            c.drawString(72, y, entry)
+            entries.append(entry)
+            y -= 12.5
+        c.showPage()
+    c.save()
+    return entries
+
+
+@pytest.mark.parametrize("lines_per_page", [1, 3, 60])
+def test_repeating_lines_with_changing_numbers_stay_text(tmp_path, lines_per_page) -> None:
+    path = tmp_path / "log.pdf"
+    entries = _log_pdf(path, 30, lines_per_page, head=False)
+    document = read_document(path, use_cache=False)
+    assert [s.text for s in document.sentences if s.block == "body"] == entries
+
+
+def test_running_head_with_page_numbers_is_still_removed(tmp_path) -> None:
+    path = tmp_path / "log.pdf"
+    entries = _log_pdf(path, 20, 60, head=True)
+    document = read_document(path, use_cache=False)
+    assert HEAD not in document.text
+    assert [s.text for s in document.sentences if s.block == "body"] == entries
