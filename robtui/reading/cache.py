@@ -21,11 +21,20 @@ CACHE_ENV = "ROBTUI_CACHE_DIR"
 READER_VERSION = 1
 
 
+def reader_sources() -> list[Path]:
+    """Every module of the reading package, subpackages included (the PDF page analysis in
+    layout/ decides a document's text as much as the readers beside this file)."""
+    here = Path(__file__).resolve().parent
+    return sorted(here.rglob("*.py"), key=lambda p: p.relative_to(here).as_posix())
+
+
 @functools.cache
 def reader_fingerprint() -> str:
     """A digest of the reading code itself: any change to a reader retires old entries."""
     digest = hashlib.sha256(str(READER_VERSION).encode())
-    for source in sorted(Path(__file__).resolve().parent.glob("*.py")):
+    here = Path(__file__).resolve().parent
+    for source in reader_sources():
+        digest.update(source.relative_to(here).as_posix().encode())
         digest.update(source.read_bytes())
     return digest.hexdigest()[:12]
 

@@ -150,6 +150,17 @@ def test_deleting_the_cache_is_safe(good_pdf, private_cache) -> None:
     assert read_document(good_pdf) == first
 
 
+def test_the_cache_key_covers_the_page_analysis_too() -> None:
+    """A change to reading/layout/ (how a PDF page is read) must retire cached documents, as a
+    change to the readers beside the cache does."""
+    from robtui.reading.cache import reader_sources
+
+    names = {p.relative_to(p.parents[1]).as_posix() for p in reader_sources()
+             if p.parent.name == "layout"}
+    assert {"layout/page.py", "layout/columns.py"} <= names
+    assert any(p.name == "pdf.py" for p in reader_sources())
+
+
 def test_cli_read_prints_the_sentence_map(good_pdf, capsys) -> None:
     assert cli_main(["read", str(good_pdf)]) == 0
     out = capsys.readouterr().out
