@@ -44,14 +44,15 @@ def run_with_progress(jobs, *, workers: int | None, skip: bool = True, quiet: bo
     from rich.console import Console
     from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn
 
-    from robtui.workspace.preparing import format_duration, prepare
+    from robtui.workspace.preparing import format_duration, is_prepared, prepare
 
     console = Console(stderr=True)
+    pending = [job for job in jobs if not (skip and is_prepared(job))]  # no bar for nothing
     columns = (
         TextColumn("preparing"), BarColumn(), MofNCompleteColumn(), TextColumn("reports"),
         TextColumn("{task.fields[rate]}"), TextColumn("{task.fields[left]}"),
     )
-    with Progress(*columns, console=console, disable=quiet or not jobs,
+    with Progress(*columns, console=console, disable=quiet or not pending,
                   transient=False) as bar:
         task = bar.add_task("prepare", total=None, rate="", left="")
 

@@ -218,7 +218,15 @@ def outcome_changes(before: list[tuple[str, str, str]], after: list[tuple[str, s
 
 # -- registration timing ------------------------------------------------------------------------
 def registration_timing(reg: Registration | None) -> tuple[Timing, str]:
-    """Prospective (registered at or before first enrolment), retrospective, or cannot tell."""
+    """Prospective (registered at or before first enrolment), retrospective, or cannot tell.
+
+    The ICMJE asks for registration at or before first patient enrolment (its clinical trial
+    registration recommendation, as cited by ictr.johnshopkins.edu "When to register"); the
+    ICTRP's own flag is stricter
+    (registration date prior to first enrolment, ICTRP search portal search tips). A same-day
+    registration counts as prospective here and the dates are shown, so a reviewer can apply
+    either.
+    """
     if reg is None or reg.registered is None or reg.first_enrolment is None:
         if reg is None:
             return "no dates", "No registry record was given: registration timing unknown."
