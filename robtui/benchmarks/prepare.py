@@ -20,6 +20,7 @@ Figures, not pass/fail.
 from __future__ import annotations
 
 import argparse
+import itertools
 import os
 import statistics
 import tempfile
@@ -177,8 +178,9 @@ def _memory(summary) -> None:
 
 
 def _where_time_went(summary, parent_cpu: float) -> None:
-    """The pool's wall time split: workers starting, preparing, idle at the tail; how much of a
-    core the workers had while preparing (below 1: other processes held the cores)."""
+    """The pool's wall time split: workers starting, preparing, waiting between reports (the
+    hand-over through the pool), idle at the end; how much of a core the workers had while
+    preparing (below 1: other processes held the cores)."""
     by_worker: dict[int, list] = {}
     for outcome in summary.outcomes:
         by_worker.setdefault(outcome.worker, []).append(outcome)
@@ -189,15 +191,39 @@ def _where_time_went(summary, parent_cpu: float) -> None:
     start_up = [min(o.started for o in mine) - summary.began for mine in by_worker.values()]
     busy = sum(o.ended - o.started for o in summary.outcomes)
     cpu = sum(o.cpu_seconds for o in summary.outcomes)
-    last_ends = sorted(max(o.ended for o in mine) for mine in by_worker.values())
-    tail = last_ends[-1] - last_ends[0]
-    print(f"  where the pool's {summary.seconds:.1f} s went: workers starting "
-          f"{statistics.mean(start_up):.2f} s each (spawn, imports, ranker); preparing "
-          f"{100 * busy / (workers * summary.seconds):.1f}% of {workers} x the run; tail (one "
-          f"worker idle at the end) {tail:.2f} s; between reports and after the last "
-          f"{sum(max(0.0, end - o) for o in last_ends) / workers:.2f} s per worker; "
-          f"the workers had {cpu / busy:.2f} of a core each while preparing (1.00: a core to "
+    gaps = []
+    for mine in by_worker.values():
+        mine = sorted(mine, key=lambda o: o.started)
+        gaps.append(sum(max(0.0, b.started - a.ended) for a, b in itertools.pairwise(mine)))
+    idle_at_end = [end - max(o.ended for o in mine) for mine in by_worker.values()]
+    print(f"  where the pool's {summary.seconds:.1f} s went, per worker: starting "
+          f"{statistics.mean(start_up):.2f} s (spawn, imports, ranker); preparing "
+          f"{busy / workers:.1f} s ({100 * busy / (workers * summary.seconds):.1f}%); between "
+          f"reports {statistics.mean(gaps):.2f} s in all; idle at the end "
+          f"{statistics.mean(idle_at_end):.2f} s (the longest {max(idle_at_end):.2f} s). "
+          f"The workers had {cpu / busy:.2f} of a core each while preparing (1.00: a core to "
           f"itself); the parent used {parent_cpu:.2f} CPU s")
+
+
+def _idle_estimate(one: Rate, summaries: list) -> tuple[float, float] | None:
+    """The speed-up this run's CPU accounting predicts if every process had a core to itself:
+    one process preparing the pool's reports at its CPU seconds per report (plus one worker's
+    start-up) against the pool's longest worker (its start-up plus its reports' CPU seconds).
+    An estimate, not a measurement: it leaves out what two busy cores cost each other (shared
+    cache, memory, the hypervisor), which only a quiet machine shows. Also the workers' mean
+    start-up in CPU seconds."""
+    outcomes = [o for s in summaries for o in s.prepared if o.worker_start_cpu > 0]
+    if not outcomes or not one.reports:
+        return None
+    start_up = statistics.mean({o.worker: o.worker_start_cpu for o in outcomes}.values())
+    one_cpu = start_up + len(outcomes) * one.cpu / one.reports
+    makespans = []
+    for summary in summaries:
+        by_worker: dict[int, float] = {}
+        for o in summary.prepared:
+            by_worker[o.worker] = by_worker.get(o.worker, o.worker_start_cpu) + o.cpu_seconds
+        makespans.append(max(by_worker.values(), default=0.0))
+    return one_cpu / sum(makespans), start_up
 
 
 def _ceiling(additions: int = 20_000_000) -> float:
@@ -382,6 +408,11 @@ def main(argv: list[str] | None = None) -> int:
               f"{pool.pages_per_second / one.pages_per_second:.2f}x pages/s; CPU seconds per "
               f"report {pool.cpu / max(pool.reports, 1) / (one.cpu / max(one.reports, 1)):.2f}x "
               f"the one process's (target: 1.8x reports/min on 2 cores)")
+        estimate = _idle_estimate(one, summaries)
+        if estimate:
+            print(f"with a core to each process (an estimate from the CPU seconds above, not a "
+                  f"measurement): {estimate[0]:.2f}x; a worker takes {estimate[1]:.2f} CPU s "
+                  f"to start")
         peak = max((o.peak_rss_mb for s in summaries for o in s.outcomes), default=0.0)
         print(f"peak memory of any worker: {peak:.0f} MB")
         prepared_cache = tmp / ("cache-pool" if args.rounds == 1 else "cache-pool-0")
