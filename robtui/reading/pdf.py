@@ -15,7 +15,13 @@ from pathlib import Path
 from robtui.errors import ReadingError
 from robtui.reading.assemble import Block, Box, SentenceMaker
 from robtui.reading.document import Document
-from robtui.reading.layout.blocks import PBlock, page_blocks, running_signatures, strip_running
+from robtui.reading.layout.blocks import (
+    PBlock,
+    is_cover_sheet,
+    page_blocks,
+    running_signatures,
+    strip_running,
+)
 from robtui.reading.layout.glyphs import read_glyphs
 from robtui.reading.layout.lines import Line
 from robtui.reading.layout.page import PageLines, analyse_page
@@ -267,6 +273,11 @@ def read_pdf(
                     found_text = True
                 else:
                     textless.append(number)
+                if is_cover_sheet(lines):
+                    page_warnings.append(
+                        "page 1 is a download service's cover sheet: left out of the text"
+                    )
+                    continue
                 if running is None:
                     buffered.append(lines)
                     if len(buffered) < RUNNING_SAMPLE:

@@ -123,3 +123,20 @@ def test_page_profile_prints_the_slowest_page_and_memory_along_the_file(capsys) 
     assert "slowest page 2 0.500 s; pages over 0.3 s: 1" in out
     assert "robtui / pdftotext = 10x" in out
     assert "p1 2, p2 2, p3 3, p4 3" in out
+
+
+def test_a_sentence_interrupted_by_poppler_counts_only_on_the_second_figure() -> None:
+    from robtui.benchmarks.real_pdfs import intact_across_interruption, normalise
+
+    reference = normalise("the women were followed up for twelve weeks page 3 of 12 smith et "
+                          "al. trials 2030 after randomisation by the team. other text")
+    whole = normalise("The women were followed up for twelve weeks after randomisation by the team.")
+    assert whole not in reference
+    assert intact_across_interruption(whole, reference)
+    # text of ours the reference does not hold (a label glued in) is never forgiven
+    glued = normalise("The women were followed up 0 2 4 6 for twelve weeks after randomisation.")
+    assert not intact_across_interruption(glued, reference)
+    # nor pieces that lie far apart (another column's text read across)
+    far = normalise("the women were followed up for twelve weeks " + "x " * 150 + "after randomisation")
+    assert not intact_across_interruption(normalise("The women were followed up for twelve weeks "
+                                                    "after randomisation"), far)

@@ -217,3 +217,31 @@ def test_side_notes_and_stamps_stay_out_of_prose() -> None:
             if len(text.split()) > 8:
                 assert "See Online for appendix" not in text, (path.name, text)
                 assert "Downloaded from http" not in text, (path.name, text)
+
+
+def _spaced(text: str, x: float, baseline: float, letter_gap: float, word_gap: float,
+            size: float = 10.0) -> list[Glyph]:
+    """Glyphs of ``text`` set letter-spaced: ``letter_gap`` between letters, ``word_gap``
+    for a space (points)."""
+    out = []
+    for ch in text:
+        if ch == " ":
+            x += word_gap
+            continue
+        out.append(Glyph(ch, x, x + 5.0, baseline - 0.8 * size, baseline + 0.2 * size,
+                         baseline, size, "Body", 0))
+        x += 5.0 + letter_gap
+    return out
+
+
+def test_letter_spaced_words_are_joined_and_their_spaces_kept() -> None:
+    glyphs = _spaced("RESEARCH ARTICLE", 10, 100, letter_gap=1.5, word_gap=4.0)
+    glyphs += _spaced("Commons Attribution 4.0", 10, 120, letter_gap=0.9, word_gap=4.5)
+    assert _text(rows_of(glyphs)) == ["RESEARCH ARTICLE", "Commons Attribution 4.0"]
+
+
+def test_short_words_with_tight_spaces_stay_apart() -> None:
+    # "In 11 of 13" and "a 3 x 2" have short pieces and narrow gaps, but few single letters
+    glyphs = _spaced("In 11 of 13 foci", 10, 100, letter_gap=0.0, word_gap=1.8)
+    glyphs += _spaced("a 3 x 2 design", 10, 120, letter_gap=0.0, word_gap=1.6)
+    assert _text(rows_of(glyphs)) == ["In 11 of 13 foci", "a 3 x 2 design"]

@@ -18,13 +18,15 @@ from dataclasses import dataclass, field
 
 from robtui.reading.assemble import is_caption, looks_like_heading
 from robtui.reading.layout.lines import Line, make_line
-from robtui.reading.layout.page import MARGIN_SHARE, PageLines
+from robtui.reading.layout.page import MARGIN_SHARE, NUMERIC, PageLines
 from robtui.reading.sections import TOP_LEVEL, match_heading, normalise_heading, run_in_heading
 
 # A white band at least this share of the body size tall sets a margin line apart from the text
 # (lines of one paragraph are about 0.2 apart in their glyph boxes; our own setting, no source).
 SET_APART = 0.6
 HEAD_ROWS = 4  # a running head or footer has at most this many rows
+NUMBER_RUN = 5
+NUMBER_SHARE = 0.6
 _PAGE_NUMBER = re.compile(r"^(?:page\s*)?#+(?:\s*(?:of|/)\s*#+)?$", re.IGNORECASE)
 # Publishers' notes where a block breaks across pages or columns (not the article's text).
 _CONTINUED = re.compile(
@@ -128,8 +130,8 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
     margin = {id(ln) for ln in _margin_lines(page)}
 
     def running_line(ln: Line) -> bool:
-        if id(ln) not in margin:
-            return False
+        if id(ln) not in margin or is_caption(ln.text):
+            return False  # a caption set high on the page opens its figure or table
         signature = _signature(ln)
         if signature in running or _PAGE_NUMBER.match(signature):
             return True
@@ -139,6 +141,27 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
     return PageLines(
         page.number, page.width, page.height, kept, page.tables, page.warnings, page.body_size
     )
+
+
+# -- download cover sheets ---------------------------------------------------------------------
+
+# What the sheets that download services put before an article say (common practice, our own
+# list, no source); COVER_PHRASES of them on a first page make it such a sheet.
+_COVER = re.compile(
+    r"to cite this article|to link to this article|terms (?:&|and) conditions|"
+    r"download(?:ed)? by|submit your article|view related articles|view crossmark|"
+    r"article views|see discussions, stats|stable url|your use of the jstor",
+    re.IGNORECASE,
+)
+COVER_PHRASES = 3
+
+
+def is_cover_sheet(page: PageLines) -> bool:
+    """Whether a first page is a download service's cover sheet, not the article's."""
+    if page.number != 1:
+        return False
+    found = {m.group(0).lower() for ln in page.lines for m in _COVER.finditer(ln.text)}
+    return len(found) >= COVER_PHRASES
 
 
 # -- blocks ----------------------------------------------------------------------------------
@@ -189,6 +212,8 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         prev = line
     for block in blocks:
         block.kind = _kind(block, body_size, body_font)
+    # Figures standing alone outside any table are a chart's axis ticks: not the article's text.
+    blocks = [b for b in blocks if b.kind != "ticks"]
     blocks = _with_run_in_split(blocks, body_font)
     for i, block in enumerate(blocks):
         if block.kind == "body" and _stands_as_heading(block, blocks[i + 1 : i + 2], body_font):
@@ -210,6 +235,8 @@ _FRONT_MATTER = re.compile(
 def _kind(block: PBlock, body_size: float, body_font: str) -> str:
     first = block.lines[0]
     text = " ".join(ln.text for ln in block.lines)
+    if _numbers_only(text):
+        return "ticks"
     if first.column == "aside":
         return "aside"
     if is_caption(first.text):
@@ -228,6 +255,14 @@ def _kind(block: PBlock, body_size: float, body_font: str) -> str:
             if label is not None and (not small or normalise_heading(text) in TOP_LEVEL):
                 return "heading"  # heading vocabulary standing alone on its line
     return "body"
+
+
+def _numbers_only(text: str) -> bool:
+    """At least NUMBER_RUN figures making up most (NUMBER_SHARE) of the words: a chart's axis
+    ticks ("0 2 4 6 8 10 12 Months after treatment")."""
+    tokens = text.split()
+    numbers = sum(bool(NUMERIC.match(t)) for t in tokens)
+    return numbers >= NUMBER_RUN and numbers >= NUMBER_SHARE * len(tokens)
 
 
 def _stands_as_heading(block: PBlock, following: list[PBlock], body_font: str) -> bool:

@@ -12,12 +12,13 @@ common practice for PDF text extraction, our own settings, no source.
 
 from __future__ import annotations
 
+import itertools
 import re
 import statistics
-from collections import Counter
-from functools import cache, cached_property
 import unicodedata
+from collections import Counter
 from dataclasses import dataclass
+from functools import cache, cached_property
 
 from robtui.reading.layout.glyphs import Glyph
 from robtui.reading.normalise import normalise_chars
@@ -29,6 +30,10 @@ BAND_BELOW = 0.3
 WORD_GAP = 0.1  # a gap wider than this share of the font size separates words
 GUESSED_OVERLAP = 0.1  # where PDFium guessed a space, only glyphs overlapping more are one word
 MIDDLE = 0.35  # a glyph's middle sits this share of its size above its baseline
+LETTER_RUN = 4  # pieces of one or two characters in a row that may be letter-spaced text
+LETTER_GAP_SPREAD = 1.8
+LETTER_WORD_GAP = 2.5
+LETTER_GAP_MAX = 0.22  # letter spacing stays under this share of the size; word spaces exceed it
 
 # Spacing accents some PDFs draw as separate glyphs over a letter, with their combining forms.
 _SPACING_MARKS = {
@@ -239,7 +244,58 @@ def words_of(row: Row) -> list[Word]:
         marks_only = (marks_only or not current) and g.size < small and g.baseline < raised
         current.append(g)
     _flush(current, words)
-    return words
+    return _letter_spaced_joined(words)
+
+
+def _letter_spaced_joined(words: list[Word]) -> list[Word]:
+    """Words set letter-spaced ("R E S E A R C H", "C o m m o n s") joined again: a run of
+    LETTER_RUN or more pieces of one or two characters in one size, at least half of them
+    single letters, whose gaps are alike (within LETTER_GAP_SPREAD of the run's median) and narrow
+    (under LETTER_GAP_MAX of the size, where a word space is wider), is one word when the
+    run or its neighbours show word spaces LETTER_WORD_GAP times as wide; those stay spaces."""
+
+    def piece(w: Word) -> bool:
+        return len(w.text) <= 2
+
+    out: list[Word] = []
+    i = 0
+    while i < len(words):
+        j = i
+        while (j + 1 < len(words) and piece(words[j]) and piece(words[j + 1])
+               and words[j + 1].size == words[i].size):
+            j += 1
+        singles = sum(len(w.text) == 1 and w.text.isalpha() for w in words[i : j + 1])
+        if j - i + 1 < LETTER_RUN or 2 * singles < j - i + 1:
+            out.append(words[i])
+            i += 1
+            continue
+        run = words[i : j + 1]
+        gaps = [b.box[0] - a.box[2] for a, b in itertools.pairwise(run)]
+        typical = statistics.median(gaps)
+        edges = gaps + [run[0].box[0] - words[i - 1].box[2]] if i else list(gaps)
+        if j + 1 < len(words):
+            edges.append(words[j + 1].box[0] - run[-1].box[2])
+        if not any(gap >= LETTER_WORD_GAP * max(typical, 0.1) for gap in edges):
+            out.append(words[i])  # no word space wider than the gaps: tight words, not letters
+            i += 1
+            continue
+        joined = [run[0]]
+        for gap, word in zip(gaps, run[1:]):
+            if gap <= LETTER_GAP_SPREAD * typical and gap < LETTER_GAP_MAX * word.size:
+                joined[-1] = _joined(joined[-1], word)
+            else:
+                joined.append(word)
+        out.extend(joined)
+        i = j + 1
+    return out
+
+
+def _joined(a: Word, b: Word) -> Word:
+    return Word(
+        a.text + b.text,
+        (a.box[0], min(a.box[1], b.box[1]), b.box[2], max(a.box[3], b.box[3])),
+        a.bold, a.italic, a.size, a.font,
+    )
 
 
 def _compose_marks(glyphs: list[Glyph]) -> list[Glyph]:

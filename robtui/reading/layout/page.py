@@ -115,14 +115,24 @@ def _side_note(block, width: float, size: float, text_area: tuple[float, float] 
 
 
 def _table_like(inside: list[Segment], size: float) -> bool:
-    """Text between rules is a table when its rows are cut into cells, not prose in a box."""
+    """Text between rules is a table when its rows are cut into cells, not prose in a box; a
+    box of short lines is one when some of its rows hold several cells, or mostly figures: one
+    line of words to a row (a registration box, a cover page's links) is boxed text."""
     by_row: dict[int, list[Word]] = {}
+    pieces: dict[int, int] = {}
     for seg in inside:
         by_row.setdefault(seg.row, []).extend(seg.line.words)
+        pieces[seg.row] = pieces.get(seg.row, 0) + 1
     rows = [sorted(words, key=lambda w: w.box[0]) for words in by_row.values()]
     tabular = sum(_tabular(words, size) for words in rows)
-    words = sum(len(seg.line.words) for seg in inside)
-    return tabular >= 0.3 * len(rows) or words / len(inside) < 5
+    if tabular >= 0.3 * len(rows):
+        return True
+    words = [w for seg in inside for w in seg.line.words]
+    if len(words) / len(inside) >= 5:
+        return False
+    cells = sum(n > 1 for n in pieces.values())
+    numeric = sum(bool(NUMERIC.match(w.text)) for w in words)
+    return cells >= 0.3 * len(rows) or numeric >= 0.5 * len(words)
 
 
 def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> list[Box]:
@@ -146,7 +156,7 @@ def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> li
     return regions
 
 
-_NUMERIC = re.compile(r"^[(\[<>≤≥±+−–-]*[\d.,·]+[%)\]*†‡,;]*$")
+NUMERIC = re.compile(r"^[(\[<>≤≥±+−–-]*[\d.,·]+[%)\]*†‡,;]*$")
 
 
 def _tabular(words: list[Word], size: float) -> bool:
@@ -156,7 +166,7 @@ def _tabular(words: list[Word], size: float) -> bool:
         return False
     gaps = [b.box[0] - a.box[2] for a, b in zip(words, words[1:])]
     wide = sum(gap >= CELL_EM * size for gap in gaps)
-    numeric = sum(bool(_NUMERIC.match(w.text)) for w in words) / len(words)
+    numeric = sum(bool(NUMERIC.match(w.text)) for w in words) / len(words)
     if (wide >= 2 and numeric >= 0.3) or (wide >= 1 and numeric >= 0.5):
         return True
     cells, longest = 1, 0

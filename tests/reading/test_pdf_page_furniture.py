@@ -1,0 +1,112 @@
+"""What is not the article's prose on a PDF page: download cover sheets, a chart's axis ticks,
+boxed text between rules (not a table), a caption set high on the page (kept)."""
+
+from __future__ import annotations
+
+import pytest
+
+from robtui.reading.reader import read_document
+
+pytest.importorskip("reportlab")
+
+PROSE = (
+    "Participants were recruited from three invented clinics in the town of Quillmoor and "
+    "were followed for twelve weeks after the start of the programme."
+)
+
+
+def _pdf(path, pages: list[list[tuple[float, float, str, float]]], rules=()) -> None:
+    """Each page a list of (x, y from the top, text, size); ``rules`` (page, x0, x1, y)."""
+    from reportlab.lib.pagesizes import A4
+    from reportlab.pdfgen import canvas
+
+    height = A4[1]
+    c = canvas.Canvas(str(path), pagesize=A4)
+    for number, items in enumerate(pages, 1):
+        for x, y, text, size in items:
+            c.setFont("Helvetica", size)
+            c.drawString(x, height - y, text)
+        for page, x0, x1, y in rules:
+            if page == number:
+                c.line(x0, height - y, x1, height - y)
+        c.showPage()
+    c.save()
+
+
+def _prose_lines(top: float, count: int, x: float = 72) -> list[tuple[float, float, str, float]]:
+    words = PROSE.split()
+    lines, out = [], []
+    for i in range(0, len(words), 9):
+        lines.append(" ".join(words[i : i + 9]))
+    for i in range(count):
+        out.append((x, top + 13 * i, lines[i % len(lines)], 10))
+    return out
+
+
+def test_a_download_cover_sheet_is_left_out_with_a_warning(tmp_path) -> None:
+    cover = [(72, 120 + 30 * i, text, 10) for i, text in enumerate([
+        "Invented Journal of Trials",
+        "To cite this article: A. Author (2030) An invented trial.",
+        "To link to this article: https://example.org/invented",
+        "Submit your article to this journal",
+        "View related articles",
+        "Full Terms & Conditions of access and use can be found online",
+    ])]
+    path = tmp_path / "cover.pdf"
+    _pdf(path, [cover, [(72, 100, PROSE, 9)]])
+    document = read_document(path, use_cache=False)
+    assert "cite this article" not in document.text
+    assert "Quillmoor" in document.text
+    assert any("cover sheet" in w for w in document.warnings)
+
+
+def test_a_first_page_naming_how_to_cite_once_is_read(tmp_path) -> None:
+    page = [(72, 100, "To cite this article: A. Author (2030) An invented trial.", 10),
+            (72, 130, PROSE, 9)]
+    path = tmp_path / "article.pdf"
+    _pdf(path, [page])
+    document = read_document(path, use_cache=False)
+    assert "To cite this article" in document.text
+    assert not document.warnings
+
+
+def test_axis_ticks_of_a_chart_are_not_text(tmp_path) -> None:
+    page = _prose_lines(100, 6)
+    page += [(100, 260, "0    2    4    6    8    10    12    14    16", 8),
+             (150, 272, "Weeks after the start", 8)]
+    page += _prose_lines(320, 6)
+    path = tmp_path / "chart.pdf"
+    _pdf(path, [page])
+    document = read_document(path, use_cache=False)
+    assert "10 12 14" not in document.text
+    assert document.text.count("Quillmoor") >= 2
+
+
+def test_boxed_lines_between_rules_are_text_not_a_table(tmp_path) -> None:
+    box = [(72, 120, "Trial registration: Invented Registry", 10),
+           (72, 134, "Pilot one: IR-0042", 10),
+           (72, 148, "registered on 3 May 2029.", 10),
+           (72, 162, "Pilot two: IR-0057", 10),
+           (72, 176, "registered 9 June 2030.", 10)]
+    path = tmp_path / "box.pdf"
+    _pdf(path, [box + _prose_lines(220, 8)], rules=[(1, 66, 530, 105), (1, 66, 530, 185)])
+    document = read_document(path, use_cache=False)
+    registered = [s for s in document.sentences if "IR-0042" in s.text]
+    assert registered and all(s.block == "body" for s in registered)
+
+
+def test_a_caption_at_the_top_of_a_page_is_kept(tmp_path) -> None:
+    pages = []
+    for n in range(4):
+        page = [(72, 30, "Invented Journal of Trials 2030", 8)]
+        page += [(72, 62, f"Figure {n + 1} Flow of participants through the", 8),
+                 (72, 72, "invented trial.", 8)]
+        page += _prose_lines(120, 30)
+        pages.append(page)
+    path = tmp_path / "captions.pdf"
+    _pdf(path, pages)
+    document = read_document(path, use_cache=False)
+    captions = [s.text for s in document.sentences if s.block == "caption"]
+    assert captions == [f"Figure {n + 1} Flow of participants through the invented trial."
+                        for n in range(4)]
+    assert "Invented Journal of Trials" not in document.text
