@@ -245,3 +245,11 @@ def test_short_words_with_tight_spaces_stay_apart() -> None:
     glyphs = _spaced("In 11 of 13 foci", 10, 100, letter_gap=0.0, word_gap=1.8)
     glyphs += _spaced("a 3 x 2 design", 10, 120, letter_gap=0.0, word_gap=1.6)
     assert _text(rows_of(glyphs)) == ["In 11 of 13 foci", "a 3 x 2 design"]
+
+
+def test_affiliation_mark_in_small_print_beside_body_text_is_its_own_word() -> None:
+    # a footnote line in 7.5 pt shares its baseline with 10 pt body text in the other column
+    glyphs = _glyphs("body text of the left column", 10, 100)
+    glyphs += _glyphs("1", 300, 96.5, size=5.0, advance=2.7)
+    glyphs += _glyphs("School of Invented Studies", 302.7, 100, size=7.5, advance=3.4)
+    assert _text(rows_of(glyphs)) == ["body text of the left column 1 School of Invented Studies"]

@@ -56,21 +56,21 @@ def _signature(line: Line) -> str:
 
 
 def _margin_lines(page: PageLines) -> list[Line]:
-    """Lines in the top or bottom margin that are set apart from the page's text: the run of
-    closely spaced lines holding them (lines closer than SET_APART of the body size, whatever
-    their column) lies in the margin, or opens (closes) in it with at most HEAD_ROWS rows. A
-    paragraph running on from the margin into the page is text."""
+    """Lines of the top or bottom margin set apart from the page's text: runs of closely
+    spaced lines (closer than SET_APART of the body size, whatever their column) that lie in
+    the margin, or open (close) in it with at most HEAD_ROWS rows. A paragraph running on
+    from the margin into the page is text."""
     top_zone = page.height * MARGIN_SHARE
     bottom_zone = page.height * (1 - MARGIN_SHARE)
     out: list[Line] = []
     for run in _vertical_runs(page.lines, SET_APART * max(page.body_size, 4.0)):
+        if any(is_caption(ln.text) for ln in run[:2]):
+            continue  # a figure or table set high or low on the page, with its caption
         inside = max(ln.bottom for ln in run) <= top_zone or min(ln.top for ln in run) >= bottom_zone
         if not inside and len({round(ln.top) for ln in run}) > HEAD_ROWS:
             continue
-        if min(ln.bottom for ln in run) <= top_zone:
-            out.extend(ln for ln in run if ln.bottom <= top_zone)
-        elif max(ln.top for ln in run) >= bottom_zone:
-            out.extend(ln for ln in run if ln.top >= bottom_zone)
+        if min(ln.bottom for ln in run) <= top_zone or max(ln.top for ln in run) >= bottom_zone:
+            out.extend(run)
     return out
 
 
@@ -135,7 +135,7 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
         signature = _signature(ln)
         if signature in running or _PAGE_NUMBER.match(signature):
             return True
-        return ln.bottom <= top_zone and ln.size < body_size - 0.8
+        return ln.top < page.height / 2 and ln.size < body_size - 0.8
 
     kept = [ln for ln in page.lines if not running_line(ln) and not _CONTINUED.match(ln.text)]
     return PageLines(

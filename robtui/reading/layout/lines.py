@@ -234,7 +234,7 @@ def words_of(row: Row) -> list[Word]:
         if current:
             prev = current[-1]
             gap = g.x0 - prev.x1
-            if marks_only and g.size >= small:
+            if marks_only and (g.size >= small or g.size > 1.25 * prev.size):
                 _flush(current, words)  # a footnote mark before a word: "a Values are"
             least = WORD_GAP * max(min(g.size, prev.size), 4.0)
             if g.space_before:  # PDFium saw a space here from the font's own spacing
