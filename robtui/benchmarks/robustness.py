@@ -9,7 +9,9 @@ Prints, for the targets of a review folder that many hands cannot break:
   exceptions outside robtui's own error types, by kind of input, and time per input;
 - confinement probes (symlinked folders, report paths and export names leading outside):
   files written outside the review;
-- time to read one pathological Markdown line (linear since the patterns are bounded).
+- time to read one pathological Markdown line (linear since the patterns are bounded);
+- large inputs: peak memory (RSS of a fresh process) reading text, Markdown, HTML and registry
+  records of growing size, one over the text limit (refused), and `robtui suggest` on text.
 
 Every figure is a count or a time printed as measured; nothing is asserted here.
 """
@@ -32,7 +34,10 @@ def _parse(argv: list[str]) -> argparse.Namespace:
     parser.add_argument("--inputs", type=int, default=5000, metavar="N", help="mutated inputs")
     parser.add_argument("--seed", type=int, default=14)
     parser.add_argument(
-        "--quick", action="store_true", help="10 double writes, 10 kills, 200 inputs"
+        "--quick", action="store_true", help="10 double writes, 10 kills, 200 inputs, 1 MB inputs"
+    )
+    parser.add_argument(
+        "--large-only", action="store_true", help="only the peak memory on large inputs"
     )
     return parser.parse_args(argv)
 
@@ -43,11 +48,13 @@ def main(argv: list[str]) -> int:
         args.double_writes, args.kills, args.inputs = 10, 10, 200
     work = Path(tempfile.mkdtemp(prefix="robtui-robustness-"))
     try:
-        _double_writes(work, args.double_writes, args.seed)
-        _kills(work, args.kills, args.seed)
-        _fuzz(work, args.inputs, args.seed)
-        _confinement(work)
-        _markdown()
+        if not args.large_only:
+            _double_writes(work, args.double_writes, args.seed)
+            _kills(work, args.kills, args.seed)
+            _fuzz(work, args.inputs, args.seed)
+            _confinement(work)
+            _markdown()
+        _large_inputs(work, (1.0,) if args.quick else (1.0, 4.5))
     finally:
         shutil.rmtree(work, ignore_errors=True)
     return 0
@@ -165,3 +172,109 @@ def _markdown() -> None:
             f"markdown: 60 KB line of {pattern!r}: {took:.2f} s "
             f"({len(document.sentences)} sentences)"
         )
+
+
+# -- large inputs: peak memory ------------------------------------------------------------------
+# Each measurement runs in a fresh interpreter and prints its own peak resident set size
+# (getrusage ru_maxrss, kilobytes on Linux), so one run's memory never counts in another's.
+_PEAK = (
+    "import resource,sys,time;from pathlib import Path;t=time.perf_counter();"
+    "from robtui.errors import RobtuiError\n"
+    "try:\n"
+    " {action}\n"
+    "except RobtuiError as e: out='refused: '+str(e).split(': ',1)[1][:60]\n"
+    "print(out);print(time.perf_counter()-t);"
+    "print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)"
+)
+_READ = (
+    "from robtui.reading.reader import read_document;"
+    "out=str(len(read_document(Path(sys.argv[1]),use_cache=False).sentences))+' sentences'"
+)
+_SUGGEST = (
+    "from robtui.cli import main;import contextlib,io;buf=io.StringIO()\n"
+    " with contextlib.redirect_stdout(buf): rc=main(['suggest',sys.argv[1],'--json'])\n"
+    " out=f'exit {rc}'"
+)
+
+
+def _sample_text() -> str:
+    from robtui.paths import bundled_dir
+
+    reports = sorted(bundled_dir("sample_reports").glob("*.txt"))
+    return "\n\n".join(p.read_text(encoding="utf-8") for p in reports)
+
+
+def _large_files(work: Path, megabytes: float) -> dict[str, Path]:
+    """Text, Markdown, HTML and a registry record of about ``megabytes`` MB of report text
+    (the invented sample reports over and over)."""
+    import html
+
+    from robtui.paths import bundled_dir
+
+    text = _sample_text()
+    size = int(megabytes * 1_000_000)
+    text = (text * (size // len(text) + 1))[:size]
+    paragraphs = [p for p in text.split("\n\n") if p.strip()]
+    tag = f"{megabytes:g}MB"
+    files = {
+        "txt": (work / f"large-{tag}.txt", text),
+        "md": (work / f"large-{tag}.md",
+               "\n\n".join(("## " + p) if len(p) < 60 else p for p in paragraphs)),
+        "html": (work / f"large-{tag}.html", "<html><body>" + "".join(
+            f"<p>{html.escape(p)}</p>\n" for p in paragraphs) + "</body></html>"),
+    }  # fmt: skip
+    record = (bundled_dir("sample_reports") / "registry" / "alder-registry.xml").read_text()
+    marker = "Headache Impact Score; Time frame: 12 weeks"
+    outcome = "Use of acute headache medication, count {i}; Time frame: weeks 9 to 12\n"
+    outcomes = "".join(outcome.format(i=i) for i in range(int(size * 0.6) // len(outcome)))
+    files["registry"] = (work / f"large-{tag}.xml", record.replace(marker, outcomes + marker))
+    for path, content in files.values():
+        path.write_text(content, encoding="utf-8")
+    return {kind: path for kind, (path, _) in files.items()}
+
+
+def _peak(action: str, path: Path, cache: Path) -> tuple[str, float, float]:
+    import os
+    import subprocess
+    import sys
+
+    env = {**os.environ, "ROBTUI_CACHE_DIR": str(cache)}
+    run = subprocess.run([sys.executable, "-c", _PEAK.format(action=action), str(path)],
+                         capture_output=True, text=True, env=env, check=False)  # fmt: skip
+    lines = run.stdout.strip().splitlines()
+    if run.returncode != 0 or len(lines) < 3:
+        return f"failed: {run.stderr.strip().splitlines()[-1:]}", 0.0, 0.0
+    return lines[-3], float(lines[-2]), int(lines[-1]) / 1024
+
+
+def _large_inputs(work: Path, sizes: tuple[float, ...]) -> None:
+    from robtui.paths import bundled_dir
+    from robtui.reading.reader import MAX_DOCUMENT_CHARS, MAX_TEXT_BYTES
+
+    cache = work / "cache"
+    _, _, base = _peak(_READ.split(";out=")[0] + ";out='-'", Path("none"), cache)
+    print(f"large inputs: peak memory (RSS) of a fresh process; the reader imported, nothing "
+          f"read: {base:.0f} MB; text limit {MAX_DOCUMENT_CHARS / 1e6:g} million characters")  # fmt: skip
+    for megabytes in sizes:
+        for kind, path in _large_files(work, megabytes).items():
+            size = path.stat().st_size / 1e6
+            what, took, peak = _peak(_READ, path, cache)
+            print(f"  read {kind:<8} {size:5.1f} MB: peak {peak:5.0f} MB "
+                  f"({(peak - base) / size:4.1f} MB per input MB above that), "
+                  f"{took:4.1f} s, {what}")  # fmt: skip
+    over = work / "over-limit.txt"
+    over.write_text(_sample_text() * (MAX_TEXT_BYTES // len(_sample_text())), encoding="utf-8")
+    what, took, peak = _peak(_READ, over, cache)
+    print(f"  read txt over the limit, {over.stat().st_size / 1e6:.1f} MB: peak {peak:.0f} MB, "
+          f"{took:.1f} s, {what}")  # fmt: skip
+    one = min(bundled_dir("sample_reports").glob("*.txt"))
+    _, took, small = _peak(_SUGGEST, one, cache)
+    print(f"  suggest one sample report ({one.stat().st_size / 1e3:.0f} KB): peak {small:.0f} MB, "
+          f"{took:.1f} s")  # fmt: skip
+    for megabytes in sizes:
+        path = _large_files(work, megabytes)["txt"]
+        what, took, peak = _peak(_SUGGEST, path, cache)
+        size = path.stat().st_size / 1e6
+        print(f"  suggest txt {size:4.1f} MB: peak {peak:5.0f} MB "
+              f"({(peak - small) / size:5.1f} MB per input MB above one report), "
+              f"{took:5.1f} s, {what}")  # fmt: skip

@@ -32,9 +32,26 @@ def _inline_md(text: str) -> str:
     return text
 
 
-def markdown_blocks(source: str) -> list[tuple[str, str]]:
+class _Blocks(list):
+    """(kind, text) blocks that count their characters and stop the reading (ReadingError)
+    once the text passes what robtui reads for one report."""
+
+    def __init__(self, path: str) -> None:
+        super().__init__()
+        self.path = path
+        self.chars = 0
+
+    def append(self, block: tuple[str, str]) -> None:
+        from robtui.reading.reader import check_text_length
+
+        self.chars += len(block[1]) + 2  # the blank line joining blocks
+        check_text_length(self.path, self.chars)
+        super().append(block)
+
+
+def markdown_blocks(source: str, path: str = "<markdown>") -> list[tuple[str, str]]:
     """(kind, text) blocks of a Markdown document."""
-    blocks: list[tuple[str, str]] = []
+    blocks = _Blocks(path)
     paragraph: list[str] = []
     table: list[str] = []
 
@@ -81,9 +98,9 @@ _SKIP_TAGS = {"script", "style", "head", "noscript", "svg", "nav"}
 
 
 class _HtmlBlocks(HTMLParser):
-    def __init__(self) -> None:
+    def __init__(self, path: str = "<html>") -> None:
         super().__init__(convert_charrefs=True)
-        self.blocks: list[tuple[str, str]] = []
+        self.blocks: list[tuple[str, str]] = _Blocks(path)
         self.buffer: list[str] = []
         self.kind = "body"
         self.skip = 0
@@ -154,10 +171,15 @@ class _HtmlBlocks(HTMLParser):
         self._flush()
 
 
-def html_blocks(source: str) -> list[tuple[str, str]]:
-    """(kind, text) blocks of an HTML document: headings, paragraphs, captions, tables."""
-    parser = _HtmlBlocks()
-    parser.feed(source)
+def html_blocks(source: str, path: str = "<html>") -> list[tuple[str, str]]:
+    """(kind, text) blocks of an HTML document: headings, paragraphs, captions, tables.
+
+    The parser is fed a megabyte at a time, so a page with more text than robtui reads stops
+    there (its text so far, never the whole page's, is held)."""
+    parser = _HtmlBlocks(path)
+    step = 1 << 20
+    for start in range(0, len(source), step):
+        parser.feed(source[start : start + step])
     parser.close()
     return parser.blocks
 
@@ -190,7 +212,10 @@ def document_from_blocks(
 def read_markup(path: Path, data: bytes, digest: str, kind: str) -> Document:
     """A Markdown or HTML file as a Document."""
     source, warnings = decode_text_file(path, data)
-    pieces = markdown_blocks(source) if kind == "md" else html_blocks(source)
+    if kind == "md":
+        pieces = markdown_blocks(source, str(path))
+    else:
+        pieces = html_blocks(source, str(path))
     if kind == "html" and not pieces and "<" not in source:
         pieces = [(b.kind, source[b.start : b.end]) for b in blocks_from_text(source)]
     document = document_from_blocks(pieces, path=str(path), kind=kind, sha256=digest)

@@ -42,6 +42,25 @@ MAX_BYTES = {"pdf": 200 * 1024 * 1024, "html": 40 * 1024 * 1024}
 MAX_TEXT_BYTES = 20 * 1024 * 1024  # text, Markdown, registry records
 
 
+# The most characters of text one report may hold once read (txt, Markdown, HTML, registry
+# records): 25 times a long trial article (about 200,000 characters). Reading holds about 15
+# bytes per character (the sentences), and ranking about 150: at this limit `robtui suggest`
+# peaks under 1 GB (`robtui bench robustness` prints the figures). Checked while the text is
+# extracted, so a file with more text stops there instead of being read whole.
+MAX_DOCUMENT_CHARS = 5_000_000
+
+
+def check_text_length(path: Path | str, chars: int) -> None:
+    """ReadingError when a report holds more text than robtui reads (the limit is in the
+    message)."""
+    if chars > MAX_DOCUMENT_CHARS:
+        raise ReadingError(
+            f"{path}: holds more than {MAX_DOCUMENT_CHARS / 1e6:g} million characters of text, "
+            "more than robtui reads for one report (a trial report holds well under one "
+            "million): split it, or keep only the trial report's text"
+        )
+
+
 def size_limit(kind: str) -> int:
     return MAX_BYTES.get(kind, MAX_TEXT_BYTES)
 

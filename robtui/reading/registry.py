@@ -493,8 +493,10 @@ def record_text(record: RegistryRecord) -> str:
 def read_registry_document(path: Path, data: bytes, digest: str):
     """A registry record file as a Document of its text rendering (for the report pane,
     suggestions and quotes); offsets are into that rendering."""
+    from robtui.reading.reader import check_text_length
     from robtui.reading.text import document_from_text
 
     record = parse_registry_record(data, str(path))
-    return document_from_text(record_text(record), path=str(path), kind="registry",
-                              sha256=digest)
+    text = record_text(record)
+    check_text_length(path, len(text))
+    return document_from_text(text, path=str(path), kind="registry", sha256=digest)

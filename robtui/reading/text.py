@@ -201,7 +201,10 @@ def _checked_text(path: Path, text: str) -> str:
 
 def read_text_file(path: Path, data: bytes, digest: str) -> Document:
     """A .txt file as a Document (offsets into the file's decoded characters)."""
+    from robtui.reading.reader import check_text_length
+
     text, warnings = decode_text_file(path, data)
+    check_text_length(path, len(text))
     document = document_from_text(text, path=str(path), kind="txt", sha256=digest)
     if not document.sentences:
         raise ReadingError(f"{path}: no text found in the file")

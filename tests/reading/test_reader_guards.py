@@ -69,3 +69,50 @@ def test_markdown_with_a_long_line_of_unclosed_marks_reads(tmp_path):
     path.write_text("Participants were randomised.\n\n" + "*a " * 4000 + "\n", encoding="utf-8")
     document = read_document(path, use_cache=False)
     assert document.sentences[0].text == "Participants were randomised."
+
+
+def _registry_record(outcomes: int) -> str:
+    lines = "".join(f"Outcome number {i}; Time frame: week {i}\n" for i in range(outcomes))
+    return (
+        "<Trials_downloaded_from_ICTRP><Trial><Main><TrialID>RIT-2030-00001</TrialID>"
+        "<Date_registration>2030-02-11</Date_registration>"
+        "<Primary_outcome>Pain; Time frame: week 12</Primary_outcome>"
+        f"<Secondary_outcome>{lines}</Secondary_outcome></Main></Trial>"
+        "</Trials_downloaded_from_ICTRP>"
+    )
+
+
+@pytest.mark.parametrize(
+    ("suffix", "content"),
+    [
+        (".txt", TEXT * 200),
+        (".md", ("## Methods\n\n" + TEXT + "\n") * 200),
+        (".html", "<html><body>" + f"<p>{TEXT}</p>" * 200 + "</body></html>"),
+        (".xml", _registry_record(200)),
+    ],
+)
+def test_more_text_than_robtui_reads_is_refused_with_the_limit(
+    tmp_path, monkeypatch, suffix, content
+):
+    path = tmp_path / f"report{suffix}"
+    path.write_text(content, encoding="utf-8")
+    assert read_document(path, use_cache=False).sentences  # under the limit: read
+    monkeypatch.setattr(reader, "MAX_DOCUMENT_CHARS", 2000)
+    with pytest.raises(ReadingError, match=r"more than 0.002 million characters of text") as caught:
+        read_document(path, use_cache=False)
+    assert str(path) in str(caught.value) and "split it" in str(caught.value)
+
+
+def test_an_html_page_with_too_much_text_stops_where_the_limit_is_passed(monkeypatch):
+    from robtui.reading import markup
+
+    monkeypatch.setattr(reader, "MAX_DOCUMENT_CHARS", 10_000)
+    fed: list[int] = []
+    feed = markup._HtmlBlocks.feed
+    monkeypatch.setattr(
+        markup._HtmlBlocks, "feed", lambda self, data: (fed.append(len(data)), feed(self, data))
+    )
+    page = f"<p>{TEXT}</p>" * 100_000  # 8 MB of paragraphs
+    with pytest.raises(ReadingError, match="characters of text"):
+        markup.html_blocks(page, "page.html")
+    assert sum(fed) <= 1 << 20  # stopped in the first megabyte fed, not after the whole page
