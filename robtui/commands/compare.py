@@ -151,6 +151,6 @@ def run(args: argparse.Namespace) -> int:
             print(f"  {line}")
     warn(
         problems
-        + ([f"{len(skipped)} result(s) not compared (drafts or missing)"] if skipped else [])
+        + ([f"{len(skipped)} result(s) not compared (drafts, missing or unusable files)"] if skipped else [])
     )
     return 0

@@ -52,13 +52,17 @@ class AssessmentPair:
     reviewer_b: str
     a: Assessment | None
     b: Assessment | None
+    # reviewers whose file exists but cannot be used (unreadable, or refused on load)
+    unusable: tuple[str, ...] = ()
 
     @property
     def problem(self) -> str | None:
         """Why this pair cannot be compared, or None when both sides are complete."""
         issues = []
         for name, side in ((self.reviewer_a, self.a), (self.reviewer_b, self.b)):
-            if side is None:
+            if side is None and name in self.unusable:
+                issues.append(f"{name}: the assessment file cannot be used (problem above)")
+            elif side is None:
                 issues.append(f"{name}: no assessment")
             elif side.status != "complete":
                 issues.append(f"{name}: draft, not marked complete")

@@ -91,8 +91,12 @@ def build_outcome_export(
     sets: QuestionSet | ReviewSets,
     assessments: Sequence[Assessment],
     consensus: Sequence[Consensus],
+    unusable: frozenset[tuple[str, str]] = frozenset(),
 ) -> OutcomeExport:
     """Assemble every table of one result's export from the stored records.
+
+    ``unusable``: (reviewer, study) pairs whose assessment file of this result exists but could
+    not be used; the export says so rather than "no assessment".
 
     ``sets`` gives each study's question set (one QuestionSet: the same for all). In a review
     mixing designs the columns are every domain of the sets in use; a study's row holds only
@@ -114,7 +118,8 @@ def build_outcome_export(
         qset = sets.of(study.id)
         keys = [*qset.domain_ids(), OVERALL]  # the study's own columns
         own = sorted(by_study.get(study.id, []), key=lambda a: a.reviewer)
-        record, source, problem = _choose(study.id, own, agreed.get(study.id), review, keys)
+        bad = {name for name, sid in unusable if sid == study.id}
+        record, source, problem = _choose(study.id, own, agreed.get(study.id), review, keys, bad)
         if source == "consensus":
             changes = changed_since(record, _pair_of(record, own), qset)
             if changes:
@@ -174,8 +179,11 @@ def build_outcome_export(
     )
 
 
-def _choose(study_id, own: list[Assessment], cons: Consensus | None, review: Review, keys):
-    """(record, source, problem): the record whose judgements the row shows."""
+def _choose(
+    study_id, own: list[Assessment], cons: Consensus | None, review: Review, keys, bad=frozenset()
+):
+    """(record, source, problem): the record whose judgements the row shows; ``bad``: the
+    reviewers whose file could not be used."""
     if cons is not None and cons.status == "complete":
         return cons, "consensus", None
     complete = [a for a in own if a.status == "complete"]
@@ -188,8 +196,10 @@ def _choose(study_id, own: list[Assessment], cons: Consensus | None, review: Rev
     assessed = {a.reviewer for a in own}
     # the lead may be listed among the reviewers without assessing anything
     missing = [r for r in review.reviewers if r not in assessed and r != review.lead]
-    if missing:
-        notes.append(f"no assessment by {', '.join(missing)}")
+    if [r for r in missing if r in bad]:
+        notes.append(f"assessment file of {', '.join(r for r in missing if r in bad)} cannot be used")
+    if [r for r in missing if r not in bad]:
+        notes.append(f"no assessment by {', '.join(r for r in missing if r not in bad)}")
     if not complete:
         return None, "not judged", "; ".join(notes) or "no assessment"
     finals = {tuple(a.final.get(k) for k in keys) for a in complete}

@@ -473,7 +473,15 @@ def export_outcome(
         consensus, _ = folder.consensus_records()
     sets = review_sets(qset)
     qset = sets.combined([s.id for s in folder.review.studies])  # names of every column
-    ex = build_outcome_export(folder.review, result_id, sets, assessments, consensus)
+    present = {(a.reviewer, a.study_id) for a in assessments if a.result_id == result_id}
+    unusable = frozenset(
+        (reviewer, study.id)
+        for reviewer in folder.review.reviewers
+        for study in folder.review.studies
+        if (reviewer, study.id) not in present
+        and folder.assessment_path(reviewer, study.id, result_id).exists()
+    )
+    ex = build_outcome_export(folder.review, result_id, sets, assessments, consensus, unusable)
     stem = name or result_id
     written: list[Path] = []
 

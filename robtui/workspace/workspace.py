@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 
 from robtui.core.comparison import AssessmentPair, pair_assessments
@@ -136,6 +137,16 @@ class Workspace:
         pairs = pair_assessments(
             sides[0], sides[1], reviewer_a=reviewers[0], reviewer_b=reviewers[1], expected=expected
         )
+        # a side with a file that could not be used is "unusable", never "no assessment"
+        for i, pair in enumerate(pairs):
+            unusable = tuple(
+                name
+                for name, side in ((pair.reviewer_a, pair.a), (pair.reviewer_b, pair.b))
+                if side is None
+                and self.folder.assessment_path(name, pair.study_id, pair.result_id).exists()
+            )
+            if unusable:
+                pairs[i] = replace(pair, unusable=unusable)
         return pairs, problems
 
     def pair_of(self, record: Consensus) -> AssessmentPair:

@@ -64,8 +64,15 @@ def test_code_not_offered_by_its_question_is_an_error_naming_file_and_question(d
     _, problems = folder.assessments("maren")
     assert any(str(path) in p and "question 1.1" in p for p in problems)
     assert main(["compare", str(demo), "--as", "ines"]) in (0, 1)
-    err = capsys.readouterr().err
+    out, err = capsys.readouterr()
     assert "question 1.1" in err and path.name in err
+    # the pair's own line says the file cannot be used, never that there is no assessment
+    line = next(ln for ln in out.splitlines() if f"{study} / {result} not compared" in ln)
+    assert "maren: the assessment file cannot be used" in line and "no assessment" not in line
+    assert main(["agreement", str(demo), "--as", "ines"]) in (0, 1)
+    err = capsys.readouterr().err
+    line = next(ln for ln in err.splitlines() if f"{study} / {result} not counted" in ln)
+    assert "maren: the assessment file cannot be used" in line
 
 
 def test_cut_review_toml_is_not_silent_and_export_keeps_earlier_exports(demo, capsys):
@@ -87,6 +94,14 @@ def test_unreadable_file_is_unreadable_not_missing(demo, capsys):
     assert main(["export", str(demo), "--as", "ines", "--format", "md"]) == 2
     err = capsys.readouterr().err
     assert "not valid JSON" in err and str(path) in err
+    # exported anyway on request: the row says the file cannot be used, never "no assessment"
+    study, result = path.stem.split("--")
+    (demo / "consensus" / path.name).unlink(missing_ok=True)
+    assert main(["export", str(demo), "--as", "ines", "--format", "md", "--result", result,
+                 "--despite-problems"]) == 1  # fmt: skip
+    text = (demo / "exports" / f"{result}.md").read_text(encoding="utf-8")
+    assert f"{study}: assessment file of maren cannot be used" in text
+    assert "no assessment by maren" not in text
 
 
 def test_symlinked_reviewer_folder_is_refused_and_nothing_lands_outside(demo, tmp_path, capsys):
