@@ -80,9 +80,11 @@ def run_add(args: argparse.Namespace) -> int:
         raise InputError(f"--id is now --result (the same in every command): {example}")
     if not args.result_id:
         raise InputError(f"say which result with --result: {example}")
+    from robtui.store.ids import check_id
     from robtui.store.records import describe_validation
     from robtui.store.review_folder import ReviewFolder
 
+    check_id(args.result_id, "result")  # the message every id gets, the value shown quoted
     folder = ReviewFolder.open(args.folder)
     fields = {
         "id": args.result_id,

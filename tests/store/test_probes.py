@@ -156,6 +156,24 @@ def test_init_refuses_an_id_with_a_trailing_newline(tmp_path, capsys):
     assert not (tmp_path / "r" / "review.toml").exists()
 
 
+@pytest.mark.parametrize(
+    "argv",
+    [
+        ["study", "add", "{root}", "--study", "S1\n", "--label", "x"],
+        ["result", "add", "{root}", "--result", "r1\n", "--outcome", "pain"],
+        ["assess", "{root}", "--reviewer", "ana\n", "--study", "S1", "--result", "r1"],
+    ],
+)
+def test_every_command_names_an_id_with_a_trailing_newline_the_same_way(tmp_path, capsys, argv):
+    root = tmp_path / "r"
+    assert main(["init", str(root), "--title", "T", "--lead", "ines", "--reviewer", "ana"]) == 0
+    capsys.readouterr()
+    assert main([a.replace("{root}", str(root)) for a in argv]) == 2
+    err = capsys.readouterr().err
+    assert "\\n' is not allowed: use 1-64 letters" in err, err
+    assert "String should match" not in err
+
+
 def test_terminal_output_strips_control_characters(demo, capsys):
     folder = ReviewFolder.open(demo)
 
