@@ -17,7 +17,6 @@ from pathlib import Path
 from robtui.commands._common import add_asking
 from robtui.commands._parsing import IntermixedParser
 from robtui.core.model import DIRECTION_LABELS
-from robtui.core.questions import EFFECTS
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:
@@ -71,7 +70,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         + ", ".join(DIRECTION_LABELS)
         + " (KEY= clears it)",
     )
-    parser.add_argument("--effect", choices=EFFECTS, help=argparse.SUPPRESS)
+    parser.add_argument("--effect", help=argparse.SUPPRESS)  # refused with the reason below
     parser.add_argument(
         "--override",
         action="append",

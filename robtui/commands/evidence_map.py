@@ -6,8 +6,6 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from robtui.core.questions import EFFECTS
-
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -21,8 +19,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         ),
     )
     parser.add_argument("folder", type=Path, metavar="DIR", help="review folder")
-    parser.add_argument("--effect", choices=EFFECTS, default=None,
-                        help="domain 2 variant (default: the first result's)")
+    parser.add_argument("--effect", default=None,
+                        help="domain 2 variant: an effect the review's question sets offer "
+                             "(default: the first result's)")
     parser.add_argument("--export", choices=("csv", "md"), action="append", default=[],
                         help="also write the table to DIR/exports/ (repeat for several)")
     parser.add_argument("--out", default=None, metavar="NAME",
@@ -40,6 +39,7 @@ def run(args: argparse.Namespace) -> int:
     workspace = open_workspace(args.folder)
     folder = workspace.folder
     effect = args.effect or review_effects(folder)[0]
+    workspace.sets.check_effect(effect, [s.id for s in folder.review.studies])
     emap = evidence_map(folder, effect, workspace.qset, workspace.sets)
     print(render_text(emap))
     if emap.prepared_fraction < 1.0:

@@ -13,7 +13,6 @@ import argparse
 
 TOOLS = ("rob2",)  # the method; which of its question sets is "question_set" (default parallel)
 
-from robtui.core.questions import EFFECTS
 from robtui.core.questions import JUDGEMENT_LABELS as _LABELS
 
 
@@ -33,8 +32,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument("--overall", metavar="J,J,J,J,J",
                         help="overall judgement from domain judgements in domain order, such as "
                         "low,some_concerns,high,low,low")
-    parser.add_argument("--effect", default="assignment", choices=EFFECTS,
-                        help="effect of interest; matters for domain 2 (default: assignment)")
+    parser.add_argument("--effect", default=None,
+                        help="effect of interest, one the question set offers; matters for domain "
+                             "2 (default: the set's first, the effect of assignment in RoB 2)")
     parser.add_argument("--question-set", default="parallel", metavar="NAME",
                         help="bundled question set, by design (parallel, cluster, crossover) or "
                         "id (default: parallel)")
@@ -101,7 +101,7 @@ def run_single(args: argparse.Namespace) -> int:
     from robtui.core.explaining import explain_in_words
     from robtui.errors import InputError
     qset = _question_set(args.question_set)
-    domain = qset.domain(str(args.domain), args.effect)
+    domain = qset.domain(str(args.domain), qset.check_effect(args.effect or qset.default_effect()))
     answers = _parse_pairs(args.answers)
     problems = validate_answers(domain, answers)
     if problems:
@@ -171,10 +171,10 @@ def _judge_request(request: dict) -> str:
     domain_id = request.get("domain")
     if isinstance(domain_id, bool) or not isinstance(domain_id, (int, str)):
         raise InputError("give 'domain' (1 to 5) or 'overall'")
-    effect = request.get("effect", "assignment")
-    if effect not in EFFECTS:
-        raise InputError(f"unknown effect {effect!r} (use assignment or adhering)")
-    domain = qset.domain(str(domain_id), effect)
+    effect = request.get("effect") or qset.default_effect()
+    if not isinstance(effect, str):
+        raise InputError(f"'effect' must be an effect id such as {qset.default_effect()!r}")
+    domain = qset.domain(str(domain_id), qset.check_effect(effect))
     answers = request.get("answers", {})
     if not isinstance(answers, dict) or not all(
         isinstance(k, str) and isinstance(v, str) for k, v in answers.items()

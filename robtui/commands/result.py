@@ -5,8 +5,6 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from robtui.core.questions import EFFECTS
-
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -22,9 +20,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     add.add_argument("--time-point", default="", help="e.g. '12 weeks'")
     add.add_argument(
         "--effect",
-        choices=EFFECTS,
-        default="assignment",
-        help="effect of interest: of assignment to (default) or of adhering to the intervention",
+        default=None,
+        help="effect of interest, one the review's question sets offer (default: their first, "
+             "of assignment to the intervention in RoB 2; or of adhering to it)",
     )
     add.add_argument("--outcome-type", choices=("objective", "subjective"))
     add.add_argument(
@@ -45,7 +43,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     )
     effect.add_argument("folder", type=Path, metavar="DIR")
     effect.add_argument("--result", required=True, dest="result_id", metavar="RESULT")
-    effect.add_argument("--effect", required=True, choices=EFFECTS)
+    effect.add_argument("--effect", required=True,
+                        help="an effect of interest the review's question sets offer")
     effect.add_argument("--reviewer", required=True, metavar="NAME", help="the review's lead")
     effect.set_defaults(func=run_set_effect)
 
@@ -90,7 +89,7 @@ def run_add(args: argparse.Namespace) -> int:
         "id": args.result_id,
         "outcome": args.outcome,
         "time_point": args.time_point,
-        "effect": args.effect,
+        "effect": args.effect or folder.question_sets().default_effect(folder.study_ids()),
         "outcome_type": args.outcome_type,
         "weights": _weights(args.weight),
     }

@@ -12,8 +12,6 @@ import argparse
 import sys
 from pathlib import Path
 
-from robtui.core.questions import EFFECTS
-
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -44,8 +42,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:
                         help="reading order, as the workbench shows: after the best sentence, "
                              "one from another section takes a place when it scores nearly as "
                              "well (scores then need not fall steadily)")
-    parser.add_argument("--effect", choices=EFFECTS, default="assignment",
-                        help="domain 2 variant (default: effect of assignment)")
+    parser.add_argument("--effect", default=None,
+                        help="domain 2 variant: an effect the question set offers (default: the "
+                             "set's first, the effect of assignment in RoB 2)")
     parser.add_argument("--question-set", default=None, metavar="NAME",
                         help="rank the questions of this bundled set, by design (parallel, "
                         "cluster, crossover) or id (default: the parallel-group set)")
@@ -81,10 +80,15 @@ def run(args: argparse.Namespace) -> int:
     if not args.files and not args.lists:
         raise InputError("name a report file, a folder or --list LISTFILE")
     files = files_to_suggest(args.files, args.lists)
+    qset = SuggestRequest("", question_set=args.question_set).resolved_set()  # checked up front
+    if qset is None:  # the ranker's default set: the bundled parallel one
+        from robtui.store.question_sets import builtin_question_set
+
+        qset = builtin_question_set()
+    args.effect = qset.check_effect(args.effect or qset.default_effect())
     options = {"questions": tuple(questions) if questions else None, "effect": args.effect,
                "top": args.top, "threshold": args.threshold, "spread": args.spread,
                "question_set": args.question_set}
-    qset = SuggestRequest("", question_set=args.question_set).resolved_set()  # checked up front
     ranker = load_ranker(args.model)  # checks the weights (and the question ids) up front
     if questions:  # checked once here rather than once per file
         from robtui.evidence.ranker import active_questions

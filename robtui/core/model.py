@@ -8,9 +8,18 @@ codes: Y, PY, PN, N, NI, and NA for questions asked "if applicable".
 from __future__ import annotations
 
 from datetime import UTC, datetime
-from typing import Literal
+from typing import Annotated, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, field_validator, model_validator
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    StringConstraints,
+    field_validator,
+    model_validator,
+)
+
+from robtui.core.questions import DEFAULT_EFFECT, EFFECT_ID_PATTERN
 
 SCHEMA_VERSION = 1
 
@@ -19,7 +28,10 @@ RESPONSES: tuple[str, ...] = ("Y", "PY", "PN", "N", "NI", "NA")
 Judgement = Literal["low", "some_concerns", "high"]
 JUDGEMENTS: tuple[str, ...] = ("low", "some_concerns", "high")
 Proposal = Literal["low", "some_concerns", "high", "incomplete"]
-Effect = Literal["assignment", "adhering"]
+# An effect of interest: an id its question set declares (QuestionSet.effects()); checked
+# against the study's set where it is used. Records that name none were made for the effect
+# of assignment (questions.DEFAULT_EFFECT).
+Effect = Annotated[str, StringConstraints(pattern=f"^{EFFECT_ID_PATTERN}$")]
 # The optional predicted direction of bias of the RoB 2 form, per domain and overall (option
 # wording of the RoB 2 template of 22 August 2019, from memory).
 Direction = Literal[
@@ -61,7 +73,7 @@ class ResultSpec(Record):
     id: str = Field(pattern=_ID_PATTERN)
     outcome: str = Field(min_length=1)
     time_point: str = ""
-    effect: Effect = "assignment"
+    effect: Effect = DEFAULT_EFFECT
     outcome_type: Literal["objective", "subjective"] | None = None
     self_reported: bool | None = None
     # Meta-analysis weight per study id (any positive scale); empty means "count studies".
@@ -196,7 +208,7 @@ class Assessment(Record):
     result_id: str = Field(pattern=_ID_PATTERN)
     question_set: str = "rob2-parallel"
     question_set_version: str = "1"
-    effect: Effect = "assignment"
+    effect: Effect = DEFAULT_EFFECT
     answers: dict[str, Answer] = Field(default_factory=dict)
     # keys: domain ids ("1".."5") and "overall"
     proposed: dict[str, Proposal] = Field(default_factory=dict)
@@ -233,7 +245,7 @@ class Consensus(Record):
     lead: str = Field(pattern=_ID_PATTERN)
     question_set: str = "rob2-parallel"
     question_set_version: str = "1"
-    effect: Effect = "assignment"
+    effect: Effect = DEFAULT_EFFECT
     answers: dict[str, Answer] = Field(default_factory=dict)
     decisions: dict[str, Decision] = Field(default_factory=dict)
     proposed: dict[str, Proposal] = Field(default_factory=dict)

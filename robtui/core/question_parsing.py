@@ -12,8 +12,8 @@ from collections.abc import Mapping
 
 from robtui.core.question_paths import answer_paths
 from robtui.core.questions import (
+    EFFECT_ID_PATTERN,
     EFFECT_LABELS,
-    EFFECTS,
     JUDGEMENT_CODES,
     RESPONSE_CODES,
     AnswerIs,
@@ -195,8 +195,8 @@ def _domain(raw: Mapping, index: int) -> Domain:
     effect = raw.get("effect")
     entry = f"domain {did}" + (f" ({effect})" if effect else "")
     _check_keys(raw, _DOMAIN_KEYS, entry)
-    if effect is not None and effect not in EFFECTS:
-        raise _Problem(f"{entry}, effect", f"{effect!r} is not an effect (use {', '.join(EFFECTS)})")
+    if effect is not None and not _is_effect_id(effect):
+        raise _Problem(f"{entry}, effect", f"{effect!r} is not an effect id ({_EFFECT_RULE})")
     questions: dict[str, Question] = {}
     raw_questions = _table_list(raw, "question", entry)
     if not raw_questions:
@@ -244,8 +244,8 @@ def _effects(data: Mapping, domains: list[Domain]) -> dict[str, str]:
         entry = f"effect entry {index}"
         _check_keys(raw, _EFFECT_KEYS, entry)
         eid = raw.get("id")
-        if eid not in EFFECTS:
-            raise _Problem(f"{entry}, id", f"{eid!r} is not an effect (use {', '.join(EFFECTS)})")
+        if not _is_effect_id(eid):
+            raise _Problem(f"{entry}, id", f"{eid!r} is not an effect id ({_EFFECT_RULE})")
         if eid in labels:
             raise _Problem(f"{entry}, id", f"effect {eid!r} is given twice")
         labels[eid] = _text(raw, "label", entry)
@@ -253,7 +253,18 @@ def _effects(data: Mapping, domains: list[Domain]) -> dict[str, str]:
     if labels and not used <= set(labels):
         missing = sorted(used - set(labels))
         raise _Problem("[[effect]]", f"domains use effect {', '.join(missing)}, which has no entry")
+    unnamed = sorted(used - set(labels) - set(EFFECT_LABELS))
+    if unnamed:
+        raise _Problem("[[effect]]", f"domains use effect {', '.join(unnamed)}: declare it with an "
+                       "[[effect]] entry (id, label) so that screens and exports can name it")
     return labels
+
+
+_EFFECT_RULE = "a short lower-case name: letters, digits, '-', starting with a letter"
+
+
+def _is_effect_id(value: object) -> bool:
+    return isinstance(value, str) and re.fullmatch(EFFECT_ID_PATTERN, value) is not None
 
 
 def _design(head: Mapping) -> str | None:
@@ -303,6 +314,7 @@ def parse_question_set(data: Mapping, where: str) -> QuestionSet:
             domains=tuple(domains),
             design=_design(head),
             effect_labels={**EFFECT_LABELS, **labels},
+            declared_effects=tuple(labels),
         )
     except _Problem as problem:
         raise DataFileError(f"{where}: {problem.entry}: {problem.problem}") from None

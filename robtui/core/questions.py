@@ -18,12 +18,20 @@ from robtui.errors import InputError
 # this module does not pull in pydantic; tests check both lists agree).
 RESPONSE_CODES: tuple[str, ...] = ("Y", "PY", "PN", "N", "NI", "NA")
 JUDGEMENT_CODES: tuple[str, ...] = ("low", "some_concerns", "high")
-EFFECTS: tuple[str, ...] = ("assignment", "adhering")
-# Default words for the effects of interest; a set may give its own ([[effect]] label = ...).
+# Effects of interest belong to a question set: it declares them ([[effect]] id = ..., label =
+# ...) or names them on its domains (effect = ...); ask it with QuestionSet.effects(). What
+# follows are only defaults: words for RoB 2's two effects, and the effect of a result or
+# record that names none (RoB 2's usual aim, the effect of assignment).
 EFFECT_LABELS: dict[str, str] = {
     "assignment": "effect of assignment to intervention (the intention-to-treat effect)",
     "adhering": "effect of adhering to intervention (the per-protocol effect)",
 }
+DEFAULT_EFFECT = "assignment"
+# An effect id: a short lower-case name ("assignment", "starting-dose").
+EFFECT_ID_PATTERN = r"[a-z][a-z0-9-]{0,31}"
+# RoB 2's two effects (kept for code written before sets declared their own; use
+# QuestionSet.effects() instead).
+EFFECTS: tuple[str, ...] = tuple(EFFECT_LABELS)
 INCOMPLETE = "incomplete"  # a domain whose asked questions are not all answered
 # The one table of judgement labels (words for every screen, export and message).
 JUDGEMENT_LABELS: dict[str, str] = {
@@ -171,6 +179,7 @@ class QuestionSet:
     domains: tuple[Domain, ...]
     design: str | None = None  # the study design this set serves ("parallel", "cluster", ...)
     effect_labels: Mapping[str, str] = field(default_factory=lambda: dict(EFFECT_LABELS))
+    declared_effects: tuple[str, ...] = ()  # the [[effect]] entries, in the file's order
 
     def domain_ids(self) -> list[str]:
         seen: list[str] = []
@@ -216,8 +225,27 @@ class QuestionSet:
         return keys
 
     def effects(self) -> list[str]:
-        """Effects of interest the set offers variants for (e.g. assignment, adhering)."""
-        return [e for e in EFFECTS if any(d.effect == e for d in self.domains)]
+        """The set's effects of interest: those it declares, else those its domains' variants
+        name, in the file's order (e.g. assignment, adhering); [] when no domain varies."""
+        if self.declared_effects:
+            return list(self.declared_effects)
+        return list(dict.fromkeys(d.effect for d in self.domains if d.effect is not None))
+
+    def check_effect(self, effect: str) -> str:
+        """``effect`` when the set asks its questions for it (a set without effect variants
+        asks the same for any); InputError naming the set's effects otherwise."""
+        effects = self.effects()
+        if effects and effect not in effects:
+            raise InputError(
+                f"unknown effect {effect!r}: question set {self.id} offers "
+                f"{' or '.join(effects)}"
+            )
+        return effect
+
+    def default_effect(self) -> str:
+        """The effect a question is asked for when none is named: the set's first."""
+        effects = self.effects()
+        return effects[0] if effects else DEFAULT_EFFECT
 
     def domain_short_name(self, domain_id: str, effect: str | None = None) -> str:
         """A domain's short name for ``effect``; ``effect=None`` pools the variants (e.g.
@@ -236,7 +264,8 @@ class QuestionSet:
         """"D2 Deviations (adhering)"-style label (see domain_short_name)."""
         return f"D{domain_id} {self.domain_short_name(domain_id, effect)}"
 
-    def domain(self, domain_id: str, effect: str = "assignment") -> Domain:
+    def domain(self, domain_id: str, effect: str | None = None) -> Domain:
+        effect = effect or self.default_effect()
         matches = [d for d in self.domains if d.id == domain_id]
         if not matches:
             raise InputError(
@@ -249,10 +278,10 @@ class QuestionSet:
         offered = ", ".join(str(d.effect) for d in matches)
         raise InputError(f"domain {domain_id} has no variant for effect {effect!r}; use {offered}")
 
-    def questions(self, effect: str = "assignment") -> list[Question]:
+    def questions(self, effect: str | None = None) -> list[Question]:
         return [q for did in self.domain_ids() for q in self.domain(did, effect).questions]
 
-    def question(self, qid: str, effect: str = "assignment") -> Question:
+    def question(self, qid: str, effect: str | None = None) -> Question:
         for q in self.questions(effect):
             if q.id == qid:
                 return q

@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 
-from robtui.core.questions import EFFECTS, QuestionSet
+from robtui.core.questions import QuestionSet
 from robtui.errors import InputError
 
 
@@ -64,6 +64,26 @@ class ReviewSets:
             unique.setdefault((qset.id, qset.version), qset)
         return list(unique.values()) or [self.default]
 
+    def effects(self, study_ids: Iterable[str] | None = None) -> list[str]:
+        """The effects of interest the sets in use declare, in one order all of them agree
+        with ([] when no set has effect variants)."""
+        return merged_order(qset.effects() for qset in self.in_use(study_ids))
+
+    def _assessed(self, study_ids: Iterable[str]) -> list[QuestionSet]:
+        """The sets ``study_ids`` are assessed with (the review's default while it has none)."""
+        return self.in_use(study_ids) if list(study_ids) else [self.default]
+
+    def default_effect(self, study_ids: Iterable[str] = ()) -> str:
+        """The effect a new result gets when none is named: the first study's set's default."""
+        return self._assessed(list(study_ids))[0].default_effect()
+
+    def check_effect(self, effect: str, study_ids: Iterable[str] = ()) -> str:
+        """``effect`` when the set of every study in ``study_ids`` asks its questions for it
+        (a result is assessed in every study); InputError naming the set and its effects."""
+        for qset in self._assessed(list(study_ids)):
+            qset.check_effect(effect)
+        return effect
+
     def is_mixed(self, study_ids: Iterable[str] | None = None) -> bool:
         return len(self.in_use(study_ids)) > 1
 
@@ -77,7 +97,8 @@ class ReviewSets:
         (one set alone: its own ``question_keys()`` order)."""
         sets = self.in_use(study_ids)
         keys: list[str] = []
-        for effect in EFFECTS:
+        effects = self.effects(study_ids) or [sets[0].default_effect()]
+        for effect in effects:
             for domain_id in self.domain_ids(study_ids):
                 per_set = [
                     [qset.question_key(q.id, effect) for q in qset.domain(domain_id, effect).questions]

@@ -13,19 +13,21 @@ rose to Fleiss' kappa 0.42 from 0.16 in Minozzi S et al., J Clin Epidemiol 2020;
 
 from __future__ import annotations
 
+import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any, Protocol
 
 from robtui.core.model import RESPONSES, Assessment, ResultSpec
-from robtui.core.questions import EFFECTS
+from robtui.core.questions import EFFECT_ID_PATTERN
 
 # The result attributes a rule may be conditioned on, with the values each accepts
-# (None: free text, compared case-insensitively with the result's field).
+# (None: free text, compared case-insensitively with the result's field; an effect is any
+# effect id, checked against the question set's effects by validate_rulebook).
 RULE_ATTRIBUTES: dict[str, tuple[str, ...] | None] = {
     "outcome_type": ("objective", "subjective"),
     "self_reported": ("true", "false"),
-    "effect": EFFECTS,
+    "effect": None,
     "time_point": None,
     "outcome": None,
 }
@@ -45,7 +47,9 @@ class QuestionSetLike(Protocol):
     id: str
     version: str
 
-    def questions(self, effect: str = "assignment") -> list[Any]: ...
+    def questions(self, effect: str | None = None) -> list[Any]: ...
+
+    def effects(self) -> list[str]: ...
 
 
 @dataclass(frozen=True)
@@ -147,6 +151,10 @@ def normalise_condition(attribute: str, value: Any) -> tuple[str, str]:
     if not isinstance(value, str) or not value.strip():
         raise ValueError(f"{attr} needs a non-empty text value, not {value!r}")
     text = value.strip()
+    if attr == "effect":
+        if re.fullmatch(EFFECT_ID_PATTERN, text.lower()) is None:
+            raise ValueError(f"effect must be an effect id such as assignment, not {value!r}")
+        return attr, text.lower()
     if allowed is not None:
         if text.lower() not in allowed:
             raise ValueError(f"{attr} must be one of {', '.join(allowed)}, not {text!r}")
@@ -259,9 +267,10 @@ def rules_beside_question(
 
 
 def question_index(qset: QuestionSetLike) -> dict[str, dict[str, Any]]:
-    """Question id -> {effect: Question}, across both effects of interest."""
+    """Question id -> {effect: Question}, across the set's effects of interest (a set without
+    effect variants: under its default effect, and any effect asks the same)."""
     index: dict[str, dict[str, Any]] = {}
-    for effect in EFFECTS:
+    for effect in qset.effects() or [None]:
         for question in qset.questions(effect):
             index.setdefault(question.id, {})[effect] = question
     return index
@@ -299,7 +308,7 @@ def validate_rulebook(book: RuleBook, qset: QuestionSetLike) -> list[RuleProblem
             )
             continue
         effect = dict(rule.when).get("effect")
-        if effect is not None and effect not in by_effect:
+        if effect is not None and qset.effects() and effect not in by_effect:
             problems.append(
                 RuleProblem(
                     entry, f"question {rule.question_id} is not asked for the effect of {effect}"

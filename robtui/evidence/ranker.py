@@ -18,7 +18,6 @@ from pathlib import Path
 
 import numpy as np
 
-from robtui.core.questions import EFFECTS
 from robtui.errors import InputError
 from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key, tokens
 from robtui.evidence.features import (
@@ -137,12 +136,11 @@ def generic_block(question_block: np.ndarray, shared: np.ndarray) -> np.ndarray:
 def active_questions(effect: str = "assignment", question_set=None) -> list[tuple[str, str]]:
     """(id, wording) of every question of ``question_set`` (default: the bundled parallel set)
     as asked for ``effect``."""
-    if effect not in EFFECTS:
-        raise InputError(f"unknown effect {effect!r}: use {' or '.join(EFFECTS)}")
     if question_set is None:
         from robtui.store.question_sets import builtin_question_set
 
         question_set = builtin_question_set()
+    question_set.check_effect(effect)  # InputError names the set's effects
     return [(q.id, q.text) for q in question_set.questions(effect)]
 
 

@@ -54,14 +54,21 @@ class ReviewContents:
         is a path (a report) or (path, kind).
 
         ``design`` (a design a question set declares, or a set id) chooses the study's
-        question set; it must name a set the review can use.
+        question set; it must name a set the review can use, and that set must offer the
+        effect of interest of every result already listed.
         """
         check_id(study_id, "study")
         fields = {"id": study_id, "label": label}
         if design is not None:
             from robtui.store.question_sets import review_catalogue
 
-            review_catalogue(self.root).resolve(design)  # InputError lists what can be used
+            qset = review_catalogue(self.root).resolve(design)  # InputError lists the choices
+            for result in self.review.results:
+                try:
+                    qset.check_effect(result.effect)
+                except InputError as error:
+                    raise InputError(f"result {result.id} cannot be assessed in this study: "
+                                     f"{error}; choose another design") from None
             fields["design"] = design
         study = validated(Study, fields, f"study {study_id}")
 
@@ -99,9 +106,11 @@ class ReviewContents:
         return added
 
     def add_result(self, spec: ResultSpec) -> None:
-        """Add a result to assess (refuses an id already used)."""
+        """Add a result to assess (refuses an id already used, and an effect of interest
+        the review's question sets do not offer)."""
         check_id(spec.id, "result")
         spec = validated(ResultSpec, spec.model_dump(), f"result {spec.id}")
+        self.question_sets().check_effect(spec.effect, self.study_ids())
 
         def add(review: Review) -> None:
             if review.result(spec.id) is not None:
@@ -128,6 +137,7 @@ class ReviewContents:
                 f"interest; {by!r} may not: ask the lead"
             )
         self.result_or_error(result_id)
+        self.question_sets().check_effect(effect, self.study_ids())
 
         def change(review: Review) -> None:
             spec = review.result(result_id)
@@ -138,6 +148,15 @@ class ReviewContents:
             )
 
         self.edit_review(change)
+
+    def study_ids(self) -> list[str]:
+        return [s.id for s in self.review.studies]
+
+    def question_sets(self):
+        """Each study's question set (store.question_sets.ReviewSets), read now."""
+        from robtui.store.question_sets import review_question_sets
+
+        return review_question_sets(self)
 
     def study_or_error(self, study_id: str) -> Study:
         study = self.review.study(study_id)

@@ -401,11 +401,15 @@ def describe_progress(state: PrepareProgress) -> str:
 
 
 def review_effects(folder) -> tuple[str, ...]:
-    """The effects the review's results use (effect of assignment when it has none yet)."""
-    from robtui.core.questions import EFFECTS
+    """The effects the review's results use, in the order its question sets give them (the
+    first set's default effect when it has no results yet)."""
+    from robtui.store.question_sets import review_question_sets
 
-    used = {result.effect for result in folder.review.results}
-    return tuple(e for e in EFFECTS if e in used) or (EFFECTS[0],)
+    sets = review_question_sets(folder)
+    order = sets.effects()
+    used = dict.fromkeys(result.effect for result in folder.review.results)
+    ranked = sorted(used, key=lambda e: order.index(e) if e in order else len(order))
+    return tuple(ranked) or (sets.default_effect([s.id for s in folder.review.studies]),)
 
 
 def jobs_for_review(folder, effects: Sequence[str] | None = None

@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 
 from robtui.core.questions import EFFECT_LABELS
-from robtui.errors import DataFileError
+from robtui.errors import DataFileError, InputError
 from robtui.store.question_sets import builtin_question_set, load_question_set
 
 MINIMAL = (Path(__file__).resolve().parents[1] / "data" / "question_sets" / "valid-minimal.toml")
@@ -69,8 +69,10 @@ def test_effect_labels_from_the_file(tmp_path):
         ("", 'key = "ab"\n', "", "domain 1, key", "one letter or digit"),
         ("", 'key = " "\n', "", "domain 1, key", "one letter or digit"),
         ("", 'key = "?"\n', "", "domain 1, key", "one letter or digit"),
-        ("", "", '\n[[effect]]\nid = "per-protocol"\nlabel = "x"\n', "effect entry 1, id",
-         "'per-protocol' is not an effect"),
+        ("", "", '\n[[effect]]\nid = "Per Protocol"\nlabel = "x"\n', "effect entry 1, id",
+         "'Per Protocol' is not an effect id"),
+        ("", 'effect = "starting"\n', "", "[[effect]]",
+         "domains use effect starting: declare it with an [[effect]] entry"),
         ("", "", '\n[[effect]]\nid = "assignment"\nwords = "x"\n', "effect entry 1",
          "unknown key 'words'"),
     ],
@@ -92,3 +94,44 @@ def test_bundled_sets_declare_their_design():
     designs = {builtin_question_set(s).design for s in
                ("rob2-parallel", "rob2-cluster", "rob2-crossover")}
     assert designs == {"parallel", "cluster", "crossover"}
+
+
+def _two_effects(tmp_path: Path, declared: str) -> Path:
+    """The minimal set with its domain asked two ways, for effects of the file's own."""
+    text = MINIMAL.read_text("utf-8")
+    domain = text[text.index("[[domain]]"):]
+    first = domain.replace('short_name = "Mini"\n', 'short_name = "Mini"\neffect = "starting"\n')
+    second = domain.replace('short_name = "Mini"\n', 'short_name = "Mini"\neffect = "sustaining"\n')
+    path = tmp_path / "own-effects.toml"
+    path.write_text(text[: text.index("[[domain]]")] + first + "\n" + second + declared, "utf-8")
+    return path
+
+
+OWN_EFFECTS = (
+    '\n[[effect]]\nid = "starting"\nlabel = "effect of starting the programme"\n'
+    '\n[[effect]]\nid = "sustaining"\nlabel = "effect of keeping to the programme"\n'
+)
+
+
+def test_a_set_declares_effects_of_its_own(tmp_path):
+    own = load_question_set(_two_effects(tmp_path, OWN_EFFECTS))
+    assert own.effects() == ["starting", "sustaining"]  # the file's order
+    assert own.default_effect() == "starting"
+    assert own.effect_label("sustaining") == "effect of keeping to the programme"
+    assert own.domain("1").effect == "starting"  # no effect named: the set's first
+    assert own.domain("1", "sustaining").effect == "sustaining"
+    assert own.question_key("1.1", "starting") == "1.1"
+    assert own.question_key("1.1", "sustaining") == "sustaining:1.1"
+    assert own.check_effect("sustaining") == "sustaining"
+    with pytest.raises(InputError, match="unknown effect 'assignment': question set mini offers "
+                       "starting or sustaining"):
+        own.check_effect("assignment")
+
+
+def test_rob2_sets_keep_their_two_effects_and_a_plain_set_takes_any():
+    parallel = builtin_question_set("rob2-parallel")
+    assert parallel.effects() == ["assignment", "adhering"]
+    assert parallel.default_effect() == "assignment"
+    mini = load_question_set(MINIMAL)  # no domain varies with the effect
+    assert mini.effects() == [] and mini.default_effect() == "assignment"
+    assert mini.check_effect("anything-else") == "anything-else"

@@ -35,6 +35,9 @@ class FakeQuestionSet:
     id = "rob2-parallel"
     version = "1"
 
+    def effects(self):
+        return ["assignment", "adhering"]
+
     def questions(self, effect="assignment"):
         qs = [FakeQuestion("1.1", "1", "Random?"), FakeQuestion("4.4", "4", "Assessors aware?")]
         qs.append(FakeQuestion("2.1", "2", "Participants aware?"))

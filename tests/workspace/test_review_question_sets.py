@@ -112,6 +112,17 @@ def assess(capsys, root: Path, reviewer: str, study: str, answers: dict[str, str
     assert code == 0, err
 
 
+def settle_one(capsys, root: Path, study: str, question: str, take: str, note: str) -> None:
+    """The lead starts the consensus of result R1, settles one question and completes it."""
+    target = ["--study", study, "--result", "R1"]
+    assert run(capsys, "consensus", "start", root, *target)[0] == 0
+    code, _, err = run(capsys, "consensus", "settle", root, *target, "--question", question,
+                       "--take", take, "--note", note)
+    assert code == 0, err
+    code, _, err = run(capsys, "consensus", "complete", root, *target)
+    assert code == 0, err
+
+
 def test_an_own_set_goes_through_assess_compare_consensus_and_export(review, capsys, monkeypatch):
     ws = Workspace.open(review)
     extra = ws.question_set_for("W1")
@@ -141,13 +152,7 @@ def test_an_own_set_goes_through_assess_compare_consensus_and_export(review, cap
     assert code == 0, err
     assert "1x" in json.loads(out)["domains"] and "1x.1" in json.loads(out)["questions"]
 
-    target = ["--study", "W1", "--result", "R1"]
-    assert run(capsys, "consensus", "start", review, *target)[0] == 0
-    code, _, err = run(capsys, "consensus", "settle", review, *target, "--question", "1x.1",
-                       "--take", "ben", "--note", "the report says steps were not concealed")
-    assert code == 0, err
-    code, _, err = run(capsys, "consensus", "complete", review, *target)
-    assert code == 0, err
+    settle_one(capsys, review, "W1", "1x.1", "ben", "the report says steps were not concealed")
     record = json.loads((review / "consensus" / "W1--R1.json").read_text("utf-8"))
     assert record["question_set"] == "team-extra" and record["final"]["1x"] == "high"
 
@@ -253,3 +258,82 @@ def test_status_counts_each_study_with_its_own_set(review, capsys):
     data = json.loads(out)
     # a problem makes status exit 1, with --json too (nothing silent)
     assert code == 1 and any("team-extra version 1" in p for p in data["problems"])
+
+
+# --- a set that declares effects of interest of its own ------------------------------------------
+OWN_EFFECTS = """
+[[effect]]
+id = "starting"
+label = "effect of starting the programme (invented for a test)"
+
+[[effect]]
+id = "sustaining"
+label = "effect of keeping to the programme (invented for a test)"
+"""
+
+
+def write_own_effects_set(root: Path) -> Path:
+    """The bundled parallel set with another id and design, its domain 2 asked for two effects
+    of interest the file declares itself (invented: not RoB 2's)."""
+    text = (bundled_dir("signalling_questions") / "rob2-parallel.toml").read_text("utf-8")
+    text = text.replace('id = "rob2-parallel"', 'id = "team-effects"', 1)
+    text = text.replace('design = "parallel"', 'design = "programme"', 1)
+    text = text.replace('effect = "assignment"', 'effect = "starting"', 1)
+    text = text.replace('effect = "adhering"', 'effect = "sustaining"', 1)
+    path = root / "question_sets" / "team-effects.toml"
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text(text + OWN_EFFECTS, "utf-8")
+    return path
+
+
+def test_a_set_with_effects_of_its_own_goes_through_assess_compare_consensus_and_export(
+        tmp_path, capsys, monkeypatch):
+    root = tmp_path / "review"
+    report = tmp_path / "report.txt"
+    report.write_text("Methods. Villages were randomised by a computer list.\n", "utf-8")
+    assert run(capsys, "init", root, "--title", "Own effects", "--lead", "lee",
+               "--reviewer", "ana", "--reviewer", "ben")[0] == 0
+    write_own_effects_set(root)
+    code, _, err = run(capsys, "study", "add", root, "--study", "V1", "--label", "Villages",
+                       "--report", report, "--design", "programme")
+    assert code == 0, err
+    # No --effect: the result takes the study's set's first effect, not RoB 2's.
+    assert run(capsys, "result", "add", root, "--result", "R1", "--outcome", "Uptake")[0] == 0
+    assert ReviewFolder.open(root).review.result("R1").effect == "starting"
+    code, _, err = run(capsys, "result", "add", root, "--result", "R2", "--outcome", "Uptake",
+                       "--effect", "adhering")
+    assert code == 2 and "unknown effect 'adhering': question set team-effects offers starting or sustaining" in err
+
+    qset = Workspace.open(root).question_set_for("V1")
+    assert qset.effects() == ["starting", "sustaining"]
+    ana = complete_answers(qset, "starting", lambda q: q.options[0])
+    ben = dict(ana, **{"2.1": "N"})
+    for reviewer, answers in (("ana", ana), ("ben", ben)):
+        pairs = [f"{q}={c}" for q, c in answers.items()]
+        code, _, err = run(capsys, "assess", root, "--reviewer", reviewer, "--study", "V1",
+                           "--result", "R1", *pairs, "--complete")
+        assert code == 0, err
+    stored = ReviewFolder.open(root).load_assessment("ana", "V1", "R1")
+    assert stored.effect == "starting" and stored.question_set == "team-effects"
+
+    monkeypatch.setenv("ROBTUI_REVIEWER", "lee")
+    code, out, err = run(capsys, "compare", root, "--study", "V1", "--json")
+    assert code == 0, err
+    [pair] = json.loads(out)["pairs"]
+    assert [q["id"] for q in pair["questions"] if q["differs"]] == ["2.1"]
+    settle_one(capsys, root, "V1", "2.1", "ana", "the report says villagers were told")
+    code, _, err = run(capsys, "export", root, "--format", "csv", "--format", "md")
+    assert code == 0, err
+    markdown = (root / "exports" / "R1.md").read_text("utf-8")
+    assert markdown.startswith("# Risk of bias: Uptake (effect of starting), result R1")
+    judgements = (root / "exports" / "R1-judgements.csv").read_text("utf-8-sig").splitlines()
+    assert judgements[0].startswith("study,label,D1,D2,D3,D4,D5,Overall"), judgements[0]
+
+    # The lead moves the result to the set's other effect; a study whose set lacks it is refused.
+    code, _, err = run(capsys, "result", "set-effect", root, "--result", "R1",
+                       "--effect", "sustaining", "--reviewer", "lee")
+    assert code == 0, err
+    assert ReviewFolder.open(root).review.result("R1").effect == "sustaining"
+    code, _, err = run(capsys, "study", "add", root, "--study", "P1", "--label", "Parallel",
+                       "--report", report, "--design", "parallel")
+    assert code == 2 and "result R1 cannot be assessed in this study" in err
