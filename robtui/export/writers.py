@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import csv
 import io
+import unicodedata
 from collections.abc import Sequence
 from pathlib import Path
 
@@ -331,6 +332,37 @@ def brk(text: object, every: int = 12) -> str:
     return " ".join(words)
 
 
+def _width_units(ch: str) -> int:
+    """A rough width of a character in the .tex (wide East Asian characters, and characters
+    pdfLaTeX may print as a code point, count more than a Latin letter)."""
+    if ord(ch) < 0x250:
+        return 1
+    return 2 if unicodedata.east_asian_width(ch) in "WF" else 3
+
+
+def row_pieces(text: str, budget: int = 900) -> list[str]:
+    """``text`` cut at spaces into pieces of about ``budget`` width units (a word longer than
+    that is cut inside), each short enough for one table row on a page; at least one piece."""
+    pieces, current, used = [], [], 0
+    for word in (text or "").split(" "):
+        size = sum(_width_units(ch) for ch in word) + 1
+        if used + size > budget and current:
+            pieces.append(" ".join(current))
+            current, used = [], 0
+        while size > budget:  # one long word (no spaces, as in CJK text)
+            cut, taken = 0, 0
+            while cut < len(word) and taken + _width_units(word[cut]) <= budget:
+                taken += _width_units(word[cut])
+                cut += 1
+            pieces.append(word[:cut])
+            word = word[cut:]
+            size = sum(_width_units(ch) for ch in word) + 1
+        current.append(word)
+        used += size
+    pieces.append(" ".join(current))
+    return pieces
+
+
 def _col(width: str, align: str = r"\raggedright") -> str:
     """A paragraph column of ``width`` (a TeX length) with its own alignment."""
     return f">{{{align}\\arraybackslash}}p{{{width}}}"
@@ -440,11 +472,21 @@ def to_tex(ex: OutcomeExport, qset) -> str:
     ]
     for s in ex.supporting:
         settled = f"\\newline\\emph{{Settled: {brk(s.settled)}}}" if s.settled else ""
-        lines.append(
-            f"{brk(s.study_id, 6)} & {tex(s.question_id)} {brk(s.question)} & "
-            f"{tex(s.response)} & {brk(s.justification)}{settled} & "
-            f"{brk(_quotes_text(s.quotes))} \\\\"
-        )
+        # A table row cannot break across pages: a long justification or long quotes go on in
+        # continuation rows, so no row is taller than a page (TeX would push it off the page,
+        # or stop with "Dimension too large").
+        justification, quotes = row_pieces(s.justification), row_pieces(_quotes_text(s.quotes))
+        count = max(len(justification), len(quotes))
+        for i in range(count):
+            head = (
+                f"{brk(s.study_id, 6)} & {tex(s.question_id)} {brk(s.question)} & "
+                f"{tex(s.response)}"
+                if i == 0
+                else r" & \emph{(continued)} & "
+            )
+            j = brk(justification[i]) if i < len(justification) else ""
+            q = brk(quotes[i]) if i < len(quotes) else ""
+            lines.append(f"{head} & {j}{settled if i == count - 1 else ''} & {q} \\\\")
     lines += [r"\end{longtable}}", r"\end{document}"]
     return "\n".join(lines) + "\n"
 

@@ -12,7 +12,7 @@ import pytest
 
 from robtui.benchmarks.review import build_synthetic_review
 from robtui.export.safety import md, tex
-from robtui.export.writers import export_outcome, to_tex
+from robtui.export.writers import export_outcome, row_pieces, to_tex
 from robtui.store.question_sets import builtin_question_set
 
 QSET = builtin_question_set("rob2-parallel")
@@ -65,14 +65,28 @@ def _compile(engine: str, source: Path) -> str:
     return log
 
 
+def test_long_cell_text_is_cut_into_pieces_that_fit_a_row_on_a_page():
+    words = " ".join(f"word{i}" for i in range(3000))
+    pieces = row_pieces(words)
+    assert len(pieces) > 1 and " ".join(pieces) == words
+    assert all(len(p) <= 900 for p in pieces)
+    cjk = row_pieces("中" * 2000)  # no spaces: cut inside, wide characters count double
+    assert "".join(cjk) == "中" * 2000 and all(len(p) <= 450 for p in cjk)
+    assert row_pieces("") == [""]
+
+
 @pytest.mark.skipif(not ENGINES, reason="needs pdflatex, lualatex or xelatex (TeX Live)")
 @pytest.mark.parametrize("engine", ENGINES)
 def test_tex_export_compiles_with_hostile_labels_and_every_code_point(export, tmp_path, engine):
     rows = [replace(export.rows[0], study_label=HOSTILE), *export.rows[1:]]
     problems = [HOSTILE, "[x] first", *(EVERY[i : i + 400] for i in range(0, len(EVERY), 400))]
+    # a justification far taller than a page, in one supporting-table cell
+    supporting = [replace(export.supporting[0], justification=EVERY), *export.supporting[1:]]
     source = tmp_path / "out.tex"
-    source.write_text(to_tex(replace(export, rows=rows, problems=problems), QSET), "utf-8")
+    ex = replace(export, rows=rows, problems=problems, supporting=supporting)
+    source.write_text(to_tex(ex, QSET), "utf-8")
     log = _compile(engine, source)
+    assert "(continued)" in source.read_text(encoding="utf-8")
     # A Unicode engine sets each character from a font that has it or prints its code point:
     # TeX's "Missing character" (a glyph silently dropped) never appears
     assert "Missing character" not in log
