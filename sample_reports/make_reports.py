@@ -156,6 +156,11 @@ def main() -> int:
         lines.append(f"- `{trial.id}` ({pages} pages): {trial.reviewer_meets}")
     lines += [
         "",
+        "- `registry/` and `protocols/`: invented registry records (WHO ICTRP XML export layout) and",
+        "  protocols for ALDER (registered before enrolment, outcomes as planned), CEDAR (registered after",
+        "  enrolment began; one reported outcome not pre-specified) and ELM (two saved versions of the",
+        "  record: the primary outcome switched after enrolment began; one secondary outcome dropped)",
+        "",
         "All trials, interventions, sites, authors and registry numbers are fictional.",
         "Regenerate with `.venv/bin/python sample_reports/make_reports.py`.",
         "",

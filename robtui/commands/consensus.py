@@ -1,8 +1,10 @@
-"""robtui consensus start|settle|override|show|complete|reopen|list DIR: the lead's consensus.
+"""robtui consensus start|settle|override|support|show|complete|reopen|list DIR: the lead's
+consensus.
 
 Consensus records live in DIR/consensus/, apart from both reviewers' files. The lead settles
 every difference by taking reviewer A's answer, B's, or a new answer, always with a note; the
-judgements are recomputed by the algorithm from the agreed answers.
+judgements are recomputed by the algorithm from the agreed answers. Every change goes through
+the service layer (robtui.workspace.consensus_changes), as the workbench's do.
 """
 
 from __future__ import annotations
@@ -11,6 +13,12 @@ import argparse
 import functools
 import json
 from pathlib import Path
+
+# the keys of robtui.core.model.DIRECTION_LABELS, spelled here so `robtui --help` stays light
+DIRECTIONS = (
+    "na", "favours_experimental", "favours_comparator", "towards_null", "away_from_null",
+    "unpredictable",
+)
 
 
 def under_review_lock(run):
@@ -62,10 +70,37 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 
     override = actions.add_parser("override", help="override a recomputed judgement, with a reason")
     target(override)
-    override.add_argument("--domain", required=True, metavar="KEY", help="1 to 5, or overall")
-    override.add_argument("--judgement", required=True, choices=("low", "some_concerns", "high"))
-    override.add_argument("--reason", required=True)
+    override.add_argument(
+        "--domain", required=True, metavar="KEY",
+        help="a domain of the study's question set (1, 2, ... 1b, S), or overall",
+    )
+    how = override.add_mutually_exclusive_group(required=True)
+    how.add_argument("--judgement", choices=("low", "some_concerns", "high"))
+    how.add_argument(
+        "--remove", action="store_true", help="back to the judgement the algorithm proposes"
+    )
+    override.add_argument("--reason", help="why (required with --judgement)")
     override.set_defaults(func=run_override)
+
+    support = actions.add_parser(
+        "support",
+        help="settle the support of a domain judgement and its predicted direction of bias",
+        description=(
+            "The RoB 2 form's support text of a domain judgement and the optional predicted "
+            "direction of bias (of a domain or the overall), as the lead settles them."
+        ),
+    )
+    target(support)
+    support.add_argument(
+        "--domain", required=True, metavar="KEY",
+        help="a domain of the study's question set, or overall (direction only)",
+    )
+    support.add_argument("--text", help="the agreed support ('' clears it)")
+    support.add_argument(
+        "--direction", choices=(*DIRECTIONS, "none"),
+        help="predicted direction of bias ('none' clears it)",
+    )
+    support.set_defaults(func=run_support)
 
     show = actions.add_parser("show", help="show a consensus record and what is still open")
     target(show)
@@ -104,8 +139,27 @@ def _pair_of(ws, record):
     return ws.pair_of(record)
 
 
+def _changed(ws, args: argparse.Namespace, change) -> int:
+    """Apply one change to the stored record (service layer, under the lock), then show it."""
+    from robtui.workspace.consensus_changes import change_consensus
+
+    record = change_consensus(ws, args.study, args.result, change)
+    print("\n".join(_summary(record, ws.question_set_for(args.study), _pair_or_none(ws, record))))
+    return 0
+
+
+def _pair_or_none(ws, record):
+    from robtui.errors import RobtuiError
+
+    try:
+        return ws.pair_of(record)
+    except RobtuiError:
+        return None
+
+
 def _summary(record, qset, pair=None) -> list[str]:
     from robtui.core.consensus import changed_since, pending_questions
+    from robtui.core.model import DIRECTION_LABELS
     from robtui.core.questions import judgement_label
 
     pending = pending_questions(record, qset)
@@ -125,6 +179,13 @@ def _summary(record, qset, pair=None) -> list[str]:
             else ""
         )
         lines.append(f"  {label:<34} {judgement_label(value)}{extra}")
+        if key in record.overrides:
+            lines.append(f"      override reason: {record.overrides[key].reason}")
+        if record.support.get(key):
+            support = record.support[key].replace("\n", "; ")
+            lines.append(f"      support: {support}")
+        if record.direction.get(key):
+            lines.append(f"      predicted direction of bias: {DIRECTION_LABELS[record.direction[key]]}")
     for qid, decision in record.decisions.items():
         if decision.source != "agreed":
             who = {"a": f"took {a}", "b": f"took {b}", "new": "new answer"}[decision.source]
@@ -173,14 +234,12 @@ def run_start(args: argparse.Namespace) -> int:
     return 0
 
 
-@under_review_lock
 def run_settle(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace_as_lead
-    from robtui.core.consensus import settle
     from robtui.errors import InputError
+    from robtui.workspace.consensus_changes import settling
 
     ws = open_workspace_as_lead(args, "robtui consensus")
-    folder, qset = ws.folder, ws.question_set_for(args.study)
     record = _existing(ws, args)
     if args.take is not None:
         side = {"a": "a", "b": "b", record.reviewers[0]: "a", record.reviewers[1]: "b"}.get(
@@ -190,28 +249,43 @@ def run_settle(args: argparse.Namespace) -> int:
             raise InputError(
                 f"--take {args.take!r}: use a, b, {record.reviewers[0]} or {record.reviewers[1]}"
             )
-        record = settle(
-            record, qset, args.question, side, note=args.note, pair=_pair_of(ws, record)
-        )
+        change = settling(args.question, side, None, args.note, _pair_of(ws, record))
     else:
-        record = settle(record, qset, args.question, "new", args.answer.upper(), args.note)
-    folder.save_consensus(record)
-    print("\n".join(_summary(record, qset)))
-    return 0
+        change = settling(args.question, "new", args.answer.upper(), args.note)
+    return _changed(ws, args, change)
 
 
-@under_review_lock
 def run_override(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace_as_lead
-    from robtui.core.consensus import set_consensus_override
+    from robtui.errors import InputError
+    from robtui.workspace.consensus_changes import overriding
 
     ws = open_workspace_as_lead(args, "robtui consensus")
-    folder, qset = ws.folder, ws.question_set_for(args.study)
-    record = _existing(ws, args)
-    record = set_consensus_override(record, qset, args.domain, args.judgement, args.reason)
-    folder.save_consensus(record)
-    print("\n".join(_summary(record, qset)))
-    return 0
+    if args.remove:
+        if args.reason:
+            raise InputError("--remove takes no --reason: the algorithm's proposal needs none")
+        return _changed(ws, args, overriding(args.domain, None))
+    if not (args.reason or "").strip():
+        raise InputError("an override needs a reason: add --reason TEXT")
+    return _changed(ws, args, overriding(args.domain, args.judgement, args.reason))
+
+
+def run_support(args: argparse.Namespace) -> int:
+    from robtui.commands._common import open_workspace_as_lead
+    from robtui.errors import InputError
+    from robtui.workspace.consensus_changes import supporting
+
+    if args.text is None and args.direction is None:
+        raise InputError("give --text (the agreed support), --direction, or both")
+    if args.text is not None and args.domain == "overall":
+        raise InputError(
+            "the overall judgement has a predicted direction of bias but no support text: "
+            "give --direction only"
+        )
+    ws = open_workspace_as_lead(args, "robtui consensus")
+    direction = None if args.direction in (None, "none") else args.direction
+    change = supporting(args.domain, args.text, direction, set_direction=args.direction is not None)
+    return _changed(ws, args, change)
 
 
 def run_show(args: argparse.Namespace) -> int:
@@ -234,32 +308,20 @@ def run_show(args: argparse.Namespace) -> int:
     return 0
 
 
-@under_review_lock
 def run_complete(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace_as_lead
-    from robtui.core.consensus import complete_consensus
+    from robtui.workspace.consensus_changes import completing
 
     ws = open_workspace_as_lead(args, "robtui consensus")
-    folder, qset = ws.folder, ws.question_set_for(args.study)
-    record = _existing(ws, args)
-    pair = _pair_of(ws, record)
-    record = complete_consensus(record, qset, pair)
-    folder.save_consensus(record)
-    print("\n".join(_summary(record, qset, pair)))
-    return 0
+    return _changed(ws, args, completing(_pair_of(ws, _existing(ws, args))))
 
 
-@under_review_lock
 def run_reopen(args: argparse.Namespace) -> int:
     from robtui.commands._common import open_workspace_as_lead
-    from robtui.core.consensus import reopen_consensus
+    from robtui.workspace.consensus_changes import reopening
 
     ws = open_workspace_as_lead(args, "robtui consensus")
-    folder, qset = ws.folder, ws.question_set_for(args.study)
-    record = reopen_consensus(_existing(ws, args))
-    folder.save_consensus(record)
-    print("\n".join(_summary(record, qset)))
-    return 0
+    return _changed(ws, args, reopening())
 
 
 def run_list(args: argparse.Namespace) -> int:

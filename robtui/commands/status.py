@@ -14,7 +14,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
         help="progress of a review per study and result",
         description=(
             "Progress per study × result: for each reviewer, not started / draft / complete, "
-            "questions answered of those asked, and the final overall judgement. With "
+            "questions answered of those asked, and the final overall judgement; under a row, "
+            "each judgement the reviewer overrode, with the proposal and the reason. With "
             "--reviewer only that reviewer's work is shown."
         ),
     )
@@ -28,6 +29,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:
 def run(args: argparse.Namespace) -> int:
     import json
 
+    from robtui.core.explaining import override_in_words
     from robtui.core.questions import JUDGEMENT_LABELS
     from robtui.store.ids import check_id
     from robtui.store.progress import progress_json, review_progress
@@ -53,7 +55,11 @@ def run(args: argparse.Namespace) -> int:
         blind = r.status == "not started" or r.status.endswith("(blind)")
         count = "-" if blind else f"{r.answered}/{r.asked}"
         overall = JUDGEMENT_LABELS[r.overall] if r.overall else "-"
+        if r.overall and any(o.key == "overall" for o in r.overrides):
+            overall += " (overridden)"
         print(f"{r.study:<16} {r.result:<16} {r.reviewer:<12} {r.status:<16} {count:<9} {overall}")
+        for o in r.overrides:
+            print("    override " + override_in_words(o.label, o.proposed, o.judgement, o.reason))
     done = sum(r.status.startswith("complete") for r in rows)
     if rows:
         print(f"{done} of {len(rows)} assessments complete")
@@ -92,7 +98,8 @@ def _blinded(folder, rows, args):
             name, row.reviewer, folder.review, complete=row.status == "complete", unblind=unblind
         )
         if not visible:
-            row = replace(row, answered=0, asked=0, overall=None, status=f"{row.status} (blind)")
+            row = replace(row, answered=0, asked=0, overall=None, overrides=(),
+                          status=f"{row.status} (blind)")
             hidden += 1
         shown.append(row)
     return shown, hidden

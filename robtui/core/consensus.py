@@ -77,8 +77,27 @@ def _joined_support(pair: AssessmentPair) -> dict[str, str]:
     }
 
 
+def draft_problem(consensus: Consensus, what: str) -> str | None:
+    """Why ``what`` of a consensus cannot change now (it is complete), or None."""
+    if consensus.status != "complete":
+        return None
+    return (
+        f"the consensus for {consensus.study_id} / {consensus.result_id} is marked "
+        f"complete, so {what} cannot change: reopen it first (c in the comparison, or "
+        "`robtui consensus reopen`), then complete it again"
+    )
+
+
+def require_draft(consensus: Consensus, what: str) -> None:
+    """Refuse a change to a complete consensus (the same words from every front end)."""
+    problem = draft_problem(consensus, what)
+    if problem:
+        raise InputError(problem)
+
+
 def settle_support(consensus: Consensus, qset, domain_id: str, text: str) -> Consensus:
     """The lead writes the agreed support of a domain judgement ("" clears it)."""
+    require_draft(consensus, "its support text")
     if domain_id not in qset.domain_ids():
         raise InputError(f"no domain {domain_id!r}: use one of {', '.join(qset.domain_ids())}")
     support = {k: v for k, v in consensus.support.items() if k != domain_id}
@@ -89,6 +108,7 @@ def settle_support(consensus: Consensus, qset, domain_id: str, text: str) -> Con
 
 def settle_direction(consensus: Consensus, qset, key: str, direction: str | None) -> Consensus:
     """The lead settles the predicted direction of bias of a domain or the overall."""
+    require_draft(consensus, "its predicted direction of bias")
     keys = [k for k, _ in judgement_keys(qset)]
     if key not in keys:
         raise InputError(f"direction key must be one of {', '.join(keys)}")
@@ -138,11 +158,7 @@ def settle(
     its justification is the note, and no reviewer's quotes are kept. Only questions asked on
     the agreed path can be settled (settle earlier questions first).
     """
-    if consensus.status == "complete":
-        raise InputError(
-            f"consensus for {consensus.study_id} / {consensus.result_id} is complete: "
-            "reopen it before changing an answer"
-        )
+    require_draft(consensus, "an answer")
     question = _question(qset, consensus.effect, question_id)
     if source not in SOURCES:
         raise InputError(f"source must be one of {', '.join(SOURCES)} (take A, take B, new)")
@@ -206,6 +222,7 @@ def set_consensus_override(
     consensus: Consensus, qset, key: str, judgement: str, reason: str
 ) -> Consensus:
     """The lead overrides a recomputed judgement (domain id or "overall") with a reason."""
+    require_draft(consensus, "a judgement")
     keys = [k for k, _ in judgement_keys(qset)]
     if key not in keys:
         raise InputError(f"override key must be one of {', '.join(keys)}")
@@ -223,6 +240,7 @@ def set_consensus_override(
 
 def remove_consensus_override(consensus: Consensus, qset, key: str) -> Consensus:
     """Back to the algorithm's proposal for ``key`` (domain id or "overall")."""
+    require_draft(consensus, "a judgement")
     overrides = {k: v for k, v in consensus.overrides.items() if k != key}
     return recompute_consensus(consensus.model_copy(update={"overrides": overrides}), qset)
 

@@ -205,3 +205,12 @@ def _completions(domain: Domain, answers: dict[str, str]) -> Iterator[dict[str, 
         return
     for code in open_question.options:
         yield from _completions(domain, {**answers, open_question.id: code})
+
+
+def override_in_words(label: str, proposed: str | None, judgement: str, reason: str) -> str:
+    """A reviewer's (or the lead's) override as a reviewer reads it: "D2 Deviations: proposed
+    Some concerns, judged High instead (reason: ...)"."""
+    return (
+        f"{label}: proposed {judgement_label(proposed)}, judged {judgement_label(judgement)} "
+        f"instead (reason: {reason})"
+    )

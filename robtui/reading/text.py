@@ -13,6 +13,7 @@ from pathlib import Path
 from robtui.errors import ReadingError
 from robtui.reading.assemble import Block, build_sentences, is_caption, looks_like_heading
 from robtui.reading.document import Document
+from robtui.reading.sections import match_heading
 
 _CELL_SEPARATOR = re.compile(r"\t|\s\|\s")
 _WIDE_GAP = re.compile(r" {3,}")
@@ -64,6 +65,7 @@ def blocks_from_text(text: str) -> list[Block]:
             groups.append([(a, b)])
     blocks: list[Block] = []
     groups = [g for g in groups if g]
+    in_front = True  # before the first heading that names a section (Abstract, Methods, ...)
     for i, group in enumerate(groups):
         start, end = group[0][0], group[-1][1]
         body = text[start:end]
@@ -73,6 +75,13 @@ def blocks_from_text(text: str) -> list[Block]:
             kind = "table"
         elif len(group) == 1 and i + 1 < len(groups) and looks_like_heading(body):
             kind = "heading"
+            if i == 0:  # the title, or a report that opens with a section
+                in_front = match_heading(body, keywords=False) is None
+            elif in_front:
+                # Between the title and the first section the short capitalised lines are the
+                # byline and affiliations, not headings; only a named section is one there.
+                in_front = match_heading(body, keywords=False) is None
+                kind = "body" if in_front else "heading"
         else:
             kind = "body"
         blocks.append(Block(start, end, kind))

@@ -13,6 +13,17 @@ from robtui.store.review_folder import ReviewFolder
 
 
 @dataclass(frozen=True)
+class OverrideNote:
+    """A judgement the reviewer overrode: which, the algorithm's proposal, theirs, why."""
+
+    key: str  # domain id or "overall"
+    label: str  # "D2 Deviations (assignment)", "Overall"
+    proposed: str
+    judgement: str
+    reason: str
+
+
+@dataclass(frozen=True)
 class ProgressRow:
     study: str
     result: str
@@ -21,6 +32,23 @@ class ProgressRow:
     answered: int
     asked: int
     overall: str | None  # final overall judgement, None when not started
+    overrides: tuple[OverrideNote, ...] = ()
+
+
+def override_notes(a: Assessment, qset: QuestionSet) -> tuple[OverrideNote, ...]:
+    """The assessment's overrides in the set's domain order, the overall last."""
+    order = [*qset.domain_ids(), OVERALL]
+    return tuple(
+        OverrideNote(
+            key,
+            "Overall" if key == OVERALL else qset.domain_label(key, a.effect),
+            o.proposed,
+            o.judgement,
+            o.reason,
+        )
+        for key, o in sorted(a.overrides.items(), key=lambda kv: order.index(kv[0])
+                             if kv[0] in order else len(order))
+    )
 
 
 def assessment_progress(a: Assessment, qset: QuestionSet) -> tuple[int, int]:
@@ -70,7 +98,8 @@ def review_progress(
                 answered, asked = assessment_progress(a, qset)
                 rows.append(
                     ProgressRow(
-                        study.id, result.id, name, a.status, answered, asked, a.final[OVERALL]
+                        study.id, result.id, name, a.status, answered, asked, a.final[OVERALL],
+                        override_notes(a, qset),
                     )
                 )
     return rows, problems

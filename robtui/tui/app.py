@@ -210,8 +210,19 @@ class Workbench(App[int]):
         await super().action_quit()
 
     def action_help(self) -> None:
-        if not isinstance(self.screen, HelpScreen):
-            self.push_screen(HelpScreen())
+        """The key map, with the domain keys of the study being assessed (else of every
+        question set the review uses)."""
+        if isinstance(self.screen, HelpScreen):
+            return
+        from robtui.tui.keys import key_map_for
+
+        if isinstance(self.screen, AssessmentScreen):
+            sets = [self.screen.session.qset]
+        elif self.session is not None:
+            sets = self.session.sets.in_use([s.id for s in self.session.review.studies])
+        else:
+            sets = []
+        self.push_screen(HelpScreen(key_map_for(sets, AssessmentScreen.taken_keys())))
 
     # -- command palette ---------------------------------------------------------------
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:

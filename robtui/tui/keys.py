@@ -20,6 +20,9 @@ RESPONSE_NAMES: dict[str, str] = {
 }
 
 
+DOMAIN_KEYS = "domain keys"  # the KEY_MAP row that the question set in use fills in
+
+
 @dataclass(frozen=True)
 class KeyHelp:
     screen: str
@@ -45,7 +48,12 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     KeyHelp("assessment", "y p m n i a", "answer Y, PY, PN, N, NI, NA to the focused question"),
     KeyHelp("assessment", "backspace", "clear the focused question's response"),
     KeyHelp("assessment", "j / k", "next / previous question"),
-    KeyHelp("assessment", "1 … 5", "go to domain 1 … 5"),
+    KeyHelp(  # replaced on the help screen by the keys of the study's question set
+        "assessment",
+        DOMAIN_KEYS,
+        "go to a domain: each question set names its domains' keys (the parallel-group set: "
+        "1 … 5)",
+    ),
     KeyHelp("assessment", "tab", "move between the report and the questions"),
     KeyHelp(
         "assessment",
@@ -113,6 +121,12 @@ KEY_MAP: tuple[KeyHelp, ...] = (
     ),
     KeyHelp(
         "comparison",
+        "s",
+        "settle a judgement's support text and predicted direction of bias (both reviewers' "
+        "shown)",
+    ),
+    KeyHelp(
+        "comparison",
         "c",
         "mark the consensus complete (nothing left to settle) / reopen it (asks first)",
     ),
@@ -138,6 +152,28 @@ def keys_label(keys: list[str]) -> str:
     run = digits and [int(k) for k in digits] == list(range(int(digits[0]), int(digits[-1]) + 1))
     head = f"{digits[0]}-{digits[-1]}" if run and len(digits) > 1 else "/".join(digits)
     return " ".join(part for part in (head, "/".join(others)) if part)
+
+
+def domain_key_rows(sets, taken: set[str]) -> list[KeyHelp]:
+    """The help rows for the domain keys of the question sets in use (``sets``: one set on
+    the assessment screen, every set of the review elsewhere), each key with its domain,
+    leaving out keys the assessment screen uses for something else (``taken``)."""
+    rows = []
+    for qset in sets:
+        keys = domain_bindings(qset, taken)
+        what = "go to " + "; ".join(f"{key}: {qset.domain_label(d)}" for key, d in keys.items())
+        if len(sets) > 1:
+            what += f" ({qset.title})"
+        rows.append(KeyHelp("assessment", keys_label(list(keys)), what))
+    return rows
+
+
+def key_map_for(sets, taken: set[str]) -> tuple[KeyHelp, ...]:
+    """KEY_MAP with the domain-key row naming the keys of ``sets`` (see domain_key_rows)."""
+    rows: list[KeyHelp] = []
+    for item in KEY_MAP:
+        rows += domain_key_rows(sets, taken) if item.keys == DOMAIN_KEYS and sets else [item]
+    return tuple(rows)
 
 
 def key_map_markdown() -> str:

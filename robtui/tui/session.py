@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from robtui.core import algorithm, assessing
-from robtui.core.explaining import DomainExplanation, explain_in_words
+from robtui.core.explaining import DomainExplanation, explain_in_words, override_in_words
 from robtui.core.model import Assessment, Consensus, DismissedSuggestion, Quote, ReportFile
 from robtui.core.questions import Domain, Question, QuestionSet
 from robtui.core.rules import (
@@ -31,7 +31,7 @@ from robtui.core.rules import (
 )
 from robtui.errors import DataFileError, InputError, RobtuiError
 from robtui.files import StaleFileError
-from robtui.store.progress import assessment_progress
+from robtui.store.progress import assessment_progress, override_notes
 from robtui.store.review_folder import ReviewFolder
 from robtui.workspace import Workspace, check_reviewer_name
 
@@ -67,6 +67,7 @@ class ResultRow:
     problems: tuple[str, ...] = ()
     second_look: str | None = None  # why: made under an older answering-rules version
     overridden: tuple[str, ...] = ()  # domain ids / "overall" the reviewer overrode
+    override_words: tuple[str, ...] = ()  # each override: which, the proposal, why
 
     @property
     def key(self) -> str:
@@ -137,9 +138,14 @@ class ReviewSession:
             status, problems = STATUS_UNREADABLE, (str(error), *report_problems)
         second_look = None
         overridden: tuple[str, ...] = ()
+        override_words: tuple[str, ...] = ()
         if assessment is not None:
             status, effect, final = assessment.status, assessment.effect, dict(assessment.final)
             overridden = tuple(assessment.overrides)
+            notes = override_notes(assessment, self.qset_for(study.id))
+            override_words = tuple(
+                override_in_words(o.label, o.proposed, o.judgement, o.reason) for o in notes
+            )
             answered, asked = assessment_progress(assessment, self.qset_for(study.id))
             second_look = self.second_look(assessment)
         return ResultRow(
@@ -155,6 +161,7 @@ class ReviewSession:
             problems=problems,
             second_look=second_look,
             overridden=overridden,
+            override_words=override_words,
         )
 
     def second_look(self, assessment: Assessment) -> str | None:
@@ -225,6 +232,17 @@ class ReviewSession:
         """Write a consensus record (atomic), apart from both reviewers' files; lead only."""
         self.require_lead()
         return self.folder.save_consensus(consensus)
+
+    def change_consensus(self, shown: Consensus, change) -> Consensus:
+        """Apply one of the lead's changes (robtui.workspace.consensus_changes) to the stored
+        record of ``shown``'s result under the review's lock; ``shown`` is where it starts
+        when nothing is stored yet. Lead only; the saved record is returned."""
+        from robtui.workspace.consensus_changes import change_consensus
+
+        self.require_lead()
+        return change_consensus(
+            self.workspace, shown.study_id, shown.result_id, change, unsaved=shown
+        )
 
     def comparable_reviewers(self) -> list[str]:
         """Reviewers who could be compared: named in the review or with files on disk."""

@@ -105,3 +105,26 @@ def test_consensus_is_started_by_the_reviews_lead_only(demo, capsys):
     code, _, err = run(capsys, "consensus", "start", demo, *target, "--as", "maren")
     assert code == 2 and "only the lead" in err
     assert not (demo / "consensus").exists() or not any((demo / "consensus").iterdir())
+
+
+def test_status_shows_overrides_with_proposal_and_reason_to_whom_may_see_them(demo, capsys):
+    code, out, _ = run(capsys, "status", demo, "--as", "maren")
+    assert code in (0, 1)
+    birch = [line for line in out.splitlines() if line.startswith("BIRCH2029")]
+    mine = next(i for i, line in enumerate(out.splitlines())
+                if line.startswith("BIRCH2029") and " maren " in line and "primary-itt" in line)
+    lines = out.splitlines()
+    assert lines[mine].endswith("High (overridden)")
+    assert lines[mine + 1].strip().startswith("override Overall: proposed Some concerns, "
+                                             "judged High instead (reason: Some concerns in")
+    assert birch  # tobias's BIRCH row shows no override to maren (blinding)
+    assert "Unbalanced opt-outs" not in out
+    code, out, _ = run(capsys, "status", demo, "--as", "maren", "--json")
+    row = next(r for r in json.loads(out)["rows"]
+               if (r["study"], r["result"], r["reviewer"]) == ("BIRCH2029", "primary-itt", "maren"))
+    assert row["overrides"] == [{
+        "key": "overall", "label": "Overall", "proposed": "some_concerns", "judgement": "high",
+        "reason": row["overrides"][0]["reason"],
+    }] and row["overrides"][0]["reason"].startswith("Some concerns in four domains")
+    code, out, _ = run(capsys, "status", demo, "--as", "ines")  # the lead sees both
+    assert "Unbalanced opt-outs" in out

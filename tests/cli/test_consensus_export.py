@@ -192,3 +192,79 @@ def test_a_stale_consensus_is_flagged_by_consensus_show_and_compare(review_dir, 
     )
     main(["compare", str(review_dir), "--study", "Trial-001"])
     assert "Trial-001 / outcome-1: consensus is stale" in capsys.readouterr().err
+
+
+def _settle_all(root, capsys, target):
+    """Take ana's side for every question still to settle."""
+    for _ in range(30):
+        capsys.readouterr()
+        main(["consensus", "show", str(root), *target, "--json"])
+        pending = json.loads(capsys.readouterr().out)["pending"]
+        if not pending:
+            return
+        assert main(["consensus", "settle", str(root), *target, "--question", pending[0],
+                     "--take", "a", "--note", "ana's reading of the methods"]) == 0
+
+
+def test_the_lead_settles_support_and_direction_shown_and_exported(review_dir, capsys):
+    target = ["--study", "Trial-000", "--result", "outcome-1"]
+    assert main(["consensus", "start", str(review_dir), *target]) == 0
+    assert main(["consensus", "support", str(review_dir), *target, "--domain", "1",
+                 "--text", "sealed envelopes held by the pharmacy",
+                 "--direction", "towards_null"]) == 0
+    assert main(["consensus", "support", str(review_dir), *target, "--domain", "overall",
+                 "--direction", "unpredictable"]) == 0
+    out = capsys.readouterr().out
+    assert "support: sealed envelopes held by the pharmacy" in out
+    assert "predicted direction of bias: Towards null" in out
+    assert "predicted direction of bias: Unpredictable" in out
+    record = json.loads((review_dir / "consensus" / "Trial-000--outcome-1.json").read_text())
+    assert record["support"]["1"] == "sealed envelopes held by the pharmacy"
+    assert record["direction"] == {"1": "towards_null", "overall": "unpredictable"}
+    # the overall has a direction but no support box; a change needs something to change
+    assert main(["consensus", "support", str(review_dir), *target, "--domain", "overall",
+                 "--text", "x"]) == 2
+    assert "no support text" in capsys.readouterr().err
+    assert main(["consensus", "support", str(review_dir), *target, "--domain", "1"]) == 2
+    assert "give --text" in capsys.readouterr().err
+    # clearing the direction keeps the text
+    assert main(["consensus", "support", str(review_dir), *target, "--domain", "1",
+                 "--direction", "none"]) == 0
+    record = json.loads((review_dir / "consensus" / "Trial-000--outcome-1.json").read_text())
+    assert "1" not in record["direction"] and record["support"]["1"]
+    _settle_all(review_dir, capsys, target)
+    assert main(["consensus", "complete", str(review_dir), *target]) == 0
+    assert main(["export", str(review_dir), "--format", "md"]) == 0
+    exported = (review_dir / "exports" / "outcome-1.md").read_text(encoding="utf-8")
+    assert "sealed envelopes held by the pharmacy" in exported
+    assert "Predicted direction of bias: Unpredictable" in exported
+
+
+def test_a_complete_consensus_refuses_overrides_and_support_until_reopened(review_dir, capsys):
+    target = ["--study", "Trial-002", "--result", "outcome-1"]
+    assert main(["consensus", "start", str(review_dir), *target]) == 0
+    _settle_all(review_dir, capsys, target)
+    assert main(["consensus", "complete", str(review_dir), *target]) == 0
+    path = review_dir / "consensus" / "Trial-002--outcome-1.json"
+    before = path.read_bytes()
+    capsys.readouterr()
+    assert main(["consensus", "override", str(review_dir), *target, "--domain", "overall",
+                 "--judgement", "high", "--reason", "funder ran the analysis"]) == 2
+    err = capsys.readouterr().err
+    assert "is marked complete, so a judgement cannot change: reopen it first" in err
+    assert main(["consensus", "support", str(review_dir), *target, "--domain", "2",
+                 "--direction", "towards_null"]) == 2
+    assert "is marked complete" in capsys.readouterr().err
+    assert path.read_bytes() == before
+    # reopened, the override is taken; it needs a reason, and --remove takes it back
+    assert main(["consensus", "reopen", str(review_dir), *target]) == 0
+    assert main(["consensus", "override", str(review_dir), *target, "--domain", "overall",
+                 "--judgement", "high"]) == 2
+    assert "needs a reason" in capsys.readouterr().err
+    assert main(["consensus", "override", str(review_dir), *target, "--domain", "overall",
+                 "--judgement", "high", "--reason", "funder ran the analysis"]) == 0
+    assert "override reason: funder ran the analysis" in capsys.readouterr().out
+    assert json.loads(path.read_text())["final"]["overall"] == "high"
+    assert main(["consensus", "override", str(review_dir), *target, "--domain", "overall",
+                 "--remove"]) == 0
+    assert json.loads(path.read_text())["overrides"] == {}

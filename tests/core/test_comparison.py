@@ -308,3 +308,27 @@ def test_support_and_direction_are_compared_and_settled_by_the_lead():
     assert c.direction["1"] == "towards_null" and c.support["1"] == "central web allocation service"
     with pytest.raises(InputError, match="direction must be one of"):
         settle_direction(c, QSET, "1", "sideways")
+
+
+def test_a_complete_consensus_refuses_every_change_in_the_same_words():
+    from robtui.core.consensus import (
+        remove_consensus_override,
+        settle_direction,
+        settle_support,
+    )
+
+    a, b = make("ana", "S1"), make("ben", "S1")
+    [pair] = pair_assessments([a], [b])
+    c = complete_consensus(start_consensus(pair, "lee", QSET), QSET, pair)
+    refusals = [
+        lambda: set_consensus_override(c, QSET, "overall", "high", "funder ran it"),
+        lambda: remove_consensus_override(c, QSET, "overall"),
+        lambda: settle_support(c, QSET, "1", "text"),
+        lambda: settle_direction(c, QSET, "1", "towards_null"),
+        lambda: settle(c, QSET, "1.1", "new", "N", "note"),
+    ]
+    for change in refusals:
+        with pytest.raises(InputError, match=r"S1 / pain is marked complete, .* reopen it first"):
+            change()
+    reopened = reopen_consensus(c)
+    assert set_consensus_override(reopened, QSET, "overall", "high", "x").final["overall"] == "high"

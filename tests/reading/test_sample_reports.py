@@ -75,3 +75,18 @@ def test_the_long_report_is_about_fifteen_pages() -> None:
 
     with pdfplumber.open(Path(SAMPLES / "grove-neuropathy.pdf")) as pdf:
         assert 12 <= len(pdf.pages) <= 18
+
+
+def test_sample_reports_have_no_article_or_word_slips() -> None:
+    """Generated text reads as written English: no "the an advice leaflet group", no word
+    doubled ("the the"), no paragraph printed twice."""
+    import re
+
+    slips = re.compile(r"\b(?:the|a|an) (?:a|an|the)\b|\b([a-z]+) \1\b", re.IGNORECASE)
+    for path in sorted(Path(SAMPLES).glob("*.txt")):
+        text = path.read_text(encoding="utf-8")
+        found = [m.group(0) for m in slips.finditer(text)]
+        assert not found, (path.name, found)
+        paragraphs = [p for p in text.split("\n\n") if len(p) > 80]
+        repeated = sorted({p for p in paragraphs if paragraphs.count(p) > 1})
+        assert not repeated, (path.name, repeated[:1])

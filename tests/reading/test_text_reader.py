@@ -156,3 +156,34 @@ def test_html_reader(tmp_path) -> None:
     assert by_text["Figure 1. Flow of participants."].block == "caption"
     assert by_text["Group | n"].block == "table"
     assert by_text["It worked."].section == "discussion"
+
+
+def test_byline_and_affiliations_of_a_text_report_are_not_headings() -> None:
+    """Between the title and the first section the short capitalised lines are the authors
+    and their institutions; the title and the named sections stay headings."""
+    text = (
+        "Walking groups for low mood: a randomised trial (TEAL)\n\n"
+        "Mara Quist, Olu Benedetti-Kaye, Ян Коваль\n\n"
+        "Department of Community Health, Saltmarsh University (fictional)\n\n"
+        "Abstract\n\n"
+        "Background: Walking may lift mood.\n\n"
+        "Methods\n\n"
+        "Study design\n\n"
+        "Participants were randomised by a central web service.\n"
+    )
+    doc = document_from_text(text)
+    kinds = {s.text: s.block for s in doc.sentences}
+    assert kinds["Walking groups for low mood: a randomised trial (TEAL)"] == "heading"
+    assert kinds["Mara Quist, Olu Benedetti-Kaye, Ян Коваль"] == "body"
+    assert kinds["Department of Community Health, Saltmarsh University (fictional)"] == "body"
+    assert kinds["Abstract"] == "heading"
+    assert kinds["Methods"] == "heading"
+    assert kinds["Study design"] == "heading"  # after the first section, headings as before
+    sections = {s.text: s.section for s in doc.sentences}
+    assert sections["Mara Quist, Olu Benedetti-Kaye, Ян Коваль"] == "front"
+
+
+def test_a_report_opening_with_a_section_keeps_its_subheadings() -> None:
+    doc = document_from_text("Abstract\n\nKey findings\n\nWalking lifted mood a little.\n")
+    kinds = {s.text: s.block for s in doc.sentences}
+    assert kinds["Abstract"] == "heading" and kinds["Key findings"] == "heading"

@@ -10,6 +10,7 @@ from robtui.tui.screens.compare import CompareScreen
 from robtui.tui.session import ReviewSession
 
 from .conftest import SIZE
+from .helpers import plain
 
 
 async def open_pair(pilot, pair) -> CompareScreen:
@@ -51,6 +52,20 @@ async def test_lead_sees_both_sides_differences_first(demo_dir):
         await pilot.press("escape")
         await pilot.pause()
         assert not isinstance(app.screen, CompareScreen)
+
+
+async def domain_1_of_a_result_to_settle(pilot, key: str):
+    """The comparison on the first result still to settle; ``key`` (o: override, s: support
+    and direction) then enter chooses the first judgement, domain 1."""
+    screen = await open_comparison(pilot)
+    index = next(i for i, p in enumerate(screen.pairs) if screen._state(p)[0] == 1)
+    screen.query_one("#pairs").highlighted = index
+    await pilot.pause()
+    await pilot.press(key)
+    await pilot.pause()
+    await pilot.press("enter")
+    await pilot.pause()
+    return screen, screen.pairs[index]
 
 
 def _files(root) -> dict[str, bytes]:
@@ -221,15 +236,7 @@ async def test_the_lead_overrides_a_consensus_judgement_with_a_reason(demo_dir):
     lead = folder.review.lead
     app = Workbench(demo_dir, lead)
     async with app.run_test(size=SIZE) as pilot:
-        screen = await open_comparison(pilot)
-        index = next(i for i, p in enumerate(screen.pairs) if screen._state(p)[0] == 1)
-        screen.query_one("#pairs").highlighted = index
-        await pilot.pause()
-        pair = screen.pairs[index]
-        await pilot.press("o")
-        await pilot.pause()
-        await pilot.press("enter")  # the first judgement: domain 1
-        await pilot.pause()
+        screen, pair = await domain_1_of_a_result_to_settle(pilot, "o")
         proposed = screen.consensus.proposed["1"]
         choices = ("low", "some_concerns", "high")
         target = next(c for c in choices if c != proposed)
@@ -297,3 +304,48 @@ async def test_the_panes_keep_their_marks_and_words_at_80_and_110_columns(demo_d
             shown = console.export_text()
             assert "≠" in shown and "Overall" in shown and "Consensus" in shown, shown
             assert "…" not in shown, shown  # no word cut
+
+
+async def test_the_lead_settles_support_and_direction_seeing_both_reviewers(demo_dir):
+    from robtui.tui.screens.dialogs import SupportDialog
+
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen, pair = await domain_1_of_a_result_to_settle(pilot, "s")
+        assert isinstance(app.screen, SupportDialog)
+        note = str(app.screen.query(".dialog-note").first().render())
+        assert f"{pair.reviewer_a}:" in note and f"{pair.reviewer_b}:" in note
+        await pilot.press(*"allocation by a remote service", "enter", *["down"] * 4, "enter")
+        await pilot.pause()
+        assert app.screen is screen
+        detail = plain(screen.query_one("#pair-detail").content)
+        assert "allocation by a remote service" in detail and "Towards null" in detail
+    saved = ReviewFolder.open(demo_dir).load_consensus(pair.study_id, pair.result_id)
+    assert saved.support["1"] == "allocation by a remote service"
+    assert saved.direction["1"] == "towards_null"
+
+
+async def test_a_complete_consensus_refuses_changes_as_the_command_line_does(demo_dir):
+    from robtui.core.consensus import draft_problem
+
+    folder = ReviewFolder.open(demo_dir)
+    lead = folder.review.lead
+    records, _ = folder.consensus_records()
+    done = next(c for c in records if c.status == "complete")
+    before = folder.consensus_path(done.study_id, done.result_id).read_bytes()
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_comparison(pilot)
+        keys = [p.key for p in screen.pairs]
+        screen.query_one("#pairs").highlighted = keys.index((done.study_id, done.result_id))
+        await pilot.pause()
+        for key in ("o", "s"):
+            await pilot.press(key)
+            await pilot.pause()
+            assert app.screen is screen  # no dialog opens
+        shown = [n.message for n in app._notifications]
+    assert draft_problem(done, "a judgement") in shown
+    assert draft_problem(done, "its support and direction of bias") in shown
+    assert folder.consensus_path(done.study_id, done.result_id).read_bytes() == before

@@ -55,5 +55,23 @@ async def test_a_cluster_study_shows_its_own_domains_and_keys(demo_dir):
         assert shown and all(q.startswith("1b.") for q in shown)
         await pilot.press("4")
         assert screen.domain_id == "4"
+        await pilot.press("question_mark")  # help names this study's own keys
+        await pilot.pause()
+        rows = {(k.keys, k.what) for k in app.screen.key_map if k.screen == "assessment"}
+        assert ("1-5 b", next(w for k, w in rows if k == "1-5 b")) in rows
+        what = next(w for k, w in rows if k == "1-5 b")
+        assert "b: D1b" in what and "1: D1 " in what and "… 5" not in what
+        assert not any(k == "domain keys" for k, _ in rows)
     saved = ReviewFolder.open(demo_dir).load_assessment("tess", study.id, result.id)
     assert saved is None or saved.question_set == "rob2-cluster"
+
+
+def test_help_from_the_overview_names_the_keys_of_every_set_in_use():
+    from robtui.tui.keys import key_map_for
+
+    sets = [builtin_question_set(i) for i in ("rob2-cluster", "rob2-crossover")]
+    rows = [k for k in key_map_for(sets, SCREEN_KEYS) if k.screen == "assessment"]
+    labels = [k.keys for k in rows]
+    assert "1-5 b" in labels and "1-5 S" in labels
+    crossover = rows[labels.index("1-5 S")]
+    assert "S: DS" in crossover.what and sets[1].title in crossover.what

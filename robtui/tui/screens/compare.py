@@ -1,7 +1,9 @@
 """The lead's comparison: two reviewers' complete assessments side by side, differences first,
 and the consensus: the lead settles each difference (take A, take B or a new answer, always
-with a note) while the consensus judgements are recomputed beside A's and B's. Consensus
-records are saved apart from both reviewers' files (ReviewFolder.save_consensus).
+with a note), the support and predicted direction of bias of each judgement, and overrides,
+while the consensus judgements are recomputed beside A's and B's. Every change goes through
+the service layer (robtui.workspace.consensus_changes, as the CLI's do): applied to the stored
+record under the review's lock and saved apart from both reviewers' files.
 
 Only reachable when the review is opened as its lead (ReviewSession.comparison_pairs refuses
 anyone else), so a reviewer's own session stays blind to the other's work.
@@ -13,6 +15,7 @@ from itertools import combinations
 from typing import ClassVar
 
 from rich import box
+from rich.console import Group
 from rich.table import Table
 from rich.text import Text
 from textual import on
@@ -24,19 +27,15 @@ from textual.widgets import OptionList, Static
 from textual.widgets.option_list import Option
 
 from robtui.core.assessing import path_answers
-from robtui.core.comparison import AssessmentPair, compare_pair, differences
+from robtui.core.comparison import AssessmentPair, compare_pair, differences, judgement_rows
 from robtui.core.consensus import (
     asked_on_path,
     changed_since,
-    complete_consensus,
+    draft_problem,
     pending_questions,
-    remove_consensus_override,
-    reopen_consensus,
-    set_consensus_override,
-    settle,
     start_consensus,
 )
-from robtui.core.model import OVERALL, Consensus
+from robtui.core.model import DIRECTION_LABELS, OVERALL, Consensus
 from robtui.errors import RobtuiError
 from robtui.tui.palette import badge, cell_badge
 from robtui.tui.screens.dialogs import (
@@ -46,9 +45,18 @@ from robtui.tui.screens.dialogs import (
     OverrideDialog,
     SettleChoice,
     SettleDialog,
+    SupportChoice,
+    SupportDialog,
 )
 from robtui.tui.session import ReviewSession
 from robtui.tui.widgets.key_hints import KeyHints
+from robtui.workspace.consensus_changes import (
+    completing,
+    overriding,
+    reopening,
+    settling,
+    supporting,
+)
 
 
 def _side(response: str | None, justification: str, quotes) -> Text:
@@ -62,9 +70,51 @@ def _side(response: str | None, justification: str, quotes) -> Text:
     return text
 
 
-def pair_detail(pair: AssessmentPair, qset) -> Table | Text:
-    """The signalling questions of one pair, both sides with justifications and quotes;
-    differences first."""
+def _form_cell(support: str, direction: str | None) -> Text:
+    """The support text and predicted direction of bias of one judgement, or a dash."""
+    if not support and direction is None:
+        return Text("—", style="dim")
+    text = Text()
+    if direction is not None:
+        text.append(f"direction: {DIRECTION_LABELS[direction]}", style="bold")
+    if support:
+        text.append(("\n" if direction is not None else "") + support)
+    return text
+
+
+def support_table(pair: AssessmentPair, qset, consensus: Consensus | None) -> Table | Text:
+    """The RoB 2 form's support and predicted direction of bias of each judgement: A's, B's
+    and the consensus's (≠ where both gave a direction and they differ); s settles them."""
+    rows = [
+        r for r in judgement_rows(pair, qset)
+        if r.support_a or r.support_b or r.direction_a or r.direction_b
+        or (consensus and (consensus.support.get(r.key) or consensus.direction.get(r.key)))
+    ]
+    if not rows:
+        return Text("Support and direction of bias: neither reviewer gave any (s: the "
+                    "consensus's own)", style="dim")
+    table = Table(
+        title="Support and direction of bias (s settles the consensus's)",
+        title_justify="left", expand=True, show_lines=True,
+    )
+    table.add_column("", no_wrap=True)
+    for name in (pair.reviewer_a, pair.reviewer_b, "Consensus"):
+        table.add_column(name, ratio=1)
+    for r in rows:
+        label = Text("≠ " if r.direction_differs else "  ", style="bold")
+        label.append("Overall" if r.key == OVERALL else f"D{r.key}")
+        agreed = (
+            _form_cell(consensus.support.get(r.key, ""), consensus.direction.get(r.key))
+            if consensus else Text("—", style="dim")
+        )
+        table.add_row(label, _form_cell(r.support_a, r.direction_a),
+                      _form_cell(r.support_b, r.direction_b), agreed)
+    return table
+
+
+def pair_detail(pair: AssessmentPair, qset, consensus: Consensus | None = None):
+    """The support and direction of bias, then the signalling questions of one pair, both
+    sides with justifications and quotes; differences first."""
     if not pair.comparable:
         return Text(f"Not compared: {pair.problem}", style="bold")
     comparison = compare_pair(pair, qset)
@@ -86,7 +136,7 @@ def pair_detail(pair: AssessmentPair, qset) -> Table | Text:
             _side(q.response_a, q.justification_a, q.quotes_a),
             _side(q.response_b, q.justification_b, q.quotes_b),
         )
-    return questions
+    return Group(support_table(pair, qset, consensus), Text(""), questions)
 
 
 def judgements_table(pair: AssessmentPair, qset, consensus: Consensus | None) -> Table:
@@ -143,6 +193,7 @@ class CompareScreen(Screen[None]):
         Binding("b", "settle('b')", "Take B"),
         Binding("n", "settle('new')", "New answer"),
         Binding("o", "override", "Override"),
+        Binding("s", "support", "Support/direction"),
         Binding("c", "complete", "Complete / reopen"),
         Binding("f", "toggle_filter", "Only to settle"),
         Binding("r", "next_reviewers", "Other reviewers"),
@@ -261,9 +312,14 @@ class CompareScreen(Screen[None]):
             detail.update(Text("No results to compare.", style="dim"))
             self._load_consensus(None)
             return
-        pair = self.pairs[index]
-        detail.update(pair_detail(pair, self.session.qset_for(pair.study_id)))
-        self._load_consensus(pair, fresh=moved)
+        self._load_consensus(self.pairs[index], fresh=moved)
+        self._refresh_detail()
+
+    def _refresh_detail(self) -> None:
+        pair = self.pair
+        if pair is not None:
+            detail = pair_detail(pair, self.session.qset_for(pair.study_id), self.consensus)
+            self.query_one("#pair-detail", Static).update(detail)
 
     # -- consensus -----------------------------------------------------------------------
     @property
@@ -367,15 +423,15 @@ class CompareScreen(Screen[None]):
             return None
         return listing.get_option_at_index(listing.highlighted).id
 
-    def _settleable(self) -> bool:
+    def _settleable(self, what: str = "an answer") -> bool:
         pair, consensus = self.pair, self.consensus
         problem = None
         if pair is None or not pair.comparable:
             problem = "this result cannot be compared yet: both reviewers must mark it complete"
         elif self.consensus_problem or consensus is None:
             problem = self.consensus_problem or "no consensus record"
-        elif consensus.status == "complete":
-            problem = "this consensus is marked complete: c reopens it"
+        else:
+            problem = draft_problem(consensus, what)
         if problem:
             self.notify(problem, severity="warning")
         return problem is None
@@ -406,21 +462,10 @@ class CompareScreen(Screen[None]):
         def done(choice: SettleChoice | None) -> None:
             if choice is None:
                 return
-            try:
-                settled = settle(
-                    self.consensus,
-                    qset,
-                    qid,
-                    source,
-                    choice.response,
-                    choice.note,
-                    pair=pair,
-                )
-                self.session.save_consensus(settled)
-            except RobtuiError as error:
-                self.notify(str(error), severity="error")
+            change = settling(qid, source, choice.response, choice.note, pair)
+            settled = self._change(change, severity="error")
+            if settled is None:
                 return
-            self.consensus, self.consensus_saved = settled, True
             pending = pending_questions(settled, qset)
             self._relabel_pair()
             self._refresh_consensus(keep=pending[0] if pending else qid)
@@ -433,13 +478,12 @@ class CompareScreen(Screen[None]):
             self._settleable()
             return
         if consensus.status != "complete":
-            qset = self.session.qset_for(pair.study_id)
-            self._save_status(lambda: complete_consensus(consensus, qset, pair))
+            self._save_status(completing(pair))
             return
 
         def answered(yes: bool | None) -> None:
             if yes:
-                self._save_status(lambda: reopen_consensus(consensus))
+                self._save_status(reopening())
 
         question = (
             f"The consensus for {pair.study_id} / {pair.result_id} is complete and is what the "
@@ -448,22 +492,29 @@ class CompareScreen(Screen[None]):
         )
         self.app.push_screen(ConfirmDialog("Reopen a complete consensus?", question), answered)
 
+    def _change(self, change, severity: str = "warning") -> Consensus | None:
+        """One of the lead's changes, through the service layer: the saved record, or None
+        (the reason shown)."""
+        try:
+            changed = self.session.change_consensus(self.consensus, change)
+        except RobtuiError as error:
+            self.notify(str(error), severity=severity)
+            return None
+        self.consensus, self.consensus_saved = changed, True
+        return changed
+
     def _save_status(self, change) -> None:
         pair = self.pair
-        try:
-            changed = change()
-            self.session.save_consensus(changed)
-        except RobtuiError as error:
-            self.notify(str(error), severity="warning")
+        changed = self._change(change)
+        if changed is None:
             return
-        self.consensus, self.consensus_saved = changed, True
         done = "complete" if changed.status == "complete" else "reopened"
         self.notify(f"consensus {done} for {pair.study_id} / {pair.result_id}")
         self._relabel_pair()
 
     def action_override(self) -> None:
         """Override a recomputed consensus judgement, with a reason (the lead's own)."""
-        if not self._settleable():
+        if not self._settleable("a judgement"):
             return
         pair, consensus = self.pair, self.consensus
         qset = self.session.qset_for(pair.study_id)
@@ -496,20 +547,57 @@ class CompareScreen(Screen[None]):
     def _override(self, key: str, choice: OverrideChoice | None) -> None:
         if choice is None:
             return
-        qset = self.session.qset_for(self.pair.study_id)
-        try:
-            if choice.judgement is None:
-                changed = remove_consensus_override(self.consensus, qset, key)
-            else:
-                changed = set_consensus_override(
-                    self.consensus, qset, key, choice.judgement, choice.reason
-                )
-            self.session.save_consensus(changed)
-        except RobtuiError as error:
-            self.notify(str(error), severity="error")
+        if self._change(overriding(key, choice.judgement, choice.reason), "error") is not None:
+            self._refresh_consensus()
+
+    def action_support(self) -> None:
+        """Settle the support and predicted direction of bias of a judgement (the RoB 2 form's
+        fields), seeing what each reviewer gave."""
+        if not self._settleable("its support and direction of bias"):
             return
-        self.consensus, self.consensus_saved = changed, True
-        self._refresh_consensus()
+        pair, consensus = self.pair, self.consensus
+        qset = self.session.qset_for(pair.study_id)
+        rows = {r.key: r for r in judgement_rows(pair, qset)}
+        options = []
+        for key, row in rows.items():
+            label = Text(f"{'Overall' if key == OVERALL else 'D' + key} {row.label}  ")
+            given = consensus.direction.get(key)
+            label.append(DIRECTION_LABELS[given] if given else "no direction", style="dim")
+            options.append((key, label))
+
+        def chosen(key: str | None) -> None:
+            if key is None:
+                return
+            row = rows[key]
+            note = Text()
+            for name, support, direction in (
+                (pair.reviewer_a, row.support_a, row.direction_a),
+                (pair.reviewer_b, row.support_b, row.direction_b),
+            ):
+                note.append(f"{name}: ", style="bold")
+                note.append_text(_form_cell(support, direction))
+                note.append("\n")
+            title = "Overall" if key == OVERALL else qset.domain_label(key, consensus.effect)
+            dialog = SupportDialog(
+                f"Consensus, {title}: support and direction of bias",
+                None if key == OVERALL else self.consensus.support.get(key, ""),
+                self.consensus.direction.get(key),
+                note,
+            )
+            self.app.push_screen(dialog, lambda choice: self._support(key, choice))
+
+        self.app.push_screen(ChoiceDialog("Support and direction of which judgement?", options),
+                             chosen)
+
+    def _support(self, key: str, choice: SupportChoice | None) -> None:
+        if choice is None:
+            return
+        change = supporting(key, choice.support, choice.direction)
+        if self._change(change, "error") is not None:
+            self._refresh_consensus()
+            self._refresh_detail()
+            self.notify(f"support and direction of bias saved for "
+                        f"{'the overall' if key == OVERALL else 'D' + key}", timeout=2)
 
     def action_toggle_filter(self) -> None:
         self.only_open = not self.only_open
@@ -542,6 +630,11 @@ class CompareScreen(Screen[None]):
                 "settle('new')",
             ),
             ("Override a consensus judgement", "With a reason", "override"),
+            (
+                "Support and direction of bias",
+                "Settle the consensus's support text and predicted direction of a judgement",
+                "support",
+            ),
             ("Complete / reopen the consensus", "Nothing may be left to settle", "complete"),
             ("Only results to settle", "Show or hide the settled ones", "toggle_filter"),
             ("Compare other reviewers", "The next pair of reviewers", "next_reviewers"),

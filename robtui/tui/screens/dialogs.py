@@ -123,15 +123,20 @@ class SupportDialog(ModalScreen[SupportChoice | None]):
     BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "cancel", "Cancel")]
     NONE = "none"
 
-    def __init__(self, title: str, support: str | None, direction: str | None) -> None:
+    def __init__(
+        self, title: str, support: str | None, direction: str | None, note: Text | str = ""
+    ) -> None:
         super().__init__()
         self.title_text = title
         self.support = support
         self.direction = direction
+        self.note = note  # e.g. what each reviewer gave, for the lead
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
             yield Label(Text(self.title_text, style="bold"))
+            if self.note:
+                yield Static(self.note, classes="dialog-note")
             if self.support is not None:
                 yield Input(
                     value=self.support,

@@ -12,7 +12,7 @@ from textual.containers import Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Label, Static
 
-from robtui.tui.keys import KEY_MAP, RESPONSE_KEYS, RESPONSE_NAMES
+from robtui.tui.keys import KEY_MAP, RESPONSE_KEYS, RESPONSE_NAMES, KeyHelp
 
 ABOUT_SUGGESTIONS = (
     "Suggested sentences are candidates found by a lexical classifier, ranked with a score "
@@ -22,20 +22,26 @@ ABOUT_SUGGESTIONS = (
 )
 
 
-def key_table() -> Table:
+def key_table(key_map: tuple[KeyHelp, ...] = KEY_MAP) -> Table:
     table = Table(box=None, show_header=True, header_style="bold", expand=True)
     table.add_column("Where", no_wrap=True)
     table.add_column("Keys", no_wrap=True, style="bold")
     table.add_column("What")
-    for item in KEY_MAP:
+    for item in key_map:
         table.add_row(item.screen, item.keys, item.what)
     return table
 
 
 class HelpScreen(ModalScreen[None]):
+    """The key map; ``key_map`` names the domain keys of the question sets in use."""
+
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape,question_mark,f1,enter", "close", "Close help")
     ]
+
+    def __init__(self, key_map: tuple[KeyHelp, ...] = KEY_MAP) -> None:
+        super().__init__()
+        self.key_map = key_map
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog wide", id="help"):
@@ -43,7 +49,7 @@ class HelpScreen(ModalScreen[None]):
             title.append("   esc, ? or enter closes · ↑↓ pgup pgdn scroll", style="dim")
             yield Label(title)
             with VerticalScroll(classes="dialog-list"):
-                yield Static(key_table())
+                yield Static(key_table(self.key_map))
                 answers = Text("\nAnswer keys: ", style="bold")
                 answers.append(
                     ", ".join(f"{k} = {c} ({RESPONSE_NAMES[c]})" for k, c in RESPONSE_KEYS.items()),

@@ -43,6 +43,7 @@ STATUS_MARK = {  # the compact column: one mark, explained by the legend line
 OVERRIDE_MARK = "*"
 # (minimum terminal width, layout): the columns are laid out again when the width crosses one
 LAYOUTS = ((0, "narrow"), (120, "medium"), (150, "wide"))
+NARROW_MARGIN = 3  # the table's vertical scrollbar (2) and a column to spare
 
 
 def _short(text: str, width: int) -> str:
@@ -68,7 +69,8 @@ class OverviewScreen(Screen[None]):
         self.filter = "all"
         self.rows: dict[str, ResultRow] = {}
         self.layout_name = ""
-        self.widths = {"study": 24, "result": 28}
+        self.laid_out_for: tuple[str, int] | None = None
+        self.widths: dict[str, int] = {"study": 24, "result": 28}
 
     def compose(self) -> ComposeResult:
         review = self.session.review
@@ -94,29 +96,48 @@ class OverviewScreen(Screen[None]):
 
     def on_resize(self, event) -> None:
         self._lay_out(event.size.width)
+        self._show_legend()
 
     def _lay_out(self, width: int) -> None:
-        """Columns for the terminal's width: narrow ones show marks a legend explains."""
+        """Columns for the terminal's width: narrow ones show marks a legend explains; the
+        study's name (narrow) or the note (wider) takes the width the other columns leave."""
         name = next(n for least, n in reversed(LAYOUTS) if width >= least)
-        if name == self.layout_name:
+        if (name, width) == self.laid_out_for:
             return
+        self.laid_out_for = (name, width)
         self.layout_name = name
+        wide = name == "wide"
+        domains = [f"D{d}" for d in self.session.sets.domain_ids()]
+        widths: dict[str, int] = {"study": 24, "result": 28} if wide else {"study": 18, "result": 20}
+        if name == "narrow":
+            widths = {"study": 0, "result": 11}
+        else:
+            widths["effect"] = 10
+        widths["progress"] = 8 if name == "narrow" else 16
+        widths.update({d.lower(): 6 if wide else max(2, len(d)) for d in domains})
+        widths["overall"] = 7
+        widths["note"] = 4
+        room = width - NARROW_MARGIN - 2 * len(widths)  # each column is padded by one a side
+        spare = room - sum(widths.values())
+        if name == "narrow":
+            widths["study"] = max(8, spare)
+        else:  # the note in words when wide (from the study's and result's width if need be)
+            want = 24 if wide else 0
+            for key in ("study", "result"):
+                if spare < want:
+                    give = min(widths[key] - 16, want - spare)
+                    widths[key] -= max(0, give)
+                    spare += max(0, give)
+            widths["note"] += max(0, min(want, spare))
+            widths["study"] -= max(0, min(widths["study"] - 12, -spare))
+        self.widths = widths
         table = self.query_one("#results", DataTable)
         table.clear(columns=True)
-        wide = name == "wide"
-        self.widths = {"study": 24, "result": 28} if wide else {"study": 18, "result": 20}
-        if name == "narrow":
-            self.widths = {"study": 13, "result": 12}
-        table.add_column("Study", width=self.widths["study"])
-        table.add_column("Result", width=self.widths["result"])
-        if name != "narrow":
-            table.add_column("Effect", width=10)
-        table.add_column("Progress", width=8 if name == "narrow" else 16)
-        # every domain of the sets in use: a study without a domain gets a blank cell
-        for domain_id in self.session.sets.domain_ids():
-            table.add_column(f"D{domain_id}", key=f"d{domain_id}", width=6 if wide else max(2, len(f"D{domain_id}")))
-        table.add_column("Overall", key="overall", width=7)
-        table.add_column("Note", key="note", width=28 if wide else 4)
+        titles = {"study": "Study", "result": "Result", "effect": "Effect",
+                  "progress": "Progress", "overall": "Overall", "note": "Note"}
+        titles.update({d.lower(): d for d in domains})
+        for key, column_width in widths.items():
+            table.add_column(titles[key], key=key, width=column_width)
         self.refresh_rows()
 
     def on_screen_resume(self) -> None:
@@ -139,27 +160,54 @@ class OverviewScreen(Screen[None]):
         }
         line = Text("Showing: ", style="dim")
         for name in STATUS_FILTERS:
+            if self.layout_name == "narrow" and not counts[name] and name != self.filter:
+                continue  # a narrow terminal lists the filters that would show something
             style = "bold reverse" if name == self.filter else ""
             line.append(f" {name} ({counts[name]}) ", style=style)
         line.append("   f: next filter", style="dim")
         self.query_one("#overview-filter", Static).update(line)
-        self.query_one("#overview-legend", Static).update(self._legend(len(shown)))
+        self._show_legend()
         self._show_detail()
 
-    def _legend(self, shown: int) -> Text:
-        """What the marks mean, and that the table scrolls when it holds more rows."""
+    def _show_legend(self) -> None:
+        """The legend, and again once the table is laid out (its scroll hints need its size)."""
+        legend = self.query_one("#overview-legend", Static)
+        legend.update(self._legend())
+        self.call_after_refresh(lambda: legend.update(self._legend()))
+
+    def _legend(self) -> Text:
+        """What the marks mean, and which way the table scrolls when it holds more."""
         text = Text()
         for code in ("low", "some_concerns", "high"):
             text.append_text(cell_badge(code, letter_only=True))
-            text.append(f" {LABELS[code]}  ")
+            text.append(f" {LABELS[code]} ")
         text.append_text(cell_badge(None, letter_only=True))
-        text.append(f" not judged  {OVERRIDE_MARK} your override")
+        text.append(f" not judged  {OVERRIDE_MARK} you overrode (why: below)")
         if self.layout_name == "narrow":
-            text.append("  ○ new ◐ draft ✓ complete")
+            text.append("\n○ new ◐ draft ✓ done")
+        if self.widths["note"] < 16:  # a wide Note column says it in words
+            shown = [self.rows[k] for k in self._shown_keys()]
+            if any(r.problems for r in shown):
+                text.append("  ⚠ file problem")
+            if any(r.second_look for r in shown):
+                text.append("  ↻ rules changed")
+        if self.layout_name == "narrow":
+            text.append(" · ")
         table = self.query_one("#results", DataTable)
-        if shown > max(table.size.height - 1, 0) > 0:
-            text.append(f"\n{shown} results: ↑↓ pgup pgdn scroll", style="bold")
+        scrolls = []
+        if table.max_scroll_y > 0:
+            scrolls.append(f"{table.row_count} results: ↑↓ pgup pgdn")
+        if table.max_scroll_x > 0:
+            scrolls.append("more columns: ← →")
+        if scrolls:
+            if self.layout_name != "narrow":
+                text.append("\n")
+            text.append(" · ".join(scrolls) + " scroll", style="bold")
         return text
+
+    def _shown_keys(self) -> list[str]:
+        table = self.query_one("#results", DataTable)
+        return [key.value for key in table.rows if key.value in self.rows]
 
     def _progress(self, row: ResultRow) -> Text:
         marks = STATUS_MARK if self.layout_name == "narrow" else STATUS_TEXT
@@ -182,8 +230,9 @@ class OverviewScreen(Screen[None]):
         name = self.layout_name
         wide = name == "wide"
         result = row.result_label if wide or name == "medium" else row.result_id
+        study = row.study_id if name == "narrow" else row.study_label  # the detail line: both
         cells: list = [
-            Text(_short(row.study_label, self.widths["study"])),
+            Text(_short(study, self.widths["study"])),
             Text(_short(result, self.widths["result"])),
         ]
         if name != "narrow":
@@ -201,15 +250,18 @@ class OverviewScreen(Screen[None]):
             if key in row.overridden:
                 badge.append(OVERRIDE_MARK, style="bold")
             cells.append(badge)
-        cells.append(self._note(row, wide))
+        cells.append(self._note(row))
         return cells
 
-    @staticmethod
-    def _note(row: ResultRow, wide: bool) -> Text:
+    def _note(self, row: ResultRow) -> Text:
+        wide = self.widths["note"] >= 16  # room for words, else a mark the legend explains
         if row.problems:
             return Text("⚠ " + row.problems[0][:40] if wide else "⚠", style="bold")
         if row.second_look:
             return Text("↻ answering rules changed" if wide else "↻", style="bold")
+        if row.overridden and wide:
+            names = ", ".join("overall" if k == OVERALL else f"D{k}" for k in row.overridden)
+            return Text(f"{OVERRIDE_MARK} you overrode {names}")
         return Text("")
 
     @property
@@ -231,9 +283,8 @@ class OverviewScreen(Screen[None]):
             return
         text = Text(f"{row.study_label} — {row.result_label}", style="bold")
         text.append(f"  ·  effect of {row.effect}", style="dim")
-        if row.overridden:
-            names = ", ".join("overall" if k == OVERALL else f"D{k}" for k in row.overridden)
-            text.append(f"\n{OVERRIDE_MARK} your override of the proposal: {names}")
+        for words in row.override_words:
+            text.append(f"\n{OVERRIDE_MARK} you overrode {words}")
         for problem in row.problems:
             text.append(f"\n⚠ {problem}")
         if row.second_look:

@@ -89,7 +89,7 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
         super().__init__()
         self.session = session
         self.domain_id = session.domain_ids()[0]
-        self.domain_keys = domain_bindings(session.qset, set(self._bindings.key_to_bindings))
+        self.domain_keys = domain_bindings(session.qset, self.taken_keys())
         for key, domain_id in self.domain_keys.items():
             self._bindings.bind(key, f"domain('{domain_id}')", f"Domain {domain_id}", show=False)
         self.loaded: list[LoadedReport] = []
@@ -97,6 +97,11 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
         self.last_update_seconds: float | None = None  # keystroke -> judgement shown (bench)
         self.show_guidance = False  # g: the focused question's guidance under it
         self._stepped_for: str | None = None  # the question ] / [ last stepped through
+
+    @classmethod
+    def taken_keys(cls) -> set[str]:
+        """Keys the screen binds itself: a question set's domain key among them is left out."""
+        return {key.strip() for b in cls.BINDINGS for key in b.key.split(",")}
 
     def key_hints(self) -> list[tuple[str, str, str]]:
         """The footer: every key a reviewer needs, short (the help screen says more)."""
