@@ -101,6 +101,7 @@ def test_full_flow(review: Path, capsys):
             "answered": 13,
             "asked": 13,
             "overall": "low",
+            "overrides": [],  # each: key, label, proposed, judgement, reason
         }
     ]
     code, out, _ = robtui(capsys, "status", review, "--as", "ana")

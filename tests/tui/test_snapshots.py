@@ -99,3 +99,48 @@ def test_override_dialog(snap_compare, demo_dir, size):
 def test_comparison_screen_for_the_lead(snap_compare, demo_dir, size):
     lead = ReviewFolder.open(demo_dir).review.lead
     assert snap_compare(Workbench(demo_dir, lead), press=["v"], terminal_size=size)
+
+
+@pytest.mark.parametrize(
+    "keys",
+    [
+        pytest.param(("r",), id="support"),
+        pytest.param(("t",), id="effect"),
+        pytest.param(("j", "right_square_bracket", "Q"), id="quote-part"),
+    ],
+)
+@pytest.mark.parametrize("size", SIZES)
+def test_assessment_dialogs(snap_compare, demo_dir, size, keys):
+    """The support and direction dialog (r), the effect of interest (t), quoting part of 1.2's
+    best suggestion (Q)."""
+
+    async def open_dialog(pilot):
+        await pilot.press("enter")
+        await settle(pilot)
+        await pilot.press(*keys)
+        await pilot.pause()
+
+    app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
+    assert snap_compare(app, terminal_size=size, run_before=open_dialog)
+
+
+@pytest.mark.parametrize(
+    "keys",
+    [
+        pytest.param(("tab", "a"), id="settle"),
+        pytest.param(("s", "enter"), id="support"),
+    ],
+)
+@pytest.mark.parametrize("size", SIZES)
+def test_lead_dialogs(snap_compare, demo_dir, size, keys):
+    """Taking reviewer A's answer to the first difference (a), and the consensus's support and
+    direction of domain 1 beside both reviewers' (s)."""
+    lead = ReviewFolder.open(demo_dir).review.lead
+
+    async def open_dialog(pilot):
+        await pilot.press("v")
+        await pilot.pause()
+        await pilot.press(*keys)
+        await pilot.pause()
+
+    assert snap_compare(Workbench(demo_dir, lead), terminal_size=size, run_before=open_dialog)

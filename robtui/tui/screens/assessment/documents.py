@@ -6,6 +6,8 @@ A mixin of AssessmentScreen (it uses the screen's session, widgets and ``questio
 
 from __future__ import annotations
 
+from pathlib import PurePosixPath
+
 from rich.text import Text
 from textual import work
 from textual.widgets import Label, Static
@@ -115,8 +117,11 @@ class ReportDocuments:
         title = Text(f"{REPORT_KINDS.get(loaded.report.kind, loaded.report.kind)}: ", style="bold")
         title.append(loaded.report.path)
         if len(self.loaded) > 1:
-            others = ", ".join(
+            kinds = [item.report.kind for item in self.loaded]
+            others = ", ".join(  # a file's name only where its kind is not enough
                 REPORT_KINDS.get(item.report.kind, item.report.kind)
+                + (f" {PurePosixPath(item.report.path).name}"
+                   if kinds.count(item.report.kind) > 1 else "")
                 for i, item in enumerate(self.loaded)
                 if i != self.document_index
             )

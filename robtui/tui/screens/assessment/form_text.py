@@ -82,9 +82,18 @@ def form_fields(s: AssessmentSession, key: str) -> Text:
 
 
 def reasons_text(s: AssessmentSession, domain_id: str, shown: dict[str, str]) -> Text:
-    """Why the domain and the overall stand where they do, and what is left to answer."""
+    """What is left to answer and whether it is saved (first: it stays in view on a small
+    terminal), then why the domain and the overall stand where they do."""
     words = s.explanation(domain_id)
-    text = Text(f"D{domain_id}: ", style="bold")
+    left_here = len(words.missing)
+    left_all = sum(len(s.explanation(d).missing) for d in s.domain_ids())
+    status = "✓ complete (c reopens)" if s.is_complete else "draft (c completes)"
+    text = Text(f"{left_here} to answer here · {left_all} in all · {status}", style="dim")
+    if s.unsaved_error:
+        text.append(f"\n⚠ not saved: {s.unsaved_error}", style="bold reverse")
+    else:
+        text.append(" · saved", style="dim")
+    text.append(f"\nD{domain_id}: ", style="bold")
     text.append_text(badge(shown[domain_id]))
     if words.early:
         text.append(" already decided by your answers", style="italic")
@@ -112,14 +121,6 @@ def reasons_text(s: AssessmentSession, domain_id: str, shown: dict[str, str]) ->
             "\n  several domains have some concerns: you may raise the overall to High (O)",
             style="dim",
         )
-    left_here = len(words.missing)
-    left_all = sum(len(s.explanation(d).missing) for d in s.domain_ids())
-    status = "✓ complete (c reopens)" if s.is_complete else "draft (c completes)"
-    text.append(f"\n{left_here} to answer here · {left_all} in all · {status}", style="dim")
-    if s.unsaved_error:
-        text.append(f"\n⚠ not saved: {s.unsaved_error}", style="bold reverse")
-    else:
-        text.append(" · saved", style="dim")
     return text
 
 

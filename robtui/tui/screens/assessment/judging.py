@@ -61,7 +61,7 @@ class Judging:
         if key == OVERALL:
             title, support = "Overall: predicted direction of bias", None
         else:
-            title = f"D{key} {s.domain(key).name}: support and direction of bias"
+            title = f"{s.qset.domain_label(key, s.effect)}: support and direction of bias"
             support = s.assessment.support.get(key, "")
 
         def done(choice: SupportChoice | None) -> None:
@@ -86,7 +86,7 @@ class Judging:
             ListDialog(
                 "Effect of interest",
                 [
-                    f"{label}: the effect of {s.effect} ({s.qset.effect_label(s.effect)}).",
+                    f"{label}: the {s.qset.effect_label(s.effect)}.",
                     (
                         "It was set for this result when the review added it, so every "
                         "reviewer answers the same questions."
