@@ -207,16 +207,16 @@ def _where_time_went(summary, parent_cpu: float) -> None:
 
 def _idle_estimate(one: Rate, summaries: list) -> tuple[float, float] | None:
     """The speed-up this run's CPU accounting predicts if every process had a core to itself:
-    one process preparing the pool's reports at its CPU seconds per report (plus one worker's
+    one process preparing the pool's reports at its CPU seconds per page (plus one worker's
     start-up) against the pool's longest worker (its start-up plus its reports' CPU seconds).
     An estimate, not a measurement: it leaves out what two busy cores cost each other (shared
     cache, memory, the hypervisor), which only a quiet machine shows. Also the workers' mean
     start-up in CPU seconds."""
     outcomes = [o for s in summaries for o in s.prepared if o.worker_start_cpu > 0]
-    if not outcomes or not one.reports:
+    if not outcomes or not one.pages:
         return None
     start_up = statistics.mean({o.worker: o.worker_start_cpu for o in outcomes}.values())
-    one_cpu = start_up + len(outcomes) * one.cpu / one.reports
+    one_cpu = start_up + sum(o.pages for o in outcomes) * one.cpu / one.pages
     makespans = []
     for summary in summaries:
         by_worker: dict[int, float] = {}
@@ -270,6 +270,34 @@ def _open_times(paths: list[Path], cache: Path, count: int) -> list[float]:
             if not loaded.suggestions:
                 raise SystemExit(f"no suggestions for {report.path}: {loaded.problem}")
     return times
+
+
+def _open_times_while_preparing(paths: list[Path], cache: Path, count: int,
+                                background: bool) -> list[float]:
+    """:func:`_open_times` while the pool prepares other reports again in a thread (as the
+    workbench does when a review opens), its workers given way (``background``) or not."""
+    import threading
+
+    from robtui.workspace.preparing import jobs_for_files, prepare
+
+    os.environ["ROBTUI_CACHE_DIR"] = str(cache)
+    _forget_fingerprints()
+    jobs, _problems = jobs_for_files(paths[count:count + 40])
+    cancel = threading.Event()
+    started = threading.Event()
+
+    def run() -> None:
+        prepare(jobs, skip_prepared=False, background=background, cancel=cancel,
+                progress=lambda state: state.done and started.set())
+
+    thread = threading.Thread(target=run)
+    thread.start()
+    try:
+        started.wait(timeout=120)  # the workers are up and busy
+        return _open_times(paths, cache, count) + _open_times(paths, cache, count)
+    finally:
+        cancel.set()
+        thread.join()
 
 
 def _panel_times(root: Path, cache: Path, opens: int = 6) -> list[float]:
@@ -421,6 +449,14 @@ def main(argv: list[str] | None = None) -> int:
         print(f"workbench opens a prepared report's suggestions: median "
               f"{statistics.median(opened) * 1000:.0f} ms, max {max(opened) * 1000:.0f} ms "
               f"(n={len(opened)}; first open includes loading modules; target 200 ms)")
+        count = min(args.open, len(prepared_paths) // 2)
+        for background in (False, True):
+            busy = _open_times_while_preparing(prepared_paths, prepared_cache, count, background)
+            how = ("giving way (nice +10, as the workbench starts them)" if background
+                   else "at the same priority")
+            print(f"... while the pool prepares other reports, its workers {how}: median "
+                  f"{statistics.median(busy) * 1000:.0f} ms, max {max(busy) * 1000:.0f} ms "
+                  f"(n={len(busy)}); load average {os.getloadavg()[0]:.2f}")
         panel = _panel_times(tmp / "demo", tmp / "cache-demo")
         print(f"pre-specification panel of a prepared demo study, opening to findings shown: "
               f"first {panel[0] * 1000:.0f} ms, then median "

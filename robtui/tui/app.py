@@ -143,7 +143,7 @@ class Workbench(App[int]):
             if not self._preparation_cancel.is_set():
                 self.call_from_thread(self._show_preparation, dataclasses.replace(state))
 
-        summary = prepare(jobs, progress=show, cancel=self._preparation_cancel)
+        summary = prepare(jobs, progress=show, cancel=self._preparation_cancel, background=True)
         if self._preparation_cancel.is_set():
             return
         failures = [f"{o.label}: {o.error}" for o in [*problems, *summary.failures]]

@@ -73,6 +73,7 @@ class ReportOutcome:
     worker_ready: float = 0.0  # when the worker had started and loaded the ranker (0: in-process)
     worker_start_cpu: float = 0.0  # CPU seconds the worker took to start (interpreter, imports,
     #                                ranker); 0 in-process
+    niceness: int | None = None  # the process's scheduling niceness (None: not on this platform)
 
     @property
     def ok(self) -> bool:
@@ -176,9 +177,17 @@ _worker_ready = 0.0
 _worker_start_cpu = 0.0
 
 
-def _init_worker() -> None:
+# How much a background worker gives way (nice +10: CFS weight 110 against 1024 at nice 0, the
+# kernel's sched_prio_to_weight table in kernel/sched/core.c, from memory), so the workbench
+# answers keys while its reports are prepared. Where the kernel groups processes by session
+# (autogroup) this orders only the workbench's own processes, never other users'.
+BACKGROUND_NICENESS = 10
+
+
+def _init_worker(background: bool = False) -> None:
     """Pool initializer: Ctrl-C is the parent's to handle; the ranker is loaded once; the PDF
-    library's warnings about odd drawing commands stay out of the progress display."""
+    library's warnings about odd drawing commands stay out of the progress display; a
+    background worker gives way to the workbench."""
     import logging
     import signal
 
@@ -187,6 +196,11 @@ def _init_worker() -> None:
 
     global _worker_ready, _worker_start_cpu
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if background:
+        try:
+            os.nice(BACKGROUND_NICENESS)
+        except (AttributeError, OSError):  # not on every platform: run at the same priority
+            pass
     try:
         worker_ranker()
     except RobtuiError:
@@ -226,7 +240,8 @@ def prepare_one(job: PrepareJob) -> ReportOutcome:
 
     outcome = ReportOutcome(job.label, job.path, job.sha256, worker=os.getpid(),
                             started=time.time(), worker_ready=_worker_ready,
-                            worker_start_cpu=_worker_start_cpu)
+                            worker_start_cpu=_worker_start_cpu,
+                            niceness=os.nice(0) if hasattr(os, "nice") else None)
     cpu = time.process_time()  # restarted once the ranker is loaded (a worker's start-up)
     if is_prepared(job):  # e.g. a second robtui preparing the same review at the same time
         outcome.already = True
@@ -264,13 +279,15 @@ def prepare(
     progress: Callable[[PrepareProgress], None] = lambda _p: None,
     cancel: threading.Event | None = None,
     skip_prepared: bool = True,
+    background: bool = False,
 ) -> PrepareSummary:
     """Prepare ``jobs`` with ``workers`` processes (default all cores; 0: in this process).
 
     ``progress`` is called after every report (from the calling thread). Setting ``cancel``
     stops the run (the pool's workers end at once; in this process, after the current report);
     finished reports stay prepared either way. Ctrl-C (KeyboardInterrupt) does the same and
-    returns a summary marked interrupted.
+    returns a summary marked interrupted. ``background``: the workers give way to the calling
+    process (the workbench preparing its review while the reviewer works).
     """
     workers = default_workers() if workers is None else workers
     if workers < 0:
@@ -301,7 +318,8 @@ def prepare(
                     break
                 finished(prepare_one(job))
         else:
-            summary.interrupted = _run_pool(todo, min(workers, len(todo)), finished, cancel)
+            summary.interrupted = _run_pool(todo, min(workers, len(todo)), finished, cancel,
+                                            background)
     except KeyboardInterrupt:
         summary.interrupted = True
     summary.seconds = time.perf_counter() - started
@@ -316,7 +334,8 @@ def _file_size(job: PrepareJob) -> int:
 
 
 def _run_pool(todo: Sequence[PrepareJob], workers: int,
-              finished: Callable[[ReportOutcome], None], cancel: threading.Event) -> bool:
+              finished: Callable[[ReportOutcome], None], cancel: threading.Event,
+              background: bool = False) -> bool:
     def done(job: PrepareJob, outcome: ReportOutcome | None, error: BaseException | None) -> None:
         if outcome is None:  # the worker died (e.g. out of memory): say so
             outcome = ReportOutcome(job.label, job.path, job.sha256, error=(
@@ -324,12 +343,13 @@ def _run_pool(todo: Sequence[PrepareJob], workers: int,
                 f"{error}); prepare again to retry"))
         finished(outcome)
 
-    return map_in_pool(prepare_one, todo, workers, done, cancel)
+    return map_in_pool(prepare_one, todo, workers, done, cancel, initargs=(background,))
 
 
 def map_in_pool(function: Callable, items: Sequence, workers: int,
                 done: Callable[[object, object, BaseException | None], None],
-                cancel: threading.Event | None = None, initializer: Callable | None = None) -> bool:
+                cancel: threading.Event | None = None, initializer: Callable | None = None,
+                initargs: tuple = ()) -> bool:
     """Run ``function(item)`` for every item in ``workers`` processes, calling
     ``done(item, result, error)`` in this thread as each finishes (in completion order).
 
@@ -344,7 +364,7 @@ def map_in_pool(function: Callable, items: Sequence, workers: int,
     # "spawn": a fresh interpreter per worker, safe beside the threads of the workbench
     context = multiprocessing.get_context("spawn")
     pool = ProcessPoolExecutor(max_workers=max(1, workers), mp_context=context,
-                               initializer=initializer or _init_worker)
+                               initializer=initializer or _init_worker, initargs=initargs)
     queue = list(reversed(items))
     running: dict[Future, object] = {}
     stopped = False

@@ -5,6 +5,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+import os
 import threading
 from pathlib import Path
 
@@ -69,6 +70,19 @@ def test_the_pool_prepares_and_lists_failures_with_reasons(tmp_path):
     assert "unsupported file type" in by_name["notes.docx"].error
     assert {o.worker for o in summary.outcomes} - {0}, "worker pids are reported"
     assert all(o.peak_rss_mb > 0 for o in summary.outcomes)
+
+
+@pytest.mark.skipif(not hasattr(os, "nice"), reason="no process niceness on this platform")
+def test_background_workers_give_way_to_the_workbench(tmp_path):
+    from robtui.workspace.preparing import BACKGROUND_NICENESS
+
+    jobs, _ = jobs_for_files(_texts(tmp_path)[:2])
+    mine = os.nice(0)
+    summary = prepare(jobs, workers=1, background=True)
+    assert [o.ok for o in summary.outcomes] == [True, True]
+    assert {o.niceness for o in summary.outcomes} == {min(19, mine + BACKGROUND_NICENESS)}
+    again = prepare(jobs, workers=1, skip_prepared=False)  # robtui prepare: as the caller
+    assert {o.niceness for o in again.outcomes} == {mine}
 
 
 def test_cancelled_run_keeps_finished_reports_and_resumes(tmp_path):
