@@ -110,3 +110,26 @@ def test_a_caption_at_the_top_of_a_page_is_kept(tmp_path) -> None:
     assert captions == [f"Figure {n + 1} Flow of participants through the invented trial."
                         for n in range(4)]
     assert "Invented Journal of Trials" not in document.text
+
+
+def test_a_tables_column_heads_and_notes_stay_with_the_table(tmp_path) -> None:
+    page = _prose_lines(80, 4)
+    page += [(72, 150, "Table 2 Outcomes at twelve weeks in the invented trial", 9)]
+    page += [(72, 170, "Measure", 8), (250, 170, "Quill group", 8), (400, 170, "Usual care", 8)]
+    for i, (name, a, b) in enumerate([("Relapse", "12", "19"), ("Visits", "3.1", "3.4"),
+                                      ("Falls", "4", "6"), ("Weight", "71.2", "70.9")]):
+        y = 192 + 14 * i
+        page += [(72, y, name, 8), (250, y, a, 8), (400, y, b, 8)]
+    page += [(72, 262, "a Counts of participants with one event or more.", 7),
+             (72, 271, "Values are numbers unless stated otherwise.", 7)]
+    page += _prose_lines(300, 5)
+    rules = [(1, 66, 530, 182), (1, 66, 530, 250)]
+    path = tmp_path / "table.pdf"
+    _pdf(path, [page], rules=rules)
+    document = read_document(path, use_cache=False)
+    by_text = {s.text: s.block for s in document.sentences}
+    table_text = " ".join(s.text for s in document.sentences if s.block == "table")
+    for piece in ("Quill group", "Usual care", "Counts of participants", "unless stated"):
+        assert piece in table_text, piece
+    assert not any(b == "body" and ("Usual care" in t or "Counts of" in t) for t, b in by_text.items())
+    assert sum(b == "body" and "Quillmoor" in t for t, b in by_text.items()) >= 2

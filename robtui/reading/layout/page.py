@@ -31,6 +31,11 @@ MARGIN_SHARE = 0.085  # top/bottom share of the page where running heads live
 TABLE_RUN = 3  # rows of short cells in a row that make an unruled table
 SIDE_SHARE = 0.3  # a side column is narrower than this share of the page
 CELL_EM = 1.0  # a gap this wide (share of the body size) separates table cells
+HEAD_WORDS = 8  # two lines this long between a caption and its rules are a paragraph
+HEAD_REACH = 12  # a table's caption stands at most this many lines above its first rule
+NOTE_GAP = 1.2  # a table's note line follows the one before within this many lines
+_NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+\S")
+_TABLE_CAPTION = re.compile(r"^(?:supplementary\s+)?table\s*[A-Z]?\d+", re.IGNORECASE)
 
 
 @dataclass
@@ -70,8 +75,10 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     for region in _merged(regions):
         inside = [s for s in segs if _inside(s.line, region)]
         if inside and _table_like(inside, size):
-            tables.append((region, [s.line for s in inside]))
-            taken = {id(s) for s in inside}
+            head = _table_head(segs, region, size)
+            notes = _table_notes(segs, region, size)
+            tables.append((region, [s.line for s in head + inside + notes]))
+            taken = {id(s) for s in head + inside + notes}
             segs = [s for s in segs if id(s) not in taken]
     tables.extend(_turned_tables(page))
     blocks = geo_blocks(segs, size)
@@ -133,6 +140,50 @@ def _table_like(inside: list[Segment], size: float) -> bool:
     cells = sum(n > 1 for n in pieces.values())
     numeric = sum(bool(NUMERIC.match(w.text)) for w in words)
     return cells >= 0.3 * len(rows) or numeric >= 0.5 * len(words)
+
+
+def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
+    """The column heads of a table set between its caption ("Table 2 ...") and its first rule:
+    what lies there within the table's width, when a caption stands above within HEAD_REACH
+    lines and no two lines there hold HEAD_WORDS words or more (a paragraph)."""
+    x0, top, x1, _ = region
+    captions = [
+        s.line for s in segs
+        if _TABLE_CAPTION.match(s.line.text) and s.line.bottom <= top + 1
+        and top - s.line.bottom <= HEAD_REACH * size and s.line.x0 < x1 and s.line.x1 > x0
+    ]
+    if not captions:
+        return []
+    caption = max(captions, key=lambda ln: ln.bottom)
+    between = [s for s in segs if s.line.top >= caption.bottom - 1 and s.line.bottom <= top + 1
+               and x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size
+               and s.line is not caption]
+    caption_lines = {id(s.line) for s in segs if s.line.top < caption.bottom + size
+                     and s.line.top >= caption.top and s.line.x0 >= caption.x0 - 1}
+    between = [s for s in between if id(s.line) not in caption_lines]
+    if sum(len(s.line.words) >= HEAD_WORDS for s in between) >= 2:
+        return []  # a paragraph between a caption and the rules: not a head
+    return between
+
+
+def _table_notes(segs: list[Segment], region: Box, size: float) -> list[Segment]:
+    """The notes under a table: lines in small print, the first opening with a note mark
+    ("a ", "*", "†"), that follow its last rule, each within NOTE_GAP lines of the one before,
+    within the table's width."""
+    x0, _, x1, bottom = region
+    below = sorted((s for s in segs if s.line.top >= bottom - 1
+                    and x0 - size <= s.line.x0 <= x1 and s.line.x1 <= x1 + size),
+                   key=lambda s: s.line.top)
+    notes: list[Segment] = []
+    last = bottom
+    for seg in below:
+        if seg.line.top - last > NOTE_GAP * size or seg.line.size > size - 0.5:
+            break  # notes are set in small print; the text resumes in the body's size
+        if not notes and not _NOTE_MARK.match(seg.line.text):
+            break
+        notes.append(seg)
+        last = max(last, seg.line.bottom)
+    return notes
 
 
 def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> list[Box]:
