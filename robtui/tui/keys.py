@@ -106,7 +106,12 @@ KEY_MAP: tuple[KeyHelp, ...] = (
             "and protocol's (q attaches a passage to the focused question as a quote)"),
     KeyHelp("assessment", "escape", "back to the overview (from a text field: leave the field)"),
     KeyHelp("comparison", "up/down  r", "choose a result / compare another pair of reviewers"),
-    KeyHelp("comparison", "tab", "between the results and the differences to settle"),
+    KeyHelp(
+        "comparison",
+        "tab  shift+tab",
+        "the results, the differences to settle, both sides in full (support and direction, "
+        "every question; a narrow terminal shows one at a time); back",
+    ),
     KeyHelp(
         "comparison",
         "a / b",

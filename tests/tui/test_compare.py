@@ -295,6 +295,9 @@ async def test_the_panes_keep_their_marks_and_words_at_80_and_110_columns(demo_d
             screen.query_one("#pairs").highlighted = differing
             await pilot.pause()
             pair = screen.pairs[differing]
+            if size[0] < 100:  # narrow: one pane at a time; tab shows the differences
+                await pilot.press("tab")
+                assert not screen.query_one("#pairs").display
             # the differences pane is not squeezed beside the judgements (it was 12 columns)
             assert screen.query_one("#differences").size.width >= size[0] - 36 - 4
             table = screen.query_one("#consensus-judgements")
@@ -349,3 +352,25 @@ async def test_a_complete_consensus_refuses_changes_as_the_command_line_does(dem
     assert draft_problem(done, "a judgement") in shown
     assert draft_problem(done, "its support and direction of bias") in shown
     assert folder.consensus_path(done.study_id, done.result_id).read_bytes() == before
+
+
+async def test_at_80x24_tab_shows_one_pane_at_a_time_with_every_judgement(demo_dir):
+    lead = ReviewFolder.open(demo_dir).review.lead
+    app = Workbench(demo_dir, lead)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_comparison(pilot)
+        side = screen.query_one("#compare-side")
+        assert screen.query_one("#pairs").size.width >= 76 and not side.display
+        await pilot.press("tab")
+        assert screen.focused.id == "differences" and side.display
+        table = screen.query_one("#consensus-judgements")
+        assert table.region.bottom <= 24 - 3  # every row above the three lines of keys
+        assert "Overall" in plain(table.content)
+        await pilot.press("tab")
+        assert screen.focused.id == "pair-scroll"
+        assert screen.query_one("#pair-scroll").size.height >= 10
+        assert "Support and direction of bias" in plain(screen.query_one("#pair-detail").content)
+        await pilot.press("tab")
+        assert screen.focused.id == "pairs" and not side.display
+        await pilot.press("shift+tab")
+        assert screen.focused.id == "pair-scroll"

@@ -90,6 +90,8 @@ def test_override_dialog(snap_compare, demo_dir, size):
         await pilot.pause()
         await pilot.press("o")
         await pilot.pause()
+        await pilot.wait_for_scheduled_animations()
+        await pilot.pause()
 
     app = Workbench(demo_dir, _demo_reviewer(demo_dir), ranker_factory=FixedRanker)
     assert snap_compare(app, terminal_size=size, run_before=open_override)

@@ -143,7 +143,7 @@ def judgements_table(pair: AssessmentPair, qset, consensus: Consensus | None) ->
     """Domain and overall judgements: A's and B's final ones, and the consensus recomputed by
     the algorithm from the agreed answers (≠ where A and B differ, * where overridden)."""
     table = Table(
-        title="Judgements (consensus from the agreed answers; * overridden)",
+        title="Judgements (* overridden)",
         title_justify="left",
         box=box.SIMPLE_HEAD,
         show_edge=False,
@@ -199,7 +199,10 @@ class CompareScreen(Screen[None]):
         Binding("r", "next_reviewers", "Other reviewers"),
         Binding("escape", "back", "Overview"),
         Binding("question_mark,f1", "app.help", "Help"),
+        Binding("tab", "pane(1)", "Next pane", show=False, priority=True),
+        Binding("shift+tab", "pane(-1)", "Previous pane", show=False, priority=True),
     ]
+    PANES = ("pairs", "differences", "pair-scroll")  # tab goes round them in this order
 
     def __init__(self, session: ReviewSession) -> None:
         super().__init__()
@@ -611,6 +614,19 @@ class CompareScreen(Screen[None]):
 
     def action_back(self) -> None:
         self.dismiss(None)
+
+    def action_pane(self, step: int) -> None:
+        """Tab: the results, the differences to settle, both sides in full (support and
+        direction, every question); a narrow terminal shows one of them at a time."""
+        here = next((p for p in self.PANES if self.focused and self.focused.id == p), "pairs")
+        target = self.PANES[(self.PANES.index(here) + step) % len(self.PANES)]
+        self.query_one(f"#{target}").focus()
+
+    def on_descendant_focus(self, event) -> None:
+        pane = next((p for p in self.PANES if event.widget.id == p), None)
+        if pane is not None:
+            for name in self.PANES:
+                self.set_class(name == pane, f"-pane-{name}")
 
     def palette_commands(self) -> list[tuple[str, str, str]]:
         return [
