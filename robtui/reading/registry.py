@@ -64,6 +64,7 @@ import calendar
 import hashlib
 import itertools
 import json
+import re
 import xml.etree.ElementTree as ET
 from datetime import date, datetime
 from pathlib import Path
@@ -350,6 +351,7 @@ def _from_ctgov_xml(root: ET.Element, name: str) -> RegistryRecord:
     )
 
 
+_LINE_BREAK = re.compile(r"<br\s*/?>", re.IGNORECASE)  # literal in the ICTRP export's text
 _TIME_LABELS = ("time frame:", "timeframe:", "timepoints:", "timepoint:", "time points:",
                 "time point:")
 
@@ -359,7 +361,7 @@ def split_outcome_text(text: str) -> list[tuple[str, str]]:
     or per semicolon; a "time frame:" / "timepoint:" label inside an outcome starts its time
     frame."""
     out = []
-    for line in text.replace("<br>", "\n").replace("<br/>", "\n").splitlines():
+    for line in _LINE_BREAK.sub("\n", text).splitlines():
         for part in line.split(";"):
             part = " ".join(part.split()).strip(" .")
             if not part:

@@ -124,6 +124,9 @@ def test_partial_dates_span_their_month():
 def test_free_text_outcomes_are_split_with_their_time_frames():
     assert split_outcome_text("Pain; Time frame: 12 weeks\nFunction; at 24 weeks;Sleep") == [
         ("Pain", "12 weeks"), ("Function", "at 24 weeks"), ("Sleep", "")]
+    # the ICTRP export keeps HTML line breaks as text, and carriage returns
+    assert split_outcome_text("Pain;\r<br>Sleep<BR />Mood<br/>") == [
+        ("Pain", ""), ("Sleep", ""), ("Mood", "")]
 
 
 @pytest.mark.parametrize(("data", "message"), [
