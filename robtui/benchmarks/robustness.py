@@ -175,16 +175,19 @@ def _markdown() -> None:
 
 
 # -- large inputs: peak memory ------------------------------------------------------------------
-# Each measurement runs in a fresh interpreter and prints its own peak resident set size
-# (getrusage ru_maxrss, kilobytes on Linux), so one run's memory never counts in another's.
+# Each measurement runs in a fresh interpreter and prints its own peak resident set size in
+# kilobytes: VmHWM of /proc/self/status on Linux (the peak of this program's own memory;
+# getrusage's ru_maxrss would count the benchmark's memory too, as Linux carries the parent's
+# peak over fork and exec), else ru_maxrss.
 _PEAK = (
     "import resource,sys,time;from pathlib import Path;t=time.perf_counter();"
     "from robtui.errors import RobtuiError\n"
     "try:\n"
     " {action}\n"
     "except RobtuiError as e: out='refused: '+str(e).split(': ',1)[1][:60]\n"
-    "print(out);print(time.perf_counter()-t);"
-    "print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)"
+    "print(out);print(time.perf_counter()-t)\n"
+    "try: print(next(int(l.split()[1]) for l in open('/proc/self/status') if l[:6]=='VmHWM:'))\n"
+    "except (OSError, StopIteration): print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)"
 )
 _READ = (
     "from robtui.reading.reader import read_document;"

@@ -43,9 +43,9 @@ MAX_TEXT_BYTES = 20 * 1024 * 1024  # text, Markdown, registry records
 
 
 # The most characters of text one report may hold once read (txt, Markdown, HTML, registry
-# records): 25 times a long trial article (about 200,000 characters). Reading holds about 15
-# bytes per character (the sentences), and ranking about 150: at this limit `robtui suggest`
-# peaks under 1 GB (`robtui bench robustness` prints the figures). Checked while the text is
+# records): 25 times a long trial article (about 200,000 characters). Reading holds about 20
+# bytes per character (the sentences), and ranking about 170: at this limit `robtui suggest`
+# peaks near 1 GB (`robtui bench robustness` prints the figures). Checked while the text is
 # extracted, so a file with more text stops there instead of being read whole.
 MAX_DOCUMENT_CHARS = 5_000_000
 
