@@ -199,6 +199,41 @@ class DismissedSuggestion(Record):
     end: int = Field(ge=0)
 
 
+class Decision(Record):
+    """How the lead settled one signalling question for a consensus record."""
+
+    question_id: str
+    source: Literal["a", "b", "new", "agreed"]
+    response: Response | None
+    note: str = ""
+
+
+class JudgementChange(Record):
+    """A domain's proposed judgement before and after a record changed question-set version."""
+
+    before: Proposal | None  # as stored in the record (None: the domain was not there)
+    after: Proposal
+
+
+class SetUpgrade(Record):
+    """A record carried from the question-set version it was made with to a later one: what
+    the carry kept aside, left open and changed, so nothing is lost and the reviewer can check
+    it (robtui.core.set_versions)."""
+
+    from_version: str
+    to_version: str
+    at: datetime = Field(default_factory=utc_now)
+    # answers (and a consensus's decisions) to questions the later version does not have:
+    # kept here, never used for a judgement
+    retired_answers: dict[str, Answer] = Field(default_factory=dict)
+    retired_decisions: dict[str, Decision] = Field(default_factory=dict)
+    # questions asked on the answer path under the later version that have no answer
+    unanswered: list[str] = Field(default_factory=list)
+    changed: dict[str, JudgementChange] = Field(default_factory=dict)
+    # overridden judgements whose proposal changed: the reviewer confirms or clears them
+    to_confirm: list[str] = Field(default_factory=list)
+
+
 class Assessment(Record):
     """One reviewer's assessment of one result of one study."""
 
@@ -222,17 +257,10 @@ class Assessment(Record):
     rules_version: int | None = None
     dismissed: list[DismissedSuggestion] = Field(default_factory=list)
     last_question: str | None = None  # where the reviewer left off
+    # each carry to a later version of the question set, oldest first (what it kept aside)
+    set_upgrades: list[SetUpgrade] = Field(default_factory=list)
     created: datetime = Field(default_factory=utc_now)
     updated: datetime = Field(default_factory=utc_now)
-
-
-class Decision(Record):
-    """How the lead settled one signalling question for a consensus record."""
-
-    question_id: str
-    source: Literal["a", "b", "new", "agreed"]
-    response: Response | None
-    note: str = ""
 
 
 class Consensus(Record):
@@ -259,4 +287,5 @@ class Consensus(Record):
     # each reviewer's responses on their answer path when the lead last took them up (at the
     # start and at completion): a later change by a reviewer makes the consensus stale
     built_on: dict[str, dict[str, str]] = Field(default_factory=dict)
+    set_upgrades: list[SetUpgrade] = Field(default_factory=list)
     updated: datetime = Field(default_factory=utc_now)

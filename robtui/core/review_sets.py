@@ -31,6 +31,13 @@ def merged_order(sequences: Iterable[Sequence[str]]) -> list[str]:
     return order
 
 
+def is_earlier_version(made: str, current: str) -> bool:
+    """True when version ``made`` is a whole number below ``current`` (the bundled sets
+    number their versions 1, 2, ...); any other version cannot be placed."""
+    made, current = str(made), str(current)
+    return made.isdigit() and current.isdigit() and int(made) < int(current)
+
+
 @dataclass(frozen=True)
 class ReviewSets:
     """Which question set each study of a review is assessed with."""
@@ -49,9 +56,24 @@ class ReviewSets:
         made = (record.question_set, str(record.question_set_version))
         if made == (qset.id, str(qset.version)):
             return None
-        return (
+        said = (
             f"was made with question set {made[0]} version {made[1]}, but the study now uses "
             f"{qset.id} version {qset.version}"
+        )
+        if self.can_carry(record):
+            said += (
+                ": nothing is lost: `robtui upgrade REVIEW_DIR` shows what carrying it to "
+                f"version {qset.version} keeps, sets aside and changes, and `robtui upgrade "
+                "REVIEW_DIR --apply` carries it (answers kept, judgements recomputed)"
+            )
+        return said
+
+    def can_carry(self, record) -> bool:
+        """True when ``record`` was made with an earlier version of its study's set (see
+        robtui.core.set_versions)."""
+        qset = self.of(record.study_id)
+        return record.question_set == qset.id and is_earlier_version(
+            record.question_set_version, qset.version
         )
 
     def in_use(self, study_ids: Iterable[str] | None = None) -> list[QuestionSet]:

@@ -12,7 +12,7 @@ from pydantic import BaseModel
 
 from robtui.core.model import Assessment, Consensus
 from robtui.errors import DataFileError
-from robtui.files import remove_leftovers
+from robtui.files import refuse_if_changed, remove_leftovers
 from robtui.store.ids import check_id, is_valid_id, record_file_name
 from robtui.store.records import read_record_and_digest, record_to_json, validated
 
@@ -178,6 +178,13 @@ class RecordFiles:
         return problems + unlisted
 
     # -- shared -----------------------------------------------------------------------------------
+    def refuse_changed_since_read(self, paths: Sequence[Path]) -> None:
+        """StaleFileError when any of ``paths`` is no longer what this process read (checked
+        together, under the caller's lock, before a batch of saves writes any of them)."""
+        for path in paths:
+            path = self.inside(path)
+            refuse_if_changed(path, self._seen.get(path))
+
     def _save_record(self, path: Path, record: BaseModel, model: type[BaseModel]) -> Path:
         path = self.inside(path)
         # Validate once more: a record changed in memory with model_construct must not reach disk.

@@ -40,6 +40,8 @@ class Workspace:
         if mismatch is None:
             return None
         who = f"{record.reviewer}'s assessment" if isinstance(record, Assessment) else "consensus"
+        if self.sets.can_carry(record):
+            return f"{who} of {record.study_id} / {record.result_id} {mismatch}"
         return (
             f"{who} of {record.study_id} / {record.result_id} {mismatch}: restore that set (a "
             f"review's own sets live in {QUESTION_SETS_DIR}/) or the study's design, or assess "

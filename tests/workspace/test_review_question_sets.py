@@ -182,7 +182,7 @@ def test_records_are_checked_against_their_studys_set(review, capsys):
     assert found == [] and "version 1" in problems[0]
     code, _, err = run(capsys, "assess", review, "--reviewer", "ana", "--study", "W1",
                        "--result", "R1")
-    assert code == 2 and "assess the result again" in err
+    assert code == 2 and "`robtui upgrade REVIEW_DIR` shows what carrying it" in err
 
 
 def test_a_design_no_set_declares_is_refused_with_the_choices(review, capsys):
