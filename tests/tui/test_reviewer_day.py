@@ -151,3 +151,14 @@ async def test_a_passage_across_sentences_and_part_of_a_sentence_are_quoted(demo
         part = quotes[1]
         assert part.start == last.start and part.end == last.start + 4
         assert part.text == text[last.start : last.start + 4]
+
+
+async def test_at_80x24_marking_a_passage_says_how_to_quote_it(demo_dir):
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_selected(pilot)
+        await pilot.press("right_square_bracket", "v")
+        await pilot.pause()
+        assert not screen.query_one("#candidate-note").display  # hidden on a narrow screen
+        said = [n.message for n in app._notifications]
+        assert any("then q quotes it" in m for m in said), said
