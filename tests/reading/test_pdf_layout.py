@@ -253,3 +253,23 @@ def test_affiliation_mark_in_small_print_beside_body_text_is_its_own_word() -> N
     glyphs += _glyphs("1", 300, 96.5, size=5.0, advance=2.7)
     glyphs += _glyphs("School of Invented Studies", 302.7, 100, size=7.5, advance=3.4)
     assert _text(rows_of(glyphs)) == ["body text of the left column 1 School of Invented Studies"]
+
+
+def test_short_lines_beside_the_other_column_leave_no_gutter_in_their_own() -> None:
+    # A left column whose paragraph ends in a short line and two short headings, beside a full
+    # right column: the white right of the short lines is no gutter inside the left column.
+    # The paragraph's last full line is justified with wide spaces (as "recovery  and  lung").
+    glyphs = _glyphs("the patients quality recovery", 54, 100, advance=6.4)
+    glyphs += _glyphs("and", 248, 100, advance=4.6) + _glyphs("lung", 273, 100, advance=4.6)
+    glyphs += _glyphs("right column text runs on and on here", 305, 100, advance=6.4)
+    y = 114.0
+    for text in ["protection of", "Patients and Methods", "General Information", "Procedures"]:
+        glyphs += _glyphs(text, 54, y, advance=4.6)
+        glyphs += _glyphs("right column text runs on and on here", 305, y, advance=6.4)
+        y += 14
+    glyphs += _glyphs("This study was a single centre prospective trial", 54, y, advance=4.8)
+    glyphs += _glyphs("right column text runs on and on here", 305, y, advance=6.4)
+    rows = text_rows(rows_of(glyphs))
+    size = body_size(rows)
+    lefts = [g for g in find_gutters(rows, size) if g.x1 < 300]
+    assert lefts == []

@@ -26,6 +26,7 @@ from robtui.reading.layout.lines import Line, Row, Word, make_line, words_of
 
 GUTTER_EM = 0.75
 GUTTER_ROWS = 4
+RIGHT_REACH_EM = 2.0  # a word this near (share of the body size) the strip's right edge opens a column
 SPLIT_EM = 2.2
 MAX_BLOCKS = 220
 _LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-])$")  # beyond this many blocks on a page, the plain order is used
@@ -87,6 +88,7 @@ def find_gutters(rows: list[TextRow], size: float) -> list[Gutter]:
     if not rows:
         return []
     least = max(3.0, GUTTER_EM * size)
+    reach = RIGHT_REACH_EM * size
     left_edge = min(r.words[0].box[0] for r in rows)
     right_edge = max(r.words[-1].box[2] for r in rows)
     active: list[Gutter] = []
@@ -99,14 +101,14 @@ def find_gutters(rows: list[TextRow], size: float) -> list[Gutter]:
             if part is not None and part[1] - part[0] >= least:
                 g.x0, g.x1 = part
                 g.bottom = max(g.bottom, row.bottom)
-                _count_sides(g, row.words)
+                _count_sides(g, row.words, reach)
                 kept.append(g)
             elif g.rows >= GUTTER_ROWS:
                 found.append(g)
         for x0, x1 in free:
             if not any(g.x0 < x1 and g.x1 > x0 for g in kept):
                 g = Gutter(x0, x1, row.top, row.bottom)
-                _count_sides(g, row.words)
+                _count_sides(g, row.words, reach)
                 kept.append(g)
         active = kept
     found.extend(g for g in active if g.rows >= GUTTER_ROWS)
@@ -139,10 +141,13 @@ def _widest_overlap(
     return best
 
 
-def _count_sides(g: Gutter, words: list[Word]) -> None:
+def _count_sides(g: Gutter, words: list[Word], reach: float) -> None:
+    """Count the row on the left when text lies left of the strip, and on the right when a
+    word opens within ``reach`` of its right edge (a column starts there; text far to the
+    right belongs to another column, beside the short lines of this one)."""
     if any(w.box[2] <= g.x0 + 0.5 for w in words):
         g.left_rows += 1
-    if any(w.box[0] >= g.x1 - 0.5 for w in words):
+    if any(g.x1 - 0.5 <= w.box[0] <= g.x1 + reach for w in words):
         g.right_rows += 1
 
 
