@@ -6,6 +6,8 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from robtui.commands._common import add_asking
+
 
 def register(subparsers: argparse._SubParsersAction) -> None:
     parser = subparsers.add_parser(
@@ -18,7 +20,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:
             "have: kept in the record, never dropped), the questions now asked without an "
             "answer, and every judgement the current rules propose differently; overrides "
             "are kept, and those whose proposal changed are to be confirmed again. Nothing is "
-            "written without --apply."
+            "written without --apply. Blinding holds: a reviewer carries their own "
+            "assessments; the lead the consensus records and, with --unblind, the reviewers'."
         ),
     )
     parser.add_argument("folder", type=Path, metavar="DIR")
@@ -30,10 +33,13 @@ def register(subparsers: argparse._SubParsersAction) -> None:
     parser.add_argument(
         "--apply", action="store_true", help="write the records (default: show what changes)"
     )
+    add_asking(parser, unblind=True)
     parser.set_defaults(func=run)
 
 
 def run(args: argparse.Namespace) -> int:
+    from robtui.commands._common import asker
+    from robtui.core.blinding import require_asker
     from robtui.store.ids import check_id
     from robtui.workspace import Workspace
     from robtui.workspace.set_upgrades import apply_carries, plan_carries
@@ -41,7 +47,12 @@ def run(args: argparse.Namespace) -> int:
     if args.reviewer is not None:
         check_id(args.reviewer, "reviewer")
     ws = Workspace.open(args.folder)
-    plans, problems = plan_carries(ws, args.study, args.result, args.reviewer)
+    # blinding: a reviewer carries their own work; the lead the consensus records and, as
+    # for any change to a reviewer's work, theirs with --unblind
+    who = require_asker(asker(args), ws.review, "robtui upgrade")
+    plans, problems = plan_carries(
+        ws, args.study, args.result, args.reviewer, asker=who, unblind=args.unblind
+    )
     for plan in plans:
         print(f"{plan.title}: {plan.path.relative_to(ws.root.resolve())}")
         for line in plan.describe():

@@ -12,8 +12,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
+from robtui.core.blinding import require_may_use
 from robtui.core.model import Assessment, Consensus, SetUpgrade
 from robtui.core.set_versions import carry_forward, carry_problem, describe_upgrade
+from robtui.errors import InputError
 from robtui.store.derived import code_problems
 
 
@@ -37,12 +39,19 @@ class PlannedCarry:
 
 
 def plan_carries(
-    ws, study: str | None = None, result: str | None = None, reviewer: str | None = None
+    ws,
+    study: str | None = None,
+    result: str | None = None,
+    reviewer: str | None = None,
+    *,
+    asker: str | None = None,
+    unblind: bool = False,
 ) -> tuple[list[PlannedCarry], list[str]]:
     """The records (of one study, result or reviewer, or all; consensus records unless a
     reviewer is named) made with an earlier version of their study's set, each with what
     carrying it forward would do; and why the others behind their set cannot be carried,
-    with the problems of unreadable files."""
+    with the problems of unreadable files. With ``asker``, blinding holds (core/blinding.py):
+    a record the asker may not change is named, never shown, and not carried."""
     folder = ws.folder
     if study is not None:
         folder.study_or_error(study)
@@ -59,6 +68,10 @@ def plan_carries(
         if ws.sets.set_mismatch(record) is None:
             continue
         path = _path(folder, record)
+        hidden = None if asker is None else _not_theirs(ws.review, record, asker, unblind)
+        if hidden is not None:
+            problems.append(f"{path.relative_to(ws.root.resolve())}: not carried: {hidden}")
+            continue
         qset = ws.sets.of(record.study_id)
         problem = carry_problem(record, qset)
         if problem is None:
@@ -88,6 +101,20 @@ def apply_carries(ws, plans: list[PlannedCarry]) -> list[Path]:
             else:
                 folder.save_assessment(plan.after)
     return [p.path for p in plans]
+
+
+def _not_theirs(review, record: Assessment | Consensus, asker: str, unblind: bool) -> str | None:
+    """Why ``asker`` may not carry ``record`` (InputError's words), or None."""
+    if isinstance(record, Consensus):
+        return None if not review.lead or asker == review.lead else (
+            f"a consensus record is the lead's ({review.lead}) to carry"
+        )
+    try:
+        require_may_use(asker, record.reviewer, review, complete=record.status == "complete",
+                        unblind=unblind, changing=True)
+    except InputError as refusal:
+        return str(refusal)
+    return None
 
 
 def _path(folder, record: Assessment | Consensus) -> Path:

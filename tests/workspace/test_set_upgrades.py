@@ -101,7 +101,8 @@ def test_a_version_1_record_is_carried_to_version_2_with_nothing_lost(old_review
     path = old_review / "assessments" / "ana" / "W1--R1.json"
     before = json.loads(path.read_text("utf-8"))
 
-    code, out, err = run(capsys, "upgrade", old_review)  # dry run: says, writes nothing
+    # the lead, with --unblind: every record (dry run: says, writes nothing)
+    code, out, err = run(capsys, "upgrade", old_review, "--as", "lee", "--unblind")
     assert code == 0, err
     assert json.loads(path.read_text("utf-8")) == before
     assert "ana's assessment of W1 / R1 (team-extra)" in out
@@ -112,7 +113,7 @@ def test_a_version_1_record_is_carried_to_version_2_with_nothing_lost(old_review
     assert "status complete -> draft" in out
     assert "consensus of W1 / R1" in out and "nothing written (dry run)" in out
 
-    code, out, err = run(capsys, "upgrade", old_review, "--apply")
+    code, out, err = run(capsys, "upgrade", old_review, "--as", "lee", "--unblind", "--apply")
     assert code == 0, err
     assert "carried 3 record(s)" in out  # ana, ben and the consensus of W1
     ws = Workspace.open(old_review)
@@ -139,7 +140,9 @@ def test_a_version_1_record_is_carried_to_version_2_with_nothing_lost(old_review
     assert consensus.question_set_version == "2" and consensus.set_upgrades[0].unanswered == [
         "1x.2"
     ]
-    assert run(capsys, "upgrade", old_review)[1].startswith("no record needs carrying")
+    assert run(capsys, "upgrade", old_review, "--as", "lee")[1].startswith(
+        "no record needs carrying"
+    )
 
 
 def test_a_writer_in_between_is_refused_and_nothing_is_written(old_review):
@@ -171,9 +174,24 @@ def test_an_unknown_version_is_refused_and_left_alone(old_review, capsys):
     path = old_review / "assessments" / "ana" / "W1--R1.json"
     edit(path, lambda d: d.update(question_set_version="7"))
     before = path.read_bytes()
-    code, out, _ = run(capsys, "upgrade", old_review, "--reviewer", "ana", "--apply")
+    code, out, _ = run(capsys, "upgrade", old_review, "--as", "ana", "--apply")
     assert code == 1 and "not carried: its version 7 of team-extra is unknown here" in out
     assert path.read_bytes() == before
     record = Assessment.model_validate_json(before)
     with pytest.raises(InputError, match="version 7 of team-extra is unknown"):
         carry_forward(record, Workspace.open(old_review).question_set_for("W1"))
+
+
+def test_blinding_holds_a_reviewer_carries_only_their_own(old_review, capsys):
+    code, out, err = run(capsys, "upgrade", old_review, "--as", "ana", "--apply")
+    assert code == 1, err  # the records ana may not carry are named
+    assert "carried 1 record(s)" in out and "ana's assessment of W1 / R1" in out
+    assert "ben's assessment of" not in out and out.count("version 1 -> 2") == 1  # ana's only
+    assert "assessments/ben/W1--R1.json: not carried: this is ben's assessment" in out
+    assert "consensus/W1--R1.json: not carried: a consensus record is the lead's (lee)" in out
+    ws = Workspace.open(old_review)
+    assert ws.load_assessment("ana", "W1", "R1").question_set_version == "2"
+    with pytest.raises(DataFileError, match="robtui upgrade"):
+        ws.load_assessment("ben", "W1", "R1")
+    code, _, err = run(capsys, "upgrade", old_review)  # nobody named: refused, says how
+    assert code == 2 and "--as NAME" in err
