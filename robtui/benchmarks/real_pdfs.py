@@ -26,17 +26,29 @@ import subprocess
 import sys
 import tempfile
 import time
-import unicodedata
 from collections.abc import Sequence
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
 import numpy as np
 
-FOLDER_ENV = "ROBTUI_REAL_PDFS"
-# The scoring the gold's README suggests (../shared/real-pdfs/README.md).
-MIN_PARTIAL_RATIO = 90.0
-MIN_LENGTH_SHARE = 0.6
+# The gold, its hit rule and normalising live with the training that learns from them; both
+# score robtui's suggestions and the baseline's sentences with the same functions.
+from robtui.evidence.training.real_gold import (  # noqa: F401 (re-exported for the tests)
+    FOLDER_ENV,
+    MIN_LENGTH_SHARE,
+    MIN_PARTIAL_RATIO,
+    GoldSnippet,
+    contains_snippet,
+    default_folder,
+    hit_labels,
+    load_gold,
+    normalise,
+)
+from robtui.evidence.training.real_gold import (
+    SPACE as _SPACE,
+)
+
 PROSE_MIN_WORDS = 8
 # pdftotext keeps page furniture and floats inside the text it reads across them: a sentence
 # robtui reads whole counts as intact on a second figure when pdftotext's reading of it is
@@ -63,83 +75,6 @@ TARGETS = ("pooled recall@1 >= 0.75 and recall@3 >= 0.90, ahead of the baseline 
 
 
 # --------------------------------------------------------------------------- gold and text
-
-
-def default_folder() -> Path | None:
-    """``$ROBTUI_REAL_PDFS``, else ``shared/real-pdfs`` in a folder above the repository (a
-    checkout's ``../shared``, or a worktree's further up); None if absent."""
-    env = os.environ.get(FOLDER_ENV)
-    candidates = [Path(env)] if env else []
-    candidates += [p / "shared" / "real-pdfs" for p in Path(__file__).resolve().parents[2:5]]
-    for candidate in candidates:
-        if (candidate / "gold.json").is_file():
-            return candidate
-    return None
-
-
-@dataclass(frozen=True)
-class GoldSnippet:
-    snippet: str
-    where: str
-    table: bool
-
-
-def load_gold(folder: Path) -> dict[str, dict[str, list[GoldSnippet]]]:
-    """gold.json as {file: {question: [snippet, ...]}}; DataFileError naming what is wrong."""
-    from pydantic import BaseModel, ConfigDict, TypeAdapter, ValidationError
-
-    from robtui.errors import DataFileError
-
-    class _Snippet(BaseModel):
-        model_config = ConfigDict(extra="ignore")
-        snippet: str
-        where: str = "other"
-        table: bool = False
-
-    path = Path(folder) / "gold.json"
-    try:
-        raw = TypeAdapter(dict[str, dict[str, list[_Snippet]]]).validate_json(path.read_bytes())
-    except OSError as error:
-        raise DataFileError(f"{path}: cannot be read ({error.strerror or error})") from error
-    except ValidationError as error:
-        raise DataFileError(f"{path}: not a gold file of the expected shape ({error})") from error
-    return {name: {q: [GoldSnippet(s.snippet, s.where, s.table) for s in items]
-                   for q, items in questions.items()}
-            for name, questions in raw.items()}
-
-
-_QUOTES = str.maketrans({c: "'" for c in "\u2018\u2019\u201a\u201b\u2032\u00b4`"}
-                        | {c: '"' for c in "\u201c\u201d\u201e\u201f\u2033"}
-                        | {c: "-" for c in "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\ufe63\uff0d"}
-                        | {"\u00ad": None, "\u200b": None, "\ufeff": None})
-_LINE_END_HYPHEN = re.compile(r"-[ \t]*\n[ \t]*")
-# pdftotext keeps a soft hyphen (U+00AD) where the typesetter broke a word at a line end.
-_SOFT_LINE_END = re.compile("\u00ad(?=[ \t]*\n)")
-_SPACE = re.compile(r"\s+")
-
-
-def normalise(text: str) -> str:
-    """Text as the scoring compares it: NFKC (ligatures spelled out), soft hyphens dropped,
-    quotes and dashes unified, hyphens dropped (so a line-end hyphen rejoined either way reads
-    the same), combining marks composed, lower case, white space collapsed."""
-    text = _SOFT_LINE_END.sub("-", unicodedata.normalize("NFKC", text)).translate(_QUOTES)
-    text = _LINE_END_HYPHEN.sub("", text).replace("-", "")
-    return _SPACE.sub(" ", text).strip().lower()
-
-
-def contains_snippet(candidate: str, snippet: str) -> bool:
-    """The hit rule on normalised texts: the snippet occurs in the candidate, fuzzily, and the
-    candidate holds at least MIN_LENGTH_SHARE of the snippet's length."""
-    from rapidfuzz import fuzz
-
-    if not snippet or len(candidate) < MIN_LENGTH_SHARE * len(snippet):
-        return False
-    return fuzz.partial_ratio(snippet, candidate, score_cutoff=MIN_PARTIAL_RATIO) >= MIN_PARTIAL_RATIO
-
-
-def hit_labels(candidates: Sequence[str], snippets: Sequence[str]) -> np.ndarray:
-    """Per normalised candidate, whether it contains any of the normalised snippets."""
-    return np.array([any(contains_snippet(c, s) for s in snippets) for c in candidates], dtype=bool)
 
 
 def intact_across_interruption(sentence: str, reference: str,
@@ -204,15 +139,18 @@ def baseline_sentences(text: str) -> list[str]:
     return [s for s in _SPLIT.split(flat) if s.strip()]
 
 
-def baseline_scores(sentences: Sequence[str], wordings: Sequence[str]) -> np.ndarray:
+def baseline_scores(sentences: Sequence[str], wordings: Sequence[str], *,
+                    strong: bool = False) -> np.ndarray:
     """(sentences, questions) TF-IDF cosine, the vocabulary fitted on the article's sentences
-    (scikit-learn TfidfVectorizer with its defaults)."""
+    (scikit-learn TfidfVectorizer with its defaults; ``strong``: character 3-5-grams within
+    words, so "randomised" meets "randomization" and "analysed" meets "analysis")."""
     from sklearn.feature_extraction.text import TfidfVectorizer
     from sklearn.metrics.pairwise import linear_kernel
 
     if not sentences:
         return np.zeros((0, len(wordings)))
-    vectoriser = TfidfVectorizer().fit(sentences)
+    vectoriser = (TfidfVectorizer(analyzer="char_wb", ngram_range=(3, 5)) if strong
+                  else TfidfVectorizer()).fit(sentences)
     return linear_kernel(vectoriser.transform(sentences), vectoriser.transform(wordings))
 
 
@@ -265,6 +203,9 @@ class Pair:
     top3_table: int
     baseline_rank: int | None
     baseline_top: float
+    strong_baseline_rank: int | None = None  # the question's wording and guidance, char n-grams
+    first_stage_rank: int | None = None  # robtui without its second stage
+    loao_rank: int | None = None  # the second stage fitted on the other articles only
     top_text: str = ""
     snippets: tuple[str, ...] = ()
 
@@ -347,9 +288,13 @@ def _suggest_process_seconds(path: Path) -> float:
 
 
 def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, wordings: dict[str, str],
-                    *, process: bool = True) -> tuple[Reading, list[Pair], list[Planted]]:
-    """Read one PDF, rank every gold question, and score both robtui and the baseline."""
+                    *, process: bool = True, guidance: dict[str, str] | None = None,
+                    ) -> tuple[Reading, list[Pair], list[Planted], list]:
+    """Read one PDF, rank every gold question, and score both robtui and the baselines; also
+    the article's groups for the second stage's leave-one-article-out figures."""
+    from robtui.evidence.ranker import Ranker
     from robtui.evidence.training.reader_faults import without_sections
+    from robtui.evidence.training.real_gold import article_groups
     from robtui.reading.document import top_section
     from robtui.reading.reader import read_document
 
@@ -381,6 +326,12 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
     base_sentences = baseline_sentences(ref_text)
     base_norm = [normalise(s) for s in base_sentences]
     base = baseline_scores(base_sentences, [wordings[q] for q in questions])
+    guidance = guidance or {}
+    strong = baseline_scores(base_sentences, [f"{wordings[q]} {guidance.get(q, '')}".strip()
+                                              for q in questions], strong=True)
+    first_stage = Ranker(ranker.weights, ranker.cues)
+    first = first_stage.rank(document, questions, top=None)
+    groups = article_groups(path.name, document, gold, first_stage)
     tail = reference_tail(ref_text)
     pairs = []
     for j, q in enumerate(questions):
@@ -390,6 +341,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
         top3 = by_score[q][:3]
         base_order = np.argsort(-base[:, j], kind="stable") if len(base_sentences) else []
         base_labels = hit_labels(base_norm, snippets)
+        strong_order = np.argsort(-strong[:, j], kind="stable") if len(base_sentences) else []
         top = by_score[q][0] if by_score[q] else None
         pairs.append(Pair(
             article=path.name, question=q, answerable=bool(snippets),
@@ -405,10 +357,28 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
                            or looks_like_table_cell(s.text) for s in top3),
             baseline_rank=first_hit(base_order, base_labels),
             baseline_top=float(base[base_order[0], j]) if len(base_sentences) else 0.0,
+            strong_baseline_rank=first_hit(strong_order, base_labels),
+            first_stage_rank=first_hit([s.sentence_index for s in first[q]], labels),
             top_text=top.text if top else "",
             snippets=tuple(g.snippet for g in gold[q]),
         ))
-    return reading, pairs, planted_places(document, path.name, ranker, questions)
+    return reading, pairs, planted_places(document, path.name, ranker, questions), groups
+
+
+def leave_one_article_out(pairs: Sequence[Pair], groups: Sequence, ranker) -> float | None:
+    """Fill each pair's ``loao_rank``: the shipped second stage's features and C, its weights
+    fitted on the other articles' gold only (the honest figure on articles it was trained on).
+    Returns the C used; None (and nothing filled) when the ranker has no second stage."""
+    from robtui.evidence.training.real_gold import first_rank, loao_scores
+
+    if ranker.adjustment is None:
+        return None
+    C = float(ranker.adjustment.provenance.get("C", 1.0))
+    scores = loao_scores(groups, ranker.adjustment.keys, C)
+    by_pair = {(g.article, g.key): first_rank(s, g) for g, s in zip(groups, scores)}
+    for p in pairs:
+        p.loao_rank = by_pair.get((p.article, p.question))
+    return C
 
 
 # --------------------------------------------------------------------------- figures
@@ -424,7 +394,8 @@ def pooled(pairs: Sequence[Pair]) -> dict:
 
     answerable = [p for p in pairs if p.answerable]
     out = {"pairs": len(pairs), "answerable": len(answerable)}
-    for name in ("rank", "spread_rank", "no_sections_rank", "baseline_rank"):
+    for name in ("rank", "loao_rank", "first_stage_rank", "spread_rank", "no_sections_rank",
+                 "baseline_rank", "strong_baseline_rank"):
         ranks = [getattr(p, name) for p in answerable]
         out[name] = {f"recall@{k}": recall(ranks, k) for k in (1, 3, 5)}
     out["auroc"] = auroc([p.top_score for p in pairs], [p.answerable for p in pairs])
@@ -465,13 +436,21 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
     figures = pooled(pairs)
     n = figures["answerable"]
     print(f"\nPooled over {n} answerable (article, question) pairs of {figures['pairs']}")
-    print("                                         R@1   R@3   R@5")
-    for label, name in (("robtui, by score (suggest)", "rank"),
-                        ("robtui, reading order (workbench)", "spread_rank"),
-                        ("robtui, every section removed", "no_sections_rank"),
-                        ("baseline: pdftotext + TF-IDF", "baseline_rank")):
+    print("                                                   R@1   R@3   R@5")
+    loao = any(p.loao_rank is not None for p in pairs)
+    rows = ((("robtui, second stage fitted without the article", "loao_rank"),) if loao else ())
+    rows += (("robtui as shipped, by score (suggest)" + (" *" if loao else ""), "rank"),
+             ("robtui, first stage alone", "first_stage_rank"),
+             ("robtui, reading order (workbench)", "spread_rank"),
+             ("robtui, every section removed", "no_sections_rank"),
+             ("baseline: pdftotext + TF-IDF (wording)", "baseline_rank"),
+             ("baseline 2: + guidance, char 3-5-grams", "strong_baseline_rank"))
+    for label, name in rows:
         r = figures[name]
-        print(f"  {label:<37} " + " ".join(_fmt(r[f"recall@{k}"]) for k in (1, 3, 5)))
+        print(f"  {label:<47} " + " ".join(_fmt(r[f"recall@{k}"]) for k in (1, 3, 5)))
+    if loao:
+        print("  * the shipped second stage was fitted on these articles' gold: the first row "
+              "(leave one article out) is the fair figure")
     print(f"  AUROC of the top score, answerable vs not: robtui {_fmt(figures['auroc'])}, "
           f"baseline {_fmt(figures['baseline_auroc'])}")
     c, a, u = (figures[k] for k in ("flagged_correct_first", "flagged_answerable",
@@ -486,22 +465,33 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
           "independent check)")
 
     questions = list(dict.fromkeys(p.question for p in pairs))
-    print("\nPer question (answerable pairs)   robtui R@1   R@3   R@5 | baseline R@1  R@3   R@5")
+    main_rank = "loao_rank" if loao else "rank"
+    print(f"\nPer question (answerable pairs; robtui: {'leave one article out' if loao else 'shipped'}"
+          ")\n              robtui R@1   R@3   R@5 | shipped first | baseline R@1 R@3 R@5 |"
+          " baseline 2 R@1 R@3 R@5 | ahead at R@1")
     per_question = {}
     for q in questions:
         mine = [p for p in pairs if p.question == q and p.answerable]
-        ours, theirs = [p.rank for p in mine], [p.baseline_rank for p in mine]
+        ours = [getattr(p, main_rank) for p in mine]
+        theirs = [p.baseline_rank for p in mine]
+        strong = [p.strong_baseline_rank for p in mine]
+        ahead = recall(ours, 1) > max(recall(theirs, 1), recall(strong, 1))
         per_question[q] = {"n": len(mine), "recall": [recall(ours, k) for k in (1, 3, 5)],
-                           "baseline": [recall(theirs, k) for k in (1, 3, 5)]}
-        print(f"  {q:<5} n={len(mine):<3}                  {_recalls(ours)} |         "
-              f"{_recalls(theirs)}")
+                           "shipped": [recall([p.rank for p in mine], k) for k in (1, 3, 5)],
+                           "first_stage": [recall([p.first_stage_rank for p in mine], k)
+                                           for k in (1, 3, 5)],
+                           "baseline": [recall(theirs, k) for k in (1, 3, 5)],
+                           "baseline_2": [recall(strong, k) for k in (1, 3, 5)], "ahead": ahead}
+        print(f"  {q:<5} n={len(mine):<3} {_recalls(ours)} | {_fmt(recall([p.rank for p in mine], 1))}"
+              f" {_fmt(recall([p.first_stage_rank for p in mine], 1))} |  {_recalls(theirs)} |"
+              f"    {_recalls(strong)} | {'yes' if ahead else 'NO'}")
 
     print("\nPer article      pairs  R@1   R@3   R@5 | base R@1 R@3 | integrity sections"
           "            pages  s/page pdftotext ratio suggest")
     per_article = {}
     for r in readings:
         mine = [p for p in pairs if p.article == r.article and p.answerable]
-        ours, theirs = [p.rank for p in mine], [p.baseline_rank for p in mine]
+        ours, theirs = [getattr(p, main_rank) for p in mine], [p.baseline_rank for p in mine]
         per_page = r.read_s / max(r.pages, 1)
         ref = r.pdftotext_s / max(r.pages, 1) if r.pdftotext_s else None
         ratio = r.read_s / r.pdftotext_s if r.pdftotext_s else None
@@ -611,6 +601,10 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--broken", type=int, default=0, metavar="N",
                    help="list up to N prose sentences per article not intact in pdftotext's reading")
     p.add_argument("--model", type=Path, default=None, help="ranker weights file (default: shipped)")
+    p.add_argument("--second-stage", type=Path, default=None, metavar="FILE",
+                   help="second-stage weights file (default: shipped)")
+    p.add_argument("--first-stage-only", action="store_true",
+                   help="rank without the second stage (as before it was learned)")
     p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
     return p
 
@@ -618,6 +612,7 @@ def _parser() -> argparse.ArgumentParser:
 def main(argv: list[str] | None = None) -> int:
     from robtui.errors import InputError
     from robtui.evidence.ranker import active_questions, load_ranker
+    from robtui.store.question_sets import builtin_question_set
 
     args = _parser().parse_args(argv)
     folder = args.folder or default_folder()
@@ -637,20 +632,27 @@ def main(argv: list[str] | None = None) -> int:
     if shutil.which("pdftotext") is None:
         print("pdftotext is not installed (Debian: poppler-utils): no integrity, no baseline, "
               "no speed ratio", file=sys.stderr)
-    ranker = load_ranker(args.model)
+    ranker = load_ranker(args.model, args.second_stage, first_stage_only=args.first_stage_only)
     wordings = dict(active_questions("assignment"))
+    guidance = {q.id: q.guidance or "" for q in builtin_question_set().questions("assignment")}
     print("Real published trial PDFs against hand-made gold snippets "
           f"({folder}; cite each article by the DOI in its MANIFEST.tsv)")
-    readings, pairs, planted = [], [], []
+    readings, pairs, planted, groups = [], [], [], []
     for name in names:
         t = time.perf_counter()
-        reading, found, placed = measure_article(Path(folder) / name, gold[name], ranker,
-                                                 wordings, process=not args.no_process)
+        reading, found, placed, grouped = measure_article(
+            Path(folder) / name, gold[name], ranker, wordings, process=not args.no_process,
+            guidance=guidance)
         readings.append(reading)
         pairs.extend(found)
         planted.extend(placed)
+        groups.extend(grouped)
         print(f"  {name}: {reading.pages} pages, {reading.sentences} sentences "
               f"({time.perf_counter() - t:.1f} s)", flush=True)
+    if len(names) > 1:
+        C = leave_one_article_out(pairs, groups, ranker)
+        if C is not None:
+            print(f"  second stage refitted leaving each article out (C={C}, as shipped)")
     figures = report(readings, pairs)
     figures["planted"] = report_planted(planted)
     if args.misses:

@@ -19,6 +19,7 @@ from pathlib import Path
 import numpy as np
 
 from robtui.errors import InputError
+from robtui.evidence.adjustment import Adjustment, load_adjustment
 from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key, tokens
 from robtui.evidence.features import (
     QUESTION_NAMES,
@@ -147,8 +148,10 @@ def active_questions(effect: str = "assignment", question_set=None) -> list[tupl
 class Ranker:
     """Scores sentences per question; build with :func:`load_ranker`."""
 
-    def __init__(self, weights: RankerWeights, cues: dict[str, CueEntry] | None = None):
+    def __init__(self, weights: RankerWeights, cues: dict[str, CueEntry] | None = None,
+                 adjustment: Adjustment | None = None):
         self.weights = weights
+        self.adjustment = adjustment  # the second stage learned on real PDFs (adjustment.py)
         self.cues = cues if cues is not None else load_cues()
         self.matcher = CueMatcher(self.cues)
         self.no_evidence_threshold = weights.no_evidence_threshold
@@ -180,12 +183,25 @@ class Ranker:
             return entry.same_as
         return None
 
+    def adjusted_key(self, key: str) -> str | None:
+        """The key whose second stage serves ``key`` (itself or its same_as), if any: the
+        second stage is used only for the questions it was fitted and checked on."""
+        if self.adjustment is None:
+            return None
+        if key in self.adjustment.keys:
+            return key
+        entry = self.cues.get(key)
+        return entry.same_as if entry and entry.same_as in self.adjustment.keys else None
+
     def is_trained(self, question_id: str, effect: str = "assignment") -> bool:
         """True when the question has a model of its own (else the transfer model ranks it)."""
         return self.trained_key(model_key(question_id, effect)) is not None
 
     def threshold_for(self, question_id: str, effect: str = "assignment") -> float:
-        """The no-evidence threshold of a question (the transfer model has its own)."""
+        """The no-evidence threshold of a question (the transfer model has its own; the second
+        stage, when there is one, has one for all)."""
+        if self.adjusted_key(model_key(question_id, effect)) is not None:
+            return self.adjustment.threshold
         if self.is_trained(question_id, effect):
             return self.no_evidence_threshold
         generic = self.weights.generic_no_evidence_threshold
@@ -218,13 +234,16 @@ class Ranker:
         entries = [self.cues.get(key) for key in keys]
         return question_feature_blocks(doc, keys, entries, self.matcher, similarity)
 
-    def logits(
+    def first_stage(
         self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]
-    ) -> dict[str, np.ndarray]:
-        """Calibrated log-odds of every sentence for each key (before any review model)."""
+    ) -> dict[str, tuple[np.ndarray, np.ndarray, np.ndarray]]:
+        """Per key: the calibrated log-odds of every sentence by the question's own model (the
+        transfer model's for a question without one), by the transfer model, and the question
+        features both were computed from."""
         w = self.weights
         if doc.n == 0:
-            return {key: np.zeros(0) for key in keys}
+            return {key: (np.zeros(0), np.zeros(0), np.zeros((0, len(QUESTION_NAMES))))
+                    for key in keys}
         blocks = self.question_blocks(doc, keys, texts)
         trained = {key: self.trained_key(key) for key in keys}
         lexical = {}
@@ -240,17 +259,33 @@ class Ranker:
                 base = base[:, :n_keys] + stacked @ w.stacked.T
             lexical = {row: base[:, row] for row in range(n_keys)}
         out = {}
+        ga, gb = w.generic_platt
         for key in keys:
             qf = blocks[key]
+            transfer = ga * (generic_block(qf, doc.shared) @ w.generic + w.generic_intercept) + gb
             source = trained[key]
             if source is not None:
                 row = self._row[source]
-                z = lexical[row] + qf @ w.question[row] + w.intercept[row]
                 a, b = w.platt[row]
+                own = a * (lexical[row] + qf @ w.question[row] + w.intercept[row]) + b
             else:
-                z = generic_block(qf, doc.shared) @ w.generic + w.generic_intercept
-                a, b = w.generic_platt
-            out[key] = a * z + b
+                own = transfer
+            out[key] = (own, transfer, qf)
+        return out
+
+    def logits(
+        self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]
+    ) -> dict[str, np.ndarray]:
+        """Calibrated log-odds of every sentence for each key (before any review model): the
+        first stage's, re-weighed by the second stage for the questions it serves."""
+        first = self.first_stage(doc, keys, texts)
+        if self.adjustment is None or doc.n == 0:
+            return {key: own for key, (own, _, _) in first.items()}
+        out = {}
+        for key, (own, transfer, qf) in first.items():
+            served = self.adjusted_key(key)
+            out[key] = own if served is None else self.adjustment.log_odds(
+                served, own, transfer, qf, doc.shared)
         return out
 
     def rank(
@@ -317,8 +352,11 @@ class Ranker:
         return result
 
 
-def load_ranker(path: Path | None = None) -> Ranker:
-    """The ranker with the shipped weights (or those at ``path``); ModelFileError if unusable."""
-    ranker = Ranker(load_weights(path))
+def load_ranker(path: Path | None = None, adjustment: Path | None = None, *,
+                first_stage_only: bool = False) -> Ranker:
+    """The ranker with the shipped weights (or those at ``path``) and second stage (or the one
+    at ``adjustment``; none with ``first_stage_only``); ModelFileError if unusable."""
+    ranker = Ranker(load_weights(path),
+                    adjustment=None if first_stage_only else load_adjustment(adjustment))
     active_questions("assignment")  # reads (and caches) the question set now, not when ranking
     return ranker
