@@ -37,6 +37,8 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--no-speed", action="store_true", help="skip the timings")
     p.add_argument("--speed-only", action="store_true",
                    help="only the timings (no cross-validation; about a minute)")
+    p.add_argument("--first-stage-only", action="store_true",
+                   help="rank without the shipped second stage (evidence/adjustment.py)")
     p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
     return p
 
@@ -138,10 +140,15 @@ def _calibration(pairs: list[tuple[float, bool]]) -> dict:
     return {"ece": float(ece), "brier": float(np.mean((s - y) ** 2)), "bins": table}
 
 
-def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool) -> dict:
+def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool,
+                   second_stage: bool = True) -> dict:
+    """Grouped CV on the corpus: each fold's first stage trained on the other articles; the
+    shipped second stage (learned on the real PDFs, none of them in the corpus) on top of it
+    unless ``second_stage`` is False."""
     from sklearn.model_selection import GroupKFold
 
     from robtui.benchmarks._corpus_pdf import labelled_pdf_documents
+    from robtui.evidence.adjustment import load_adjustment
     from robtui.evidence.ranker import (
         Ranker,
         candidate_order,
@@ -154,6 +161,9 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     from robtui.evidence.training.corpus_docs import labelled_documents
     from robtui.evidence.training.train import fit_weights, prepare, question_texts
 
+    adjustment = load_adjustment() if second_stage else None
+    print("second stage: " + ("the shipped one (weights/adjustment.npz) on each fold's first "
+                              "stage" if adjustment else "none (first stage alone)"))
     mapping = load_mapping(corpus_dir)
     corpus = load_corpus(corpus_dir)
     corpus = corpus[:articles] if articles else corpus
@@ -185,7 +195,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         prep = prepare(train_docs, keys, settings, texts)
         weights = fit_weights(train_docs, keys, settings, texts, prepared=prep,
                               item_map=mapping.questions)
-        ranker = Ranker(weights)
+        ranker = Ranker(weights, adjustment=adjustment)
         thresholds.append(weights.no_evidence_threshold)
         # transfer model, leave one question (and those sharing its items) out
         from sklearn.linear_model import LogisticRegression
@@ -220,7 +230,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                         calib.extend(zip(scores[key].tolist(), labels.tolist()))
                         top = float(scores[key][by_score[0]]) if len(by_score) else 0.0
                         side = "with" if present else "without"
-                        flagged[side][0] += top < weights.no_evidence_threshold
+                        flagged[side][0] += top < ranker.threshold_for(key)
                         flagged[side][1] += 1
                 if route == "txt":
                     feats = ranker.features(doc.document)
@@ -337,7 +347,8 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     print("Evidence ranking on unseen articles (grouped cross-validation by article)")
     print("Corpus: CONSORT-TM development split; Kilicoglu et al., J Biomed Inform 2021;116:103717")
-    result = cross_validate(Path(corpus), args.folds, args.articles, not args.no_pdf)
+    result = cross_validate(Path(corpus), args.folds, args.articles, not args.no_pdf,
+                            second_stage=not args.first_stage_only)
     figs = result["figures"]
     keys = result["keys"]
     cols = {n: figs[n] for n in ("model txt", "model pdf") if n in figs}
