@@ -366,8 +366,8 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
 
 
 def leave_one_article_out(pairs: Sequence[Pair], groups: Sequence, ranker) -> float | None:
-    """Fill each pair's ``loao_rank``: the shipped second stage's features and C, its weights
-    fitted on the other articles' gold only (the honest figure on articles it was trained on).
+    """Fill each pair's ``loao_rank``: the shipped second stage's features, C and questions
+    served (the first stage ranks the others), its weights fitted on the other articles' gold only (the honest figure on articles it was trained on).
     Returns the C used; None (and nothing filled) when the ranker has no second stage."""
     from robtui.evidence.training.real_gold import first_rank, loao_scores
 
@@ -375,7 +375,9 @@ def leave_one_article_out(pairs: Sequence[Pair], groups: Sequence, ranker) -> fl
         return None
     C = float(ranker.adjustment.provenance.get("C", 1.0))
     scores = loao_scores(groups, ranker.adjustment.keys, C)
-    by_pair = {(g.article, g.key): first_rank(s, g) for g, s in zip(groups, scores)}
+    serves = ranker.adjustment.serves
+    by_pair = {(g.article, g.key): first_rank(s if g.key in serves else g.base[:, 0], g)
+               for g, s in zip(groups, scores)}
     for p in pairs:
         p.loao_rank = by_pair.get((p.article, p.question))
     return C

@@ -73,6 +73,13 @@ class Adjustment:
     platt: np.ndarray  # (2,)
     threshold: float  # "no sentence found" below this calibrated top score
     provenance: dict = field(default_factory=dict)
+    # the questions it re-ranks: those whose leave-one-article-out figures it raised (the
+    # others keep the first stage); None: every key
+    serves: list[str] | None = None
+
+    def __post_init__(self):
+        if self.serves is None:
+            self.serves = list(self.keys)
 
     def log_odds(self, key: str, model: np.ndarray, transfer: np.ndarray,
                  question: np.ndarray, shared: np.ndarray) -> np.ndarray:
@@ -88,6 +95,7 @@ def save_adjustment(adjustment: Adjustment, path: Path) -> None:
         buffer, format_version=np.array([ADJUSTMENT_FORMAT]),
         names=np.frombuffer("\n".join(feature_names(adjustment.keys)).encode(), dtype=np.uint8),
         keys=np.frombuffer("\n".join(adjustment.keys).encode(), dtype=np.uint8),
+        serves=np.frombuffer("\n".join(adjustment.serves).encode(), dtype=np.uint8),
         coef=adjustment.coef.astype(np.float64), platt=adjustment.platt.astype(np.float64),
         threshold=np.array([adjustment.threshold]))
     write_bytes_atomic(path, buffer.getvalue())
@@ -114,6 +122,9 @@ def load_adjustment(path: Path | None = None) -> Adjustment | None:
             raise ValueError(f"format {int(data['format_version'][0])}, this robtui reads "
                              f"{ADJUSTMENT_FORMAT}")
         keys = [k for k in data["keys"].tobytes().decode().split("\n") if k]
+        serves = [k for k in data["serves"].tobytes().decode().split("\n") if k]
+        if not set(serves) <= set(keys):
+            raise ValueError("it serves questions it has no weights for")
         names = data["names"].tobytes().decode().split("\n")
         if names != feature_names(keys):
             raise ValueError("its features are not the ones this robtui computes")
@@ -131,4 +142,4 @@ def load_adjustment(path: Path | None = None) -> Adjustment | None:
         provenance = json.loads(prov.read_text(encoding="utf-8")) if prov.is_file() else {}
     except (OSError, json.JSONDecodeError):
         provenance = {"problem": f"{prov.name} unreadable"}
-    return Adjustment(keys, coef, platt, threshold, provenance)
+    return Adjustment(keys, coef, platt, threshold, provenance, serves)

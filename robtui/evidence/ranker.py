@@ -185,13 +185,14 @@ class Ranker:
 
     def adjusted_key(self, key: str) -> str | None:
         """The key whose second stage serves ``key`` (itself or its same_as), if any: the
-        second stage is used only for the questions it was fitted and checked on."""
+        second stage is used only for the questions it was fitted on and raised in
+        leave-one-article-out cross-validation (Adjustment.serves)."""
         if self.adjustment is None:
             return None
-        if key in self.adjustment.keys:
+        if key in self.adjustment.serves:
             return key
         entry = self.cues.get(key)
-        return entry.same_as if entry and entry.same_as in self.adjustment.keys else None
+        return entry.same_as if entry and entry.same_as in self.adjustment.serves else None
 
     def is_trained(self, question_id: str, effect: str = "assignment") -> bool:
         """True when the question has a model of its own (else the transfer model ranks it)."""

@@ -34,9 +34,10 @@ def test_file_round_trip_and_refusals(tmp_path):
     keys = ["1.1", "2.6"]
     coef = np.linspace(-1, 1, len(feature_names(keys)))
     path = tmp_path / "adjustment.npz"
-    save_adjustment(Adjustment(keys, coef, np.array([0.5, -2.0]), 0.07, {"C": 1.0}), path)
+    save_adjustment(Adjustment(keys, coef, np.array([0.5, -2.0]), 0.07, {"C": 1.0}, ["2.6"]),
+                    path)
     back = load_adjustment(path)
-    assert back.keys == keys and np.array_equal(back.coef, coef)
+    assert back.keys == keys and np.array_equal(back.coef, coef) and back.serves == ["2.6"]
     assert back.threshold == 0.07 and back.provenance["C"] == 1.0
     save_adjustment(Adjustment(keys, coef[:-1], np.array([1.0, 0.0]), 0.1), path)
     with pytest.raises(ModelFileError, match="adjustment.npz"):
@@ -72,6 +73,12 @@ def test_the_ranker_applies_the_second_stage_to_the_questions_it_serves(ranker, 
                           @ coef) - 1.0
         assert np.allclose(both[key], expected)
     assert adjusted.threshold_for("1.1") == 0.2
+    # a question it does not serve keeps the first stage
+    narrow = Ranker(ranker.weights, ranker.cues,
+                    adjustment=Adjustment(keys, coef, np.array([0.5, -1.0]), 0.2, serves=["2.6"]))
+    assert np.allclose(narrow.logits(feats, keys, texts)["1.1"], plain["1.1"])
+    assert np.allclose(narrow.logits(feats, keys, texts)["2.6"], both["2.6"])
+    assert narrow.threshold_for("1.1") == first.threshold_for("1.1")
     # a question the second stage was not fitted on keeps the first stage and its threshold
     assert adjusted.threshold_for("4.1") == first.threshold_for("4.1") != 0.2
     other = ranker.weights.question_texts["4.1"]

@@ -308,8 +308,15 @@ def report_and_train(folder: Path, out: Path | None, log=print) -> dict:
     b = [first_rank(s, g) for g, s in zip(groups, oof) if g.answerable]
     log(_line("pooled, first stage", a))
     log(_line("pooled, second stage", b))
+    # the questions the second stage serves: those whose R@1 + R@3 it raised (the rest keep
+    # the first stage: on the corpus the second stage costs recall, see docs/evidence-ranker.md)
+    serves = [k for k in keys if sum(per_q[k]["second_stage"][:2]) > sum(per_q[k]["first_stage"][:2])]
+    served = [first_rank(s if g.key in serves else g.base[:, 0], g)
+              for g, s in zip(groups, oof) if g.answerable]
+    log(f"serves {', '.join(serves)} (R@1 + R@3 raised); the others keep the first stage")
+    log(_line("pooled, second stage where it serves", served))
     figures.update(C=C, grid=table, per_question=per_q, loao_first_stage=recalls(a),
-                   loao_second_stage=recalls(b))
+                   loao_second_stage=recalls(b), serves=serves, loao_served=recalls(served))
 
     # calibration on the out-of-fold scores, then the flag's cut on calibrated top scores
     z = np.concatenate(oof)
@@ -338,7 +345,7 @@ def report_and_train(folder: Path, out: Path | None, log=print) -> dict:
             "first_stage": ranker.provenance.get("settings", {}),
             "date": dt.date.today().isoformat(), "seed": SEED,
         }
-        save_adjustment(Adjustment(list(keys), coef, platt, cut, provenance), out)
+        save_adjustment(Adjustment(list(keys), coef, platt, cut, provenance, serves), out)
         log(f"wrote {out}")
     return figures
 
