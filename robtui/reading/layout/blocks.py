@@ -126,7 +126,6 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
     the bottom is kept, since footnotes there may name funding or registration.
     """
     body_size = _body_size(page.lines)
-    top_zone = page.height * MARGIN_SHARE
     margin = {id(ln) for ln in _margin_lines(page)}
 
     def running_line(ln: Line) -> bool:

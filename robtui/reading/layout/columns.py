@@ -17,6 +17,7 @@ The shares are our own settings (common practice, no source).
 from __future__ import annotations
 
 import heapq
+import itertools
 import re
 import statistics
 from collections import Counter
@@ -298,5 +299,5 @@ def _before(a: GeoBlock, b: GeoBlock, blocks: list[GeoBlock]) -> bool:
 
 
 def median_leading(lines: list[Line]) -> float:
-    gaps = [b.top - a.top for a, b in zip(lines, lines[1:]) if 5 < b.top - a.top < 30]
+    gaps = [b.top - a.top for a, b in itertools.pairwise(lines) if 5 < b.top - a.top < 30]
     return statistics.median(gaps) if gaps else 12.0

@@ -93,7 +93,7 @@ class _Fonts:
 
 def read_glyphs(page, number: int) -> PageGlyphs:
     """The glyphs, rules and image count of a pypdfium2 ``PdfPage``."""
-    import pypdfium2.raw as raw
+    from pypdfium2 import raw
 
     left, bottom, right, top = page.get_cropbox()
     width, height = right - left, top - bottom
@@ -182,7 +182,7 @@ def _turn(g: Glyph, angle: int, width: float, height: float) -> Glyph:
 
 def _objects(page, left: float, top: float) -> tuple[list[tuple[float, float, float]], int]:
     """Horizontal rules and the number of images, from the page's top-level objects."""
-    import pypdfium2.raw as raw
+    from pypdfium2 import raw
 
     rules: list[tuple[float, float, float]] = []
     images = 0
@@ -193,7 +193,11 @@ def _objects(page, left: float, top: float) -> tuple[list[tuple[float, float, fl
         kind = raw.FPDFPageObj_GetType(obj)
         if kind == raw.FPDF_PAGEOBJ_IMAGE:
             images += 1
-        elif kind == raw.FPDF_PAGEOBJ_PATH and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1):
-            if y1.value - y0.value <= RULE_MAX_HEIGHT and x1.value - x0.value > RULE_MIN_WIDTH:
-                rules.append((x0.value - left, x1.value - left, top - y1.value))
+        elif (
+            kind == raw.FPDF_PAGEOBJ_PATH
+            and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1)
+            and y1.value - y0.value <= RULE_MAX_HEIGHT
+            and x1.value - x0.value > RULE_MIN_WIDTH
+        ):
+            rules.append((x0.value - left, x1.value - left, top - y1.value))
     return rules, images

@@ -339,11 +339,11 @@ def _flush(current: list[Glyph], words: list[Word]) -> None:
         font = current[len(current) // 2].font
         x0, top, x1, bottom, size = current[0].x0, current[0].top, 0.0, 0.0, 0.0
         for g in current:
-            top = g.top if g.top < top else top
-            x1 = g.x1 if g.x1 > x1 else x1
-            bottom = g.bottom if g.bottom > bottom else bottom
-            size = g.size if g.size > size else size
-            x0 = g.x0 if g.x0 < x0 else x0
+            top = min(top, g.top)
+            x1 = max(x1, g.x1)
+            bottom = max(bottom, g.bottom)
+            size = max(size, g.size)
+            x0 = min(x0, g.x0)
         words.append(
             Word(
                 text,

@@ -9,6 +9,7 @@ own thresholds, no source.
 
 from __future__ import annotations
 
+import itertools
 import re
 from dataclasses import dataclass, field
 
@@ -215,7 +216,7 @@ def _tabular(words: list[Word], size: float) -> bool:
     figures; or three or more tokens that are mostly numbers spread wide apart."""
     if len(words) < 3:
         return False
-    gaps = [b.box[0] - a.box[2] for a, b in zip(words, words[1:])]
+    gaps = [b.box[0] - a.box[2] for a, b in itertools.pairwise(words)]
     wide = sum(gap >= CELL_EM * size for gap in gaps)
     numeric = sum(bool(NUMERIC.match(w.text)) for w in words) / len(words)
     if (wide >= 2 and numeric >= 0.3) or (wide >= 1 and numeric >= 0.5):
