@@ -110,11 +110,13 @@ async def test_a_whole_assessment_at_80x24_without_leaving_the_workbench(demo_di
         report = screen.query_one("#report-panel")
         assert not report.display or not report.visible or report.region.width == 0
         await pilot.press("right_square_bracket")  # the report shows, at the suggestion
+        await pilot.pause()
         assert screen.has_class("-reading") and screen.query_one("#report-panel").region.width
         await pilot.press("q")  # quote it for the focused question
         qid = screen.question_id
         assert screen.session.answer(qid).quotes
         await pilot.press("tab")
+        await pilot.pause()
         assert not screen.has_class("-reading")
         for domain_id, answers in LOW_PATH.items():
             await answer_domain(pilot, domain_id, answers)
