@@ -146,3 +146,40 @@ def test_lead_dialogs(snap_compare, demo_dir, size, keys):
         await pilot.pause()
 
     assert snap_compare(Workbench(demo_dir, lead), terminal_size=size, run_before=open_dialog)
+
+
+@pytest.mark.parametrize("size", SIZES)
+def test_evidence_map_before_preparation(snap_compare, demo_dir, size, tmp_path, monkeypatch):
+    """The evidence map with an empty cache: every study 'not prepared yet', the keys in view."""
+    monkeypatch.setenv("ROBTUI_CACHE_DIR", str(tmp_path / "cache"))
+
+    async def open_map(pilot):
+        await pilot.pause()
+        await pilot.press("e")
+        await pilot.pause()
+
+    app = Workbench(demo_dir, NEW_REVIEWER)
+    assert snap_compare(app, terminal_size=size, run_before=open_map)
+
+
+@pytest.mark.parametrize("size", SIZES)
+def test_prespecification_panel(snap_compare, demo_dir, size):
+    """The plan panel of the first result (ALDER2031): registry, protocol and report side by side."""
+    import asyncio
+
+    from robtui.tui.screens.prespecification import PrespecificationScreen
+
+    async def open_panel(pilot):
+        await pilot.press("enter")
+        await settle(pilot)
+        await pilot.app.workers.wait_for_complete()
+        await pilot.press("w")
+        for _ in range(400):
+            screen = pilot.app.screen
+            if isinstance(screen, PrespecificationScreen) and screen.passages:
+                break
+            await asyncio.sleep(0.01)
+        await pilot.pause()
+
+    app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
+    assert snap_compare(app, terminal_size=size, run_before=open_panel)
