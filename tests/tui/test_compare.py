@@ -363,15 +363,19 @@ async def test_at_80x24_tab_shows_one_pane_at_a_time_with_every_judgement(demo_d
         side = screen.query_one("#compare-side")
         assert screen.query_one("#pairs").size.width >= 76 and not side.display
         await pilot.press("tab")
+        await pilot.pause()  # the pane change is laid out before sizes are read
         assert screen.focused.id == "differences" and side.display
         table = screen.query_one("#consensus-judgements")
         assert table.region.bottom <= 24 - 3  # every row above the three lines of keys
         assert "Overall" in plain(table.content)
         await pilot.press("tab")
+        await pilot.pause()  # the pane change is laid out before sizes are read
         assert screen.focused.id == "pair-scroll"
         assert screen.query_one("#pair-scroll").size.height >= 10
         assert "Support and direction of bias" in plain(screen.query_one("#pair-detail").content)
         await pilot.press("tab")
+        await pilot.pause()  # the pane change is laid out before sizes are read
         assert screen.focused.id == "pairs" and not side.display
         await pilot.press("shift+tab")
+        await pilot.pause()  # the pane change is laid out before sizes are read
         assert screen.focused.id == "pair-scroll"
