@@ -21,7 +21,10 @@ EXIT_USAGE = 2
 _FULL_SCREEN = frozenset({"open", "demo"})
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(argv: Sequence[str] | None = None) -> argparse.ArgumentParser:
+    """The command-line parser. Given the arguments, only the command they name is imported and
+    registered (a command's module may import much that the others do not need); without them,
+    or when they name no command, every command is, as ``robtui --help`` lists them."""
     parser = argparse.ArgumentParser(
         prog="robtui",
         description=(
@@ -33,16 +36,25 @@ def build_parser() -> argparse.ArgumentParser:
     subparsers = parser.add_subparsers(dest="command", metavar="COMMAND")
     import robtui.commands as commands_pkg
 
-    for info in sorted(pkgutil.iter_modules(commands_pkg.__path__), key=lambda m: m.name):
-        if info.name.startswith("_"):
-            continue
-        module = importlib.import_module(f"robtui.commands.{info.name}")
-        module.register(subparsers)
+    names = sorted(info.name for info in pkgutil.iter_modules(commands_pkg.__path__)
+                   if not info.name.startswith("_"))
+    named = _command_module(argv, names)
+    for name in [named] if named else names:
+        importlib.import_module(f"robtui.commands.{name}").register(subparsers)
     return parser
 
 
+def _command_module(argv: Sequence[str] | None, names: Sequence[str]) -> str | None:
+    """The module of the command ``argv`` names ("evidence-map" is evidence_map), if any: the
+    first argument not starting with "-" (robtui's own options take no values)."""
+    first = next((a for a in argv or () if not a.startswith("-")), None)
+    module = first.replace("-", "_") if first else None
+    return module if module in names and "_" not in (first or "") else None
+
+
 def main(argv: Sequence[str] | None = None) -> int:
-    parser = build_parser()
+    argv = sys.argv[1:] if argv is None else list(argv)
+    parser = build_parser(argv)
     args = parser.parse_args(argv)
     if not getattr(args, "func", None):
         parser.print_help()

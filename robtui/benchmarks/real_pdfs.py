@@ -255,6 +255,7 @@ class Reading:
     read_s: float  # in-process read, no cache
     pdftotext_s: float | None
     suggest_s: float | None  # `robtui suggest --json` in a new process with an empty cache
+    suggest_cpu_s: float | None  # its user + system CPU seconds
     warnings: list[str] = field(default_factory=list)
     broken: list[str] = field(default_factory=list)
     page_s: list[float] = field(default_factory=list)  # in-process read, each page's seconds
@@ -278,18 +279,49 @@ class PageSeconds:
         return [self.seconds[n] for n in sorted(self.seconds)]
 
 
-def _suggest_process_seconds(path: Path) -> float:
-    with tempfile.TemporaryDirectory() as tmp:
-        env = dict(os.environ, ROBTUI_CACHE_DIR=tmp)
-        t = time.perf_counter()
-        subprocess.run([sys.executable, "-m", "robtui", "suggest", str(path), "--json"],
-                       capture_output=True, check=True, env=env)
-        return time.perf_counter() - t
+def cold_suggest(path: Path, runs: int = 1) -> tuple[float, float]:
+    """Median wall and CPU (user + system) seconds of ``runs`` runs of `robtui suggest --json`,
+    each in a new process with an empty cache: what a user waits for, start-up included."""
+    import resource
+
+    walls, cpus = [], []
+    for _ in range(runs):
+        with tempfile.TemporaryDirectory() as tmp:
+            env = dict(os.environ, ROBTUI_CACHE_DIR=tmp)
+            before = resource.getrusage(resource.RUSAGE_CHILDREN)
+            t = time.perf_counter()
+            subprocess.run([sys.executable, "-m", "robtui", "suggest", str(path), "--json"],
+                           capture_output=True, check=True, env=env)
+            walls.append(time.perf_counter() - t)
+            after = resource.getrusage(resource.RUSAGE_CHILDREN)
+            cpus.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+    return float(np.median(walls)), float(np.median(cpus))
+
+
+def load_average() -> str:
+    """The 1, 5 and 15 minute load averages (the machine may be shared: read timings beside it)."""
+    try:
+        return " ".join(f"{x:.2f}" for x in os.getloadavg())
+    except OSError:
+        return "unknown"
+
+
+def bytecode_note() -> str | None:
+    """A note when Python compiles robtui's modules afresh in every process (no .pyc written
+    nor found): cold start-up then includes that compiling, which an installed copy avoids."""
+    import importlib.util
+
+    spec = importlib.util.find_spec("robtui.cli")
+    cached = spec.cached if spec else None
+    if sys.flags.dont_write_bytecode and not (cached and Path(cached).exists()):
+        return ("Python writes no bytecode here (PYTHONDONTWRITEBYTECODE): every new process "
+                "compiles robtui's modules again, which the cold figures include")
+    return None
 
 
 def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, wordings: dict[str, str],
                     *, process: bool = True, guidance: dict[str, str] | None = None,
-                    ) -> tuple[Reading, list[Pair], list[Planted], list]:
+                    cold_runs: int = 1) -> tuple[Reading, list[Pair], list[Planted], list]:
     """Read one PDF, rank every gold question, and score both robtui and the baselines; also
     the article's groups for the second stage's leave-one-article-out figures."""
     from robtui.evidence.ranker import Ranker
@@ -305,7 +337,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
     page_s = PageSeconds()
     document = read_document(path, use_cache=False, on_page=page_s.seen)
     read_s = time.perf_counter() - t
-    suggest_s = _suggest_process_seconds(path) if process else None
+    suggest_s, suggest_cpu_s = cold_suggest(path, cold_runs) if process else (None, None)
 
     norm_ref = normalise(ref_text)
     prose = [s for s in document.sentences if s.block == "body"
@@ -316,7 +348,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
                    key=KEY_SECTIONS.index)
     reading = Reading(path.name, document.pages or 0, len(document.sentences), len(prose),
                       len(prose) - len(broken) if ref_text else 0, found, read_s, ref_s,
-                      suggest_s, list(document.warnings), broken, page_s.by_page(),
+                      suggest_s, suggest_cpu_s, list(document.warnings), broken, page_s.by_page(),
                       interrupted)
 
     by_score = ranker.rank(document, questions, top=None)
@@ -489,7 +521,7 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
               f"    {_recalls(strong)} | {'yes' if ahead else 'NO'}")
 
     print("\nPer article      pairs  R@1   R@3   R@5 | base R@1 R@3 | integrity sections"
-          "            pages  s/page pdftotext ratio suggest")
+          "            pages  s/page pdftotext ratio suggest (cpu)")
     per_article = {}
     for r in readings:
         mine = [p for p in pairs if p.article == r.article and p.answerable]
@@ -504,13 +536,15 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
                                   "integrity": r.integrity, "sections": r.sections,
                                   "pages": r.pages, "read_s": r.read_s,
                                   "pdftotext_s": r.pdftotext_s, "suggest_s": r.suggest_s,
+                                  "suggest_cpu_s": r.suggest_cpu_s,
                                   "interrupted_in_reference": len(r.interrupted),
                                   "slowest_page_s": max(r.page_s, default=None)}
         print(f"  {r.article[:16]:<16} {len(mine):>3} {_recalls(ours)} | "
               f"{_fmt(recall(theirs, 1))} {_fmt(recall(theirs, 3))} |   {_fmt(r.integrity)}   "
               f"{short:<6} ({len(r.sections)}/{len(KEY_SECTIONS)})  {r.pages:>4}  {per_page:6.3f}"
               f"  {'-' if ref is None else f'{ref:.4f}':>8} {'-' if ratio is None else f'{ratio:.0f}x':>5}"
-              f" {'-' if r.suggest_s is None else f'{r.suggest_s:.2f}':>7}")
+              f" {'-' if r.suggest_s is None else f'{r.suggest_s:.2f}':>7}"
+              f" {'' if r.suggest_cpu_s is None else f'({r.suggest_cpu_s:.2f})'}")
     prose = sum(r.prose for r in readings)
     intact = sum(r.intact for r in readings)
     print("  sections: A abstract, I introduction, M methods, R results, D discussion, "
@@ -534,13 +568,25 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
         worst = max(pages)
         print(f"  slowest page (in process, no cache): {worst[0]:.3f} s ({worst[1][:24]} page "
               f"{worst[2]}); pages over 0.3 s: {sum(t > 0.3 for t, _, _ in pages)} of {len(pages)}")
-    cold = [r.suggest_s for r in readings if r.suggest_s is not None]
+    cold = [r for r in readings if r.suggest_s is not None]
     if cold:
-        print(f"  cold `robtui suggest --json` (new process, empty cache): median "
-              f"{np.median(cold):.2f} s per article, longest {max(cold):.2f} s")
+        walls, cpus = [r.suggest_s for r in cold], [r.suggest_cpu_s for r in cold]
+        longest = max(cold, key=lambda r: r.suggest_s)
+        line = (f"  cold `robtui suggest --json` (new process, empty cache; median of each article's "
+                f"runs): median {np.median(walls):.2f} s per article (CPU {np.median(cpus):.2f} s), "
+                f"longest {longest.suggest_s:.2f} s ({longest.article[:24]}, {longest.pages} pages)")
+        timed = [r for r in cold if r.pdftotext_s]
+        if timed:
+            line += (f"; pdftotext reads the same files in a median {np.median([r.pdftotext_s for r in timed]):.2f} s"
+                     f" (ratio of medians {np.median([r.suggest_s for r in timed]) / np.median([r.pdftotext_s for r in timed]):.0f}x)")
+        print(line)
+        figures["cold_suggest"] = {"median_s": float(np.median(walls)),
+                                   "median_cpu_s": float(np.median(cpus)),
+                                   "longest_s": longest.suggest_s}
     figures.update(per_question=per_question, per_article=per_article,
                    integrity=intact / prose if prose else None,
                    integrity_across_interruptions=(intact + forgiven) / prose if prose else None)
+    print(f"  load average after: {load_average()}")
     print(f"\nTargets: {TARGETS}")
     return figures
 
@@ -607,8 +653,62 @@ def _parser() -> argparse.ArgumentParser:
                    help="second-stage weights file (default: shipped)")
     p.add_argument("--first-stage-only", action="store_true",
                    help="rank without the second stage (as before it was learned)")
+    p.add_argument("--cold-runs", type=int, default=3, metavar="N",
+                   help="runs of the cold `robtui suggest` per article; the median is shown (3)")
+    p.add_argument("--speed-only", action="store_true",
+                   help="only the speed figures: reading per page, the slowest page, cold "
+                        "`robtui suggest`, pdftotext beside (no ranking, no baselines)")
     p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
     return p
+
+
+def speed_only(folder: Path, names: Sequence[str], cold_runs: int, process: bool) -> dict:
+    """Print and return the speed figures alone (a quick run on a busy machine)."""
+    from robtui.reading.reader import read_document
+
+    print(f"Speed on real published trial PDFs ({folder}); load average {load_average()}")
+    note = bytecode_note()
+    if note:
+        print(f"  note: {note}")
+    print("  article                   pages  read s  s/page slowest pdftotext ratio"
+          "  suggest (cpu)")
+    rows = []
+    for name in names:
+        path = Path(folder) / name
+        reference = pdftotext(path)
+        page_s = PageSeconds()
+        t = time.perf_counter()
+        document = read_document(path, use_cache=False, on_page=page_s.seen)
+        read_s = time.perf_counter() - t
+        wall, cpu = cold_suggest(path, cold_runs) if process else (None, None)
+        ref_s = reference[1] if reference else None
+        pages = document.pages or 0
+        rows.append({"article": name, "pages": pages, "read_s": read_s,
+                     "slowest_page_s": max(page_s.by_page(), default=0.0),
+                     "pdftotext_s": ref_s, "suggest_s": wall, "suggest_cpu_s": cpu})
+        print(f"  {name[:24]:<24} {pages:>6} {read_s:7.2f} {read_s / max(pages, 1):7.3f}"
+              f" {rows[-1]['slowest_page_s']:7.3f} {'-' if ref_s is None else f'{ref_s:8.2f}':>9}"
+              f" {'-' if not ref_s else f'{read_s / ref_s:.0f}x':>5}"
+              f"  {'-' if wall is None else f'{wall:6.2f} ({cpu:.2f})'}", flush=True)
+    per_page = [r["read_s"] / max(r["pages"], 1) for r in rows]
+    print(f"  read seconds per page (in process, no cache): median {np.median(per_page):.3f}; "
+          f"slowest page {max(r['slowest_page_s'] for r in rows):.3f} s")
+    figures: dict = {"articles": rows, "load_average": load_average()}
+    cold = [r for r in rows if r["suggest_s"] is not None]
+    if cold:
+        walls = [r["suggest_s"] for r in cold]
+        line = (f"  cold `robtui suggest --json` (new process, empty cache; median of {cold_runs} "
+                f"run(s) per article): median {np.median(walls):.2f} s per article (CPU "
+                f"{np.median([r['suggest_cpu_s'] for r in cold]):.2f} s), longest {max(walls):.2f} s")
+        timed = [r for r in cold if r["pdftotext_s"]]
+        if timed:
+            ratio = np.median([r["suggest_s"] for r in timed]) / np.median(
+                [r["pdftotext_s"] for r in timed])
+            line += f"; ratio of medians to pdftotext {ratio:.0f}x"
+        print(line)
+        figures["cold_suggest_median_s"] = float(np.median(walls))
+    print(f"  load average after: {load_average()}")
+    return figures
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -634,17 +734,30 @@ def main(argv: list[str] | None = None) -> int:
     if shutil.which("pdftotext") is None:
         print("pdftotext is not installed (Debian: poppler-utils): no integrity, no baseline, "
               "no speed ratio", file=sys.stderr)
+    if args.cold_runs < 1:
+        raise InputError(f"--cold-runs must be at least 1 (got {args.cold_runs})")
+    if args.speed_only:
+        figures = speed_only(Path(folder), names, args.cold_runs, not args.no_process)
+        if args.json is not None:
+            from robtui.files import write_text_atomic
+
+            write_text_atomic(args.json, json.dumps({"figures": figures}, indent=2) + "\n")
+        return 0
     ranker = load_ranker(args.model, args.second_stage, first_stage_only=args.first_stage_only)
     wordings = dict(active_questions("assignment"))
     guidance = {q.id: q.guidance or "" for q in builtin_question_set().questions("assignment")}
     print("Real published trial PDFs against hand-made gold snippets "
-          f"({folder}; cite each article by the DOI in its MANIFEST.tsv)")
+          f"({folder}; cite each article by the DOI in its MANIFEST.tsv); load average "
+          f"{load_average()}")
+    note = bytecode_note()
+    if note:
+        print(f"  note: {note}")
     readings, pairs, planted, groups = [], [], [], []
     for name in names:
         t = time.perf_counter()
         reading, found, placed, grouped = measure_article(
             Path(folder) / name, gold[name], ranker, wordings, process=not args.no_process,
-            guidance=guidance)
+            guidance=guidance, cold_runs=args.cold_runs)
         readings.append(reading)
         pairs.extend(found)
         planted.extend(placed)

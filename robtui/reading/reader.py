@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 import hashlib
-from collections.abc import Callable
+import threading
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 from robtui.errors import ReaderBugError, ReadingError
@@ -99,15 +101,47 @@ def read_document(
     if not data.strip():
         raise ReadingError(f"{path}: the file is empty; nothing to read")
     digest = hashlib.sha256(data).hexdigest()
-    if use_cache:
+    if not use_cache:
+        return _parsed(path, kind, data, digest, on_page)
+    with _one_reading_of(digest, kind):
         cached = load_cached(digest, kind, str(path))
         if cached is not None:
             return cached
+        document = _parsed(path, kind, data, digest, on_page)
+        store_cached(document)
+        return document
+
+
+# Threads of one process that ask for the same bytes at once (the workbench's report and
+# pre-specification workers open a result's report together) wait for the first reading and
+# take it from the cache, rather than parsing it twice and competing for the interpreter.
+_readings_lock = threading.Lock()
+_readings: dict[tuple[str, str], tuple[threading.Lock, int]] = {}
+
+
+@contextmanager
+def _one_reading_of(digest: str, kind: str) -> Iterator[None]:
+    key = (digest, kind)
+    with _readings_lock:
+        lock, users = _readings.get(key, (threading.Lock(), 0))
+        _readings[key] = (lock, users + 1)
+    try:
+        with lock:
+            yield
+    finally:
+        with _readings_lock:
+            lock, users = _readings[key]
+            if users == 1:
+                del _readings[key]
+            else:
+                _readings[key] = (lock, users - 1)
+
+
+def _parsed(path: Path, kind: str, data: bytes, digest: str,
+            on_page: Callable[[int, float], None] | None) -> Document:
     document = _parse(path, kind, data, digest, on_page)
     if not document.sentences:
         raise ReadingError(f"{path}: no text found in the file")
-    if use_cache:
-        store_cached(document)
     return document
 
 

@@ -112,6 +112,23 @@ def test_bench_runs_on_one_real_article(capsys, tmp_path):
         "integrity"] <= 1.0
 
 
+@needs_real
+def test_speed_only_times_a_cold_suggest_and_reading_per_page(capsys, tmp_path):
+    import json
+
+    from robtui.benchmarks.real_pdfs import main
+
+    out = tmp_path / "speed.json"
+    assert main(["--articles", "trials2015_oral", "--speed-only", "--cold-runs", "1",
+                 "--json", str(out)]) == 0
+    printed = capsys.readouterr().out
+    assert "load average" in printed and "cold `robtui suggest --json`" in printed
+    [row] = json.loads(out.read_text())["figures"]["articles"]
+    assert row["article"] == "trials2015_oral_malodor_hygiene_rct.pdf" and row["pages"] > 0
+    assert 0 < row["slowest_page_s"] <= row["read_s"]
+    assert row["suggest_s"] > 0 and row["suggest_cpu_s"] > 0
+
+
 def test_page_profile_prints_the_slowest_page_and_memory_along_the_file(capsys) -> None:
     from robtui.benchmarks.reading import print_page_profile
 

@@ -193,3 +193,33 @@ def test_pdf_with_some_scanned_pages_warns(tmp_path) -> None:
     doc = read_document(path)
     assert doc.sentences[0].text == "Participants were randomised by a central office."
     assert any("pages 2" in w and "OCR" in w for w in doc.warnings)
+
+
+def test_two_threads_reading_the_same_file_parse_it_once(good_pdf, private_cache,
+                                                         monkeypatch) -> None:
+    """The second thread waits for the first reading and takes it from the cache."""
+    import threading
+
+    parse = reader_module._parse
+    calls, inside, release = [], threading.Event(), threading.Event()
+
+    def slow_parse(*args, **kwargs):
+        calls.append(args[0])
+        inside.set()
+        release.wait(10)
+        return parse(*args, **kwargs)
+
+    monkeypatch.setattr(reader_module, "_parse", slow_parse)
+    results = []
+    first = threading.Thread(target=lambda: results.append(read_document(good_pdf)))
+    first.start()
+    assert inside.wait(10)
+    second = threading.Thread(target=lambda: results.append(read_document(good_pdf)))
+    second.start()
+    second.join(0.2)
+    assert second.is_alive()  # waiting for the first reading, not parsing
+    release.set()
+    first.join(10)
+    second.join(10)
+    assert len(calls) == 1 and len(results) == 2 and results[0] == results[1]
+    assert not reader_module._readings  # nothing left behind
