@@ -7,9 +7,11 @@ Prints (figures, not pass/fail):
   the proposed domain and overall judgements being updated on screen, including the atomic
   save of the assessment; plus Pilot's full round trip per key (an upper bound that includes
   Pilot's own idle waits of at least 2 x 20 ms);
-- opening a ~15-page two-column PDF to its first suggestions: read (not cached) and ranked in
-  the worker, and reopened (from the reader's cache); the longest stall of the UI's event
-  loop while the worker runs shows whether the interface stayed responsive.
+- opening a ~15-page two-column PDF (or a real one: --pdf) to its first suggestions: read (not
+  cached) and ranked in the worker, and reopened (from the reader's cache); the longest stall
+  of the UI's event loop until the report is laid out shows whether the interface stayed
+  responsive; then answer keys pressed during another first open, key posted to judgement
+  updated (the wait for the event loop included). The reader's cache is a fresh folder.
 
 The PDF is rendered from articles of the shared CONSORT-TM corpus (Kilicoglu et al., J Biomed
 Inform 2021;116:103717) when present, else from the bundled sample reports.
@@ -20,13 +22,18 @@ from __future__ import annotations
 import argparse
 import asyncio
 import itertools
+import os
+import shutil
 import statistics
 import subprocess
 import sys
 import tempfile
 import time
 import uuid
+from dataclasses import dataclass
 from pathlib import Path
+
+from robtui.reading.cache import CACHE_ENV
 
 SIZE = (140, 42)
 REVIEWER = "bench"
@@ -140,28 +147,70 @@ async def _keystrokes(root: Path, study_id: str, count: int) -> tuple[list[float
     return handler, round_trip
 
 
-async def _open_pdf(root: Path, study_id: str) -> tuple[float, float, int, int, dict]:
-    """Seconds from opening the result to suggestions shown; longest UI-loop stall; counts."""
+KEY_INTERVAL = 0.1  # seconds between answer keys pressed during an opening (a quick typist)
+
+
+async def _answer_key(app, screen, key: str, timeout: float = 5.0) -> float | None:
+    """Post an answer key as the terminal would and wait for its judgement: seconds from the
+    key's posting to the judgement updated (None if it was not updated within ``timeout``).
+    Pilot's press is not used here: it waits for the whole process to fall idle, worker too."""
+    from textual import events
+
+    posted = time.perf_counter()
+    app.post_message(events.Key(key, key))
+    while screen.last_update_at <= posted:
+        if time.perf_counter() - posted > timeout:
+            return None
+        await asyncio.sleep(0.001)
+    return screen.last_update_at - posted
+
+
+@dataclass
+class Opening:
+    """One opening of the PDF's result: to first suggestions, the UI loop's longest stall, and
+    the answer keys pressed meanwhile (key posted -> judgement updated, waits included)."""
+
+    seconds: float
+    stall: float
+    pages: int
+    sentences: int
+    parts: dict
+    keys: list[float]
+
+
+async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening:
+    """Open the result and wait for its suggestions (and the report laid out); with ``keys``,
+    answer keys are pressed while the worker reads and ranks, as a reviewer would."""
     from robtui.tui.app import Workbench
 
     app = Workbench(root, REVIEWER)
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
         ticks: list[float] = []
+        latencies: list[float] = []
         started = time.perf_counter()
         screen = await _open_row(pilot, study_id)
         timer = screen.set_interval(0.005, lambda: ticks.append(time.perf_counter()))
-        while not (screen.loaded and screen.loaded[0].suggestions):
+        view = screen.query_one("#report")
+        elapsed = None
+        while elapsed is None or not view.laid_out:
             if screen.loaded and screen.loaded[0].document is None:
                 raise SystemExit(f"the benchmark PDF could not be read: {screen.loaded[0].problem}")
+            if keys:
+                latency = await _answer_key(app, screen, "y" if len(latencies) % 2 else "n")
+                if latency is not None:
+                    latencies.append(latency)
+                await asyncio.sleep(KEY_INTERVAL)
+            if elapsed is None and screen.loaded and screen.loaded[0].suggestions:
+                await pilot.pause()
+                elapsed = time.perf_counter() - started
             await asyncio.sleep(0.002)
         await pilot.pause()
-        elapsed = time.perf_counter() - started
         timer.stop()
         gaps = [b - a for a, b in itertools.pairwise(ticks)] or [0.0]
         document = screen.loaded[0].document
-        parts = screen.loaded[0].seconds
-        return elapsed, max(gaps), document.pages or 0, len(document.sentences), parts
+        return Opening(elapsed, max(gaps), document.pages or 0, len(document.sentences),
+                       screen.loaded[0].seconds, latencies)
 
 
 def _parts(pdf: Path) -> tuple[float, float]:
@@ -182,8 +231,24 @@ def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="robtui bench workbench", description=__doc__)
     parser.add_argument("--pages", type=int, default=15, help="pages of the benchmark PDF")
     parser.add_argument("--keys", type=int, default=40, help="answer keystrokes to time")
+    parser.add_argument("--pdf", type=Path, default=None,
+                        help="open this PDF (a real article) instead of a rendered one")
     args = parser.parse_args(argv)
+    if args.pdf is not None and not args.pdf.is_file():
+        from robtui.errors import InputError
 
+        raise InputError(f"--pdf {args.pdf}: no such file")
+    saved_cache = os.environ.get(CACHE_ENV)
+    try:
+        return _run(args)
+    finally:
+        if saved_cache is None:
+            os.environ.pop(CACHE_ENV, None)
+        else:
+            os.environ[CACHE_ENV] = saved_cache
+
+
+def _run(args: argparse.Namespace) -> int:
     from robtui.store.demo import build_demo_review
     from robtui.store.review_folder import ReviewFolder
     from robtui.tui import report_loading
@@ -192,7 +257,12 @@ def main(argv: list[str] | None = None) -> int:
         workdir = Path(tmp)
         root = workdir / "review"
         folder = build_demo_review(root)
-        pdf, _pages, origin = _make_pdf(workdir, args.pages)
+        os.environ[CACHE_ENV] = str(workdir / "cache")  # cold on first open, whatever was read
+        if args.pdf is None:
+            pdf, _pages, origin = _make_pdf(workdir, args.pages)
+        else:
+            pdf, origin = workdir / args.pdf.name, args.pdf.name
+            shutil.copyfile(args.pdf, pdf)
         folder.add_study("bench-pdf", "Benchmark PDF", [pdf])
         folder = ReviewFolder.open(root)
         first_study = folder.review.studies[0].id
@@ -215,21 +285,29 @@ def main(argv: list[str] | None = None) -> int:
         print(f"  Pilot round trip per key:         {_spread(round_trip)}")
 
         report_loading._ranker = None  # the first open pays for loading the ranker too
-        first, stall, got_pages, sentences, parts = asyncio.run(_open_pdf(root, "bench-pdf"))
-        again, stall_again, _, _, parts_again = asyncio.run(_open_pdf(root, "bench-pdf"))
-        print(f"opening a {got_pages}-page two-column PDF ({sentences} sentences, from {origin})")
+        first = asyncio.run(_open_pdf(root, "bench-pdf"))
+        again = asyncio.run(_open_pdf(root, "bench-pdf"))
+        os.environ[CACHE_ENV] = str(workdir / "cache-keys")  # cold again, keys pressed
+        report_loading._ranker = None
+        keyed = asyncio.run(_open_pdf(root, "bench-pdf", keys=True))
+        print(f"opening a {first.pages}-page PDF ({first.sentences} sentences, from {origin})")
         print(
-            f"  to first suggestions, first open (not cached; loads the ranker): {_ms(first)}"
-            f"  [in the worker: read {_ms(parts.get('read', 0))}, rank {_ms(parts.get('rank', 0))}]"
+            f"  to first suggestions, first open (not cached; loads the ranker): {_ms(first.seconds)}"
+            f"  [in the worker: read {_ms(first.parts.get('read', 0))}, "
+            f"rank {_ms(first.parts.get('rank', 0))}]"
         )
         print(
-            f"  to first suggestions, reopened (reader cache; ranker loaded):     {_ms(again)}"
-            f"  [in the worker: read {_ms(parts_again.get('read', 0))}, "
-            f"rank {_ms(parts_again.get('rank', 0))}]"
+            f"  to first suggestions, reopened (reader cache; ranker loaded):     {_ms(again.seconds)}"
+            f"  [in the worker: read {_ms(again.parts.get('read', 0))}, "
+            f"rank {_ms(again.parts.get('rank', 0))}]"
         )
         print(
-            f"  longest UI event-loop stall while the worker ran: {_ms(stall)} / {_ms(stall_again)}"
+            f"  longest UI event-loop stall until the report is laid out: {_ms(first.stall)} / "
+            f"{_ms(again.stall)}"
         )
+        if keyed.keys:
+            print(f"  answer keys pressed during a first open, key posted -> judgement updated: "
+                  f"{_spread(keyed.keys)}  [target <= 50 ms]; longest stall {_ms(keyed.stall)}")
         read, rank = _parts(pdf)
         print(f"  of which, outside the app: reading (not cached) {_ms(read)}, ranking {_ms(rank)}")
     return 0

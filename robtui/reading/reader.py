@@ -103,7 +103,7 @@ def read_document(
     digest = hashlib.sha256(data).hexdigest()
     if not use_cache:
         return _parsed(path, kind, data, digest, on_page)
-    with _one_reading_of(digest, kind):
+    with one_reading_of(digest, kind):
         cached = load_cached(digest, kind, str(path))
         if cached is not None:
             return cached
@@ -118,9 +118,16 @@ def read_document(
 _readings_lock = threading.Lock()
 _readings: dict[tuple[str, str], tuple[threading.Lock, int]] = {}
 
+# PDFium is not thread-safe: no two of its calls may run at once in one process, even on
+# different documents (pypdfium2's documentation, "Incompatibility with Threading"); PDFs are
+# read one at a time in a process (processes run in parallel).
+PDFIUM_LOCK = threading.RLock()
+
 
 @contextmanager
-def _one_reading_of(digest: str, kind: str) -> Iterator[None]:
+def one_reading_of(digest: str, kind: str) -> Iterator[None]:
+    """Held while the document of these bytes is read (or prepared elsewhere) and cached: a
+    thread asking for the same bytes waits, then finds it in the cache."""
     key = (digest, kind)
     with _readings_lock:
         lock, users = _readings.get(key, (threading.Lock(), 0))
@@ -152,7 +159,8 @@ def _parse(
         if kind == "pdf":
             from robtui.reading.pdf import read_pdf
 
-            return read_pdf(path, data, digest, on_page=on_page)
+            with PDFIUM_LOCK:
+                return read_pdf(path, data, digest, on_page=on_page)
         if kind == "registry":
             from robtui.reading.registry import read_registry_document
 

@@ -79,9 +79,11 @@ class Workbench(App[int]):
         self.preparation_done = False
         self.preparation_failures: list[str] = []
         self._preparation_cancel = threading.Event()
-        if prepare_in_background:
-            # multiprocessing's resource tracker is started with the process's stderr, which the
-            # running app replaces; start it now, while stderr is still the terminal's.
+        if prepare_in_background or ranker_factory is shared_ranker:
+            # Reports are prepared in worker processes (in the background, and a long PDF when
+            # it is opened: report_loading.prepare_apart). multiprocessing's resource tracker is
+            # started with the process's stderr, which the running app replaces; start it now,
+            # while stderr is still the terminal's.
             from multiprocessing import resource_tracker
 
             resource_tracker.ensure_running()

@@ -76,6 +76,8 @@ def load_report(
     from robtui.reading.reader import read_document
 
     started = time.perf_counter()
+    if ranker_factory is shared_ranker:
+        prepare_apart(folder.report_path(report), report, effect, question_set)
     try:
         loaded.document = read_document(folder.report_path(report))
     except RobtuiError as error:
@@ -102,6 +104,50 @@ def load_report(
     except (RobtuiError, AttributeError, TypeError, ValueError):
         loaded.no_evidence_threshold = None
     return loaded
+
+
+# A PDF of this many pages or more that is not prepared yet is read and ranked in a process of
+# its own: parsing a page is Python work that, in the worker thread, takes turns with the
+# interface for the interpreter, so keys wait; starting a process costs about half a second,
+# more than reading a short report takes (the demo's reports have three pages).
+APART_MIN_PAGES = 8
+
+
+def prepare_apart(path: Path, report: ReportFile, effect: str, question_set=None) -> bool:
+    """Read and rank a long PDF in another process, as `robtui prepare` does, into the caches
+    this process then reads from; True when that process prepared it. Any problem is left to
+    the reading in this process to report (the file is then read here)."""
+    from robtui.reading.reader import one_reading_of
+    from robtui.workspace.preparing import PrepareJob, is_prepared, prepare
+
+    if path.suffix.lower() != ".pdf" or pdf_pages(path) < APART_MIN_PAGES:
+        return False
+    job = PrepareJob(str(path), report.sha256, report.path, (effect,), question_set)
+    with one_reading_of(report.sha256, "pdf"):  # other threads wait for it, then read the cache
+        if is_prepared(job):
+            return False
+        try:
+            summary = prepare([job], workers=1)
+        except Exception:  # noqa: BLE001 - no process could be started: it is read here
+            return False
+    return bool(summary.prepared) and not summary.failures
+
+
+def pdf_pages(path: Path) -> int:
+    """The number of pages of a PDF (0 when PDFium cannot open it)."""
+    import pypdfium2
+
+    from robtui.reading.reader import PDFIUM_LOCK
+
+    with PDFIUM_LOCK:
+        try:
+            document = pypdfium2.PdfDocument(str(path))
+        except Exception:  # noqa: BLE001 - a damaged file: the reader says what is wrong
+            return 0
+        try:
+            return len(document)
+        finally:
+            document.close()
 
 
 def _prepared_suggestions(

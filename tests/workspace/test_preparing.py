@@ -218,3 +218,37 @@ def test_a_report_prepared_meanwhile_by_another_process_is_not_done_again(tmp_pa
     assert first.ok and not first.already and first.pages == 0 and first.sentences > 50
     again = prepare_one(jobs[0])
     assert again.ok and again.already and again.sentences == 0
+
+
+def test_the_workbench_reads_a_long_pdf_in_another_process(tmp_path, capsys, monkeypatch):
+    """A long PDF not prepared yet is read and ranked apart (PDF parsing in the workbench's
+    thread would take turns with the interface); a short one is read in the thread."""
+    from robtui.reading import reader
+    from robtui.store.review_folder import ReviewFolder
+    from robtui.tui.report_loading import APART_MIN_PAGES, load_report, pdf_pages
+
+    root = tmp_path / "rev"
+    assert main(["init", str(root), "--title", "T", "--lead", "ines", "--reviewer", "maren"]) == 0
+    for study, name in (("G1", "grove-neuropathy.pdf"), ("A1", "alder-migraine.pdf")):
+        assert main(["study", "add", str(root), "--study", study, "--label", study,
+                     "--report", str(SAMPLES / name)]) == 0
+    capsys.readouterr()
+    folder = ReviewFolder.open(root)
+    long, short = folder.review.study("G1").reports[0], folder.review.study("A1").reports[0]
+    assert pdf_pages(folder.report_path(long)) >= APART_MIN_PAGES
+    assert pdf_pages(folder.report_path(short)) < APART_MIN_PAGES
+
+    parse = reader._parse
+    parsed_here = []
+
+    def counted(path, *args, **kwargs):
+        parsed_here.append(path.name)
+        return parse(path, *args, **kwargs)
+
+    monkeypatch.setattr(reader, "_parse", counted)  # this process only, not the spawned one
+    loaded = load_report(folder, long, "assignment")
+    assert loaded.problem is None and loaded.document.pages >= APART_MIN_PAGES
+    assert loaded.suggestions and parsed_here == []
+    assert load_prepared(loaded.document.sha256, "assignment") is not None
+    load_report(folder, short, "assignment")
+    assert parsed_here == ["alder-migraine.pdf"]

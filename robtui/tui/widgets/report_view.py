@@ -21,7 +21,7 @@ SUGGESTION_STYLE = "bold #111111 on #f2c078"
 QUOTE_MARK = "❝"
 PASSAGE_MARK = "┃"  # a sentence inside the passage being marked (v ... q)
 HEADING_STYLE = "bold #6fa8dc"
-CHUNK = 150  # sentences added per step when a long report is laid out
+CHUNK = 60  # sentences wrapped and added per step when a long report is laid out
 GUTTER = 7  # page number column, then the sentence
 
 
@@ -45,7 +45,7 @@ class ReportView(OptionList):
         self._in_passage: set[int] = set()
         self._built_width = self._width = 0
         self._generation = 0
-        self._all_options: list[Option] = []
+        self._entries: list[Sentence | str] = []  # what the options show, in order
 
     # -- content -----------------------------------------------------------------------
     def show_document(self, document: Document) -> None:
@@ -60,37 +60,46 @@ class ReportView(OptionList):
             self.highlighted = first
 
     def _build(self) -> None:
-        """Lay the sentences out at the current width; long reports are added in chunks so
-        the interface keeps answering keys while they go in."""
+        """Lay the sentences out at the current width; long reports are added in chunks, each
+        sentence wrapped only when its chunk goes in, so the interface keeps answering keys
+        while they go in."""
         assert self.document is not None
         self._generation += 1
         self._built_width = self._width = self._text_width
-        options: list[Option] = []
+        entries: list[Sentence | str] = []  # a sentence, or the label of a section heading
         self._index_of = {}
         section = None
         for sentence in self.document.sentences:
             if sentence.section != section:
                 section = sentence.section
                 if sentence.block != "heading":  # a heading of its own names the section
-                    options.append(Option(self._section_prompt(section), disabled=True))
-            self._index_of[sentence.index] = len(options)
-            options.append(Option(self._prompt(sentence), id=f"s{sentence.index}"))
-        self._all_options = options
-        self.set_options(options[:CHUNK])
-        if len(options) > CHUNK:
-            self.call_later(self._add_chunk, options, CHUNK, self._generation)
+                    entries.append(section)
+            self._index_of[sentence.index] = len(entries)
+            entries.append(sentence)
+        self._entries = entries
+        self.set_options(self._options_between(0, CHUNK))
+        if len(entries) > CHUNK:
+            self.call_later(self._add_chunk, CHUNK, self._generation)
 
-    def _add_chunk(self, options: list[Option], start: int, generation: int) -> None:
+    def _options_between(self, start: int, stop: int) -> list[Option]:
+        """The options of entries ``start:stop``, with the marks of the moment."""
+        return [
+            Option(self._section_prompt(entry), disabled=True) if isinstance(entry, str)
+            else Option(self._prompt(entry), id=f"s{entry.index}")
+            for entry in self._entries[start:stop]
+        ]
+
+    def _add_chunk(self, start: int, generation: int) -> None:
         if generation != self._generation:
             return  # a newer layout replaced this one
-        self.add_options(options[start : start + CHUNK])
-        if start + CHUNK < len(options):
-            self.set_timer(0.001, lambda: self._add_chunk(options, start + CHUNK, generation))
+        self.add_options(self._options_between(start, start + CHUNK))
+        if start + CHUNK < len(self._entries):
+            self.set_timer(0.001, lambda: self._add_chunk(start + CHUNK, generation))
 
     @property
     def laid_out(self) -> bool:
         """True once every sentence of the report is in the view."""
-        return self.document is None or self.option_count >= len(self._all_options)
+        return self.document is None or self.option_count >= len(self._entries)
 
     def show_message(self, text: str) -> None:
         self._generation += 1
@@ -193,11 +202,9 @@ class ReportView(OptionList):
             option_index = self._index_of.get(sentence_index)
             if option_index is None:
                 continue
-            prompt = self._prompt(self._sentences[sentence_index])
-            if option_index < self.option_count:
-                self.replace_option_prompt_at_index(option_index, prompt)
-            else:  # not laid out yet: the chunk will bring the new prompt
-                self._all_options[option_index] = Option(prompt, id=f"s{sentence_index}")
+            if option_index < self.option_count:  # else its chunk brings the new marks
+                self.replace_option_prompt_at_index(
+                    option_index, self._prompt(self._sentences[sentence_index]))
 
     # -- cursor ------------------------------------------------------------------------
     @property
@@ -213,7 +220,7 @@ class ReportView(OptionList):
         option_index = self._index_of.get(sentence_index)
         if option_index is not None and option_index >= self.option_count:
             self._generation += 1  # lay out the rest now, then move there
-            self.add_options(self._all_options[self.option_count :])
+            self.add_options(self._options_between(self.option_count, len(self._entries)))
         if option_index is not None:
             self.highlighted = option_index
             self._centre(option_index)

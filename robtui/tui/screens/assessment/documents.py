@@ -102,6 +102,7 @@ class ReportDocuments:
         self.document_index = min(self.document_index, max(len(loaded) - 1, 0))
         self._show_current_document()
         self.query_one(KeyHints).show_field(None)  # "d next document" when there are several
+        self.compare_with_plan()  # reads the report again: from the cache now
 
     # -- showing -----------------------------------------------------------------------
     def _show_current_document(self) -> None:

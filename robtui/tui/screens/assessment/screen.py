@@ -95,6 +95,8 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
         self.loaded: list[LoadedReport] = []
         self.document_index = 0
         self.last_update_seconds: float | None = None  # keystroke -> judgement shown (bench)
+        self.last_update_at = 0.0  # time.perf_counter() when it was shown (bench)
+        self._plan_started = False
         self.show_guidance = False  # g: the focused question's guidance under it
         self._stepped_for: str | None = None  # the question ] / [ last stepped through
 
@@ -182,9 +184,14 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
                 start = None
         self.refresh_form(keep=start)
         self.query_one("#questions", QuestionList).focus()
-        self.load_reports()
-        self.run_worker(self._compare_with_plan, thread=True, group="planned",
-                        exit_on_error=False)
+        self.load_reports()  # then compare_with_plan, once the report is in the caches
+
+    def compare_with_plan(self) -> None:
+        """Start comparing the result with what was planned (once), ahead of the panel (w)."""
+        if not self._plan_started:
+            self._plan_started = True
+            self.run_worker(self._compare_with_plan, thread=True, group="planned",
+                            exit_on_error=False)
 
     def _compare_with_plan(self) -> None:
         """Compare the result with what was planned ahead of the panel (w), so it opens at once."""
@@ -320,7 +327,8 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
         if self._guard(lambda: self.session.set_response(qid, response)):
             self._refresh_question_lines()
             self._refresh_judgements()
-            self.last_update_seconds = time.perf_counter() - started
+            self.last_update_at = time.perf_counter()
+            self.last_update_seconds = self.last_update_at - started
 
     def action_next_question(self) -> None:
         self.query_one("#questions", QuestionList).action_cursor_down()
