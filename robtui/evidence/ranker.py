@@ -23,6 +23,7 @@ from robtui.evidence.adjustment import Adjustment, load_adjustment
 from robtui.evidence.cues import CueEntry, CueMatcher, load_cues, model_key, tokens
 from robtui.evidence.features import (
     QUESTION_NAMES,
+    REGISTRY_ID,
     SHARED_NAMES,
     DocumentFeatures,
     document_features,
@@ -31,7 +32,7 @@ from robtui.evidence.features import (
     stacked_features,
 )
 from robtui.evidence.model import RankerWeights, load_weights
-from robtui.reading.document import Document
+from robtui.reading.document import Document, top_section
 
 
 @dataclass(frozen=True)
@@ -83,26 +84,47 @@ def reading_order(log_odds: np.ndarray, sections: Sequence[str],
 
 
 TOPIC_HEADING_MAX_WORDS = 4
+QUOTABLE_MIN_WORDS = 3
 _LETTERS = re.compile(r"[^\W\d_]+")
+_WORDS = re.compile(r"[^\W\d_]{3,}")
 _CAPTION_WORDS = frozenset({"table", "figure", "fig"})
 
 
+def _topic_heading(text: str) -> bool:
+    """A heading of at most four words, without a digit, that is not a table or figure title
+    ("Allocation concealment.", "Masking")."""
+    if any(ch.isdigit() for ch in text):
+        return False
+    words = _LETTERS.findall(text)
+    return len(words) <= TOPIC_HEADING_MAX_WORDS and (
+        not words or words[0].lower() not in _CAPTION_WORDS)
+
+
+def _fragment(text: str) -> bool:
+    """Fewer than three words of three letters or more and no registry number ("protocol",
+    "registered on 10 January 2008."): a piece of a sentence or a cell, no statement."""
+    return len(_WORDS.findall(text)) < QUOTABLE_MIN_WORDS and not REGISTRY_ID.search(text)
+
+
 def suggestible(sentences: Sequence) -> np.ndarray:
-    """Per sentence, False for a bare topic heading ("Allocation concealment.", "Masking"):
-    a heading of at most four words, without a digit, that is not a table or figure title.
-    It tells where evidence may be but holds none a reviewer could quote, so it is never
-    suggested; the sentences under it are. (In the corpus no such heading carries a mapped
-    item; headings that do are titles of tables and figures or hold a registry number.)
+    """Per sentence, whether it may be suggested. Never suggested:
+    - a bare topic heading (:func:`_topic_heading`): it tells where evidence may be but holds
+      none a reviewer could quote; the sentences under it are suggested. (In the corpus no such
+      heading carries a mapped item; headings that do are titles of tables and figures or hold
+      a registry number.)
+    - the reference list (top-level section "references"): other studies' titles, never this
+      trial's evidence;
+    - table cells (block "table"): the reader keeps them searchable and quotable, but a row of
+      a table is not the sentence that reports what it shows;
+    - fragments (:func:`_fragment`).
     If a document has nothing else, every sentence stays suggestible."""
     keep = np.ones(len(sentences), dtype=bool)
     for i, s in enumerate(sentences):
-        if s.block != "heading" or any(ch.isdigit() for ch in s.text):
-            continue
-        words = _LETTERS.findall(s.text)
-        if len(words) <= TOPIC_HEADING_MAX_WORDS and (
-            not words or words[0].lower() not in _CAPTION_WORDS
-        ):
-            keep[i] = False
+        if s.block == "heading":
+            keep[i] = not _topic_heading(s.text)
+        else:
+            keep[i] = not (s.block == "table" or top_section(s.section) == "references"
+                           or _fragment(s.text))
     return keep if keep.any() else np.ones(len(sentences), dtype=bool)
 
 

@@ -108,6 +108,10 @@ def test_bench_runs_on_one_real_article(capsys, tmp_path):
     assert answerable == sum(bool(v) for v in gold.values())
     ranks = [p["rank"] for p in pairs if p["answerable"]]
     assert figures["figures"]["rank"]["recall@3"] == recall(ranks, 3)
+    # this article's reference list and tables once reached its top threes (2.2, 3.1, 4.3):
+    # references, table cells and fragments are never suggested (ranker.suggestible)
+    assert figures["figures"]["top3_reference_pairs"] == 0
+    assert figures["figures"]["top3_table_pairs"] == 0
     assert 0.0 < figures["figures"]["per_article"]["trials2015_oral_malodor_hygiene_rct.pdf"][
         "integrity"] <= 1.0
 

@@ -173,3 +173,44 @@ def test_the_ranker_leaves_a_topic_heading_out_of_its_suggestions(ranker):
         texts = [s.text for s in ranker.rank(doc, ["1.2"], spread=spread)["1.2"]]
         assert texts and texts[0].startswith("Allocation was concealed")
         assert "Allocation concealment." not in texts and "Methods" not in texts
+
+
+def test_references_table_cells_and_fragments_are_never_suggested():
+    from robtui.evidence.ranker import suggestible
+    from robtui.reading.document import Sentence
+
+    rows = [  # (text, section, block, suggestible)
+        ("Participants were randomly assigned by a central computer.", "methods", "body", True),
+        ("Smith A, Jones B. A masked trial of a gel. J Invented Med 2031;12:34-9.",
+         "references", "body", False),  # an entry of the reference list
+        ("Double-blind trials of invented gels reconsidered.", "references.extra", "body",
+         False),  # anything under the reference list
+        ("Age, years | 41.2 (9.8) | 40.7 (10.1)", "results", "table", False),  # a table row
+        ("protocol", "results", "body", False),  # a fragment of one word
+        ("registered on 10 May 2031.", "registration", "body", False),  # two words: a piece
+        ("Registry: NCT01234567", "registration", "body", True),  # short, but a registry id
+        ("All seven enrolled adults completed.", "results", "body", True),  # short, a statement
+        ("Table 1 Baseline characteristics", "results", "caption", True),  # a caption stays
+    ]
+    sentences = [Sentence(index=i, start=0, end=len(t), text=t, section=sec, block=b)
+                 for i, (t, sec, b, _) in enumerate(rows)]
+    assert suggestible(sentences).tolist() == [want for *_, want in rows]
+
+
+def test_the_ranker_suggests_no_table_cell_or_reference_yet_the_document_keeps_them(ranker):
+    rows = [
+        ("Participants were randomly assigned by a central computer.", "methods", "body"),
+        ("Randomly assigned by computer | 120 | 118", "results", "table"),
+        ("Randomly assigned participants in a computer trial, J Invented Med 2031;1:2-3",
+         "references", "body"),
+    ]
+    read = document_from_text("\n\n".join(t for t, _, _ in rows))
+    assert len(read.sentences) == len(rows)
+    doc = read.model_copy(update={"sentences": [
+        s.model_copy(update={"section": sec, "block": b})
+        for s, (_, sec, b) in zip(read.sentences, rows)]})
+    for spread in (False, True):
+        picked = ranker.rank(doc, ["1.1"], top=None, spread=spread)["1.1"]
+        assert [s.sentence_index for s in picked] == [0]
+    # the cell and the entry stay in the document: searchable and quotable
+    assert [s.block for s in doc.sentences] == ["body", "table", "body"]
