@@ -79,6 +79,7 @@ class Workbench(App[int]):
         self.preparation_done = False
         self.preparation_failures: list[str] = []
         self._preparation_cancel = threading.Event()
+        self.closing = threading.Event()  # set when the app ends
         if prepare_in_background or ranker_factory is shared_ranker:
             # Reports are prepared in worker processes (in the background, and a long PDF when
             # it is opened: report_loading.prepare_apart). multiprocessing's resource tracker is
@@ -164,6 +165,7 @@ class Workbench(App[int]):
 
     def on_unmount(self) -> None:
         self._preparation_cancel.set()
+        self.closing.set()  # a report being read apart (report_loading.prepare_apart) stops
 
     # -- navigation used by the screens ----------------------------------------------
     def open_result(self, study_id: str, result_id: str) -> None:

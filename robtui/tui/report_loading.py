@@ -58,11 +58,13 @@ def load_report(
     ranker_factory: Callable[[], Any] = shared_ranker,
     learned_dir: Path | None = None,
     question_set=None,
+    cancel: threading.Event | None = None,
 ) -> LoadedReport:
     """Read ``report`` from the review folder and rank its sentences for every question.
 
     ``learned_dir`` is the reviewer's own learned model (None: the shipped model only);
-    ``question_set`` the study's set, whose questions are ranked (None: the ranker's default).
+    ``question_set`` the study's set, whose questions are ranked (None: the ranker's default);
+    ``cancel`` set (the app is ending) stops a report being read in another process.
     """
     loaded = LoadedReport(report)
     problem = folder.check_report(report)
@@ -77,7 +79,10 @@ def load_report(
 
     started = time.perf_counter()
     if ranker_factory is shared_ranker:
-        prepare_apart(folder.report_path(report), report, effect, question_set)
+        prepare_apart(folder.report_path(report), report, effect, question_set, cancel)
+        if cancel is not None and cancel.is_set():
+            loaded.problem = "the workbench closed before the report was read"
+            return loaded
     try:
         loaded.document = read_document(folder.report_path(report))
     except RobtuiError as error:
@@ -113,10 +118,12 @@ def load_report(
 APART_MIN_PAGES = 8
 
 
-def prepare_apart(path: Path, report: ReportFile, effect: str, question_set=None) -> bool:
+def prepare_apart(path: Path, report: ReportFile, effect: str, question_set=None,
+                  cancel: threading.Event | None = None) -> bool:
     """Read and rank a long PDF in another process, as `robtui prepare` does, into the caches
     this process then reads from; True when that process prepared it. Any problem is left to
-    the reading in this process to report (the file is then read here)."""
+    the reading in this process to report (the file is then read here). Setting ``cancel``
+    ends that process at once."""
     from robtui.reading.reader import one_reading_of
     from robtui.workspace.preparing import PrepareJob, is_prepared, prepare
 
@@ -127,7 +134,7 @@ def prepare_apart(path: Path, report: ReportFile, effect: str, question_set=None
         if is_prepared(job):
             return False
         try:
-            summary = prepare([job], workers=1)
+            summary = prepare([job], workers=1, cancel=cancel)
         except Exception:  # noqa: BLE001 - no process could be started: it is read here
             return False
     return bool(summary.prepared) and not summary.failures

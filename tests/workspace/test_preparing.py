@@ -252,3 +252,11 @@ def test_the_workbench_reads_a_long_pdf_in_another_process(tmp_path, capsys, mon
     assert load_prepared(loaded.document.sha256, "assignment") is not None
     load_report(folder, short, "assignment")
     assert parsed_here == ["alder-migraine.pdf"]
+    # the workbench closing while a long PDF is read apart: that reading stops, nothing is
+    # read here instead
+    monkeypatch.setenv("ROBTUI_CACHE_DIR", str(tmp_path / "other-cache"))
+    closing = threading.Event()
+    closing.set()
+    stopped = load_report(folder, long, "assignment", cancel=closing)
+    assert stopped.document is None and "closed" in stopped.problem
+    assert parsed_here == ["alder-migraine.pdf"]

@@ -64,6 +64,7 @@ class ReportDocuments:
                         ranker_factory=self.app.ranker_factory,
                         learned_dir=learned_dir,
                         question_set=self.session.qset,
+                        cancel=getattr(self.app, "closing", None),
                     )
                 )
             except Exception as error:  # noqa: BLE001 - a bad file must not end the session
