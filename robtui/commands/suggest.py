@@ -89,7 +89,8 @@ def run(args: argparse.Namespace) -> int:
     options = {"questions": tuple(questions) if questions else None, "effect": args.effect,
                "top": args.top, "threshold": args.threshold, "spread": args.spread,
                "question_set": args.question_set}
-    ranker = load_ranker(args.model)  # checks the weights (and the question ids) up front
+    # checks the weights (and the question ids) up front; ranks one document at most here
+    ranker = load_ranker(args.model, warm=False)
     if questions:  # checked once here rather than once per file
         from robtui.evidence.ranker import active_questions
 

@@ -171,7 +171,7 @@ class Ranker:
     """Scores sentences per question; build with :func:`load_ranker`."""
 
     def __init__(self, weights: RankerWeights, cues: dict[str, CueEntry] | None = None,
-                 adjustment: Adjustment | None = None):
+                 adjustment: Adjustment | None = None, *, warm: bool = True):
         self.weights = weights
         self.adjustment = adjustment  # the second stage learned on real PDFs (adjustment.py)
         self.cues = cues if cues is not None else load_cues()
@@ -188,7 +188,9 @@ class Ranker:
             np.vstack([weights.shared, weights.item_shared]) if weights.n_items else weights.shared
         ).T
         self._question_cache: dict[tuple[str, ...], np.ndarray] = {}
-        if weights.warm_words:  # fill the per-word caches now, so the first document is fast
+        # Fill the per-word caches now, so the first document is fast (``warm=False`` for a
+        # process that ranks one document: it would only pay for the words it does not have).
+        if warm and weights.warm_words:
             weights.char.transform([lexical_text(" ".join(weights.warm_words))])
             self.matcher.coverage([tokens(" ".join(weights.warm_words))])
 
@@ -376,10 +378,12 @@ class Ranker:
 
 
 def load_ranker(path: Path | None = None, adjustment: Path | None = None, *,
-                first_stage_only: bool = False) -> Ranker:
+                first_stage_only: bool = False, warm: bool = True) -> Ranker:
     """The ranker with the shipped weights (or those at ``path``) and second stage (or the one
-    at ``adjustment``; none with ``first_stage_only``); ModelFileError if unusable."""
+    at ``adjustment``; none with ``first_stage_only``); ModelFileError if unusable. ``warm``:
+    see :class:`Ranker` (the same suggestions either way, only sooner or later)."""
     ranker = Ranker(load_weights(path),
-                    adjustment=None if first_stage_only else load_adjustment(adjustment))
+                    adjustment=None if first_stage_only else load_adjustment(adjustment),
+                    warm=warm)
     active_questions("assignment")  # reads (and caches) the question set now, not when ranking
     return ranker
