@@ -8,6 +8,7 @@ unfinished paragraph are emitted after it, never inside it.
 from __future__ import annotations
 
 import re
+import statistics
 import time
 from collections.abc import Callable
 from pathlib import Path
@@ -29,6 +30,10 @@ from robtui.reading.layout.page import PageLines, analyse_page
 # Running heads are learnt from the first pages, so later pages stream through.
 RUNNING_SAMPLE = 12
 SOFT_HYPHEN = "\u00ad"
+FLOATS = ("caption", "table", "figure", "aside")
+# Print this many points smaller than the open paragraph's is a note beside it, not its next
+# block (our own setting, no source: footnotes and table notes are set 1.5-3 pt smaller).
+SMALL_PRINT = 1.0
 _TERMINAL = re.compile(r"[.?!:][\"'”’)\]]*(?:\d+(?:[,–-]\d+)*)?$")
 
 
@@ -142,7 +147,7 @@ class BlockFlow:
         self.deferred: list[PBlock] = []
 
     def feed(self, block: PBlock, column_start: bool) -> None:
-        if block.kind in ("caption", "table", "aside"):
+        if block.kind in FLOATS or self._small_print(block):
             if self.open is not None:
                 self.deferred.append(block)
             else:
@@ -164,6 +169,14 @@ class BlockFlow:
             self._maybe_close()
         else:
             self.builder.add(block, block.kind)
+
+    def _small_print(self, block: PBlock) -> bool:
+        """A body block set clearly smaller than the open paragraph (a footnote, a table's
+        note, a figure's labels): it floats like a caption instead of ending the paragraph."""
+        if self.open is None or block.kind != "body":
+            return False
+        size = statistics.median(ln.size for ln in block.lines)
+        return size < statistics.median(ln.size for ln in self.open.lines) - SMALL_PRINT
 
     def _maybe_close(self) -> None:
         if self.open is not None and _TERMINAL.search(self.open.last_text):
@@ -217,8 +230,10 @@ def _flow_page(flow: BlockFlow, page: PageLines, running: set[str]) -> None:
     for block in page_blocks(strip_running(page, running)):
         column = block.lines[0].column if block.lines else "table"
         column_start = last_column is None or (column != last_column and column != "full")
+        floated = flow.open is not None and (block.kind in FLOATS or flow._small_print(block))
         flow.feed(block, column_start)
-        last_column = column
+        if not floated:  # a float between a paragraph's two halves is not where it goes on
+            last_column = column
 
 
 def read_pdf(

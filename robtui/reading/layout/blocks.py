@@ -303,11 +303,22 @@ def _with_run_in_split(blocks: list[PBlock], body_font: str) -> list[PBlock]:
 
 
 def _run_in_words(block: PBlock, body_font: str) -> int:
+    """How many words opening the block's first line, set apart from the body text (bold,
+    italic or another font), read as a run-in subheading. A paragraph set wholly in bold (some
+    journals' summaries) marks its subheadings by another bold font instead."""
     words = block.lines[0].words
     if len(words) < 2:
         return 0
+    later = Counter((w.font, w.bold, w.italic) for ln in block.lines[1:] for w in ln.words)
+    last = words[-1]
+    plain = later.most_common(1)[0][0] if later else (last.font, last.bold, last.italic)
+    bold_paragraph = plain[1]
+    if bold_paragraph and not (words[0].bold and words[0].font != plain[0]):
+        return 0
 
     def marked(w) -> bool:
+        if bold_paragraph:
+            return (w.font, w.bold, w.italic) != plain
         return w.bold or w.italic or w.font != body_font
 
     rest = [w for w in words if not marked(w)]

@@ -33,6 +33,7 @@ TABLE_RUN = 3  # rows of short cells in a row that make an unruled table
 SIDE_SHARE = 0.3  # a side column is narrower than this share of the page
 CELL_EM = 1.0  # a gap this wide (share of the body size) separates table cells
 HEAD_WORDS = 8  # two lines this long between a caption and its rules are a paragraph
+PROSE_ROWS = 3  # lines of prose between two rules that part them into two tables
 HEAD_REACH = 12  # a table's caption stands at most this many lines above its first rule
 NOTE_GAP = 1.2  # a table's note line follows the one before within this many lines
 _NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+\S")
@@ -70,7 +71,7 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     gutters = find_gutters(rows, size)
     segs = segments(rows, gutters, page.width, size)
     columns = column_gutters(gutters, segs)
-    regions = _ruled_regions(page.rules, page.height)
+    regions = _ruled_regions(page.rules, page.height, segs, size)
     regions += _unruled_regions(segs, rows, columns, size)
     tables: list[tuple[Box, list[Line]]] = []
     for region in _merged(regions):
@@ -187,8 +188,12 @@ def _table_notes(segs: list[Segment], region: Box, size: float) -> list[Segment]
     return notes
 
 
-def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> list[Box]:
-    """Regions between two or more rules of the same extent, outside the page margins."""
+def _ruled_regions(
+    rules: list[tuple[float, float, float]], height: float, segs: list[Segment], size: float
+) -> list[Box]:
+    """Regions between two or more rules of the same extent, outside the page margins; a
+    table's caption or paragraphs of body text between two rules part them (the last rule of
+    one table and the first of the next)."""
     groups: dict[tuple[int, int], list[float]] = {}
     for x0, x1, top in rules:
         if top < height * MARGIN_SHARE or top > height * (1 - MARGIN_SHARE):
@@ -199,13 +204,31 @@ def _ruled_regions(rules: list[tuple[float, float, float]], height: float) -> li
         tops.sort()
         chain = [tops[0]]
         for top in tops[1:] + [float("inf")]:
-            if top - chain[-1] <= 260:
+            if top - chain[-1] <= 260 and not _parts_rules(
+                segs, (gx0 * 4.0, chain[-1], gx1 * 4.0, top), size
+            ):
                 chain.append(top)
                 continue
             if len(chain) >= 2 and chain[-1] - chain[0] > 4:
                 regions.append((gx0 * 4.0 - 2, chain[0] - 1, gx1 * 4.0 + 2, chain[-1] + 1))
             chain = [top]
     return regions
+
+
+def _parts_rules(segs: list[Segment], between: Box, size: float) -> bool:
+    """Whether the text between two rules is a table's caption or PROSE_ROWS lines of prose
+    (HEAD_WORDS words or more in the body's size), so the rules belong to two tables."""
+    x0, top, x1, bottom = between
+    prose = 0
+    for seg in segs:
+        line = seg.line
+        if not (top < (line.top + line.bottom) / 2 < bottom and line.x0 < x1 and line.x1 > x0):
+            continue
+        if _TABLE_CAPTION.match(line.text):
+            return True
+        if len(line.words) >= HEAD_WORDS and abs(line.size - size) <= 0.5:
+            prose += 1
+    return prose >= PROSE_ROWS
 
 
 NUMERIC = re.compile(r"^[(\[<>≤≥±+−–-]*[\d.,·]+[%)\]*†‡,;]*$")

@@ -1,0 +1,216 @@
+"""Paragraph flow across floats, notes and pages; tables parted by prose; run-in subheadings of
+summaries and structured abstracts. Small invented PDFs are drawn with reportlab; the
+real-PDF tests read the shared articles (../shared/real-pdfs) and skip when they are absent.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from robtui.reading.reader import read_document
+
+WIDTH, HEIGHT = 595.0, 842.0
+LEFT, RIGHT = 50.0, 315.0  # the two columns' left edges
+FILLER = [
+    "Participants in the invented Heron trial kept a diary of",
+    "their walking on most days of the week and returned it",
+    "to the study nurse at each of the planned clinic visits.",
+    "The team counted the minutes walked in all the weeks of",
+    "the study without asking the participants twice about",
+    "the same days or the same visits to the clinic nurse.",
+]
+
+
+def _canvas(path: Path):
+    from reportlab.pdfgen.canvas import Canvas
+
+    return Canvas(str(path), pagesize=(WIDTH, HEIGHT))
+
+
+def _lines(canvas, x: float, top: float, lines: list[str], font: str = "Times-Roman",
+           size: float = 10.0, leading: float = 12.0) -> float:
+    """Draw ``lines`` from ``top`` (points from the page's top); the next free top."""
+    canvas.setFont(font, size)
+    for line in lines:
+        canvas.drawString(x, HEIGHT - top, line)
+        top += leading
+    return top
+
+
+def _sentences(path: Path) -> list:
+    return read_document(path, use_cache=False).sentences
+
+
+def _texts(path: Path, block: str | None = None) -> list[str]:
+    return [s.text for s in _sentences(path) if block is None or s.block == block]
+
+
+def test_a_caption_on_the_next_page_does_not_end_the_paragraph(tmp_path) -> None:
+    path = tmp_path / "float.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 100, FILLER * 4)
+    top = _lines(c, RIGHT, 100, FILLER * 3)
+    _lines(c, RIGHT, top, ["The diaries of the women who took part in the"])
+    c.showPage()
+    _lines(c, LEFT, 100, ["Figure 1 Flow of participants through the invented trial."],
+           font="Helvetica", size=8.0)
+    _lines(c, LEFT, 140, ["walking group were complete for most of the weeks.", *FILLER * 3])
+    _lines(c, RIGHT, 140, FILLER * 4)
+    c.showPage()
+    c.save()
+    texts = _texts(path)
+    assert ("The diaries of the women who took part in the walking group were complete for "
+            "most of the weeks.") in texts
+    assert any(t.startswith("Figure 1 Flow of participants") for t in texts)
+
+
+def test_a_footnote_between_a_paragraphs_two_columns_floats_after_it(tmp_path) -> None:
+    path = tmp_path / "footnote.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, FILLER * 4)
+    _lines(c, LEFT, top, ["Improvements were seen in attention (p = 0.02), learning"])
+    _lines(c, LEFT, 720, ["The study was funded by an invented charity for walkers.",
+                          "* Corresponding author: heron@example.org"], size=7.5, leading=9)
+    _lines(c, RIGHT, 100, ["(p = 0.05) and mood (p = 0.04) in the walking group.",
+                           *FILLER * 4])
+    c.showPage()
+    c.save()
+    texts = _texts(path)
+    assert ("Improvements were seen in attention (p = 0.02), learning (p = 0.05) and mood "
+            "(p = 0.04) in the walking group.") in texts
+    assert "The study was funded by an invented charity for walkers." in texts
+
+
+def _ruled_table(c, top: float, caption: str, rows: list[tuple[str, str, str]]) -> float:
+    _lines(c, LEFT, top, [caption], font="Helvetica-Bold", size=9.0)
+    top += 10
+    c.setLineWidth(0.5)
+    c.line(LEFT, HEIGHT - top, 545, HEIGHT - top)
+    top += 12
+    for row in rows:
+        c.setFont("Helvetica", 8.0)
+        for x, cell in zip((LEFT, 250.0, 400.0), row, strict=True):
+            c.drawString(x, HEIGHT - top, cell)
+        top += 12
+    c.line(LEFT, HEIGHT - top + 8, 545, HEIGHT - top + 8)
+    return top + 10
+
+
+def test_prose_between_two_ruled_tables_is_read_as_prose(tmp_path) -> None:
+    path = tmp_path / "tables.pdf"
+    rows = [("Walking, min", "120 (30)", "118 (29)"), ("Sitting, h", "7.1 (1.2)", "7.3 (1.1)"),
+            ("Sleep, h", "6.9 (0.8)", "7.0 (0.9)"), ("Steps", "5400 (800)", "5300 (780)")]
+    c = _canvas(path)
+    top = _ruled_table(c, 90, "Table 1 Activity at trial entry", rows)
+    prose_top = top + 10
+    _lines(c, LEFT, prose_top, FILLER[:4])
+    _lines(c, RIGHT, prose_top, FILLER[2:6])
+    _ruled_table(c, prose_top + 4 * 12 + 20, "Table 2 Activity at four months", rows)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    body = " ".join(s.text for s in sentences if s.block == "body")
+    assert "Participants in the invented Heron trial kept a diary" in body
+    table = [s.text for s in sentences if s.block == "table"]
+    assert not any("diary" in t for t in table)
+
+
+def test_run_in_subheadings_of_a_summary_set_wholly_in_bold(tmp_path) -> None:
+    path = tmp_path / "summary.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 80, ["Summary"], font="Helvetica-Bold", size=12.0)
+    top = 100.0
+    for head, rest in (("Background", "Walking is good for invented herons and their keepers."),
+                       ("Methods", "We randomly assigned 120 keepers to walk or to rest."),
+                       ("Findings", "Keepers who walked slept longer than those who rested.")):
+        c.setFont("Helvetica-Bold", 9.0)
+        c.drawString(LEFT, HEIGHT - top, head)
+        c.setFont("Times-Bold", 9.0)
+        c.drawString(LEFT + c.stringWidth(head + " ", "Helvetica-Bold", 9.0), HEIGHT - top, rest)
+        _lines(c, LEFT, top + 11, FILLER[:2], font="Times-Bold", size=9.0, leading=11.0)
+        top += 44
+    _lines(c, LEFT, top + 20, ["Introduction"], font="Helvetica-Bold", size=12.0)
+    _lines(c, LEFT, top + 40, FILLER * 3)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    heads = [s.text for s in sentences if s.block == "heading"]
+    assert {"Background", "Methods", "Findings"} <= set(heads)
+    methods = next(s for s in sentences if s.text.startswith("We randomly assigned"))
+    assert methods.section == "abstract" and methods.block == "body"
+
+
+def test_structured_abstract_headings_in_the_text_type_are_split_off(tmp_path) -> None:
+    path = tmp_path / "abstract.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 80, ["Abstract"], font="Helvetica-Bold", size=10.0)
+    _lines(c, LEFT, 95, [
+        "Introduction This invented study asked whether herons walk.",
+        "Methods Heron keepers were randomly assigned to two groups.",
+        "Results Keepers who walked slept longer (p = 0.02).",
+        "Conclusions Walking may help. Participants were followed up.",
+    ])
+    _lines(c, LEFT, 170, ["Introduction"], font="Helvetica-Bold", size=12.0)
+    _lines(c, LEFT, 190, FILLER * 3)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    heads = [(s.text, s.section) for s in sentences if s.block == "heading"]
+    for name in ("Methods", "Results", "Conclusions"):
+        assert (name, "abstract") in heads
+    texts = [s.text for s in sentences]
+    assert "Heron keepers were randomly assigned to two groups." in texts
+    assert "Participants were followed up." in texts  # "Participants were": no heading
+    later = next(s for s in sentences if s.text.startswith("Participants in the invented"))
+    assert later.section == "introduction"
+
+
+# -- the shared real articles ------------------------------------------------------------------
+
+
+def _real(name: str) -> Path | None:
+    from robtui.benchmarks.real_pdfs import default_folder
+
+    folder = default_folder()
+    path = folder / name if folder is not None else None
+    return path if path is not None and path.exists() else None
+
+
+def _needs(name: str):
+    return pytest.mark.skipif(_real(name) is None,
+                              reason=f"shared real PDF {name} (../shared/real-pdfs) absent")
+
+
+LANCET = "lancet2018_moxidectin.pdf"
+SPRINGER = "psychopharm2017_marineoil.pdf"
+BMC = "bmcmed2014_limit.pdf"
+
+
+@_needs(LANCET)
+def test_real_bold_summary_subheadings_are_headings() -> None:
+    sentences = _sentences(_real(LANCET))
+    methods = next(s for s in sentences if s.text.startswith("This double-blind, parallel group"))
+    assert methods.section == "abstract"
+    assert sentences[methods.index - 1].text == "Methods"
+    assert sentences[methods.index - 1].block == "heading"
+
+
+@_needs(SPRINGER)
+def test_real_abstract_run_ins_in_the_text_type_and_a_footnote_beside_them() -> None:
+    sentences = _sentences(_real(SPRINGER))
+    texts = [s.text for s in sentences]
+    placebo = next(s for s in sentences if s.text.startswith("PCSO-524® or a matched placebo"))
+    assert placebo.section == "abstract"
+    assert sentences[placebo.index - 1].text == "Methods"
+    joined = next(t for t in texts if t.startswith("Repeated measures ANOVA on post hoc"))
+    assert "learning (p = 0.05) and probability of ADHD" in joined
+
+
+@_needs(BMC)
+def test_real_paragraphs_run_on_past_a_figure_and_between_two_tables() -> None:
+    texts = _texts(_real(BMC), block="body")
+    assert any(t.startswith("Baseline characteristics of the women who completed any "
+                            "questionnaires were similar") for t in texts)
+    assert any(t.startswith("These differences may reflect variations in baseline") for t in texts)
