@@ -11,14 +11,7 @@ import re
 from dataclasses import dataclass, field
 
 from robtui.reading.document import BlockKind, Sentence
-from robtui.reading.sections import (
-    SectionTracker,
-    abstract_run_in,
-    bare_run_in,
-    match_heading,
-    normalise_heading,
-    run_in_heading,
-)
+from robtui.reading.sections import SectionTracker, bare_run_in, match_heading, run_in_heading
 from robtui.reading.sentences import split_sentences
 
 Box = tuple[float, float, float, float]
@@ -107,11 +100,6 @@ class SentenceMaker:
         spans = split_sentences(body)
         for i, (a, b) in enumerate(spans):
             piece = body[a:b]
-            head = abstract_run_in(piece) if tracker.in_abstract else 0
-            if head:
-                tracker.abstract_headings.add(normalise_heading(piece[:head]))
-                self._emit(block, body, [(a, a + head)], tracker.current, kind="heading")
-                a, piece = a + head, piece[head:]
             # A run-in heading opens a paragraph, or stands after a wide gap inside it (text
             # exported from layouts sometimes glues a heading to the paragraph before).
             gap = body[spans[i - 1][1] : a] if i else ""

@@ -346,29 +346,16 @@ def run_in_heading(sentence: str, current: str) -> str | None:
     return match_heading(stripped[:-1], current)
 
 
-# A structured abstract's subheadings may run into their paragraph set in the text's own type
-# (no bold, no stop): "Methods PCSO-524 or a matched placebo ...". Inside an abstract, a
-# sentence opening with up to this many subheading words and then a capital is split there.
-ABSTRACT_RUN_IN_WORDS = 4
 _RUN_IN_ONLY = frozenset({"introduction", "rationale"})  # opens no abstract as a heading would
 
 
-def abstract_run_in(sentence: str) -> int:
-    """Characters of a structured abstract's subheading run into ``sentence`` (0 if none)."""
-    words = sentence.split()
-    if len(words) < 2 or not words[0][:1].isupper():
-        return 0
-    for n in range(min(ABSTRACT_RUN_IN_WORDS, len(words) - 1), 0, -1):
-        prefix = " ".join(words[:n])
-        following = words[n]
-        if prefix.endswith((".", ",", ";", ":")) or not (following[:1].isupper() or following[:1].isdigit()):
-            continue
-        norm = normalise_heading(prefix)
-        if not norm or norm.split()[-1] in {"and", "of", "the"}:
-            continue
-        if norm in _ABSTRACT_PHRASES or norm in _RUN_IN_ONLY or is_abstract_subheading(prefix):
-            return sentence.index(following, len(prefix))
-    return 0
+def abstract_vocabulary(prefix: str) -> bool:
+    """Whether ``prefix`` names a structured abstract's subheading ("Methods", "Main outcome
+    measures", "Trial registration", "Introduction"): a run-in heading when set apart."""
+    norm = normalise_heading(prefix)
+    if not norm or norm.split()[-1] in {"and", "of", "the"} or len(norm.split()) > 4:
+        return False
+    return norm in _ABSTRACT_PHRASES or norm in _RUN_IN_ONLY or is_abstract_subheading(prefix)
 
 
 def bare_run_in(paragraph: str) -> str | None:

@@ -142,29 +142,51 @@ def test_run_in_subheadings_of_a_summary_set_wholly_in_bold(tmp_path) -> None:
     assert methods.section == "abstract" and methods.block == "body"
 
 
-def test_structured_abstract_headings_in_the_text_type_are_split_off(tmp_path) -> None:
+def test_structured_abstract_headings_in_italics_are_split_off(tmp_path) -> None:
+    # A structured abstract whose subheadings run into their text in italics, with no stop
+    # and no wider gap before them: each opens a paragraph and is split off as a heading.
     path = tmp_path / "abstract.pdf"
     c = _canvas(path)
     _lines(c, LEFT, 80, ["Abstract"], font="Helvetica-Bold", size=10.0)
-    _lines(c, LEFT, 95, [
-        "Introduction This invented study asked whether herons walk.",
-        "Methods Heron keepers were randomly assigned to two groups.",
-        "Results Keepers who walked slept longer (p = 0.02).",
-        "Conclusions Walking may help. Participants were followed up.",
-    ])
+    top = 95.0
+    for head, rest in (("Introduction", "This invented study asked whether herons walk."),
+                       ("Methods", "Heron keepers were randomly assigned to two groups."),
+                       ("Results", "Keepers who walked slept longer (p = 0.02)."),
+                       ("Conclusions", "Walking may help. Participants were followed up.")):
+        c.setFont("Times-Italic", 10.0)
+        c.drawString(LEFT, HEIGHT - top, head)
+        c.setFont("Times-Roman", 10.0)
+        c.drawString(LEFT + c.stringWidth(head + " ", "Times-Italic", 10.0), HEIGHT - top, rest)
+        top += 12
     _lines(c, LEFT, 170, ["Introduction"], font="Helvetica-Bold", size=12.0)
     _lines(c, LEFT, 190, FILLER * 3)
     c.showPage()
     c.save()
     sentences = _sentences(path)
     heads = [(s.text, s.section) for s in sentences if s.block == "heading"]
-    for name in ("Methods", "Results", "Conclusions"):
+    for name in ("Introduction", "Methods", "Results", "Conclusions"):
         assert (name, "abstract") in heads
     texts = [s.text for s in sentences]
     assert "Heron keepers were randomly assigned to two groups." in texts
-    assert "Participants were followed up." in texts  # "Participants were": no heading
+    assert "Participants were followed up." in texts
     later = next(s for s in sentences if s.text.startswith("Participants in the invented"))
     assert later.section == "introduction"
+
+
+def test_an_italic_term_opening_a_line_is_no_heading(tmp_path) -> None:
+    path = tmp_path / "emphasis.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 95, ["Herons were counted at dawn on every day of the trial."])
+    c.setFont("Times-Italic", 10.0)
+    c.drawString(LEFT, HEIGHT - 107, "Ardea")
+    c.setFont("Times-Roman", 10.0)
+    c.drawString(LEFT + c.stringWidth("Ardea ", "Times-Italic", 10.0), HEIGHT - 107,
+                 "cinerea was the most common of the birds counted.")
+    _lines(c, LEFT, 119, FILLER)
+    c.showPage()
+    c.save()
+    texts = _texts(path, block="body")
+    assert "Ardea cinerea was the most common of the birds counted." in texts
 
 
 # -- the shared real articles ------------------------------------------------------------------

@@ -19,7 +19,13 @@ from dataclasses import dataclass, field
 from robtui.reading.assemble import is_caption, looks_like_heading
 from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, NUMERIC, PageLines
-from robtui.reading.sections import TOP_LEVEL, match_heading, normalise_heading, run_in_heading
+from robtui.reading.sections import (
+    TOP_LEVEL,
+    abstract_vocabulary,
+    match_heading,
+    normalise_heading,
+    run_in_heading,
+)
 
 # A white band at least this share of the body size tall sets a margin line apart from the text
 # (lines of one paragraph are about 0.2 apart in their glyph boxes; our own setting, no source).
@@ -202,6 +208,7 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             and looks_like_heading(prev.text)
             or is_caption(line.text)
             and not is_caption(current.lines[0].text)
+            or _abstract_run_in_opens(line, prev, body_font)
         )
         if new:
             current = PBlock("body", [line], page.number)
@@ -336,9 +343,22 @@ def _run_in_words(block: PBlock, body_font: str) -> int:
     prefix = " ".join(w.text for w in words[:count])
     if not looks_like_heading(prefix.rstrip(".:")) and run_in_heading(prefix, "methods") is None:
         return 0
-    if not words[0].bold and not prefix.endswith((".", ":")):
+    if not words[0].bold and not prefix.endswith((".", ":")) and not abstract_vocabulary(prefix):
         return 0  # italic or other-font words run into a sentence: emphasis, not a heading
     return count
+
+
+_SENTENCE_END = re.compile(r"[.?!][\"'”’)\]]*$")
+
+
+def _abstract_run_in_opens(line: Line, prev: Line | None, body_font: str) -> bool:
+    """A line opening with a structured abstract's subheading set apart (italic, bold or
+    another font: "Methods PCSO-524 or ...") after a line that ends a sentence starts a new
+    paragraph, even without a wider gap (its run-in heading is then split off)."""
+    if prev is None or not _SENTENCE_END.search(prev.text):
+        return False
+    head = _run_in_words(PBlock("body", [line], 0), body_font)
+    return bool(head) and abstract_vocabulary(" ".join(w.text for w in line.words[:head]))
 
 
 def _body_font(lines: list[Line], body_size: float) -> str:
