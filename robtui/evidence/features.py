@@ -24,6 +24,9 @@ from robtui.evidence.tfidf import SparseRows, TfidfTable
 from robtui.reading.document import SECTION_LABELS, Sentence, top_section
 
 BLOCKS = ("body", "heading", "caption", "table")
+# Block kinds the weights have no column of, scored as the kind they are most like: a
+# figure's text (flowchart boxes, chart labels) is read like a table's cells.
+BLOCK_ALIASES = {"figure": "table"}
 TOP_SECTIONS = tuple(dict.fromkeys(top_section(label) for label in SECTION_LABELS))
 NEIGHBOUR_WINDOW = 2
 # A trial registry's identifier as registries print it (formats from memory, no source):
@@ -108,7 +111,8 @@ def shared_features(
         if label.count(".") == 2:  # a randomisation sub-item's section is also randomisation's
             out[row, section_col[label.rsplit(".", 1)[0]]] = 1.0
         out[row, top_col[top_section(label)]] = 1.0
-        out[row, block_col.get(sentence.block, block_col["body"])] = 1.0
+        kind = BLOCK_ALIASES.get(sentence.block, sentence.block)
+        out[row, block_col.get(kind, block_col["body"])] = 1.0
         count = len(words[row])
         out[row, base] = np.log1p(count) / 5.0
         out[row, base + 1] = 1.0 if count < 5 else 0.0

@@ -114,8 +114,9 @@ def suggestible(sentences: Sequence) -> np.ndarray:
       a registry number.)
     - the reference list (top-level section "references"): other studies' titles, never this
       trial's evidence;
-    - table cells (block "table"): the reader keeps them searchable and quotable, but a row of
-      a table is not the sentence that reports what it shows;
+    - table cells (block "table") and a figure's text (block "figure": flowchart boxes, chart
+      labels): the reader keeps them searchable and quotable, but a row of a table or a box of
+      a flowchart is not the sentence that reports what it shows;
     - fragments (:func:`_fragment`).
     If a document has nothing else, every sentence stays suggestible."""
     keep = np.ones(len(sentences), dtype=bool)
@@ -123,8 +124,8 @@ def suggestible(sentences: Sequence) -> np.ndarray:
         if s.block == "heading":
             keep[i] = not _topic_heading(s.text)
         else:
-            keep[i] = not (s.block == "table" or top_section(s.section) == "references"
-                           or _fragment(s.text))
+            keep[i] = not (s.block in ("table", "figure")
+                           or top_section(s.section) == "references" or _fragment(s.text))
     return keep if keep.any() else np.ones(len(sentences), dtype=bool)
 
 

@@ -83,6 +83,10 @@ class SentenceMaker:
             self._emit(block, body, split_sentences(body), tracker.current)
         elif block.kind == "table":
             self._emit(block, body, _row_spans(body), tracker.current)
+        elif block.kind == "figure":  # a box or a run of lines per row, split into sentences
+            spans = [(a + x, a + y) for a, b in _row_spans(body)
+                     for x, y in split_sentences(body[a:b])]
+            self._emit(block, body, spans, tracker.current)
         elif not self.sentences and len(body.split()) <= 40 and len(split_sentences(body)) == 1:
             # The first block of a report is its title.
             self._emit(block, body, whole, "title")

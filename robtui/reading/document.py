@@ -46,7 +46,9 @@ SECTION_LABELS: tuple[str, ...] = (
     "other",
 )
 
-BlockKind = Literal["body", "heading", "caption", "table"]
+# "figure": the text drawn in a figure (a flowchart's boxes, a chart's labels); searchable and
+# quotable like a table, never prose.
+BlockKind = Literal["body", "heading", "caption", "table", "figure"]
 DocumentKind = Literal["pdf", "txt", "md", "html", "registry"]
 
 

@@ -64,7 +64,7 @@ class TextBuilder:
         block_start = self.length
         first_part = len(self.parts)
         words: list[tuple[int, int, int, Box]] = []
-        if kind == "table":
+        if kind in ("table", "figure"):
             for r, row in enumerate(block.rows):
                 if r:
                     self._put("\n")
@@ -284,7 +284,7 @@ def read_pdf(
                     on_page(number, time.perf_counter() - started)
                 page_warnings.extend(lines.warnings)
                 count = number
-                if lines.lines or lines.tables:
+                if lines.lines or lines.tables or lines.figures:
                     found_text = True
                 else:
                     textless.append(number)

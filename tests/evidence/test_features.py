@@ -60,6 +60,14 @@ def test_shared_features_one_hot_section_block_position():
     assert X[0, SHARED_NAMES.index("short_sentence")] == 1.0
 
 
+def test_a_figures_text_is_scored_as_a_table_cell():
+    sentences = [Sentence(index=0, start=0, end=24, text="Randomly assigned (n=240)",
+                          section="results", block="figure")]
+    X = shared_features(sentences)
+    assert X[0, SHARED_NAMES.index("block=table")] == 1
+    assert X[0, SHARED_NAMES.index("block=body")] == 0
+
+
 def test_neighbour_shifts_and_window():
     v = np.array([0.0, 1.0, 0.0, 0.0, 0.5])
     assert _shift(v, 1).tolist() == [0.0, 0.0, 1.0, 0.0, 0.0]  # previous sentence's value

@@ -186,6 +186,8 @@ def test_references_table_cells_and_fragments_are_never_suggested():
         ("Double-blind trials of invented gels reconsidered.", "references.extra", "body",
          False),  # anything under the reference list
         ("Age, years | 41.2 (9.8) | 40.7 (10.1)", "results", "table", False),  # a table row
+        ("Randomly assigned to the walking group (n=120)", "results", "figure",
+         False),  # a flowchart's box
         ("protocol", "results", "body", False),  # a fragment of one word
         ("registered on 10 May 2031.", "registration", "body", False),  # two words: a piece
         ("Registry: NCT01234567", "registration", "body", True),  # short, but a registry id

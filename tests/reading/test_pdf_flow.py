@@ -236,3 +236,59 @@ def test_real_paragraphs_run_on_past_a_figure_and_between_two_tables() -> None:
     assert any(t.startswith("Baseline characteristics of the women who completed any "
                             "questionnaires were similar") for t in texts)
     assert any(t.startswith("These differences may reflect variations in baseline") for t in texts)
+
+
+# -- figures drawn in vector graphics --------------------------------------------------------
+
+
+def _box(c, x: float, top: float, w: float, h: float, lines: list[str]) -> None:
+    c.setLineWidth(0.6)
+    c.rect(x, HEIGHT - top - h, w, h)
+    _lines(c, x + 4, top + 10, lines, font="Helvetica", size=7.0, leading=8.5)
+
+
+def test_flowchart_box_text_is_a_figure_block_and_a_boxed_panel_stays_prose(tmp_path) -> None:
+    path = tmp_path / "flowchart.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 80, FILLER)
+    _box(c, 120, 160, 150, 24, ["Assessed for eligibility (n=310)"])
+    _box(c, 300, 200, 170, 34, ["Excluded (n=70)", "Did not meet inclusion criteria (n=52)"])
+    _box(c, 120, 250, 150, 24, ["Randomly assigned (n=240)"])
+    _box(c, 60, 310, 150, 24, ["Allocated to walking (n=120)"])
+    _box(c, 260, 310, 150, 24, ["Allocated to resting (n=120)"])
+    for x0, t0, x1, t1 in ((195, 184, 195, 250), (195, 274, 135, 310), (195, 274, 335, 310),
+                           (270, 217, 300, 217)):
+        c.line(x0, HEIGHT - t0, x1, HEIGHT - t1)
+    _lines(c, LEFT, 350, ["Figure 1 Flow of participants through the invented trial."],
+           font="Helvetica", size=8.0)
+    c.setFillGray(0.9)
+    c.rect(LEFT - 4, HEIGHT - 470, 500, 90, stroke=0, fill=1)
+    c.setFillGray(0.0)
+    _lines(c, LEFT, 395, ["Panel: what this invented study adds to what was known before it",
+                          "Keepers who walked with their herons every day slept longer than",
+                          "keepers who rested, and the effect lasted for the whole of the",
+                          "twelve weeks of the trial in both of the invented sites."])
+    _lines(c, LEFT, 500, FILLER)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    figure = [s.text for s in sentences if s.block == "figure"]
+    assert "Randomly assigned (n=240)" in figure
+    assert "Excluded (n=70) Did not meet inclusion criteria (n=52)" in figure
+    body = " ".join(s.text for s in sentences if s.block == "body")
+    assert "Randomly assigned" not in body and "Allocated to walking" not in body
+    assert "Keepers who walked with their herons every day slept longer" in body
+    assert any(s.block == "caption" and s.text.startswith("Figure 1") for s in sentences)
+
+
+@_needs(LANCET)
+def test_real_flowchart_is_a_figure_not_prose() -> None:
+    sentences = _sentences(_real(LANCET))
+    boxes = [s for s in sentences if "randomly allocated treatment" in s.text]
+    assert boxes and all(s.block == "figure" for s in boxes)
+
+
+@_needs(SPRINGER)
+def test_real_chart_titles_are_no_headings() -> None:
+    heads = [s.text for s in _sentences(_real(SPRINGER)) if s.block == "heading"]
+    assert not any("Picture Recogni" in h for h in heads)

@@ -144,7 +144,8 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
 
     kept = [ln for ln in page.lines if not running_line(ln) and not _CONTINUED.match(ln.text)]
     return PageLines(
-        page.number, page.width, page.height, kept, page.tables, page.warnings, page.body_size
+        page.number, page.width, page.height, kept, page.tables, page.warnings, page.body_size,
+        page.figures,
     )
 
 
@@ -182,7 +183,8 @@ def _leading(lines: list[Line]) -> float:
 
 
 def page_blocks(page: PageLines) -> list[PBlock]:
-    """Blocks of one page in reading order: body, heading, caption, aside; tables last."""
+    """Blocks of one page in reading order: body, heading, caption, aside; tables and
+    figures last."""
     plain = page.lines
     leading = _leading(plain)
     body_size = _body_size(plain)
@@ -226,6 +228,9 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             block.kind = "heading"
     for _region, rows in page.tables:
         blocks.append(PBlock("table", [], page.number, rows=_table_rows(rows)))
+    for _region, groups in page.figures:  # one row per drawn box, its lines in one cell
+        rows = [[make_line([w for line in group for w in line.words])] for group in groups]
+        blocks.append(PBlock("figure", [], page.number, rows=rows))
     return blocks
 
 

@@ -13,10 +13,13 @@ import ctypes
 import math
 import re
 from collections import Counter
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 RULE_MAX_HEIGHT = 2.0  # a path this flat (points) is a rule, not a shape
 RULE_MIN_WIDTH = 60.0
+SHAPE_MIN = 3.0  # a path smaller than this both ways (a dot, a glyph-like mark) is no shape
+MAX_SHAPES = 3000  # a page with more drawn paths is vector art: figures are not searched
+Box = tuple[float, float, float, float]
 _SUBSET = re.compile(r"^[A-Z]{6}\+")  # the subset tag of an embedded font
 
 
@@ -45,6 +48,7 @@ class PageGlyphs:
     turned: list[Glyph]  # text drawn at another angle (rotated tables, margin stamps)
     rules: list[tuple[float, float, float]]  # horizontal rules: x0, x1, top
     images: int
+    shapes: list[tuple[float, float, float, float]] = field(default_factory=list)  # drawn paths
 
 
 def _quantise(radians: float) -> int:
@@ -102,18 +106,18 @@ def read_glyphs(page, number: int) -> PageGlyphs:
         chars = _chars(raw, textpage.raw, left, top)
     finally:
         textpage.close()
-    rules, images = _objects(page, left, top)
+    rules, shapes, images = _objects(page, left, top)
     angles = Counter(c.angle for c in chars if not c.text.isspace())
     main = angles.most_common(1)[0][0] if angles else 0
     if main not in (0, -1):
         chars = [_turn(c, main, width, height) for c in chars]
-        rules = []  # rules of a turned page are in the other frame; not worth turning
+        rules, shapes = [], []  # in the other frame; not worth turning
         if main in (90, 270):
             width, height = height, width
         main = 0
     glyphs = [c for c in chars if c.angle == main]
     turned = [c for c in chars if c.angle != main]
-    return PageGlyphs(number, width, height, glyphs, turned, rules, images)
+    return PageGlyphs(number, width, height, glyphs, turned, rules, images, shapes)
 
 
 def _chars(raw, tp, left: float, top: float) -> list[Glyph]:
@@ -180,11 +184,15 @@ def _turn(g: Glyph, angle: int, width: float, height: float) -> Glyph:
     return Glyph(g.text, x0, x1, top, bottom, baseline, g.size, g.font, 0 if g.angle == angle else -1, g.space_before)
 
 
-def _objects(page, left: float, top: float) -> tuple[list[tuple[float, float, float]], int]:
-    """Horizontal rules and the number of images, from the page's top-level objects."""
+def _objects(
+    page, left: float, top: float
+) -> tuple[list[tuple[float, float, float]], list[Box], int]:
+    """Horizontal rules, the bounds of drawn shapes (paths; for figures) and the number of
+    images, from the page's top-level objects; past MAX_SHAPES paths only rules are kept."""
     from pypdfium2 import raw
 
     rules: list[tuple[float, float, float]] = []
+    shapes: list[Box] = []
     images = 0
     x0, y0, x1, y1 = (ctypes.c_float() for _ in range(4))
     handle = page.raw
@@ -193,11 +201,10 @@ def _objects(page, left: float, top: float) -> tuple[list[tuple[float, float, fl
         kind = raw.FPDFPageObj_GetType(obj)
         if kind == raw.FPDF_PAGEOBJ_IMAGE:
             images += 1
-        elif (
-            kind == raw.FPDF_PAGEOBJ_PATH
-            and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1)
-            and y1.value - y0.value <= RULE_MAX_HEIGHT
-            and x1.value - x0.value > RULE_MIN_WIDTH
-        ):
-            rules.append((x0.value - left, x1.value - left, top - y1.value))
-    return rules, images
+        elif kind == raw.FPDF_PAGEOBJ_PATH and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1):
+            w, h = x1.value - x0.value, y1.value - y0.value
+            if h <= RULE_MAX_HEIGHT and w > RULE_MIN_WIDTH:
+                rules.append((x0.value - left, x1.value - left, top - y1.value))
+            if len(shapes) <= MAX_SHAPES and (w >= SHAPE_MIN or h >= SHAPE_MIN):
+                shapes.append((x0.value - left, top - y1.value, x1.value - left, top - y0.value))
+    return rules, shapes, images

@@ -13,6 +13,7 @@ import itertools
 import re
 from dataclasses import dataclass, field
 
+from robtui.reading.assemble import is_caption
 from robtui.reading.layout.columns import (
     Gutter,
     Segment,
@@ -24,6 +25,7 @@ from robtui.reading.layout.columns import (
     segments,
     text_rows,
 )
+from robtui.reading.layout.figures import figure_regions
 from robtui.reading.layout.glyphs import PageGlyphs, _turn
 from robtui.reading.layout.lines import Line, Word, make_line, rows_of
 
@@ -35,6 +37,7 @@ CELL_EM = 1.0  # a gap this wide (share of the body size) separates table cells
 HEAD_WORDS = 8  # two lines this long between a caption and its rules are a paragraph
 PROSE_ROWS = 3  # lines of prose between two rules that part them into two tables
 HEAD_REACH = 12  # a table's caption stands at most this many lines above its first rule
+CAPTION_RUN = 0.8  # a caption's next line starts within this many body sizes below it
 NOTE_GAP = 1.2  # a table's note line follows the one before within this many lines
 _NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+\S")
 _TABLE_CAPTION = re.compile(r"^(?:supplementary\s+)?table\s*[A-Z]?\d+", re.IGNORECASE)
@@ -49,6 +52,7 @@ class PageLines:
     tables: list[tuple[Box, list[Line]]]
     warnings: list[str] = field(default_factory=list)
     body_size: float = 10.0
+    figures: list[tuple[Box, list[list[Line]]]] = field(default_factory=list)  # rows of text
 
 
 def analyse_page(page: PageGlyphs) -> PageLines:
@@ -83,6 +87,13 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
             taken = {id(s) for s in head + inside + notes}
             segs = [s for s in segs if id(s) not in taken]
     tables.extend(_turned_tables(page))
+    figures: list[tuple[Box, list[list[Line]]]] = []
+    kept = _kept_out_of_figures(segs, size, page.height)
+    for region, groups in figure_regions(page.shapes, segs, size, page.width, page.height,
+                                         keep=lambda seg: id(seg) in kept):
+        figures.append((region, [[s.line for s in group] for group in groups]))
+        taken = {id(s) for group in groups for s in group}
+        segs = [s for s in segs if id(s) not in taken]
     blocks = geo_blocks(segs, size)
     ordered = reading_order(blocks)
     warnings = []
@@ -93,7 +104,8 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
         lines = sorted((s.line for s in segs), key=lambda ln: (round(ln.top), ln.x0))
         for line in lines:
             line.column = "full"
-        return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
+        return PageLines(page.number, page.width, page.height, lines, tables, warnings, size,
+                         figures)
     prose = [s.line for s in segs if len(s.line.words) >= 5 and abs(s.line.size - size) <= 0.5]
     text_area = (min(ln.x0 for ln in prose), max(ln.x1 for ln in prose)) if prose else None
     lines: list[Line] = []
@@ -105,7 +117,28 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
         for seg in block.segments:
             seg.line.column = label
             lines.append(seg.line)
-    return PageLines(page.number, page.width, page.height, lines, tables, warnings, size)
+    return PageLines(page.number, page.width, page.height, lines, tables, warnings, size,
+                     figures)
+
+
+def _kept_out_of_figures(segs: list[Segment], size: float, height: float) -> set[int]:
+    """Ids of the lines never read as a figure's text: captions with the lines that run on
+    below them (each within CAPTION_RUN line heights, starting at most a line's height right
+    of the caption's left edge) and the page's margins (running heads, publishers' bands)."""
+    kept: set[int] = set()
+    captions: list[Line] = []
+    for seg in sorted(segs, key=lambda s: s.line.top):
+        line = seg.line
+        if line.bottom < height * MARGIN_SHARE or line.top > height * (1 - MARGIN_SHARE):
+            kept.add(id(seg))
+        if is_caption(line.text) or any(
+            0 <= line.top - cap.bottom <= CAPTION_RUN * size
+            and cap.x0 - size <= line.x0 <= cap.x0 + size and line.x0 < cap.x1
+            for cap in captions
+        ):
+            kept.add(id(seg))
+            captions.append(line)
+    return kept
 
 
 def _side_note(block, width: float, size: float, text_area: tuple[float, float] | None) -> bool:
