@@ -4,7 +4,8 @@ A figure is found from the page's drawn shapes (PDFium path objects: boxes, arro
 bars). Shapes that touch or lie within REACH points of each other form a group; a group of at
 least MIN_SHAPES shapes with text inside it is a figure unless that text reads as prose (lines of
 HEAD_WORDS words or more in the body's size spanning most of the group: a boxed panel, a shaded
-abstract). Lines in the figure are kept out of the body and read as one row per drawn box
+abstract), or a frame's text set in one column with at most one drawn box holding it (a
+registration box). Lines in the figure are kept out of the body and read as one row per drawn box
 (a flowchart's box) or per line. Headings set larger than the body and captions stay where
 they are. Common practice for journal PDFs, our own thresholds, no source.
 """
@@ -21,6 +22,7 @@ MIN_SHAPES = 3
 PROSE_WORDS = 6
 PROSE_SHARE = 0.3  # this share of a group's lines read as prose: a boxed panel, not a figure
 SPAN_SHARE = 0.6  # a prose line spans at least this share of its group's width
+ONE_COLUMN_SHARE = 0.8
 FOLLOW = 1.6  # a loose line within this many line heights below another continues its row
 
 
@@ -84,18 +86,39 @@ def figure_regions(
                     and s.line.x1 - s.line.x0 >= SPAN_SHARE * span for s in inside)
         if prose >= 2 and prose >= PROSE_SHARE * len(inside):
             continue  # a boxed panel of prose
+        if _held_boxes(inside, boxes, region) < 2 and _one_column(inside, size):
+            continue  # text set in one column inside a frame: boxed text, not a drawing
         figures.append((region, _rows(inside, boxes, region)))
     return figures
+
+
+def _small_boxes(boxes: list[Box], region: Box) -> list[Box]:
+    """The drawn boxes of a group that may hold a flowchart's text: not the whole drawing's
+    frame or background, not a line or an arrow head; smallest first."""
+    area = (region[2] - region[0]) * (region[3] - region[1])
+    return sorted((b for b in boxes if (b[2] - b[0]) * (b[3] - b[1]) < 0.5 * area
+                   and b[2] - b[0] > 8 and b[3] - b[1] > 8),
+                  key=lambda b: (b[2] - b[0]) * (b[3] - b[1]))
+
+
+def _held_boxes(inside: list[Segment], boxes: list[Box], region: Box) -> int:
+    """How many of the drawing's small boxes hold some of its text."""
+    return sum(any(_inside(seg, b) for seg in inside) for b in _small_boxes(boxes, region))
+
+
+def _one_column(inside: list[Segment], size: float) -> bool:
+    """Whether nearly all lines (ONE_COLUMN_SHARE) start at one left edge (within a body
+    size): a frame's text, where a flowchart's or a chart's labels start all over."""
+    edges = sorted(seg.line.x0 for seg in inside)
+    middle = edges[len(edges) // 2]
+    return sum(abs(x - middle) <= size for x in edges) >= ONE_COLUMN_SHARE * len(edges)
 
 
 def _rows(inside: list[Segment], boxes: list[Box], region: Box) -> list[list[Segment]]:
     """The figure's lines grouped by the smallest drawn box holding each (a flowchart's box);
     lines in no such box run together while each follows the one before closely (within
     FOLLOW line heights, overlapping it across). Rows in reading order, top to bottom."""
-    area = (region[2] - region[0]) * (region[3] - region[1])
-    small = sorted((b for b in boxes if (b[2] - b[0]) * (b[3] - b[1]) < 0.5 * area
-                    and b[2] - b[0] > 8 and b[3] - b[1] > 8),
-                   key=lambda b: (b[2] - b[0]) * (b[3] - b[1]))
+    small = _small_boxes(boxes, region)
     rows: dict[object, list[Segment]] = {}
     loose: list[list[Segment]] = []
     for seg in sorted(inside, key=lambda s: (round(s.line.top), s.line.x0)):
