@@ -156,12 +156,16 @@ def baseline_scores(sentences: Sequence[str], wordings: Sequence[str], *,
 
 # Independent checks of what a suggestion is (common practice, no source): a reference entry
 # carries a citation pattern or stands after the reference list's heading in pdftotext's
-# reading; a table cell is mostly numbers or has fewer than three words of three letters.
+# reading; a table cell has fewer than three words of three letters, or is mostly numbers with
+# no auxiliary verb (a row of a table is no clause: "Of 412 screened, 240 (58%) were randomised"
+# is the prose that reports the flow, not a cell).
 _CITATION = re.compile(r"\bdoi\b|doi\.org|\b(19|20)\d\d\s*;\s*\d+\s*(\(\w+\))?\s*:\s*\d+|"
                        r"\bet al\b.{0,120}\b(19|20)\d\d\b.{0,40}\b\d+\s*[-:]\s*\d+")
 _REFERENCE_HEADING = re.compile(r"^\s*(references|bibliography|literature cited)\s*$",
                                 re.IGNORECASE | re.MULTILINE)
 _WORD = re.compile(r"[^\W\d_]{3,}")
+_AUXILIARIES = frozenset({"is", "are", "was", "were", "be", "been", "being", "has", "have",
+                          "had", "did", "does", "do"})
 _NUMBER = re.compile(r"^[(\[]?[-+<>=±]?\d[\d.,:%]*[)\]]?[.,;]?$")
 
 
@@ -181,7 +185,8 @@ def looks_like_table_cell(text: str) -> bool:
     if len(_WORD.findall(text)) < 3:
         return True
     numbers = sum(bool(_NUMBER.match(t)) for t in tokens)
-    return numbers / max(len(tokens), 1) >= 0.4
+    clause = any(t.lower().strip(",;:()") in _AUXILIARIES for t in tokens)
+    return numbers / max(len(tokens), 1) >= 0.4 and not clause
 
 
 # --------------------------------------------------------------------------- measuring

@@ -85,6 +85,7 @@ def reading_order(log_odds: np.ndarray, sections: Sequence[str],
 
 TOPIC_HEADING_MAX_WORDS = 4
 QUOTABLE_MIN_WORDS = 3
+TAIL_MIN_WORDS = 6
 _LETTERS = re.compile(r"[^\W\d_]+")
 _WORDS = re.compile(r"[^\W\d_]{3,}")
 _CAPTION_WORDS = frozenset({"table", "figure", "fig"})
@@ -101,9 +102,16 @@ def _topic_heading(text: str) -> bool:
 
 
 def _fragment(text: str) -> bool:
-    """Fewer than three words of three letters or more and no registry number ("protocol",
-    "registered on 10 January 2008."): a piece of a sentence or a cell, no statement."""
-    return len(_WORDS.findall(text)) < QUOTABLE_MIN_WORDS and not REGISTRY_ID.search(text)
+    """A piece of a sentence or a cell, no statement: fewer than three words of three letters
+    or more and no registry number ("protocol", "registered on 10 January 2008."), or the short
+    tail of a sentence that a float or a page cut, starting in lower case ("are shown in
+    table 1."; fewer than six such words: chosen by eye, and no gold sentence of the corpus or
+    of the real PDFs is such a piece)."""
+    words = len(_WORDS.findall(text))
+    if words < QUOTABLE_MIN_WORDS and not REGISTRY_ID.search(text):
+        return True
+    first = text.lstrip()[:1]
+    return first.isalpha() and first.islower() and words < TAIL_MIN_WORDS
 
 
 def suggestible(sentences: Sequence) -> np.ndarray:

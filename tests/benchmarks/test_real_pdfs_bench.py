@@ -67,6 +67,10 @@ def test_baseline_split_and_table_cell_check():
                                         "Then (n = 3) came."]
     assert looks_like_table_cell("12.3 (4.5) 0.02 17")
     assert not looks_like_table_cell("Outcome assessors were masked to treatment allocation.")
+    assert looks_like_table_cell("Total adults 978 494")  # two words: a row label
+    assert looks_like_table_cell("Saliva flow rate 0.58 0.19 0.48 0.17 0.14")
+    # numbers in a clause are prose that reports them (CONSORT's flow), not a cell
+    assert not looks_like_table_cell("Of 4120 adults screened, 1470 (36%) were treated (figure 1).")
 
 
 @needs_real

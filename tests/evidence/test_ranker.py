@@ -192,6 +192,9 @@ def test_references_table_cells_and_fragments_are_never_suggested():
         ("registered on 10 May 2031.", "registration", "body", False),  # two words: a piece
         ("Registry: NCT01234567", "registration", "body", True),  # short, but a registry id
         ("All seven enrolled adults completed.", "results", "body", True),  # short, a statement
+        ("are shown in table 1.", "results", "body", False),  # the tail of a cut sentence
+        ("were examined weekly by an investigator who was blinded to the group.", "methods",
+         "body", True),  # a longer tail still says something
         ("Table 1 Baseline characteristics", "results", "caption", True),  # a caption stays
     ]
     sentences = [Sentence(index=i, start=0, end=len(t), text=t, section=sec, block=b)
