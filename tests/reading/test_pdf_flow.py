@@ -117,6 +117,34 @@ def test_prose_between_two_ruled_tables_is_read_as_prose(tmp_path) -> None:
     assert not any("diary" in t for t in table)
 
 
+def test_column_heads_set_just_below_the_caption_belong_to_the_table(tmp_path) -> None:
+    # The heads sit 6 pt under the caption, in smaller type: not the caption's next line.
+    path = tmp_path / "heads.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 90, ["Table 3 Diet quality by group"], font="Helvetica-Bold", size=9.0)
+    c.setFont("Helvetica", 8.0)
+    for x, head in zip((LEFT, 250.0, 400.0), ("Outcome Time point", "Walking group", "Resting group"),
+                       strict=True):
+        c.drawString(x, HEIGHT - 104, head)
+    c.setLineWidth(0.5)
+    c.line(LEFT, HEIGHT - 110, 545, HEIGHT - 110)
+    top = 122.0
+    for row in (("Fruit, servings", "2.1 (0.8)", "1.9 (0.7)"), ("Vegetables", "3.0 (1.1)", "2.8 (1.0)"),
+                ("Fibre, g", "24.1 (6.0)", "22.9 (5.8)"), ("Sugar, g", "41.0 (9.9)", "43.2 (10.4)")):
+        for x, cell in zip((LEFT, 250.0, 400.0), row, strict=True):
+            c.drawString(x, HEIGHT - top, cell)
+        top += 12
+    c.line(LEFT, HEIGHT - top + 8, 545, HEIGHT - top + 8)
+    _lines(c, LEFT, top + 30, FILLER * 2)
+    _lines(c, RIGHT, top + 30, FILLER * 2)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    table = [s.text for s in sentences if s.block == "table"]
+    assert any("Walking group" in t for t in table)
+    assert not any("Walking group" in s.text for s in sentences if s.block in ("body", "heading"))
+
+
 def test_run_in_subheadings_of_a_summary_set_wholly_in_bold(tmp_path) -> None:
     path = tmp_path / "summary.pdf"
     c = _canvas(path)

@@ -194,7 +194,8 @@ def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
                and x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size
                and s.line is not caption]
     caption_lines = {id(s.line) for s in segs if s.line.top < caption.bottom + size
-                     and s.line.top >= caption.top and s.line.x0 >= caption.x0 - 1}
+                     and s.line.top >= caption.top and s.line.x0 >= caption.x0 - 1
+                     and abs(s.line.size - caption.size) <= 0.3}
     between = [s for s in between if id(s.line) not in caption_lines]
     if sum(len(s.line.words) >= HEAD_WORDS for s in between) >= 2:
         return []  # a paragraph between a caption and the rules: not a head
