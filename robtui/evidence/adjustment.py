@@ -7,8 +7,11 @@ methods sentence, 2.6 wants the one on intention to treat). The second stage re-
 signals the first stage computes anyway: the question's own model, the transfer model, cue
 coverage, similarity to the wording, block kind, length and top-level section. It is a
 linear model (pairwise logistic regression within each article and question), so its
-weights are plain numbers in ``weights/adjustment.npz``; training and its grouped
-cross-validation are in ``evidence/training/real_gold.py``.
+weights are plain numbers in ``weights/adjustment.npz``. It is fitted on both collections at
+once, the real PDFs' gold and the corpus articles (their first-stage scores out of fold), and
+serves only the questions where grouped cross-validation over both found it raising the real
+PDFs' figures without lowering the corpus's; training and its cross-validation are in
+``evidence/training/real_gold.py`` and ``evidence/training/corpus_oof.py``.
 """
 
 from __future__ import annotations
@@ -73,8 +76,8 @@ class Adjustment:
     platt: np.ndarray  # (2,)
     threshold: float  # "no sentence found" below this calibrated top score
     provenance: dict = field(default_factory=dict)
-    # the questions it re-ranks: those whose leave-one-article-out figures it raised (the
-    # others keep the first stage); None: every key
+    # the questions it re-ranks: those whose grouped-CV figures it raised on the real PDFs
+    # without lowering them on the corpus (the others keep the first stage); None: every key
     serves: list[str] | None = None
 
     def __post_init__(self):

@@ -115,3 +115,110 @@ def test_first_rank_counts_only_suggestible_sentences():
     assert first_rank(np.array([0.9, 0.95, 0.5, 0.1]), g) == 2
     assert first_rank(np.array([0.9, 0.95, 0.5, 0.1]),
                       Group("a", "1.1", g.base, np.zeros(4, bool), g.keep)) is None
+
+
+def _signal_group(article, signal_column, labels, rng):
+    """A group whose gold is marked by ``signal_column`` alone (the other columns are noise)."""
+    base = rng.random((len(labels), len(BASE_NAMES))) * 0.3
+    base[:, BASE_NAMES.index(signal_column)] += np.asarray(labels) * 0.7
+    return Group(article, "2.6", base, np.asarray(labels, bool), np.ones(len(labels), bool))
+
+
+def test_the_corpus_weight_decides_which_collection_the_joint_fit_follows():
+    from robtui.evidence.training.corpus_oof import CORPUS_PREFIX
+
+    rng = np.random.default_rng(1)
+    groups = []
+    for a in range(6):
+        labels = np.zeros(20, bool)
+        labels[rng.integers(0, 20)] = True
+        groups.append(_signal_group(f"real{a}.pdf", "cue_best", labels, rng))
+        labels = np.zeros(20, bool)
+        labels[rng.integers(0, 20)] = True
+        groups.append(_signal_group(f"{CORPUS_PREFIX}{a}", "transfer", labels, rng))
+    light = fit(groups, ["2.6"], C=1.0, corpus_weight=0.01)
+    heavy = fit(groups, ["2.6"], C=1.0, corpus_weight=100.0)
+    cue, transfer = BASE_NAMES.index("cue_best"), BASE_NAMES.index("transfer")
+    assert light[cue] > light[transfer]
+    assert heavy[transfer] > heavy[cue]
+
+
+def test_cross_validation_folds_hold_each_real_article_alone_and_the_corpus_in_four():
+    from robtui.evidence.training.corpus_oof import CORPUS_PREFIX
+    from robtui.evidence.training.real_gold import cv_folds
+
+    empty = np.zeros((1, len(BASE_NAMES)))
+    articles = [f"r{i}.pdf" for i in range(3)] + [f"{CORPUS_PREFIX}{i}" for i in range(10)]
+    groups = [Group(a, k, empty, np.ones(1, bool), np.ones(1, bool))
+              for a in articles for k in ("1.1", "2.6")]
+    folds = cv_folds(groups)
+    assert folds[:3] == [{"r0.pdf"}, {"r1.pdf"}, {"r2.pdf"}]
+    assert len(folds) == 7 and sorted(len(f) for f in folds[3:]) == [2, 2, 3, 3]
+    assert sorted(a for f in folds for a in f) == sorted(articles)  # each article once
+
+
+def test_a_question_is_served_only_where_the_real_pdfs_gain_and_the_corpus_loses_nothing():
+    from robtui.evidence.training.real_gold import Figures, serving
+
+    def figs(real, corpus):
+        return Figures([0.0] * 3, [0.0] * 3, real, corpus, {}, {})
+
+    first = figs({"1.1": [0.5, 0.8, 0.9], "2.6": [0.2, 0.4, 0.6], "3.1": [0.3, 0.6, 0.7],
+                  "5.1": [0.9, 1.0, 1.0]},
+                 {"1.1": [0.9, 0.95, 1.0], "2.6": [0.7, 0.9, 1.0], "3.1": [0.8, 0.9, 1.0]})
+    second = figs({"1.1": [0.6, 0.8, 0.9],   # raised on the real PDFs ...
+                   "2.6": [0.5, 0.8, 0.9],   # raised, and the corpus keeps its figures
+                   "3.1": [0.4, 0.7, 0.8],   # raised, but corpus recall@3 falls
+                   "5.1": [0.9, 1.0, 1.0]},  # no corpus groups: the real PDFs decide (no gain)
+                  {"1.1": [0.85, 0.99, 1.0],  # ... but corpus recall@1 falls
+                   "2.6": [0.75, 0.9, 1.0], "3.1": [0.9, 0.85, 1.0]})
+    assert serving(first, second, ["1.1", "2.6", "3.1", "5.1"]) == ["2.6"]
+
+
+def test_the_flag_cut_balances_the_two_collections():
+    from robtui.evidence.training.real_gold import balanced_threshold
+
+    # real PDFs: answerable tops 0.3-0.5, unanswerable 0.1; corpus: 0.8-0.9 and 0.2 (many more)
+    tops = [0.3, 0.4, 0.5, 0.1, 0.1] + [0.8, 0.85, 0.9] * 10 + [0.2] * 10
+    present = [True, True, True, False, False] + [True] * 30 + [False] * 10
+    corpus = [False] * 5 + [True] * 40
+    cut = balanced_threshold(tops, present, corpus)
+    assert 0.2 < cut <= 0.3  # separates both; the corpus alone would put it anywhere to 0.8
+    assert balanced_threshold(tops[:5], present[:5], corpus[:5]) == 0.3
+
+
+def test_figures_pool_the_real_pdfs_and_average_the_corpus_over_questions():
+    from robtui.evidence.training.corpus_oof import CORPUS_PREFIX
+    from robtui.evidence.training.real_gold import figures
+
+    base = np.zeros((3, len(BASE_NAMES)))
+    base[:, 0] = [0.0, 1.0, 2.0]  # the first stage ranks sentence 2 first
+    def g(article, key, gold):
+        labels = np.zeros(3, bool)
+        labels[gold] = True
+        return Group(article, key, base, labels, np.ones(3, bool))
+    groups = [g("a.pdf", "1.1", 2), g("b.pdf", "1.1", 0), g("a.pdf", "2.6", 0),
+              g(CORPUS_PREFIX + "x", "1.1", 2), g(CORPUS_PREFIX + "y", "1.1", 2),
+              g(CORPUS_PREFIX + "x", "2.6", 0)]
+    f = figures(groups, [x.base[:, 0] for x in groups])
+    assert f.real[0] == 1 / 3  # pooled over the three real pairs
+    assert f.corpus[0] == 0.5  # (1.0 for 1.1 + 0.0 for 2.6) / 2
+    second = [-x.base[:, 0] for x in groups]  # ranks sentence 0 first
+    assert figures(groups, second, serves=["2.6"]).corpus[0] == 1.0
+
+
+def test_corpus_groups_cache_round_trips(tmp_path):
+    from robtui.evidence.training.corpus_oof import _load, _save
+
+    rng = np.random.default_rng(2)
+    groups = [Group(f"corpus:A{i}", k, rng.random((n, len(BASE_NAMES))), rng.random(n) < 0.2,
+                    rng.random(n) < 0.9) for i, n in enumerate((5, 7)) for k in ("1.1", "2.6")]
+    path = tmp_path / "oof.npz"
+    _save(path, groups)
+    back = _load(path)
+    assert [(g.article, g.key) for g in back] == [(g.article, g.key) for g in groups]
+    for a, b in zip(back, groups):
+        assert np.array_equal(a.base, b.base) and np.array_equal(a.labels, b.labels)
+        assert np.array_equal(a.keep, b.keep)
+    path.write_bytes(b"damaged")
+    assert _load(path) is None
