@@ -222,3 +222,17 @@ def test_corpus_groups_cache_round_trips(tmp_path):
         assert np.array_equal(a.keep, b.keep)
     path.write_bytes(b"damaged")
     assert _load(path) is None
+
+
+def test_the_fit_does_not_depend_on_the_order_of_the_groups():
+    """Each group draws its random negatives with a seed of its own, so the corpus groups
+    before or after the real ones (training, bench evidence) give the same weights."""
+    rng = np.random.default_rng(3)
+    groups = []
+    for a in range(5):
+        labels = np.zeros(200, bool)  # large enough that negatives are drawn
+        labels[rng.integers(0, 200, size=2)] = True
+        groups.append(_signal_group(f"a{a}.pdf", "cue_best", labels, rng))
+    forward = fit(groups, ["2.6"], C=1.0)
+    backward = fit(groups[::-1], ["2.6"], C=1.0)
+    assert np.allclose(forward, backward, rtol=1e-3, atol=1e-5)
