@@ -236,3 +236,60 @@ def test_the_fit_does_not_depend_on_the_order_of_the_groups():
     forward = fit(groups, ["2.6"], C=1.0)
     backward = fit(groups[::-1], ["2.6"], C=1.0)
     assert np.allclose(forward, backward, rtol=1e-3, atol=1e-5)
+
+
+def test_bench_evidence_prints_the_corpus_with_and_without_the_second_stage(capsys, monkeypatch):
+    """The table of `bench evidence` with the shipped second stage, the first stage alone and
+    the second stage refitted without each fold (stubbed here: it needs the real PDFs)."""
+    from robtui.benchmarks import evidence
+    from robtui.evidence.training.metrics import QuestionFigures
+
+    def figs(ranks):
+        return {k: QuestionFigures.from_ranks(r, [10] * len(r), [0.5] * len(r), [True] * len(r))
+                for k, r in ranks.items()}
+
+    first = figs({"1.1": [1, 1], "2.6": [2, 4]})
+    shipped = figs({"1.1": [1, 1], "2.6": [1, 4]})
+    adjustment = Adjustment(["1.1", "2.6"], np.zeros(len(feature_names(["1.1", "2.6"]))),
+                            np.array([1.0, 0.0]), 0.2, {"C": 0.3, "corpus_weight": 3.0},
+                            serves=["2.6"])
+    monkeypatch.setattr(evidence, "_second_stage_cv", lambda result: {"2.6": [3, 3]})
+    out = evidence.second_stage_table({"figures": {"first txt": first, "model txt": shipped},
+                                       "keys": ["1.1", "2.6"], "adjustment": adjustment})
+    printed = capsys.readouterr().out
+    assert "it serves 2.6" in printed
+    assert out["first stage alone"]["macro"][0] == 0.5  # (1.0 + 0.0) / 2
+    assert out["with the shipped second stage *"]["macro"][0] == 0.75
+    refitted = out["second stage refitted without the fold"]
+    assert refitted["per_question"]["1.1"] == out["first stage alone"]["per_question"]["1.1"]
+    assert refitted["macro"][:2] == [0.5, 1.0]  # 2.6 refitted: recall@1 0, recall@3 1
+
+
+def test_document_features_stand_each_score_against_the_documents_best():
+    from robtui.evidence.adjustment import base_features
+    from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
+
+    model, transfer = np.array([2.0, -1.0, 0.5]), np.array([-3.0, 1.0, 0.0])
+    question = np.zeros((3, len(QUESTION_NAMES)))
+    question[:, QUESTION_NAMES.index("cue_best")] = [1.0, 0.0, 0.5]
+    base = base_features(model, transfer, question, np.zeros((3, len(SHARED_NAMES))))
+    col = {n: base[:, BASE_NAMES.index(n)] for n in ("model_gap", "transfer_gap",
+                                                      "model_x_transfer", "model_x_cue")}
+    assert col["model_gap"].tolist() == [0.0, -3.0, -1.5]
+    assert col["transfer_gap"].tolist() == [-4.0, 0.0, -1.0]
+    p = 1 / (1 + np.exp(-model))
+    assert np.allclose(col["model_x_transfer"], p / (1 + np.exp(-transfer)))
+    assert np.allclose(col["model_x_cue"], p * [1.0, 0.0, 0.5])
+    assert base_features(np.zeros(0), np.zeros(0), question[:0],
+                         np.zeros((0, len(SHARED_NAMES)))).shape == (0, len(BASE_NAMES))
+
+
+def test_equal_figures_summed_in_another_order_are_no_gain():
+    """1/3 + 7/9 - (1/3 + 7/9) can come out as 1e-16: that is not a raise."""
+    from robtui.evidence.training.real_gold import Figures, serving
+
+    same = [3 / 9, 7 / 9, 1.0]
+    first = Figures([0.0] * 3, [0.0] * 3, {"3.1": [0.3333333333333333, 0.7777777777777778, 1.0]},
+                    {}, {}, {})
+    second = Figures([0.0] * 3, [0.0] * 3, {"3.1": same}, {}, {}, {})
+    assert serving(first, second, ["3.1"]) == []

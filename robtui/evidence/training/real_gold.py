@@ -340,7 +340,8 @@ def serving(first: Figures, second: Figures, keys: Sequence[str]) -> list[str]:
     on the real PDFs alone)."""
     out = []
     for k in keys:
-        if k not in second.real_per_key or _raised(second.real_per_key[k], first.real_per_key[k]) <= 0:
+        if k not in second.real_per_key or _raised(second.real_per_key[k],
+                                                   first.real_per_key[k]) <= 1e-9:
             continue
         if k in second.corpus_per_key and any(
                 second.corpus_per_key[k][i] < first.corpus_per_key[k][i] - 1e-9 for i in (0, 1)):
@@ -394,6 +395,42 @@ def balanced_threshold(tops: Sequence[float], present: Sequence[bool],
     return best_cut
 
 
+def calibrate(groups: Sequence[Group], oof: Sequence[np.ndarray],
+              log=print) -> tuple[np.ndarray, float, dict]:
+    """Platt scaling on the grouped-CV scores of both collections, and the "no sentence found"
+    cut on the calibrated top scores of every (article, question), each collection counting
+    the same (balanced_threshold). Every question, not only those served: one model scores
+    them all, and the served ones alone have too few unanswerable pairs to place a cut (one
+    per collection for 2.6 and 3.1). Returns (platt, cut, figures)."""
+    from robtui.evidence.training.metrics import auroc
+    from robtui.evidence.training.train import _fit_platt
+
+    z = np.concatenate(oof)
+    y = np.concatenate([g.labels & g.keep for g in groups]).astype(int)
+    platt = np.array(_fit_platt(z, y, SEED))
+    tops = [float(1 / (1 + np.exp(-np.max(platt[0] * s[g.keep] + platt[1]))))
+            for g, s in zip(groups, oof)]
+    present = [g.answerable for g in groups]
+    in_corpus = [is_corpus(g) for g in groups]
+    cut = balanced_threshold(tops, present, in_corpus)
+    figs = {}
+    for name, pick in (("real PDFs", False), ("corpus", True)):
+        t = [x for x, c in zip(tops, in_corpus) if c == pick]
+        p = [x for x, c in zip(present, in_corpus) if c == pick]
+        if not t:
+            continue
+        a = auroc(t, p)
+        hits = sum(x < cut for x, q in zip(t, p) if q), sum(x < cut for x, q in zip(t, p) if not q)
+        log(f"{name}, every question, second stage by grouped CV: AUROC of the top score "
+            f"{'-' if a is None else f'{a:.2f}'}; 'no sentence found' ({cut:.3f}) on "
+            f"{hits[0]}/{sum(p)} answerable and {hits[1]}/{len(p) - sum(p)} unanswerable pairs")
+        figs[f"flag_{'corpus' if pick else 'real'}"] = {
+            "auroc": a, "flagged_answerable": [hits[0], sum(p)],
+            "flagged_unanswerable": [hits[1], len(p) - sum(p)]}
+    figs["threshold"] = cut
+    return platt, cut, figs
+
+
 # --------------------------------------------------------------------------- report, train
 
 
@@ -422,8 +459,6 @@ def report_and_train(folder: Path, out: Path | None, log=print, *,
                      corpus_dir: Path | None = None) -> dict:
     from robtui.evidence.ranker import load_ranker
     from robtui.evidence.training.corpus_oof import corpus_groups
-    from robtui.evidence.training.metrics import auroc
-    from robtui.evidence.training.train import _fit_platt
 
     gold = load_gold(folder)
     ranker = load_ranker(first_stage_only=True)
@@ -490,29 +525,8 @@ def report_and_train(folder: Path, out: Path | None, log=print, *,
                                   "corpus_first": first.corpus_per_key.get(k),
                                   "corpus_second": every.corpus_per_key.get(k)} for k in keys})
 
-    # calibration on the out-of-fold scores of both collections, then the flag's cut on the
-    # calibrated top scores of the served pairs, each collection counting the same
-    z = np.concatenate(oof)
-    y = np.concatenate([g.labels & g.keep for g in groups]).astype(int)
-    platt = np.array(_fit_platt(z, y, SEED))
-    mine = [(g, s) for g, s in zip(groups, oof) if g.key in serves]
-    tops = [float(1 / (1 + np.exp(-np.max(platt[0] * s[g.keep] + platt[1])))) for g, s in mine]
-    present = [g.answerable for g, _ in mine]
-    in_corpus = [is_corpus(g) for g, _ in mine]
-    cut = balanced_threshold(tops, present, in_corpus)
-    for name, pick in (("real PDFs", False), ("corpus", True)):
-        t = [x for x, c in zip(tops, in_corpus) if c == pick]
-        p = [x for x, c in zip(present, in_corpus) if c == pick]
-        if not t:
-            continue
-        a = auroc(t, p)
-        flagged = sum(x < cut for x, q in zip(t, p) if q), sum(x < cut for x, q in zip(t, p) if not q)
-        log(f"{name}, served questions, grouped CV: AUROC of the top score {a if a is None else round(a, 2)}; "
-            f"'no sentence found' ({cut:.3f}) on {flagged[0]}/{sum(p)} answerable and "
-            f"{flagged[1]}/{len(p) - sum(p)} unanswerable pairs")
-        figs[f"flag_{'corpus' if pick else 'real'}"] = {
-            "auroc": a, "flagged_answerable": [flagged[0], sum(p)],
-            "flagged_unanswerable": [flagged[1], len(p) - sum(p)]}
+    platt, cut, flags = calibrate(groups, oof, log)
+    figs.update(flags)
     figs["threshold"] = cut
     if out is not None:
         coef = fit(groups, keys, C, w)
@@ -535,8 +549,8 @@ def report_and_train(folder: Path, out: Path | None, log=print, *,
             "coefficients": dict(zip(feature_names(keys), [round(float(c), 4) for c in coef])),
             "C": C, "corpus_weight": w, "cross_validation": figs,
             "calibration": "Platt scaling on grouped-CV scores of both collections; threshold "
-                           "by Youden's J averaged over the two collections, on the served "
-                           "questions' calibrated top scores",
+                           "by Youden's J averaged over the two collections, on every "
+                           "question's calibrated top score (calibrate)",
             "first_stage": ranker.provenance.get("settings", {}),
             "date": dt.date.today().isoformat(), "seed": SEED,
         }
