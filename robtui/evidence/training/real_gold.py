@@ -455,8 +455,33 @@ def _halves(groups: Sequence[Group]) -> list[set[str]]:
     return halves
 
 
+def _partition(groups: Sequence[Group], keys: Sequence[str], choose: set[str], test: set[str],
+               h: int, log) -> dict:
+    """One partition: the setting and questions chosen within ``choose``, reported on ``test``."""
+    inner = [g for g in groups if g.article in choose]
+    held = [g for g in groups if g.article in test]
+    (C, w), _ = choose_setting(inner, keys)
+    inner_first = figures(inner, first_stage_scores(inner))
+    serves = serving(inner_first, figures(inner, cv_scores(inner, keys, C, w)), keys)
+    coef = fit(inner, keys, C, w)
+    first = figures(held, first_stage_scores(held))
+    second = figures(held, [design(g.base, g.key, keys) @ coef for g in held], serves)
+    log(f"  partition {h}: chose C={C}, corpus weight {w}, serving {', '.join(serves)}")
+    for line in _both("held-out half, first stage", first) + _both(
+            "held-out half, with second stage", second):
+        log(line)
+    return {"C": C, "corpus_weight": w, "serves": serves,
+            "first_stage": {"real": first.real, "corpus": first.corpus},
+            "second_stage": {"real": second.real, "corpus": second.corpus}}
+
+
 def report_and_train(folder: Path, out: Path | None, log=print, *,
-                     corpus_dir: Path | None = None) -> dict:
+                     corpus_dir: Path | None = None,
+                     setting: tuple[float, float] | None = None) -> dict:
+    """Print the grouped CV and (``out``) write the weights. ``setting``: (C, corpus weight)
+    given rather than chosen, and no partitions (a quick refit after a change of the reader
+    or the candidates; the questions served, the calibration and the cut are still chosen by
+    grouped CV over both collections)."""
     from robtui.evidence.ranker import load_ranker
     from robtui.evidence.training.corpus_oof import corpus_groups
 
@@ -473,29 +498,19 @@ def report_and_train(folder: Path, out: Path | None, log=print, *,
         f"answerable; {len(corpus)} corpus pairs, {sum(g.answerable for g in corpus)} answerable")
     figs: dict = {}
 
-    log("\nTwo partitions (articles at odd / even places of each collection): the setting "
-        "chosen by grouped CV within one half, fitted on it, recall@1/3/5 on the other half")
-    halves = _halves(groups)
-    for h, (choose, test) in enumerate([(halves[0], halves[1]), (halves[1], halves[0])], 1):
-        inner = [g for g in groups if g.article in choose]
-        held = [g for g in groups if g.article in test]
-        (C, w), _ = choose_setting(inner, keys)
-        inner_first = figures(inner, first_stage_scores(inner))
-        serves = serving(inner_first, figures(inner, cv_scores(inner, keys, C, w)), keys)
-        coef = fit(inner, keys, C, w)
-        first = figures(held, first_stage_scores(held))
-        second = figures(held, [design(g.base, g.key, keys) @ coef for g in held], serves)
-        log(f"  partition {h}: chose C={C}, corpus weight {w}, serving {', '.join(serves)}")
-        for line in _both("held-out half, first stage", first) + _both(
-                "held-out half, with second stage", second):
-            log(line)
-        figs[f"partition_{h}"] = {"C": C, "corpus_weight": w, "serves": serves,
-                                  "first_stage": {"real": first.real, "corpus": first.corpus},
-                                  "second_stage": {"real": second.real, "corpus": second.corpus}}
-
-    log("\nAll articles: the setting by grouped CV (each real article alone, the corpus in "
-        f"{CORPUS_FOLDS} folds)")
-    (C, w), table = choose_setting(groups, keys, log=log)
+    if setting is None:
+        log("\nTwo partitions (articles at odd / even places of each collection): the setting "
+            "chosen by grouped CV within one half, fitted on it, recall@1/3/5 on the other half")
+        halves = _halves(groups)
+        for h, (choose, test) in enumerate([(halves[0], halves[1]), (halves[1], halves[0])], 1):
+            figs[f"partition_{h}"] = _partition(groups, keys, choose, test, h, log)
+        log("\nAll articles: the setting by grouped CV (each real article alone, the corpus in "
+            f"{CORPUS_FOLDS} folds)")
+        (C, w), table = choose_setting(groups, keys, log=log)
+    else:
+        (C, w), table = setting, []
+        log(f"\nSetting given: C={C}, corpus weight {w} (not chosen here; no partitions)")
+        figs["setting_given"] = True
     oof = cv_scores(groups, keys, C, w)
     first = figures(groups, first_stage_scores(groups))
     every = figures(groups, oof)
@@ -576,6 +591,9 @@ def main(argv: Sequence[str] | None = None) -> int:
                    help="where to write the weights (default: the shipped file)")
     p.add_argument("--report-only", action="store_true",
                    help="print the cross-validation, write nothing")
+    p.add_argument("--setting", nargs=2, type=float, metavar=("C", "WEIGHT"), default=None,
+                   help="use this C and corpus weight (an earlier run's choice) instead of "
+                        "choosing them, and skip the partitions: a quick refit")
     args = p.parse_args(argv)
     try:
         folder = args.folder or default_folder()
@@ -585,7 +603,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         if corpus is None and not args.no_corpus:
             raise InputError("no corpus found: pass --corpus PATH (the folder holding "
                              "consort-tm/) or --no-corpus")
-        report_and_train(folder, None if args.report_only else args.out, corpus_dir=corpus)
+        report_and_train(folder, None if args.report_only else args.out, corpus_dir=corpus,
+                         setting=tuple(args.setting) if args.setting else None)
     except RobtuiError as error:
         print(f"robtui: {error}", file=sys.stderr)
         return 2
