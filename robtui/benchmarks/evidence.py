@@ -20,7 +20,7 @@ import subprocess
 import sys
 import tempfile
 import time
-from dataclasses import asdict
+from dataclasses import asdict, fields
 from pathlib import Path
 
 import numpy as np
@@ -41,6 +41,20 @@ def _parser() -> argparse.ArgumentParser:
                    help="rank without the shipped second stage (evidence/adjustment.py)")
     p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
     return p
+
+
+def _settings_from_shipped():
+    from robtui.errors import ModelFileError
+    from robtui.evidence.model import load_weights
+    from robtui.evidence.training.train import Settings
+
+    try:
+        shipped = load_weights().provenance.get("settings", {})
+    except ModelFileError:
+        shipped = {}
+    known = {f.name for f in fields(Settings)}
+    values = {k: (tuple(v) if isinstance(v, list) else v) for k, v in shipped.items() if k in known}
+    return Settings(**values)
 
 
 def _scores_for(ranker, doc, keys, texts):
@@ -145,13 +159,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     )
     from robtui.evidence.training.corpus import load_corpus, load_mapping
     from robtui.evidence.training.corpus_docs import labelled_documents
-    from robtui.evidence.training.corpus_oof import oof_groups
-    from robtui.evidence.training.train import (
-        fit_weights,
-        prepare,
-        question_texts,
-        shipped_settings,
-    )
+    from robtui.evidence.training.train import fit_weights, prepare, question_texts
 
     adjustment = load_adjustment() if second_stage else None
     print("second stage: " + ("the shipped one (weights/adjustment.npz) on each fold's first "
@@ -161,7 +169,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     corpus = corpus[:articles] if articles else corpus
     keys = list(mapping.questions)
     texts = question_texts()
-    settings = shipped_settings()
+    settings = _settings_from_shipped()
     t0 = time.perf_counter()
     txt_docs = labelled_documents(corpus, mapping, "txt")
     print(f"read {len(txt_docs)} articles as text in {time.perf_counter() - t0:.1f} s")
@@ -176,22 +184,18 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
               f"{time.perf_counter() - t0:.1f} s ({lost} of {total} PDF sentences not aligned "
               "to the source text; they count as non-hits)")
     tallies = {name: Tally() for name in ("model txt", "model pdf", "spread txt", "spread pdf",
-                                          "first txt", "first pdf", "baseline txt",
-                                          "baseline pdf", "transfer txt")}
-    flagged_first = {"with": [0, 0], "without": [0, 0]}
-    groups = []  # real_gold.Group per (article, question): the second stage's grouped CV
+                                          "baseline txt", "baseline pdf", "transfer txt")}
     calib: list[tuple[float, bool]] = []
     thresholds = []
     flagged = {"with": [0, 0], "without": [0, 0]}  # [flagged as no evidence, total]
-    split = GroupKFold(n_splits=folds).split(txt_docs, groups=np.arange(len(txt_docs)))
-    for fold, (train, test) in enumerate(split):
+    groups = np.arange(len(txt_docs))
+    for fold, (train, test) in enumerate(GroupKFold(n_splits=folds).split(txt_docs, groups=groups)):
         t0 = time.perf_counter()
         train_docs = [txt_docs[i] for i in train]
         prep = prepare(train_docs, keys, settings, texts)
         weights = fit_weights(train_docs, keys, settings, texts, prepared=prep,
                               item_map=mapping.questions)
         ranker = Ranker(weights, adjustment=adjustment)
-        first_stage = Ranker(weights, ranker.cues) if adjustment else None
         thresholds.append(weights.no_evidence_threshold)
         # transfer model, leave one question (and those sharing its items) out
         from sklearn.linear_model import LogisticRegression
@@ -224,18 +228,10 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                         candidate_order(base[key], keep, *layout, spread=False))
                     if route == "txt":
                         calib.extend(zip(scores[key].tolist(), labels.tolist()))
-                        _flag(flagged, scores[key], by_score, present, ranker.threshold_for(key))
-                if first_stage is not None:
-                    scores, _, logits = _scores_for(first_stage, doc, keys, texts)
-                    for key in keys:
-                        labels, present = doc.labels[key], doc.present[key]
-                        by_score = candidate_order(logits[key], keep, *layout, spread=False)
-                        tallies[f"first {route}"].add(key, scores[key], labels, present, by_score)
-                        if route == "txt":
-                            _flag(flagged_first, scores[key], by_score, present,
-                                  first_stage.threshold_for(key))
-                if route == "txt" and adjustment is not None:
-                    groups += oof_groups(first_stage, doc, adjustment.keys, texts)
+                        top = float(scores[key][by_score[0]]) if len(by_score) else 0.0
+                        side = "with" if present else "without"
+                        flagged[side][0] += top < ranker.threshold_for(key)
+                        flagged[side][1] += 1
                 if route == "txt":
                     feats = ranker.features(doc.document)
                     blocks = ranker.question_blocks(feats, keys, [texts.get(k, "") for k in keys])
@@ -253,82 +249,8 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         "calibration": _calibration(calib),
         "thresholds": thresholds,
         "flagged": flagged,
-        "flagged_first": flagged_first if adjustment else None,
         "settings": asdict(settings),
-        "groups": groups,
-        "adjustment": adjustment,
     }
-
-
-def _flag(counts: dict, scores: np.ndarray, order: np.ndarray, present: bool, cut: float) -> None:
-    """Count one (article, question) as flagged "no sentence found" or not, by its side."""
-    top = float(scores[order[0]]) if len(order) else 0.0
-    side = "with" if present else "without"
-    counts[side][0] += top < cut
-    counts[side][1] += 1
-
-
-def _second_stage_cv(result: dict) -> dict[str, list[int | None]] | None:
-    """Per served key, the corpus articles' ranks with the second stage refitted without each
-    article's fold (real_gold.cv_scores over these groups and the real PDFs' groups, the shipped
-    C and corpus weight); None when the real PDFs are absent."""
-    from robtui.evidence.ranker import load_ranker
-    from robtui.evidence.training.real_gold import (
-        cv_scores,
-        default_folder,
-        first_rank,
-        gather,
-        is_corpus,
-        load_gold,
-    )
-
-    folder = default_folder()
-    if folder is None:
-        return None
-    adjustment = result["adjustment"]
-    real = gather(folder, load_gold(folder), load_ranker(first_stage_only=True),
-                  log=lambda *_: None)
-    groups = result["groups"] + real
-    provenance = adjustment.provenance
-    scores = cv_scores(groups, adjustment.keys, float(provenance.get("C", 1.0)),
-                       float(provenance.get("corpus_weight", 1.0)))
-    ranks: dict[str, list[int | None]] = {}
-    for g, z in zip(groups, scores):
-        if is_corpus(g) and g.answerable and g.key in adjustment.serves:
-            ranks.setdefault(g.key, []).append(first_rank(z, g))
-    return ranks
-
-
-def second_stage_table(result: dict) -> dict:
-    """Print the corpus figures with and without the second stage, from the same folds."""
-    figs, keys, adjustment = result["figures"], result["keys"], result["adjustment"]
-    serves = [k for k in keys if k in adjustment.serves]
-    print("\nThe second stage on the corpus (.txt; every row's first stage trained on the "
-          f"other folds; it serves {', '.join(serves)}, the other questions keep the first stage)")
-    rows = {"first stage alone": {k: (f.recall1, f.recall3, f.recall5)
-                                  for k, f in figs["first txt"].items()},
-            "with the shipped second stage *": {k: (f.recall1, f.recall3, f.recall5)
-                                                for k, f in figs["model txt"].items()}}
-    cv = _second_stage_cv(result)
-    if cv is not None:
-        from robtui.evidence.training.real_gold import recalls
-
-        rows["second stage refitted without the fold"] = {
-            k: tuple(recalls(cv[k])) if k in cv else v for k, v in rows["first stage alone"].items()}
-    print("                                          macro R@1   R@3   R@5 | R@1 per question: "
-          + " ".join(f"{k:>4}" for k in keys))
-    out = {}
-    for label, per_key in rows.items():
-        means = [float(np.mean([per_key[k][i] for k in keys if k in per_key])) for i in range(3)]
-        out[label] = {"macro": means, "per_question": per_key}
-        print(f"  {label:<40} {means[0]:5.3f} {means[1]:5.3f} {means[2]:5.3f} |"
-              + " " * 19 + " ".join(f"{per_key[k][0]:4.2f}" if k in per_key else "   -"
-                                    for k in keys))
-    print("  * fitted on these articles' labels too (their first-stage scores out of fold, "
-          "training/corpus_oof.py): in-sample for the second stage; "
-          + ("the last row refits it without each article's fold (with the real PDFs' gold)"
-             if cv is not None else "the real PDFs are absent: no refitted row"))
-    return out
 
 
 def _speed(corpus_dir: Path | None) -> dict:
@@ -449,11 +371,6 @@ def main(argv: list[str] | None = None) -> int:
     print(f"No-evidence threshold per fold: {', '.join(f'{t:.3f}' for t in result['thresholds'])}; "
           f"flagged 'no sentence found' for {f['without'][0]}/{f['without'][1]} (article, question) "
           f"pairs without gold evidence and {f['with'][0]}/{f['with'][1]} with it")
-    if result["flagged_first"] is not None:
-        f = result["flagged_first"]
-        print(f"  the first stage alone (its own thresholds): {f['without'][0]}/{f['without'][1]} "
-              f"without gold evidence and {f['with'][0]}/{f['with'][1]} with it")
-        second = second_stage_table(result)
     from robtui.evidence.training.metrics import macro
 
     m = {n: {a: macro(figs[n], a) for a in ("recall1", "recall3")} for n in figs}
@@ -474,7 +391,6 @@ def main(argv: list[str] | None = None) -> int:
     _write_json(args.json, {
         "figures": {n: {k: asdict(v) for k, v in f.items()} for n, f in figs.items()},
         "calibration": result["calibration"], "speed": speed, "settings": result["settings"],
-        "second_stage": second if result["flagged_first"] is not None else None,
     })
     return 0
 

@@ -183,10 +183,11 @@ def rotations(review: list, parts: int) -> list[tuple[list, list]]:
 
 
 def main(argv: list[str] | None = None) -> int:
+    from robtui.benchmarks.evidence import _settings_from_shipped
     from robtui.errors import InputError
     from robtui.evidence.training.corpus import default_corpus_dir, load_corpus, load_mapping
     from robtui.evidence.training.corpus_docs import labelled_documents
-    from robtui.evidence.training.train import question_texts, shipped_settings
+    from robtui.evidence.training.train import question_texts
 
     args = _parser().parse_args(argv)
     corpus_dir = args.corpus or default_corpus_dir()
@@ -199,7 +200,7 @@ def main(argv: list[str] | None = None) -> int:
         raise InputError(f"too few articles ({len(articles)}) for {args.parts} parts per half")
     keys = list(mapping.questions)
     texts = question_texts()
-    settings = shipped_settings()
+    settings = _settings_from_shipped()
     t0 = time.perf_counter()
     docs = labelled_documents(articles, mapping, "txt")
     half = len(docs) // 2

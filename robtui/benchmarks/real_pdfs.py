@@ -403,31 +403,15 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
 
 
 def leave_one_article_out(pairs: Sequence[Pair], groups: Sequence, ranker) -> float | None:
-    """Fill each pair's ``loao_rank``: the shipped second stage's features, C, corpus weight and
-    questions served (the first stage ranks the others), its weights fitted without the
-    article's gold (the honest figure on articles it was trained on): on the other articles
-    and, when it was fitted jointly, the corpus groups (training/corpus_oof.py, cached).
-    Returns the C used; None (and nothing filled) when the ranker has no second stage or its
-    corpus is absent."""
+    """Fill each pair's ``loao_rank``: the shipped second stage's features, C and questions
+    served (the first stage ranks the others), its weights fitted on the other articles' gold only (the honest figure on articles it was trained on).
+    Returns the C used; None (and nothing filled) when the ranker has no second stage."""
     from robtui.evidence.training.real_gold import first_rank, loao_scores
 
     if ranker.adjustment is None:
         return None
-    provenance = ranker.adjustment.provenance
-    C = float(provenance.get("C", 1.0))
-    weight = provenance.get("corpus_weight")
-    if weight is not None:
-        from robtui.evidence.training.corpus import default_corpus_dir
-        from robtui.evidence.training.corpus_oof import corpus_groups
-
-        corpus = default_corpus_dir()
-        if corpus is None:
-            print("  the second stage was fitted with the corpus, which is absent ($ROBTUI_CORPUS):"
-                  " no leave-one-article-out row")
-            return None
-        groups = list(groups) + corpus_groups(corpus, ranker.adjustment.keys,
-                                              log=lambda line: print(f"  {line}"))
-    scores = loao_scores(groups, ranker.adjustment.keys, C, float(weight or 1.0))
+    C = float(ranker.adjustment.provenance.get("C", 1.0))
+    scores = loao_scores(groups, ranker.adjustment.keys, C)
     serves = ranker.adjustment.serves
     by_pair = {(g.article, g.key): first_rank(s if g.key in serves else g.base[:, 0], g)
                for g, s in zip(groups, scores)}
@@ -788,8 +772,7 @@ def main(argv: list[str] | None = None) -> int:
     if len(names) > 1:
         C = leave_one_article_out(pairs, groups, ranker)
         if C is not None:
-            print(f"  second stage refitted leaving each article out (C={C}, corpus weight "
-                  f"{ranker.adjustment.provenance.get('corpus_weight', '-')}, as shipped)")
+            print(f"  second stage refitted leaving each article out (C={C}, as shipped)")
     figures = report(readings, pairs)
     figures["planted"] = report_planted(planted)
     if args.misses:

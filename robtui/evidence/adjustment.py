@@ -7,11 +7,8 @@ methods sentence, 2.6 wants the one on intention to treat). The second stage re-
 signals the first stage computes anyway: the question's own model, the transfer model, cue
 coverage, similarity to the wording, block kind, length and top-level section. It is a
 linear model (pairwise logistic regression within each article and question), so its
-weights are plain numbers in ``weights/adjustment.npz``. It is fitted on both collections at
-once, the real PDFs' gold and the corpus articles (their first-stage scores out of fold), and
-serves only the questions where grouped cross-validation over both found it raising the real
-PDFs' figures without lowering the corpus's; training and its cross-validation are in
-``evidence/training/real_gold.py`` and ``evidence/training/corpus_oof.py``.
+weights are plain numbers in ``weights/adjustment.npz``; training and its grouped
+cross-validation are in ``evidence/training/real_gold.py``.
 """
 
 from __future__ import annotations
@@ -29,21 +26,15 @@ from robtui.errors import ModelFileError
 from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
 
 DEFAULT_ADJUSTMENT = Path(__file__).with_name("weights") / "adjustment.npz"
-ADJUSTMENT_FORMAT = 2  # 2: the document features (_DOCUMENT_USED)
+ADJUSTMENT_FORMAT = 1
 CLIP = 12.0  # log-odds beyond this say nothing more about the order
 _SHARED_USED = ("block=heading", "block=caption", "block=table", "short_sentence", "log_length",
                 "registry_id", "after_heading", "top=abstract", "top=introduction",
                 "top=methods", "top=results", "top=discussion", "top=other")
 _QUESTION_USED = ("cue_best", "cue_full", "cue_window", "cue_heading", "question_similarity",
                   "question_similarity_window", "in_expected_section", "in_expected_top_section")
-# Within the document: how far each first-stage score stands below the document's best, and
-# the two stages' agreement (the question model's probability times the transfer model's, and
-# times the best cue's coverage): the corpus and the real PDFs disagree on how far to trust
-# the question's own model, and these say where it stands out and where the others concur.
-_DOCUMENT_USED = ("model_gap", "transfer_gap", "model_x_transfer", "model_x_cue")
 # Shared features, then per-question copies of the first stage's two scores and best cue.
-BASE_NAMES: tuple[str, ...] = (("model", "transfer") + _QUESTION_USED + _SHARED_USED
-                               + _DOCUMENT_USED)
+BASE_NAMES: tuple[str, ...] = ("model", "transfer") + _QUESTION_USED + _SHARED_USED
 PER_QUESTION = ("model", "transfer", "cue_best")
 _Q_COLS = [QUESTION_NAMES.index(n) for n in _QUESTION_USED]
 _S_COLS = [SHARED_NAMES.index(n) for n in _SHARED_USED]
@@ -56,17 +47,9 @@ def feature_names(keys: tuple[str, ...] | list[str]) -> list[str]:
 def base_features(model: np.ndarray, transfer: np.ndarray, question: np.ndarray,
                   shared: np.ndarray) -> np.ndarray:
     """(n, len(BASE_NAMES)) for one question: its first-stage log-odds (own model, transfer
-    model), its question features, the layout features used, and the document features."""
-    model, transfer = np.clip(model, -CLIP, CLIP), np.clip(transfer, -CLIP, CLIP)
-    cue = question[:, QUESTION_NAMES.index("cue_best")]
-    if len(model):
-        p_model = 1.0 / (1.0 + np.exp(-model))
-        document = [model - model.max(), transfer - transfer.max(),
-                    p_model / (1.0 + np.exp(-transfer)), p_model * cue]
-    else:
-        document = [np.zeros(0)] * len(_DOCUMENT_USED)
-    return np.column_stack([model, transfer, question[:, _Q_COLS], shared[:, _S_COLS],
-                            *document])
+    model), its question features and the layout features used."""
+    return np.column_stack([np.clip(model, -CLIP, CLIP), np.clip(transfer, -CLIP, CLIP),
+                            question[:, _Q_COLS], shared[:, _S_COLS]])
 
 
 def design(base: np.ndarray, key: str, keys: list[str] | tuple[str, ...]) -> np.ndarray:
@@ -90,8 +73,8 @@ class Adjustment:
     platt: np.ndarray  # (2,)
     threshold: float  # "no sentence found" below this calibrated top score
     provenance: dict = field(default_factory=dict)
-    # the questions it re-ranks: those whose grouped-CV figures it raised on the real PDFs
-    # without lowering them on the corpus (the others keep the first stage); None: every key
+    # the questions it re-ranks: those whose leave-one-article-out figures it raised (the
+    # others keep the first stage); None: every key
     serves: list[str] | None = None
 
     def __post_init__(self):

@@ -1,31 +1,22 @@
-"""The second stage of the ranker (evidence/adjustment.py), learned on real published PDFs
-and the corpus together.
+"""The second stage of the ranker (evidence/adjustment.py), learned on real published PDFs.
 
-    python -m robtui.evidence.training.real_gold [--folder PATH] [--corpus PATH] [--out FILE]
-                                                 [--report-only] [--no-corpus]
+    python -m robtui.evidence.training.real_gold [--folder PATH] [--out FILE] [--report-only]
 
-Reads the articles of ``../shared/real-pdfs`` with robtui's own reader and labels each
-sentence by the gold snippets of ``gold.json`` with the hit rule of that folder's README (the
-one ``robtui bench real-pdfs`` scores with); adds the corpus articles of ``../shared/corpus``
-labelled by the question-to-item mapping, each scored by a first stage trained without it
-(training/corpus_oof.py: the shipped first stage has seen them, and its in-sample scores would
-teach the second stage to trust it blindly). One pairwise logistic regression (scikit-learn,
-lbfgs) is fitted on within-(article, question) differences between gold sentences and the
-rest, over the first stage's scores and a few features (adjustment.BASE_NAMES, plus a copy of
-three of them per question); a corpus group weighs ``corpus_weight`` times a real one. Nothing
-of the articles is stored: only coefficients.
+Reads the articles of ``../shared/real-pdfs`` with robtui's own reader, labels each sentence
+by the gold snippets of ``gold.json`` with the hit rule of that folder's README (the one
+``robtui bench real-pdfs`` scores with), and fits one pairwise logistic regression
+(scikit-learn, lbfgs) on within-(article, question) differences between gold sentences and
+the rest, over the first stage's scores and a few features (adjustment.BASE_NAMES, plus a
+copy of three of them per question). Nothing of the articles is stored: only coefficients.
 
-Grouped cross-validation by article over both collections, as the project's rules ask of
-anything tuned on real gold (each real article alone, the corpus in CORPUS_FOLDS folds):
-- the setting (C, corpus weight) is chosen among those whose corpus macro recall@1 and @3 are
-  not below the first stage's, by the real PDFs' pooled recall@1, then recall@3;
-- it serves only the questions whose real-PDF recall@1 + recall@3 it raised and whose corpus
-  recall@1 and recall@3 it did not lower (serving); the others keep the first stage;
-- two partitions (odd and even places of each collection): the setting and the questions
-  chosen within one half, reported on the other half for both collections, and the reverse;
-- calibration (Platt scaling) on the grouped-CV scores of both collections, and the "no sentence
-  found" cut by Youden's J averaged over the two collections.
-``robtui bench evidence`` prints the corpus figures with and without it from the same folds.
+Grouped cross-validation, as the project's rules ask of anything tuned on real gold:
+- leave one article out: recall@1/3/5 per question and pooled, beside the first stage alone;
+- two partitions (the articles in gold.json order, odd and even places): the regularisation C
+  chosen by leave-one-article-out within one half, reported on the other half, and the reverse;
+- the C shipped is the one chosen by leave-one-article-out on all articles; the calibration
+  (Platt scaling) and the "no sentence found" cut (Youden's J on top scores, answerable vs
+  not) are fitted on the leave-one-article-out scores.
+Check the corpus figures too (``robtui bench evidence``): the second stage applies there.
 """
 
 from __future__ import annotations
@@ -36,7 +27,6 @@ import os
 import re
 import sys
 import unicodedata
-import zlib
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -51,20 +41,13 @@ from robtui.evidence.adjustment import (
     feature_names,
     save_adjustment,
 )
-from robtui.evidence.training.corpus_oof import CORPUS_PREFIX
 
 FOLDER_ENV = "ROBTUI_REAL_PDFS"
 # The scoring the gold's README suggests (../shared/real-pdfs/README.md).
 MIN_PARTIAL_RATIO = 90.0
 MIN_LENGTH_SHARE = 0.6
 QUESTIONS = ("1.1", "1.2", "1.3", "2.1", "2.2", "2.6", "3.1", "4.3", "5.1")
-C_GRID = (0.03, 0.3)
-# Weight of one corpus group against one real-PDF group (the corpus has some three times as
-# many answerable groups): a grid for grouped CV, never set by hand.
-CORPUS_WEIGHTS = (0.3, 1.0, 3.0, 10.0)
-CORPUS_FOLDS = 4
-PAIR_HARD = 30  # as train.Settings.pair_hard
-PAIR_RANDOM = 30
+C_GRID = (0.03, 0.1, 0.3, 1.0, 3.0, 10.0)
 SEED = 20261203
 
 
@@ -204,46 +187,22 @@ def _rows(groups: Sequence[Group], keys: Sequence[str]) -> list[np.ndarray]:
     return [design(g.base, g.key, keys) for g in groups]
 
 
-def is_corpus(group: Group) -> bool:
-    return group.article.startswith(CORPUS_PREFIX)
-
-
-def _negatives(g: Group) -> np.ndarray:
-    """The negatives a group's positives are paired with: all of them in a small group, else
-    the PAIR_HARD best by each first-stage score (own model, transfer model) and PAIR_RANDOM
-    others drawn with a seed of the group's own (the same draw in any company and order;
-    train.py pairs the corpus models' differences the same way)."""
-    neg = np.nonzero(~g.labels & g.keep)[0]
-    if len(neg) <= 2 * PAIR_HARD + PAIR_RANDOM:
-        return neg
-    hard = {int(i) for column in (0, 1)
-            for i in neg[np.argsort(-g.base[neg, column], kind="stable")[:PAIR_HARD]]}
-    rest = np.array([i for i in neg if int(i) not in hard])
-    rng = np.random.default_rng([SEED, zlib.crc32(f"{g.article}\t{g.key}".encode())])
-    drawn = rng.choice(rest, size=min(PAIR_RANDOM, len(rest)), replace=False)
-    return np.sort(np.concatenate([np.array(sorted(hard)), drawn]))
-
-
-def fit(groups: Sequence[Group], keys: Sequence[str], C: float,
-        corpus_weight: float = 1.0) -> np.ndarray:
+def fit(groups: Sequence[Group], keys: Sequence[str], C: float) -> np.ndarray:
     """Pairwise logistic regression (no intercept) on gold-minus-other differences within each
-    (article, question); both orders, so the classes balance. Each real-PDF group weighs 1,
-    each corpus group ``corpus_weight`` (the corpus has some three times as many)."""
+    (article, question); both orders, so the classes balance. Each group weighs the same."""
     from sklearn.linear_model import LogisticRegression
 
     diffs, weights = [], []
     for g, X in zip(groups, _rows(groups, keys)):
         pos = np.nonzero(g.labels & g.keep)[0]
-        neg = _negatives(g)
+        neg = np.nonzero(~g.labels & g.keep)[0]
         if not len(pos) or not len(neg):
             continue
         d = (X[pos][:, None, :] - X[neg][None, :, :]).reshape(-1, X.shape[1])
         diffs.append(d)
-        weights.append(np.full(len(d), (corpus_weight if is_corpus(g) else 1.0) / len(d)))
+        weights.append(np.full(len(d), 1.0 / len(d)))
     D = np.vstack(diffs)
-    # as many units as real groups on each real group (so C means what it meant when the
-    # second stage was fitted on the real PDFs alone), ``corpus_weight`` times that on a corpus one
-    w = np.concatenate(weights) * max(sum(not is_corpus(g) for g in groups), 1)
+    w = np.concatenate(weights) * len(diffs)
     X = np.vstack([D, -D])
     y = np.concatenate([np.ones(len(D)), np.zeros(len(D))])
     model = LogisticRegression(C=C, fit_intercept=False, solver="lbfgs", max_iter=5000,
@@ -260,34 +219,16 @@ def first_rank(scores: np.ndarray, g: Group) -> int | None:
     return int(hits[0]) + 1 if len(hits) else None
 
 
-def cv_folds(groups: Sequence[Group], corpus_folds: int = CORPUS_FOLDS) -> list[set[str]]:
-    """The articles of each fold: every real article alone (leave one article out), and the
-    corpus articles in ``corpus_folds`` folds by their order (every k-th article)."""
-    real = [a for a in dict.fromkeys(g.article for g in groups) if not a.startswith(CORPUS_PREFIX)]
-    corpus = [a for a in dict.fromkeys(g.article for g in groups) if a.startswith(CORPUS_PREFIX)]
-    folds = [{a} for a in real]
-    k = min(corpus_folds, len(corpus))
-    folds += [set(corpus[i::k]) for i in range(k)]
-    return folds
-
-
-def cv_scores(groups: Sequence[Group], keys: Sequence[str], C: float, corpus_weight: float = 1.0,
-              folds: Sequence[set[str]] | None = None) -> list[np.ndarray]:
-    """Each group's scores by a model fitted without its fold's articles (cv_folds)."""
+def loao_scores(groups: Sequence[Group], keys: Sequence[str], C: float) -> list[np.ndarray]:
+    """Each group's scores by a model fitted on the other articles."""
     out: list[np.ndarray | None] = [None] * len(groups)
-    for held in folds if folds is not None else cv_folds(groups):
-        train = [g for g in groups if g.article not in held]
-        coef = fit(train, keys, C, corpus_weight)
+    for article in dict.fromkeys(g.article for g in groups):
+        train = [g for g in groups if g.article != article]
+        coef = fit(train, keys, C)
         for i, g in enumerate(groups):
-            if g.article in held:
+            if g.article == article:
                 out[i] = design(g.base, g.key, keys) @ coef
     return out  # type: ignore[return-value]
-
-
-def loao_scores(groups: Sequence[Group], keys: Sequence[str], C: float,
-                corpus_weight: float = 1.0) -> list[np.ndarray]:
-    """Each group's scores by a model fitted on the other articles (corpus folds as cv_folds)."""
-    return cv_scores(groups, keys, C, corpus_weight)
 
 
 def recalls(ranks: Sequence[int | None]) -> list[float]:
@@ -295,316 +236,137 @@ def recalls(ranks: Sequence[int | None]) -> list[float]:
             for k in (1, 3, 5)]
 
 
-@dataclass(frozen=True)
-class Figures:
-    """Recall@1/3/5 of one collection: the real PDFs pooled over answerable pairs (as `bench
-    real-pdfs`), the corpus macro-averaged over questions (as `bench evidence`); per key."""
-
-    real: list[float]
-    corpus: list[float]
-    real_per_key: dict[str, list[float]]
-    corpus_per_key: dict[str, list[float]]
-    real_n: dict[str, int]
-    corpus_n: dict[str, int]
+def pooled_r1(groups, scores) -> tuple[float, float]:
+    ranks = [first_rank(s, g) for g, s in zip(groups, scores) if g.answerable]
+    r = recalls(ranks)
+    return r[0], r[1]
 
 
-def figures(groups: Sequence[Group], scores: Sequence[np.ndarray],
-            serves: Sequence[str] | None = None) -> Figures:
-    """Recall of ``scores`` (the first stage's own where ``serves`` leaves a key out)."""
-    ranks: dict[tuple[bool, str], list] = {}
-    for g, s in zip(groups, scores):
-        if g.answerable:
-            use = s if serves is None or g.key in serves else g.base[:, 0]
-            ranks.setdefault((is_corpus(g), g.key), []).append(first_rank(use, g))
-    real = {k: recalls(r) for (c, k), r in ranks.items() if not c}
-    corpus = {k: recalls(r) for (c, k), r in ranks.items() if c}
-    pooled = recalls([r for (c, _), rs in ranks.items() if not c for r in rs])
-    macro = ([float(np.mean([v[i] for v in corpus.values()])) for i in range(3)] if corpus
-             else [float("nan")] * 3)
-    return Figures(pooled, macro, real, corpus,
-                   {k: len(r) for (c, k), r in ranks.items() if not c},
-                   {k: len(r) for (c, k), r in ranks.items() if c})
-
-
-def first_stage_scores(groups: Sequence[Group]) -> list[np.ndarray]:
-    return [g.base[:, 0] for g in groups]
-
-
-def _raised(mine: list[float], theirs: list[float]) -> float:
-    return mine[0] + mine[1] - theirs[0] - theirs[1]
-
-
-def serving(first: Figures, second: Figures, keys: Sequence[str]) -> list[str]:
-    """The keys the second stage serves: recall@1 + recall@3 raised on the real PDFs, and
-    neither recall@1 nor recall@3 lowered on the corpus (a key without corpus groups is judged
-    on the real PDFs alone)."""
-    out = []
-    for k in keys:
-        if k not in second.real_per_key or _raised(second.real_per_key[k],
-                                                   first.real_per_key[k]) <= 1e-9:
-            continue
-        if k in second.corpus_per_key and any(
-                second.corpus_per_key[k][i] < first.corpus_per_key[k][i] - 1e-9 for i in (0, 1)):
-            continue
-        out.append(k)
-    return out
-
-
-def choose_setting(groups: Sequence[Group], keys: Sequence[str], grid=C_GRID,
-                   weights=CORPUS_WEIGHTS, log=None) -> tuple[tuple[float, float], list]:
-    """(C, corpus weight) by grouped CV over both collections: among the settings whose corpus
-    macro recall@1 and recall@3 are not below the first stage's, the best real-PDF pooled
-    recall@1, then recall@3, where it serves (serving); no such setting: the best corpus
-    figure. With no corpus groups, the weight is moot and the real figures decide."""
-    first = figures(groups, first_stage_scores(groups))
-    has_corpus = any(is_corpus(g) for g in groups)
-    folds = cv_folds(groups)
-    table = []
-    for C in grid:
-        for w in (weights if has_corpus else (1.0,)):
-            scores = cv_scores(groups, keys, C, w, folds)
-            served = figures(groups, scores, serving(first, figures(groups, scores), keys))
-            table.append((C, w, served.real[0], served.real[1], served.corpus[0],
-                          served.corpus[1]))
-            if log:
-                log(f"    C={C:<5} corpus weight {w:<5} real R@1 {served.real[0]:.3f} "
-                    f"R@3 {served.real[1]:.3f} | corpus R@1 {served.corpus[0]:.3f} "
-                    f"R@3 {served.corpus[1]:.3f}")
-    keeps = [r for r in table if not has_corpus or (r[4] >= first.corpus[0] - 1e-9
-                                                     and r[5] >= first.corpus[1] - 1e-9)]
-    if keeps:
-        best = max(keeps, key=lambda r: (r[2], r[3], r[4], -r[0]))
-    else:
-        best = max(table, key=lambda r: (r[4], r[5], r[2], -r[0]))
-    return (best[0], best[1]), table
-
-
-def balanced_threshold(tops: Sequence[float], present: Sequence[bool],
-                       corpus: Sequence[bool]) -> float:
-    """The top-score cut with the best Youden's J averaged over the two collections (each
-    counts the same, however many pairs it has); one collection alone: its J."""
-    s, y, c = np.asarray(tops), np.asarray(present, bool), np.asarray(corpus, bool)
-    parts = [m for m in (c, ~c) if m.any() and y[m].any() and (~y[m]).any()]
-    if not parts:
-        return 0.5
-    best, best_cut = -2.0, 0.5
-    for cut in np.unique(s):
-        j = np.mean([(s[m & y] >= cut).mean() + (s[m & ~y] < cut).mean() - 1 for m in parts])
-        if j > best:
-            best, best_cut = j, float(cut)
-    return best_cut
-
-
-def calibrate(groups: Sequence[Group], oof: Sequence[np.ndarray],
-              log=print) -> tuple[np.ndarray, float, dict]:
-    """Platt scaling on the grouped-CV scores of both collections, and the "no sentence found"
-    cut on the calibrated top scores of every (article, question), each collection counting
-    the same (balanced_threshold). Every question, not only those served: one model scores
-    them all, and the served ones alone have too few unanswerable pairs to place a cut (one
-    per collection for 2.6 and 3.1). Returns (platt, cut, figures)."""
-    from robtui.evidence.training.metrics import auroc
-    from robtui.evidence.training.train import _fit_platt
-
-    z = np.concatenate(oof)
-    y = np.concatenate([g.labels & g.keep for g in groups]).astype(int)
-    platt = np.array(_fit_platt(z, y, SEED))
-    tops = [float(1 / (1 + np.exp(-np.max(platt[0] * s[g.keep] + platt[1]))))
-            for g, s in zip(groups, oof)]
-    present = [g.answerable for g in groups]
-    in_corpus = [is_corpus(g) for g in groups]
-    cut = balanced_threshold(tops, present, in_corpus)
-    figs = {}
-    for name, pick in (("real PDFs", False), ("corpus", True)):
-        t = [x for x, c in zip(tops, in_corpus) if c == pick]
-        p = [x for x, c in zip(present, in_corpus) if c == pick]
-        if not t:
-            continue
-        a = auroc(t, p)
-        hits = sum(x < cut for x, q in zip(t, p) if q), sum(x < cut for x, q in zip(t, p) if not q)
-        log(f"{name}, every question, second stage by grouped CV: AUROC of the top score "
-            f"{'-' if a is None else f'{a:.2f}'}; 'no sentence found' ({cut:.3f}) on "
-            f"{hits[0]}/{sum(p)} answerable and {hits[1]}/{len(p) - sum(p)} unanswerable pairs")
-        figs[f"flag_{'corpus' if pick else 'real'}"] = {
-            "auroc": a, "flagged_answerable": [hits[0], sum(p)],
-            "flagged_unanswerable": [hits[1], len(p) - sum(p)]}
-    figs["threshold"] = cut
-    return platt, cut, figs
+def choose_C(groups: Sequence[Group], keys: Sequence[str], grid=C_GRID) -> tuple[float, list]:
+    """C with the best leave-one-article-out pooled recall@1, then recall@3 (ties: smaller C)."""
+    table = [(C, *pooled_r1(groups, loao_scores(groups, keys, C))) for C in grid]
+    best = max(table, key=lambda row: (row[1], row[2], -row[0]))
+    return best[0], table
 
 
 # --------------------------------------------------------------------------- report, train
 
 
-def _line(label: str, values: Sequence[float]) -> str:
-    return f"  {label:<44}" + " ".join(f"{x:5.2f}" for x in values)
+def _line(label: str, ranks: Sequence[int | None]) -> str:
+    return f"  {label:<34}" + " ".join(f"{x:5.2f}" for x in recalls(ranks))
 
 
-def _both(label: str, f: Figures) -> list[str]:
-    return [_line(f"{label}, real PDFs (pooled)", f.real),
-            _line(f"{label}, corpus (macro)", f.corpus)]
-
-
-def _halves(groups: Sequence[Group]) -> list[set[str]]:
-    """Two partitions of the articles: odd and even places (gold.json order for the real
-    PDFs, corpus order for the corpus), both collections split alike."""
-    halves: list[set[str]] = [set(), set()]
-    for collection in (False, True):
-        articles = [a for a in dict.fromkeys(g.article for g in groups)
-                    if a.startswith(CORPUS_PREFIX) == collection]
-        halves[0] |= set(articles[0::2])
-        halves[1] |= set(articles[1::2])
-    return halves
-
-
-def _partition(groups: Sequence[Group], keys: Sequence[str], choose: set[str], test: set[str],
-               h: int, log) -> dict:
-    """One partition: the setting and questions chosen within ``choose``, reported on ``test``."""
-    inner = [g for g in groups if g.article in choose]
-    held = [g for g in groups if g.article in test]
-    (C, w), _ = choose_setting(inner, keys)
-    inner_first = figures(inner, first_stage_scores(inner))
-    serves = serving(inner_first, figures(inner, cv_scores(inner, keys, C, w)), keys)
-    coef = fit(inner, keys, C, w)
-    first = figures(held, first_stage_scores(held))
-    second = figures(held, [design(g.base, g.key, keys) @ coef for g in held], serves)
-    log(f"  partition {h}: chose C={C}, corpus weight {w}, serving {', '.join(serves)}")
-    for line in _both("held-out half, first stage", first) + _both(
-            "held-out half, with second stage", second):
-        log(line)
-    return {"C": C, "corpus_weight": w, "serves": serves,
-            "first_stage": {"real": first.real, "corpus": first.corpus},
-            "second_stage": {"real": second.real, "corpus": second.corpus}}
-
-
-def report_and_train(folder: Path, out: Path | None, log=print, *,
-                     corpus_dir: Path | None = None,
-                     setting: tuple[float, float] | None = None) -> dict:
-    """Print the grouped CV and (``out``) write the weights. ``setting``: (C, corpus weight)
-    given rather than chosen, and no partitions (a quick refit after a change of the reader
-    or the candidates; the questions served, the calibration and the cut are still chosen by
-    grouped CV over both collections)."""
+def report_and_train(folder: Path, out: Path | None, log=print) -> dict:
     from robtui.evidence.ranker import load_ranker
-    from robtui.evidence.training.corpus_oof import corpus_groups
+    from robtui.evidence.training.metrics import auroc
+    from robtui.evidence.training.train import _fit_platt, youden_threshold
 
     gold = load_gold(folder)
     ranker = load_ranker(first_stage_only=True)
-    keys = list(QUESTIONS)
+    keys = [q for q in QUESTIONS]
     log(f"reading {len(gold)} real articles ({folder}) ...")
     groups = gather(folder, gold, ranker, log)
-    if corpus_dir is not None:
-        groups += corpus_groups(corpus_dir, keys, log=log)
-    real = [g for g in groups if not is_corpus(g)]
-    corpus = [g for g in groups if is_corpus(g)]
-    log(f"{len(real)} real (article, question) pairs, {sum(g.answerable for g in real)} "
-        f"answerable; {len(corpus)} corpus pairs, {sum(g.answerable for g in corpus)} answerable")
-    figs: dict = {}
+    answerable = [g for g in groups if g.answerable]
+    log(f"{len(groups)} (article, question) pairs, {len(answerable)} answerable "
+        f"(gold sentences found by the hit rule)")
+    # first stage alone: the question's own calibrated log-odds
+    first = [g.base[:, 0] for g in groups]
+    figures: dict = {}
 
-    if setting is None:
-        log("\nTwo partitions (articles at odd / even places of each collection): the setting "
-            "chosen by grouped CV within one half, fitted on it, recall@1/3/5 on the other half")
-        halves = _halves(groups)
-        for h, (choose, test) in enumerate([(halves[0], halves[1]), (halves[1], halves[0])], 1):
-            figs[f"partition_{h}"] = _partition(groups, keys, choose, test, h, log)
-        log("\nAll articles: the setting by grouped CV (each real article alone, the corpus in "
-            f"{CORPUS_FOLDS} folds)")
-        (C, w), table = choose_setting(groups, keys, log=log)
-    else:
-        (C, w), table = setting, []
-        log(f"\nSetting given: C={C}, corpus weight {w} (not chosen here; no partitions)")
-        figs["setting_given"] = True
-    oof = cv_scores(groups, keys, C, w)
-    first = figures(groups, first_stage_scores(groups))
-    every = figures(groups, oof)
-    serves = serving(first, every, keys)
-    served = figures(groups, oof, serves)
-    log(f"chosen: C={C}, corpus weight {w}; serves {', '.join(serves)} (recall@1 + @3 raised on "
-        "the real PDFs, not lowered on the corpus); the others keep the first stage")
-    log("Grouped CV per question      real PDFs: first | second      corpus: first | second"
-        "   (R@1 R@3 R@5)")
+    log("\nTwo partitions (articles at odd / even places of gold.json): C chosen by "
+        "leave-one-article-out within one half, recall@1/3/5 on the other half")
+    articles = list(dict.fromkeys(g.article for g in groups))
+    halves = [set(articles[0::2]), set(articles[1::2])]
+    for h, (choose, test) in enumerate([(halves[0], halves[1]), (halves[1], halves[0])], 1):
+        inner = [g for g in groups if g.article in choose]
+        held = [g for g in groups if g.article in test]
+        C, table = choose_C(inner, keys)
+        coef = fit(inner, keys, C)
+        ranks = [first_rank(design(g.base, g.key, keys) @ coef, g) for g in held if g.answerable]
+        base_ranks = [first_rank(g.base[:, 0], g) for g in held if g.answerable]
+        log(f"  partition {h}: chose C={C} on {len(choose)} articles "
+            f"(LOAO R@1 per C: {', '.join(f'{c}: {r1:.2f}' for c, r1, _ in table)})")
+        log(_line("held-out half, first stage", base_ranks))
+        log(_line("held-out half, with second stage", ranks))
+        figures[f"partition_{h}"] = {"C": C, "first_stage": recalls(base_ranks),
+                                     "second_stage": recalls(ranks)}
+
+    C, table = choose_C(groups, keys)
+    log(f"\nAll articles: C={C} chosen by leave-one-article-out "
+        f"({', '.join(f'{c}: R@1 {r1:.2f} R@3 {r3:.2f}' for c, r1, r3 in table)})")
+    oof = loao_scores(groups, keys, C)
+    log("Leave one article out            R@1   R@3   R@5   (first stage alone | second stage)")
+    per_q = {}
     for key in keys:
-        row = f"  {key:<5}{'*' if key in serves else ' '}"
-        for f_first, f_second, n in ((first.real_per_key, every.real_per_key, first.real_n),
-                                     (first.corpus_per_key, every.corpus_per_key, first.corpus_n)):
-            if key in f_first:
-                row += (f" n={n[key]:<3}" + " ".join(f"{x:.2f}" for x in f_first[key]) + " |"
-                        + " ".join(f"{x:.2f}" for x in f_second[key]) + "  ")
-        log(row)
-    for line in (_both("first stage alone", first) + _both("second stage everywhere", every)
-                 + _both("second stage where it serves", served)):
-        log(line)
-    figs.update(C=C, corpus_weight=w, grid=table, serves=serves,
-                first_stage={"real": first.real, "corpus": first.corpus},
-                second_stage={"real": every.real, "corpus": every.corpus},
-                served={"real": served.real, "corpus": served.corpus},
-                per_question={k: {"real_first": first.real_per_key.get(k),
-                                  "real_second": every.real_per_key.get(k),
-                                  "corpus_first": first.corpus_per_key.get(k),
-                                  "corpus_second": every.corpus_per_key.get(k)} for k in keys})
+        mine = [(g, s) for g, s in zip(groups, oof) if g.key == key and g.answerable]
+        a = [first_rank(g.base[:, 0], g) for g, _ in mine]
+        b = [first_rank(s, g) for g, s in mine]
+        per_q[key] = {"first_stage": recalls(a), "second_stage": recalls(b), "n": len(mine)}
+        log(f"  {key:<5} n={len(mine):<3}" + " ".join(f"{x:5.2f}" for x in recalls(a)) + " |"
+            + " ".join(f"{x:5.2f}" for x in recalls(b)))
+    a = [first_rank(s, g) for g, s in zip(groups, first) if g.answerable]
+    b = [first_rank(s, g) for g, s in zip(groups, oof) if g.answerable]
+    log(_line("pooled, first stage", a))
+    log(_line("pooled, second stage", b))
+    # the questions the second stage serves: those whose R@1 + R@3 it raised (the rest keep
+    # the first stage: on the corpus the second stage costs recall, see docs/evidence-ranker.md)
+    serves = [k for k in keys if sum(per_q[k]["second_stage"][:2]) > sum(per_q[k]["first_stage"][:2])]
+    served = [first_rank(s if g.key in serves else g.base[:, 0], g)
+              for g, s in zip(groups, oof) if g.answerable]
+    log(f"serves {', '.join(serves)} (R@1 + R@3 raised); the others keep the first stage")
+    log(_line("pooled, second stage where it serves", served))
+    figures.update(C=C, grid=table, per_question=per_q, loao_first_stage=recalls(a),
+                   loao_second_stage=recalls(b), serves=serves, loao_served=recalls(served))
 
-    platt, cut, flags = calibrate(groups, oof, log)
-    figs.update(flags)
-    figs["threshold"] = cut
+    # calibration on the out-of-fold scores, then the flag's cut on calibrated top scores
+    z = np.concatenate(oof)
+    y = np.concatenate([g.labels & g.keep for g in groups]).astype(int)
+    platt = np.array(_fit_platt(z, y, SEED))
+    tops = [float(np.max(platt[0] * s[g.keep] + platt[1])) for g, s in zip(groups, oof)]
+    present = [g.answerable for g in groups]
+    probabilities = [float(1 / (1 + np.exp(-t))) for t in tops]
+    cut = youden_threshold(probabilities, present)
+    log(f"AUROC of the top score, answerable vs not (leave one article out): "
+        f"{auroc(probabilities, present):.2f}; 'no sentence found' cut {cut:.3f}")
+    figures.update(auroc=auroc(probabilities, present), threshold=cut)
     if out is not None:
-        coef = fit(groups, keys, C, w)
-        articles = list(dict.fromkeys(g.article for g in groups))
+        coef = fit(groups, keys, C)
         provenance = {
             "trained_on": {"folder": "../shared/real-pdfs (gold.json)",
-                           "articles": [a for a in articles if not a.startswith(CORPUS_PREFIX)],
-                           "corpus": ("../shared/corpus (CONSORT-TM development split, "
-                                      "Kilicoglu et al., J Biomed Inform 2021;116:103717): "
-                                      "first-stage scores out of fold (training/corpus_oof.py)"
-                                      if corpus else None),
-                           "corpus_articles": [a[len(CORPUS_PREFIX):] for a in articles
-                                               if a.startswith(CORPUS_PREFIX)],
-                           "reader": "robtui.reading.reader.read_document"},
+                           "articles": articles, "reader": "robtui.reading.reader.read_document"},
             "model": "pairwise logistic regression (scikit-learn lbfgs, no intercept) on "
-                     "gold-minus-other differences within each (article, question); each real "
-                     "group weighs 1, each corpus group the corpus weight; negatives: the "
-                     f"{PAIR_HARD} best by each first-stage score and {PAIR_RANDOM} drawn",
+                     "gold-minus-other differences within each (article, question), each "
+                     "group weighted equally",
             "features": feature_names(keys),
             "coefficients": dict(zip(feature_names(keys), [round(float(c), 4) for c in coef])),
-            "C": C, "corpus_weight": w, "cross_validation": figs,
-            "calibration": "Platt scaling on grouped-CV scores of both collections; threshold "
-                           "by Youden's J averaged over the two collections, on every "
-                           "question's calibrated top score (calibrate)",
+            "C": C, "cross_validation": figures,
+            "calibration": "Platt scaling on leave-one-article-out scores; threshold by "
+                           "Youden's J on leave-one-article-out calibrated top scores",
             "first_stage": ranker.provenance.get("settings", {}),
             "date": dt.date.today().isoformat(), "seed": SEED,
         }
         save_adjustment(Adjustment(list(keys), coef, platt, cut, provenance, serves), out)
         log(f"wrote {out}")
-    return figs
+    return figures
 
 
 def main(argv: Sequence[str] | None = None) -> int:
     from robtui.errors import InputError, RobtuiError
-    from robtui.evidence.training.corpus import default_corpus_dir
 
     p = argparse.ArgumentParser(prog="python -m robtui.evidence.training.real_gold",
                                 description=__doc__.split("\n\n")[0])
     p.add_argument("--folder", type=Path, default=None,
                    help="folder holding the PDFs and gold.json (default ../shared/real-pdfs)")
-    p.add_argument("--corpus", type=Path, default=None,
-                   help="the development corpus (default ../shared/corpus or $ROBTUI_CORPUS)")
-    p.add_argument("--no-corpus", action="store_true",
-                   help="fit on the real PDFs alone (for comparison; its weights lower the "
-                        "corpus figures)")
     p.add_argument("--out", type=Path, default=DEFAULT_ADJUSTMENT,
                    help="where to write the weights (default: the shipped file)")
     p.add_argument("--report-only", action="store_true",
                    help="print the cross-validation, write nothing")
-    p.add_argument("--setting", nargs=2, type=float, metavar=("C", "WEIGHT"), default=None,
-                   help="use this C and corpus weight (an earlier run's choice) instead of "
-                        "choosing them, and skip the partitions: a quick refit")
     args = p.parse_args(argv)
     try:
         folder = args.folder or default_folder()
         if folder is None:
             raise InputError(f"no real-PDF folder found: pass --folder PATH or set ${FOLDER_ENV}")
-        corpus = None if args.no_corpus else (args.corpus or default_corpus_dir())
-        if corpus is None and not args.no_corpus:
-            raise InputError("no corpus found: pass --corpus PATH (the folder holding "
-                             "consort-tm/) or --no-corpus")
-        report_and_train(folder, None if args.report_only else args.out, corpus_dir=corpus,
-                         setting=tuple(args.setting) if args.setting else None)
+        report_and_train(folder, None if args.report_only else args.out)
     except RobtuiError as error:
         print(f"robtui: {error}", file=sys.stderr)
         return 2

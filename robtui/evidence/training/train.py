@@ -21,7 +21,7 @@ import datetime as dt
 import platform
 import sys
 from collections.abc import Sequence
-from dataclasses import asdict, dataclass, field, fields
+from dataclasses import asdict, dataclass, field
 from functools import cached_property
 from pathlib import Path
 
@@ -91,21 +91,6 @@ class Settings:
 # Our rule, no source: an item annotated in abstracts at under a tenth of its rate in the rest
 # of the article is taken as not annotated there (8b: one abstract sentence in the corpus).
 ABSTRACT_RATE_SHARE = 0.1
-
-def shipped_settings() -> Settings:
-    """The settings the shipped first stage was trained with (its provenance; defaults for
-    any it does not name): what `bench evidence` and the second stage's corpus folds use."""
-    from robtui.errors import ModelFileError
-    from robtui.evidence.model import load_weights
-
-    try:
-        shipped = load_weights().provenance.get("settings", {})
-    except ModelFileError:
-        shipped = {}
-    known = {f.name for f in fields(Settings)}
-    values = {k: (tuple(v) if isinstance(v, list) else v) for k, v in shipped.items() if k in known}
-    return Settings(**values)
-
 
 GRID: tuple[dict, ...] = tuple(
     {"C": c, "class_weight": cw} for cw in ("balanced", None) for c in (0.3, 1.0, 3.0, 10.0)
