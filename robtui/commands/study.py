@@ -21,6 +21,11 @@ FILE_OPTIONS = {
 }
 
 
+def _with_article(noun: str) -> str:
+    """'a protocol', 'an analysis plan'."""
+    return f"{'an' if noun[:1] in 'aeiou' else 'a'} {noun}"
+
+
 def _file_options(parser: argparse.ArgumentParser) -> None:
     for option, kind in FILE_OPTIONS.items():
         parser.add_argument(
@@ -30,7 +35,7 @@ def _file_options(parser: argparse.ArgumentParser) -> None:
             type=Path,
             metavar="FILE",
             dest=f"files_{kind}",
-            help=f"a {kind.replace('_', ' ')} file of the study (repeat for several)",
+            help=f"{_with_article(kind.replace('_', ' '))} file of the study (repeat for several)",
         )
     # Old spellings, refused with a hint (see refuse_old_spellings).
     parser.add_argument("--id", dest="old_id", help=argparse.SUPPRESS)

@@ -341,3 +341,13 @@ def test_only_the_lead_changes_a_results_effect(tmp_path: Path, capsys):
     code, out, _ = robtui(capsys, "result", "set-effect", root, "--result", "r1",
                           "--effect", "adhering", "--reviewer", "lea")
     assert code == 0 and "(effect of adhering)" in out
+
+
+def test_study_add_help_names_each_file_kind_with_its_article(capsys):
+    """The help reads 'an analysis plan file', not 'a analysis plan file'."""
+    with pytest.raises(SystemExit):
+        main(["study", "add", "--help"])
+    help_text = " ".join(capsys.readouterr().out.split())
+    assert "an analysis plan file of the study" in help_text
+    assert "a protocol file of the study" in help_text
+    assert "a analysis" not in help_text
