@@ -145,6 +145,15 @@ def test_column_heads_set_just_below_the_caption_belong_to_the_table(tmp_path) -
     assert not any("Walking group" in s.text for s in sentences if s.block in ("body", "heading"))
 
 
+def _run_in(c, top: float, head: str, rest: str, *, head_font: str, font: str,
+            size: float) -> None:
+    """A subheading in ``head_font`` and its text running on after it on one line."""
+    c.setFont(head_font, size)
+    c.drawString(LEFT, HEIGHT - top, head)
+    c.setFont(font, size)
+    c.drawString(LEFT + c.stringWidth(head + " ", head_font, size), HEIGHT - top, rest)
+
+
 def test_run_in_subheadings_of_a_summary_set_wholly_in_bold(tmp_path) -> None:
     path = tmp_path / "summary.pdf"
     c = _canvas(path)
@@ -153,10 +162,7 @@ def test_run_in_subheadings_of_a_summary_set_wholly_in_bold(tmp_path) -> None:
     for head, rest in (("Background", "Walking is good for invented herons and their keepers."),
                        ("Methods", "We randomly assigned 120 keepers to walk or to rest."),
                        ("Findings", "Keepers who walked slept longer than those who rested.")):
-        c.setFont("Helvetica-Bold", 9.0)
-        c.drawString(LEFT, HEIGHT - top, head)
-        c.setFont("Times-Bold", 9.0)
-        c.drawString(LEFT + c.stringWidth(head + " ", "Helvetica-Bold", 9.0), HEIGHT - top, rest)
+        _run_in(c, top, head, rest, head_font="Helvetica-Bold", font="Times-Bold", size=9.0)
         _lines(c, LEFT, top + 11, FILLER[:2], font="Times-Bold", size=9.0, leading=11.0)
         top += 44
     _lines(c, LEFT, top + 20, ["Introduction"], font="Helvetica-Bold", size=12.0)
@@ -181,10 +187,7 @@ def test_structured_abstract_headings_in_italics_are_split_off(tmp_path) -> None
                        ("Methods", "Heron keepers were randomly assigned to two groups."),
                        ("Results", "Keepers who walked slept longer (p = 0.02)."),
                        ("Conclusions", "Walking may help. Participants were followed up.")):
-        c.setFont("Times-Italic", 10.0)
-        c.drawString(LEFT, HEIGHT - top, head)
-        c.setFont("Times-Roman", 10.0)
-        c.drawString(LEFT + c.stringWidth(head + " ", "Times-Italic", 10.0), HEIGHT - top, rest)
+        _run_in(c, top, head, rest, head_font="Times-Italic", font="Times-Roman", size=10.0)
         top += 12
     _lines(c, LEFT, 170, ["Introduction"], font="Helvetica-Bold", size=12.0)
     _lines(c, LEFT, 190, FILLER * 3)
