@@ -59,12 +59,14 @@ def load_report(
     learned_dir: Path | None = None,
     question_set=None,
     cancel: threading.Event | None = None,
+    warn: Callable[[str], None] = lambda _text: None,
 ) -> LoadedReport:
     """Read ``report`` from the review folder and rank its sentences for every question.
 
     ``learned_dir`` is the reviewer's own learned model (None: the shipped model only);
     ``question_set`` the study's set, whose questions are ranked (None: the ranker's default);
-    ``cancel`` set (the app is ending) stops a report being read in another process.
+    ``cancel`` set (the app is ending) stops a report being read in another process;
+    ``warn`` is told, as it happens, when that process fails and the report is read here.
     """
     loaded = LoadedReport(report)
     problem = folder.check_report(report)
@@ -79,10 +81,15 @@ def load_report(
 
     started = time.perf_counter()
     if ranker_factory is shared_ranker:
-        prepare_apart(folder.report_path(report), report, effect, question_set, cancel)
+        failed = prepare_apart(folder.report_path(report), report, effect, question_set, cancel)
         if cancel is not None and cancel.is_set():
             loaded.problem = "the workbench closed before the report was read"
             return loaded
+        if failed:
+            note = read_here_note(report.path, failed)
+            loaded.notes.append(note)
+            warn(note)
+            stage(f"Reading {report.path} in the workbench itself …")
     try:
         loaded.document = read_document(folder.report_path(report))
     except RobtuiError as error:
@@ -119,25 +126,35 @@ APART_MIN_PAGES = 8
 
 
 def prepare_apart(path: Path, report: ReportFile, effect: str, question_set=None,
-                  cancel: threading.Event | None = None) -> bool:
+                  cancel: threading.Event | None = None) -> str | None:
     """Read and rank a long PDF in another process, as `robtui prepare` does, into the caches
-    this process then reads from; True when that process prepared it. Any problem is left to
-    the reading in this process to report (the file is then read here). Setting ``cancel``
-    ends that process at once."""
+    this process then reads from. Returns None when that went well or was not needed (a short
+    file, already prepared, ``cancel`` set: it ends that process at once), else what went
+    wrong; the caller then reads the file here (where a damaged file's problem is reported)."""
     from robtui.reading.reader import one_reading_of
     from robtui.workspace.preparing import PrepareJob, is_prepared, prepare
 
     if path.suffix.lower() != ".pdf" or pdf_pages(path) < APART_MIN_PAGES:
-        return False
+        return None
     job = PrepareJob(str(path), report.sha256, report.path, (effect,), question_set)
     with one_reading_of(report.sha256, "pdf"):  # other threads wait for it, then read the cache
         if is_prepared(job):
-            return False
+            return None
         try:
             summary = prepare([job], workers=1, cancel=cancel)
-        except Exception:  # noqa: BLE001 - no process could be started: it is read here
-            return False
-    return bool(summary.prepared) and not summary.failures
+        except Exception as error:  # noqa: BLE001 - no process could be started: read here
+            return f"it could not be started ({type(error).__name__}: {error})"
+    if summary.interrupted:
+        return None
+    if summary.failures:
+        return summary.failures[0].error or "it stopped without saying why"
+    return None if summary.prepared else "it gave nothing back"
+
+
+def read_here_note(name: str, failed: str) -> str:
+    """What the reviewer is told when the separate reading process failed."""
+    return (f"{name} is read in the workbench itself: the separate reading process failed "
+            f"({failed}). Nothing is lost; keys may answer more slowly until it is read.")
 
 
 def pdf_pages(path: Path) -> int:

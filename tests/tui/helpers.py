@@ -78,3 +78,15 @@ LOW_PATH = {
 def hint_lines(hints) -> list[str]:
     """The key hints as the bar wraps them at its width."""
     return [line.plain for line in hints.render().wrap(hints.content_region.width)]
+
+
+def screen_lines(app) -> list[str]:
+    """The terminal's lines as the reviewer sees them now (every layer: toasts, dialogs)."""
+    return [strip.text for strip in app.screen._compositor.render_strips()]
+
+
+def said_on_screen(app, sentence: str) -> bool:
+    """True when ``sentence`` can be read on the screen, wrapped over lines as it may be
+    (its words in order, each whole on a line)."""
+    words = " ".join(" ".join(screen_lines(app)).split())
+    return " ".join(sentence.split()) in words

@@ -65,6 +65,8 @@ class ReportDocuments:
                         learned_dir=learned_dir,
                         question_set=self.session.qset,
                         cancel=getattr(self.app, "closing", None),
+                        warn=lambda text: self.app.call_from_thread(
+                            self.notify, text, severity="warning", timeout=12),
                     )
                 )
             except Exception as error:  # noqa: BLE001 - a bad file must not end the session
