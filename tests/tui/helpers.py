@@ -85,8 +85,11 @@ def screen_lines(app) -> list[str]:
     return [strip.text for strip in app.screen._compositor.render_strips()]
 
 
-def said_on_screen(app, sentence: str) -> bool:
-    """True when ``sentence`` can be read on the screen, wrapped over lines as it may be
-    (its words in order, each whole on a line)."""
-    words = " ".join(" ".join(screen_lines(app)).split())
+def said_on_screen(app, sentence: str, region=None) -> bool:
+    """True when ``sentence`` can be read on the screen (or in ``region`` of it), wrapped over
+    lines as it may be (its words in order, each whole on a line)."""
+    lines = screen_lines(app)
+    if region is not None:
+        lines = [line[region.x:region.right] for line in lines[region.y:region.bottom]]
+    words = " ".join(" ".join(lines).split())
     return " ".join(sentence.split()) in words
