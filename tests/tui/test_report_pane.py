@@ -59,14 +59,43 @@ async def test_search_moves_to_matching_sentences(demo_dir):
         assert len(hits) >= 2
         start = view.highlighted_sentence.index
         after = [i for i in hits if i > start] + [i for i in hits if i <= start]
+        field = screen.query_one("#search")
         await pilot.press("slash", *word, "enter")
         await pilot.pause()
         assert view.highlighted_sentence.index == after[0]  # the next match after the cursor
-        await pilot.press("enter")
-        assert view.highlighted_sentence.index == after[1]
-        await pilot.press("escape")
+        # the reviewer lands on it: the report has the keys (q would quote it), the field
+        # stays open with the words
+        assert screen.focused is view and field.display and field.value == word
+        await pilot.press("slash", "enter")  # the words kept: the match after
         await pilot.pause()
-        assert screen.focused is view and not screen.query_one("#search").display
+        assert view.highlighted_sentence.index == after[1] and screen.focused is view
+        await pilot.press("escape")  # closes the search, stays on the assessment
+        await pilot.pause()
+        assert screen.focused is view and not field.display and app.screen is screen
+        await pilot.press("slash", *"zzqxj", "enter")  # no match: the words can be changed
+        await pilot.pause()
+        assert screen.focused is field and view.highlighted_sentence.index == after[1]
+        await pilot.press("escape", "escape")  # closed, then back to the overview
+        await pilot.pause()
+        assert app.screen is not screen
+
+
+async def test_search_shows_the_report_on_a_narrow_terminal(demo_dir):
+    """At 80x24 one pane shows at a time: / from the questions brings the report and its
+    search field into view, and enter lands on the match."""
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_selected(pilot)
+        view = screen.query_one("#report", ReportView)
+        field = screen.query_one("#search")
+        assert not view.region.area  # the questions fill the screen
+        await pilot.press("slash")
+        await pilot.pause()
+        assert screen.focused is field and field.region.area and view.region.area
+        await pilot.press(*"randomi", "enter")
+        await pilot.pause()
+        assert screen.focused is view and "randomi" in view.highlighted_sentence.text.casefold()
+        assert view.region.area
 
 
 async def test_resizing_rewraps_the_report_and_keeps_the_place(demo_dir):

@@ -295,11 +295,18 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
 
     @on(Input.Submitted, "#search")
     def _search_next(self, event: Input.Submitted) -> None:
-        found = self.query_one("#report", ReportView).find(event.value)
+        """Enter: the next match, with the reviewer's cursor on it in the report (so q quotes
+        it at once); the field stays open with the words (/ then enter: the match after).
+        No match: the field keeps the cursor, to change the words."""
+        view = self.query_one("#report", ReportView)
+        found = view.find(event.value)
         if found is None:
             self.notify(f"no sentence contains {event.value!r}", severity="warning", markup=False)
-        else:
-            self.notify(f"match {found[0]} of {found[1]}", timeout=2)
+            return
+        view.focus()
+        self.notify(
+            f"match {found[0]} of {found[1]} for {event.value!r} · / enter: next match · "
+            "esc: close the search", timeout=4, markup=False)
 
     # -- actions -----------------------------------------------------------------------
     def _guard(self, action) -> bool:
@@ -371,19 +378,29 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
             report.focus()
 
     def action_search(self) -> None:
+        """/: the search field under the report (shown first on a narrow terminal, where
+        the report may be hidden behind the questions), its last words selected."""
+        self.add_class("-reading")
         field = self.query_one("#search", Input)
         field.display = True
         field.focus()
 
+    def _close_search(self) -> bool:
+        """Esc closes an open search first (the cursor stays in the report); True if it did."""
+        field = self.query_one("#search", Input)
+        if not field.display:
+            return False
+        field.display = False
+        self.query_one("#report", ReportView).focus()
+        return True
+
     def action_back(self) -> None:
         focused = self.focused
-        if isinstance(focused, (Input, TextArea)):
-            if focused.id == "search":
-                focused.display = False
-                self.query_one("#report", ReportView).focus()
-            else:
-                self._flush_justification()
-                self.query_one("#questions", QuestionList).focus()
+        if isinstance(focused, (Input, TextArea)) and focused.id != "search":
+            self._flush_justification()
+            self.query_one("#questions", QuestionList).focus()
+            return
+        if self._close_search():
             return
         self._flush_justification()
         self.dismiss(None)
