@@ -6,12 +6,13 @@ from __future__ import annotations
 
 from robtui.store.review_folder import ReviewFolder
 from robtui.tui.app import Workbench
+from robtui.tui.screens.assessment.quoting import CANDIDATE_NOTE
 from robtui.tui.screens.dialogs import SupportDialog
 from robtui.tui.widgets.key_hints import KeyHints
 from robtui.tui.widgets.report_view import ReportView
 
 from .conftest import SIZE
-from .helpers import LOW_PATH, answer_domain, hint_lines, open_selected, plain
+from .helpers import LOW_PATH, answer_domain, hint_lines, open_selected, plain, said_on_screen
 
 SMALL = (80, 24)
 
@@ -161,6 +162,19 @@ async def test_at_80x24_marking_a_passage_says_how_to_quote_it(demo_dir):
         screen = await open_selected(pilot)
         await pilot.press("right_square_bracket", "v")
         await pilot.pause()
-        assert not screen.query_one("#candidate-note").display  # hidden on a narrow screen
-        said = [n.message for n in app._notifications]
-        assert any("then q quotes it" in m for m in said), said
+        note = screen.query_one("#candidate-note")  # under the report, at 80x24 too
+        assert note.region.area and said_on_screen(app, "then q quotes it", note.region)
+
+
+async def test_at_80x24_the_report_says_suggestions_are_candidates(demo_dir):
+    """Where the suggestions are seen, on the smallest terminal too: candidates; you decide."""
+    app = Workbench(demo_dir, "tess")
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_selected(pilot)
+        note = screen.query_one("#candidate-note")
+        await pilot.press("tab")  # the report, with its suggestions marked
+        await pilot.pause()
+        assert note.region.area and said_on_screen(app, CANDIDATE_NOTE, note.region)
+        await pilot.press("right_square_bracket")  # a suggestion: its rank, "you decide"
+        await pilot.pause()
+        assert said_on_screen(app, "a candidate; you decide.", note.region)

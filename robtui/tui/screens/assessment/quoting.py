@@ -22,12 +22,10 @@ class Quoting:
 
     _stepped_for: str | None  # the question ] / [ last stepped through
 
-    def _say(self, text: Text, *, narrow_too: bool = False) -> None:
-        """The note under the report; a narrow terminal hides that line, so what the reviewer
-        must know (``narrow_too``) comes as a message there."""
+    def _say(self, text: Text) -> None:
+        """The note under the report (kept on an 80x24 terminal too: it is where the reviewer
+        reads that suggestions are candidates)."""
         self.query_one("#candidate-note", Static).update(text)
-        if narrow_too and self.has_class("-narrow"):
-            self.notify(text.plain, timeout=4, markup=False)
 
     def action_suggestion(self, step: int) -> None:
         suggestions = self.suggestions_for(self.question_id)
@@ -81,7 +79,6 @@ class Quoting:
             self._say(
                 Text("Marking a passage: move to its last sentence, then q quotes it "
                      "(Q: part of it; v: drop it).", style="bold"),
-                narrow_too=True,
             )
         else:
             self._say(Text(CANDIDATE_NOTE, style="italic"))
