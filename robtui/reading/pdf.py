@@ -34,6 +34,7 @@ FLOATS = ("caption", "table", "figure", "aside")
 # Print this many points smaller than the open paragraph's is a note beside it, not its next
 # block (our own setting, no source: footnotes and table notes are set 1.5-3 pt smaller).
 SMALL_PRINT = 1.0
+_ATTACHED_DASHES = ("-", "\u2010", "\u2011", "\u2013", "\u2014")  # hyphens, en and em dash
 _TERMINAL = re.compile(r"[.?!:][\"'”’)\]]*(?:\d+(?:[,–-]\d+)*)?$")
 
 
@@ -122,6 +123,11 @@ class TextBuilder:
             return next_word
         if prev.endswith(("-", "−")) and next_word[:1].isdigit():
             return next_word  # a minus sign or range broken before its number: "(-" + "1.4"
+        if len(prev) >= 2 and prev.endswith(_ATTACHED_DASHES):
+            # a dash set against its word ends the line: the line break is no space
+            # ("3′-" + "end", "2a–" + "c)", "standing—" + "which"); a dash
+            # standing alone between spaces ("—") keeps them
+            return next_word
         self._put(" ")
         return next_word
 

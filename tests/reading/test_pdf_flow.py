@@ -47,6 +47,13 @@ def _texts(path: Path, block: str | None = None) -> list[str]:
     return [s.text for s in _sentences(path) if block is None or s.block == block]
 
 
+def _finished(canvas, path: Path) -> list[str]:
+    """End the page, save the PDF and read its sentences' texts."""
+    canvas.showPage()
+    canvas.save()
+    return _texts(path)
+
+
 def test_a_caption_on_the_next_page_does_not_end_the_paragraph(tmp_path) -> None:
     path = tmp_path / "float.pdf"
     c = _canvas(path)
@@ -58,9 +65,7 @@ def test_a_caption_on_the_next_page_does_not_end_the_paragraph(tmp_path) -> None
            font="Helvetica", size=8.0)
     _lines(c, LEFT, 140, ["walking group were complete for most of the weeks.", *FILLER * 3])
     _lines(c, RIGHT, 140, FILLER * 4)
-    c.showPage()
-    c.save()
-    texts = _texts(path)
+    texts = _finished(c, path)
     assert ("The diaries of the women who took part in the walking group were complete for "
             "most of the weeks.") in texts
     assert any(t.startswith("Figure 1 Flow of participants") for t in texts)
@@ -75,12 +80,37 @@ def test_a_footnote_between_a_paragraphs_two_columns_floats_after_it(tmp_path) -
                           "* Corresponding author: heron@example.org"], size=7.5, leading=9)
     _lines(c, RIGHT, 100, ["(p = 0.05) and mood (p = 0.04) in the walking group.",
                            *FILLER * 4])
-    c.showPage()
-    c.save()
-    texts = _texts(path)
+    texts = _finished(c, path)
     assert ("Improvements were seen in attention (p = 0.02), learning (p = 0.05) and mood "
             "(p = 0.04) in the walking group.") in texts
     assert "The study was funded by an invented charity for walkers." in texts
+
+
+def test_a_dash_set_against_its_word_at_a_line_end_joins_without_a_space(tmp_path) -> None:
+    path = tmp_path / "dashes.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, FILLER * 2)
+    _lines(c, LEFT, top, ["Dizziness on standing up\u2014", "which passed within the hour\u2014was seen",
+                          "in two walkers (see figure 2a\u2013", "c) and in none of the others."])
+    _lines(c, RIGHT, 100, FILLER * 3)
+    texts = _finished(c, path)
+    assert ("Dizziness on standing up\u2014which passed within the hour\u2014was seen in two walkers "
+            "(see figure 2a\u2013c) and in none of the others.") in texts
+
+
+def test_a_justified_line_with_wide_spaces_keeps_its_word_order(tmp_path) -> None:
+    path = tmp_path / "justified.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, FILLER * 3)
+    c.setFont("Times-Roman", 10)
+    x = LEFT
+    for word in ["the", "walking", "group", "and", "their", "nurses."]:  # spaces of 24 pt
+        c.drawString(x, HEIGHT - top, word)
+        x += c.stringWidth(word, "Times-Roman", 10) + 24
+    _lines(c, LEFT, top + 12, ["Diaries were kept by all of them.", *FILLER * 2])
+    _lines(c, RIGHT, 100, FILLER * 4)
+    texts = _finished(c, path)
+    assert "clinic nurse. the walking group and their nurses. Diaries were kept" in " ".join(texts)
 
 
 def _ruled_table(c, top: float, caption: str, rows: list[tuple[str, str, str]]) -> float:
@@ -115,6 +145,31 @@ def test_prose_between_two_ruled_tables_is_read_as_prose(tmp_path) -> None:
     assert "Participants in the invented Heron trial kept a diary" in body
     table = [s.text for s in sentences if s.block == "table"]
     assert not any("diary" in t for t in table)
+
+
+def test_notes_under_a_table_without_a_mark_belong_to_the_table(tmp_path) -> None:
+    path = tmp_path / "notes.pdf"
+    c = _canvas(path)
+    rows = [("Walkers", "12.1 (3.4)", "11.9 (2.8)"), ("Nurses", "10.2 (2.2)", "9.8 (3.1)")]
+    top = _ruled_table(c, 90, "Table 1 Minutes walked a day", rows)
+    top = _lines(c, LEFT, top - 6, [
+        "Notes: Data are mean (SD) minutes a day over the twelve weeks of the invented trial.",
+        "Abbreviations: SD, standard deviation; the walkers kept their diaries every day."],
+        font="Helvetica", size=7.0, leading=8.5)
+    top = _ruled_table(c, top + 40, "Table 2 Visits to the clinic", rows)
+    _lines(c, LEFT, top - 6, ["Visits were counted by the study nurse at each of the visits."],
+           font="Helvetica", size=6.5, leading=8.0)  # small print, no mark: a note too
+    _lines(c, LEFT, 320, FILLER * 3)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    block = {s.text: s.block for s in sentences}
+    assert block["Notes: Data are mean (SD) minutes a day over the twelve weeks of the invented "
+                 "trial."] == "table"
+    assert block["Abbreviations: SD, standard deviation; the walkers kept their diaries every "
+                 "day."] == "table"
+    assert block["Visits were counted by the study nurse at each of the visits."] == "table"
+    assert all(s.block == "body" for s in sentences if s.text.startswith("Participants in"))
 
 
 def test_column_heads_set_just_below_the_caption_belong_to_the_table(tmp_path) -> None:
@@ -267,6 +322,32 @@ def test_real_paragraphs_run_on_past_a_figure_and_between_two_tables() -> None:
     assert any(t.startswith("Baseline characteristics of the women who completed any "
                             "questionnaires were similar") for t in texts)
     assert any(t.startswith("These differences may reflect variations in baseline") for t in texts)
+
+
+DOVE = "dddt2021_lidocaine_thoracoscopic_lung_cancer_rct.pdf"
+JMIR = "jmir2011_handhygiene.pdf"
+
+
+@_needs(LANCET)
+def test_real_dash_at_a_line_end_joins_without_a_space() -> None:
+    assert ("Severe symptomatic postural hypotension\u2014which resolves quickly without "
+            "treatment\u2014was the only") in " ".join(_texts(_real(LANCET), block="body"))
+
+
+@_needs(JMIR)
+def test_real_justified_line_with_wide_spaces_reads_in_order() -> None:
+    assert ("more details of the intervention development and content, and http"
+            in " ".join(_texts(_real(JMIR), block="body")))
+
+
+@_needs(DOVE)
+def test_real_table_notes_without_a_mark_are_no_body_text() -> None:
+    sentences = _sentences(_real(DOVE))
+    notes = [s for s in sentences if s.text.startswith(("Notes: ", "Abbreviations: "))]
+    assert len(notes) >= 5
+    assert all(s.block in ("table", "caption") for s in notes)  # under tables and figures
+    assert not any(s.block == "body" and "Group C= the control group" in s.text
+                   for s in sentences)
 
 
 # -- figures drawn in vector graphics --------------------------------------------------------

@@ -17,6 +17,7 @@ from collections import Counter
 from dataclasses import dataclass, field
 
 from robtui.reading.assemble import is_caption, looks_like_heading
+from robtui.reading.layout.columns import JUSTIFIED_SPREAD, justified_spacing
 from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, NUMERIC, PageLines
 from robtui.reading.sections import (
@@ -389,12 +390,24 @@ def _table_rows(lines: list[Line]) -> list[list[Line]]:
     return [_cells(row) for row in rows]
 
 
+JUSTIFIED_CELL_EM = 2.0  # our own setting: notes' spaces reach 1.2 em, column heads' 4 em
+
+
 def _cells(row: list[Line]) -> list[Line]:
-    """Table cells of a row: words split at gaps wider than a few spaces."""
+    """Table cells of a row: words split at gaps wider than a few spaces, except a line of
+    words set justified (a note under the table), whose spaces are alike and under
+    JUSTIFIED_CELL_EM of the size (column heads set at equal distances lie further apart)."""
     words = sorted((w for line in row for w in line.words), key=lambda w: w.box[0])
+    spacing = justified_spacing(words) if sum(
+        any(ch.isalpha() for ch in w.text) for w in words) * 2 > len(words) else None
+    if spacing is not None and spacing >= JUSTIFIED_CELL_EM * words[0].size:
+        spacing = None
     cells = [[words[0]]]
     for word in words[1:]:
-        if word.box[0] - cells[-1][-1].box[2] > max(3.5, 0.6 * word.size):
+        gap = word.box[0] - cells[-1][-1].box[2]
+        if spacing is not None and abs(gap - spacing) <= JUSTIFIED_SPREAD * spacing:
+            cells[-1].append(word)
+        elif gap > max(3.5, 0.6 * word.size):
             cells.append([word])
         else:
             cells[-1].append(word)

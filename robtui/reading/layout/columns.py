@@ -30,6 +30,8 @@ GUTTER_ROWS = 4
 RIGHT_REACH_EM = 2.0  # a word this near (share of the body size) the strip's right edge opens a column
 SPLIT_EM = 2.2
 MAX_BLOCKS = 220
+JUSTIFIED_GAPS = 4
+JUSTIFIED_SPREAD = 0.15
 _LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-])$")  # beyond this many blocks on a page, the plain order is used
 
 
@@ -170,11 +172,16 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             (g for g in gutters if g.top - 1 <= row.top and row.bottom <= g.bottom + 1),
             key=lambda g: g.x0,
         )
+        at_gutter = [
+            any(a.box[2] <= g.x0 + 0.5 and b.box[0] >= g.x1 - 0.5 for g in cuts)
+            for a, b in itertools.pairwise(row.words)
+        ]
+        spacing = _cell_spacing(row.words, at_gutter)
         piece = [row.words[0]]
-        for word in row.words[1:]:
+        for k, word in enumerate(row.words[1:]):
             prev = piece[-1]
             gap = word.box[0] - prev.box[2]
-            gutter = any(prev.box[2] <= g.x0 + 0.5 and word.box[0] >= g.x1 - 0.5 for g in cuts)
+            gutter = at_gutter[k]
             if gutter and len(piece) == 1 and _LIST_LABEL.match(prev.text):
                 gutter = False  # a hanging list number or bullet belongs to its item
             # a side note set beside the text in much smaller type, a little apart
@@ -183,13 +190,42 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
                 and abs(word.size - prev.size) > 0.15 * size
                 and abs(word.box[3] - prev.box[3]) < 0.25 * size  # not a raised reference
             )
-            if gutter or other_type or gap > SPLIT_EM * max(size, word.size):
+            wide = gap > SPLIT_EM * max(size, word.size) and not (
+                spacing[k] and abs(gap - spacing[k]) <= JUSTIFIED_SPREAD * spacing[k])
+            if gutter or other_type or wide:
                 out.append(_segment(piece, cuts, width, index))
                 piece = [word]
             else:
                 piece.append(word)
         out.append(_segment(piece, cuts, width, index))
     return out
+
+
+def _cell_spacing(words: list[Word], at_gutter: list[bool]) -> list[float | None]:
+    """For each gap of the row, the justified word space of the stretch between gutters that
+    holds it (None where the stretch is not set justified with alike spaces)."""
+    out: list[float | None] = []
+    start = 0
+    for end in [k for k, cut in enumerate(at_gutter) if cut] + [len(words) - 1]:
+        spacing = justified_spacing(words[start : end + 1])
+        out.extend([spacing] * (end - start))
+        if end < len(at_gutter):
+            out.append(None)  # the gutter itself
+        start = end + 1
+    return out
+
+
+def justified_spacing(words: list[Word]) -> float | None:
+    """The word space of a row set justified with wide spaces: at least JUSTIFIED_GAPS gaps
+    alike (within JUSTIFIED_SPREAD of their median); None when its gaps differ, as a table
+    row's do. A line stretched to its column's width keeps one space however wide."""
+    gaps = [b.box[0] - a.box[2] for a, b in itertools.pairwise(words)]
+    if len(gaps) < JUSTIFIED_GAPS:
+        return None
+    typical = statistics.median(gaps)
+    if typical <= 0 or any(abs(g - typical) > JUSTIFIED_SPREAD * typical for g in gaps):
+        return None
+    return typical
 
 
 def _segment(words: list[Word], cuts: list[Gutter], width: float, row: int) -> Segment:

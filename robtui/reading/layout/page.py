@@ -40,6 +40,10 @@ HEAD_REACH = 12  # a table's caption stands at most this many lines above its fi
 CAPTION_RUN = 0.8  # a caption's next line starts within this many body sizes below it
 NOTE_GAP = 1.2  # a table's note line follows the one before within this many lines
 _NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+\S")
+_PLAIN_NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+[A-Z]")
+_NOTE_LEAD = re.compile(r"^(?:notes?|abbreviations?|source|key)\b\s*[:.]", re.IGNORECASE)
+NOTE_SMALLER = 0.5  # a note with a mark is set this many points smaller than the page's body
+PLAIN_NOTE_SMALLER = 1.0  # and one without a mark this many
 _TABLE_CAPTION = re.compile(r"^(?:supplementary\s+)?table\s*[A-Z]?\d+", re.IGNORECASE)
 
 
@@ -203,22 +207,35 @@ def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
 
 
 def _table_notes(segs: list[Segment], region: Box, size: float) -> list[Segment]:
-    """The notes under a table: lines in small print, the first opening with a note mark
-    ("a ", "*", "†"), that follow its last rule, each within NOTE_GAP lines of the one before,
-    within the table's width."""
+    """The notes under a table: lines that follow its last row, each within NOTE_GAP lines of
+    the one before, starting within the table's width (a note may run wider than the table).
+    The first opens with a note's lead ("Notes:", "Abbreviations:"), a note mark before a
+    capital ("a Values", "* P"), or, in print smaller than the page's body, any note mark
+    ("a ", "*", "†"), or none in print smaller still; the others are words (no chart's
+    figures), no caption, set no larger than the first and starting under it."""
     x0, _, x1, bottom = region
-    below = sorted((s for s in segs if s.line.top >= bottom - 1
-                    and x0 - size <= s.line.x0 <= x1 and s.line.x1 <= x1 + size),
+    below = sorted((s for s in segs if s.line.top >= bottom - 1 and x0 - size <= s.line.x0 <= x1),
                    key=lambda s: s.line.top)
     notes: list[Segment] = []
     last = bottom
     for seg in below:
-        if seg.line.top - last > NOTE_GAP * size or seg.line.size > size - 0.5:
-            break  # notes are set in small print; the text resumes in the body's size
-        if not notes and not _NOTE_MARK.match(seg.line.text):
+        line = seg.line
+        if line.top - last > NOTE_GAP * size:
             break
+        if notes:
+            first = notes[0].line
+            if (line.size > first.size + 0.3 or is_caption(line.text)
+                    or abs(line.x0 - first.x0) > 2 * size
+                    or not any(sum(ch.isalpha() for ch in w.text) >= 2 for w in line.words)):
+                break  # the text resumes in a larger type, or a caption or a chart follows
+        elif line.size > size + 0.3 or is_caption(line.text) or not (
+            _NOTE_LEAD.match(line.text) or _PLAIN_NOTE_MARK.match(line.text)
+            or (line.size < size - NOTE_SMALLER and _NOTE_MARK.match(line.text))
+            or line.size < size - PLAIN_NOTE_SMALLER
+        ):
+            break  # in the body's size only an unmistakable note ("a Values", "Notes:")
         notes.append(seg)
-        last = max(last, seg.line.bottom)
+        last = max(last, line.bottom)
     return notes
 
 
