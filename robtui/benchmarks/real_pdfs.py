@@ -63,7 +63,7 @@ INTERRUPTION_PIECES = 3
 # asides (licences, stamps, correspondence) and the reference list, whose journal names also
 # run in page heads.
 SET_APART = ("front", "other", "references")
-SHINGLE_WORDS = 5
+SHINGLE_WORDS = 8
 # Clean evidence sentences of our own wording, one per question, planted into each real article
 # to check that the ranker never buries a plain statement (issue 13: "Analysis was by intention
 # to treat." came 262nd in an article whose sections were not found).
