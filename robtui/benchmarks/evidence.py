@@ -162,8 +162,14 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     from robtui.evidence.training.train import fit_weights, prepare, question_texts
 
     adjustment = load_adjustment() if second_stage else None
-    print("second stage: " + ("the shipped one (weights/adjustment.npz) on each fold's first "
-                              "stage" if adjustment else "none (first stage alone)"))
+    if adjustment is None:
+        print("second stage: none (first stage alone)")
+    else:
+        routes = ("txt", "pdf") if pdf else ("txt",)
+        print("second stage: the shipped one (weights/adjustment.npz) on each fold's first stage, "
+              f"for {', '.join(adjustment.domains)} reports only: "
+              + ", ".join(f"{r} route {'with' if adjustment.applies_to(r) else 'without'} it"
+                          for r in routes))
     mapping = load_mapping(corpus_dir)
     corpus = load_corpus(corpus_dir)
     corpus = corpus[:articles] if articles else corpus
@@ -230,7 +236,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                         calib.extend(zip(scores[key].tolist(), labels.tolist()))
                         top = float(scores[key][by_score[0]]) if len(by_score) else 0.0
                         side = "with" if present else "without"
-                        flagged[side][0] += top < ranker.threshold_for(key)
+                        flagged[side][0] += top < ranker.threshold_for(key, origin="txt")
                         flagged[side][1] += 1
                 if route == "txt":
                     feats = ranker.features(doc.document)

@@ -314,6 +314,8 @@ class Reading:
     broken: list[str] = field(default_factory=list)
     page_s: list[float] = field(default_factory=list)  # in-process read, each page's seconds
     interrupted: list[str] = field(default_factory=list)  # broken only by text not in our body
+    kind: str = "pdf"  # the reader's Document.kind
+    second_stage: bool = False  # whether the shipped second stage applied to it (its domain)
 
     @property
     def integrity(self) -> float:
@@ -406,7 +408,8 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
     reading = Reading(path.name, document.pages or 0, len(document.sentences), len(prose),
                       len(prose) - len(broken) if ref_text else 0, found, read_s, ref_s,
                       suggest_s, suggest_cpu_s, list(document.warnings), broken, page_s.by_page(),
-                      interrupted)
+                      interrupted, document.kind,
+                      ranker.adjustment is not None and ranker.adjustment.applies_to(document.kind))
 
     by_score = ranker.rank(document, questions, top=None)
     spread = ranker.rank(document, questions, top=None, spread=True)
@@ -438,7 +441,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
             spread_rank=first_hit([s.sentence_index for s in spread[q]], labels),
             no_sections_rank=first_hit([s.sentence_index for s in bare[q]], labels),
             top_score=top.score if top else 0.0,
-            flagged=top is None or top.score < ranker.threshold_for(q),
+            flagged=top is None or top.score < ranker.threshold_for(q, origin=document.kind),
             top3_reference=sum(
                 top_section(s.section) == "references" or looks_like_reference(s.text, tail)
                 for s in top3),
@@ -473,6 +476,22 @@ def leave_one_article_out(pairs: Sequence[Pair], groups: Sequence, ranker) -> fl
 
 
 # --------------------------------------------------------------------------- figures
+
+
+def second_stage_line(readings: Sequence[Reading], ranker) -> list[str]:
+    """Print which articles the shipped second stage ranked (it applies to its domains only,
+    evidence/adjustment.py); return their names."""
+    served = [r.article for r in readings if r.second_stage]
+    if ranker.adjustment is None:
+        print("  second stage: none (first stage alone)")
+        return served
+    kinds = sorted({r.kind for r in readings if not r.second_stage})
+    print(f"  second stage (applies to {', '.join(ranker.adjustment.domains)} reports): served "
+          f"{len(served)} of {len(readings)} articles"
+          + (f"; the others ({', '.join(kinds)}) keep the first stage" if kinds else "")
+          + f"; it re-ranks {', '.join(ranker.adjustment.serves)}, the other questions keep the "
+          "first stage's order with scores recalibrated on the real PDFs")
+    return served
 
 
 def recall(ranks: Sequence[int | None], k: int) -> float:
@@ -826,7 +845,9 @@ def main(argv: list[str] | None = None) -> int:
         C = leave_one_article_out(pairs, groups, ranker)
         if C is not None:
             print(f"  second stage refitted leaving each article out (C={C}, as shipped)")
+    served = second_stage_line(readings, ranker)
     figures = report(readings, pairs)
+    figures["second_stage_served"] = served
     figures["planted"] = report_planted(planted)
     if args.misses:
         print_misses(pairs)

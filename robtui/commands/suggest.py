@@ -109,7 +109,8 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         print(json.dumps(payload(document, ranking), ensure_ascii=False))
         return 0
-    thresholds = {qid: ranker.threshold_for(qid, args.effect) for qid in ranking}
+    thresholds = {qid: ranker.threshold_for(qid, args.effect, origin=document.kind)
+                  for qid in ranking}
     untrained = {qid for qid in ranking if not ranker.is_trained(qid, args.effect)}
     print(_render(ranking, thresholds, untrained, document.path))
     return 0

@@ -9,6 +9,15 @@ coverage, similarity to the wording, block kind, length and top-level section. I
 linear model (pairwise logistic regression within each article and question), so its
 weights are plain numbers in ``weights/adjustment.npz``; training and its grouped
 cross-validation are in ``evidence/training/real_gold.py``.
+
+It applies only to documents of the kinds it was fitted and validated on (``domains``: the
+PDFs robtui's PDF reader reads, ``Document.kind == "pdf"``). Text, Markdown, HTML and
+registry records keep the first stage, validated on the corpus text, with its calibration and
+"no sentence found" cut: fitted on the real PDFs, the second stage moved the corpus text's
+first places to abstract sentences the corpus leaves unlabelled (DEVELOPERS.md, retraining).
+In its domain it re-ranks the questions it ``serves``; for its other questions the first
+stage ranks, with scores recalibrated on the real PDFs (``first_platt``), so that every
+question of the domain is read against one "no sentence found" cut (``threshold``).
 """
 
 from __future__ import annotations
@@ -26,7 +35,7 @@ from robtui.errors import ModelFileError
 from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
 
 DEFAULT_ADJUSTMENT = Path(__file__).with_name("weights") / "adjustment.npz"
-ADJUSTMENT_FORMAT = 1
+ADJUSTMENT_FORMAT = 2  # 2: domains and the first stage's recalibration
 CLIP = 12.0  # log-odds beyond this say nothing more about the order
 _SHARED_USED = ("block=heading", "block=caption", "block=table", "short_sentence", "log_length",
                 "registry_id", "after_heading", "top=abstract", "top=introduction",
@@ -71,15 +80,30 @@ class Adjustment:
     keys: list[str]
     coef: np.ndarray
     platt: np.ndarray  # (2,)
-    threshold: float  # "no sentence found" below this calibrated top score
+    threshold: float  # "no sentence found" below this calibrated top score, in its domains
     provenance: dict = field(default_factory=dict)
     # the questions it re-ranks: those whose leave-one-article-out figures it raised (the
     # others keep the first stage); None: every key
     serves: list[str] | None = None
+    # the document kinds (reading.document.DocumentKind) it applies to
+    domains: tuple[str, ...] = ("pdf",)
+    # in its domains, the first stage's log-odds of the keys it does not serve become
+    # first_platt[0] * z + first_platt[1] (Platt scaling on the real PDFs); identity by default
+    first_platt: np.ndarray = field(default_factory=lambda: np.array([1.0, 0.0]))
 
     def __post_init__(self):
         if self.serves is None:
             self.serves = list(self.keys)
+        self.domains = tuple(self.domains)
+        self.first_platt = np.asarray(self.first_platt, dtype=np.float64)
+
+    def applies_to(self, origin: str) -> bool:
+        """Whether a document of this kind gets the second stage (and its cut)."""
+        return origin in self.domains
+
+    def first_stage_log_odds(self, own: np.ndarray) -> np.ndarray:
+        """The first stage's log-odds of a key not served, recalibrated for the domain."""
+        return self.first_platt[0] * own + self.first_platt[1]
 
     def log_odds(self, key: str, model: np.ndarray, transfer: np.ndarray,
                  question: np.ndarray, shared: np.ndarray) -> np.ndarray:
@@ -96,6 +120,8 @@ def save_adjustment(adjustment: Adjustment, path: Path) -> None:
         names=np.frombuffer("\n".join(feature_names(adjustment.keys)).encode(), dtype=np.uint8),
         keys=np.frombuffer("\n".join(adjustment.keys).encode(), dtype=np.uint8),
         serves=np.frombuffer("\n".join(adjustment.serves).encode(), dtype=np.uint8),
+        domains=np.frombuffer("\n".join(adjustment.domains).encode(), dtype=np.uint8),
+        first_platt=adjustment.first_platt.astype(np.float64),
         coef=adjustment.coef.astype(np.float64), platt=adjustment.platt.astype(np.float64),
         threshold=np.array([adjustment.threshold]))
     write_bytes_atomic(path, buffer.getvalue())
@@ -120,7 +146,8 @@ def load_adjustment(path: Path | None = None) -> Adjustment | None:
             data = {name: npz[name] for name in npz.files}
         if int(data["format_version"][0]) != ADJUSTMENT_FORMAT:
             raise ValueError(f"format {int(data['format_version'][0])}, this robtui reads "
-                             f"{ADJUSTMENT_FORMAT}")
+                             f"{ADJUSTMENT_FORMAT} (format 2 names the document kinds it "
+                             "applies to)")
         keys = [k for k in data["keys"].tobytes().decode().split("\n") if k]
         serves = [k for k in data["serves"].tobytes().decode().split("\n") if k]
         if not set(serves) <= set(keys):
@@ -128,9 +155,15 @@ def load_adjustment(path: Path | None = None) -> Adjustment | None:
         names = data["names"].tobytes().decode().split("\n")
         if names != feature_names(keys):
             raise ValueError("its features are not the ones this robtui computes")
-        coef, platt = data["coef"], data["platt"]
-        if coef.shape != (len(names),) or platt.shape != (2,) or not (
-                np.all(np.isfinite(coef)) and np.all(np.isfinite(platt))):
+        from robtui.reading.document import DOCUMENT_KINDS
+
+        domains = tuple(k for k in data["domains"].tobytes().decode().split("\n") if k)
+        if not domains or not set(domains) <= set(DOCUMENT_KINDS):
+            raise ValueError(f"document kinds {list(domains)} are not among {list(DOCUMENT_KINDS)}")
+        coef, platt, first_platt = data["coef"], data["platt"], data["first_platt"]
+        if coef.shape != (len(names),) or platt.shape != (2,) or first_platt.shape != (2,) or not (
+                np.all(np.isfinite(coef)) and np.all(np.isfinite(platt))
+                and np.all(np.isfinite(first_platt))):
             raise ValueError("coefficients of the wrong shape or not finite")
         threshold = float(data["threshold"][0])
     except (OSError, ValueError, KeyError, EOFError, zipfile.BadZipFile,
@@ -142,4 +175,4 @@ def load_adjustment(path: Path | None = None) -> Adjustment | None:
         provenance = json.loads(prov.read_text(encoding="utf-8")) if prov.is_file() else {}
     except (OSError, json.JSONDecodeError):
         provenance = {"problem": f"{prov.name} unreadable"}
-    return Adjustment(keys, coef, platt, threshold, provenance, serves)
+    return Adjustment(keys, coef, platt, threshold, provenance, serves, domains, first_platt)

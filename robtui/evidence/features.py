@@ -70,6 +70,9 @@ class DocumentFeatures:
     coverage: np.ndarray  # (n, n_cues) cue coverage
     section_names: tuple[str, ...]  # the distinct sections, in order of first appearance
     section_codes: np.ndarray  # (n,) each sentence's index into section_names
+    # the kind of report the sentences were read from (reading.document.DocumentKind): which
+    # stages and cuts apply (evidence/adjustment.py); text unless the caller says otherwise
+    origin: str = "txt"
 
     @property
     def n(self) -> int:

@@ -77,12 +77,13 @@ class PreparedRanking(BaseModel):
 @functools.cache
 def ranker_fingerprint() -> str:
     """A digest of everything the suggestions depend on besides the document itself."""
+    from robtui.evidence.adjustment import DEFAULT_ADJUSTMENT
     from robtui.evidence.model import DEFAULT_WEIGHTS
     from robtui.paths import bundled_dir
 
     digest = hashlib.sha256(reader_fingerprint().encode())
     here = Path(__file__).resolve().parent
-    parts = [DEFAULT_WEIGHTS, here / "cues.toml"]
+    parts = [DEFAULT_WEIGHTS, DEFAULT_ADJUSTMENT, here / "cues.toml"]
     parts += sorted(p for p in here.glob("*.py") if p.name not in {"train.py", "train_cli.py"})
     parts += sorted(bundled_dir("signalling_questions").glob("*.toml"))
     for part in parts:
@@ -147,7 +148,7 @@ def rank_for_preparation(ranker, document, effect: str, question_set=None) -> Pr
             ],
             # reading order puts the best-scoring sentence first
             best=items[0].score if items else None,
-            threshold=float(ranker.threshold_for(qid, effect)),
+            threshold=float(ranker.threshold_for(qid, effect, origin=document.kind)),
             trained=bool(ranker.is_trained(qid, effect)),
         )
     return PreparedRanking(

@@ -216,25 +216,39 @@ class Ranker:
             return entry.same_as
         return None
 
-    def adjusted_key(self, key: str) -> str | None:
-        """The key whose second stage serves ``key`` (itself or its same_as), if any: the
-        second stage is used only for the questions it was fitted on and raised in
-        leave-one-article-out cross-validation (Adjustment.serves)."""
-        if self.adjustment is None:
-            return None
-        if key in self.adjustment.serves:
+    def _adjustment_key(self, key: str, pool: Sequence[str]) -> str | None:
+        """``key`` or its same_as when it is in ``pool``, else None."""
+        if key in pool:
             return key
         entry = self.cues.get(key)
-        return entry.same_as if entry and entry.same_as in self.adjustment.serves else None
+        return entry.same_as if entry and entry.same_as in pool else None
+
+    def adjusted_key(self, key: str, origin: str) -> str | None:
+        """The key whose second stage serves ``key`` (itself or its same_as) in a report of
+        kind ``origin``, if any: the second stage is used only in the document kinds it was
+        fitted on (Adjustment.domains) and for the questions it raised there in
+        leave-one-article-out cross-validation (Adjustment.serves)."""
+        if self.adjustment is None or not self.adjustment.applies_to(origin):
+            return None
+        return self._adjustment_key(key, self.adjustment.serves)
+
+    def recalibrated_key(self, key: str, origin: str) -> str | None:
+        """The key (itself or its same_as) whose score the second stage's domain calibrates
+        in a report of kind ``origin`` (every question it was fitted on, served or not)."""
+        if self.adjustment is None or not self.adjustment.applies_to(origin):
+            return None
+        return self._adjustment_key(key, self.adjustment.keys)
 
     def is_trained(self, question_id: str, effect: str = "assignment") -> bool:
         """True when the question has a model of its own (else the transfer model ranks it)."""
         return self.trained_key(model_key(question_id, effect)) is not None
 
-    def threshold_for(self, question_id: str, effect: str = "assignment") -> float:
-        """The no-evidence threshold of a question (the transfer model has its own; the second
-        stage, when there is one, has one for all)."""
-        if self.adjusted_key(model_key(question_id, effect)) is not None:
+    def threshold_for(self, question_id: str, effect: str = "assignment", *,
+                      origin: str) -> float:
+        """The no-evidence threshold of a question in a report of kind ``origin``: in the
+        second stage's domain, its cut (fitted on the real PDFs) for the questions it was
+        fitted on; else the first stage's (the transfer model has its own)."""
+        if self.recalibrated_key(model_key(question_id, effect), origin) is not None:
             return self.adjustment.threshold
         if self.is_trained(question_id, effect):
             return self.no_evidence_threshold
@@ -243,7 +257,9 @@ class Ranker:
 
     def features(self, document: Document) -> DocumentFeatures:
         w = self.weights
-        return document_features(document.sentences, w.word, w.char, self.matcher)
+        feats = document_features(document.sentences, w.word, w.char, self.matcher)
+        feats.origin = document.kind
+        return feats
 
     def _question_vectors(self, texts: list[str]) -> np.ndarray:
         """(n_word, len(texts)) word TF-IDF of the question wordings, cached per wording list."""
@@ -311,15 +327,20 @@ class Ranker:
         self, doc: DocumentFeatures, keys: Sequence[str], texts: Sequence[str]
     ) -> dict[str, np.ndarray]:
         """Calibrated log-odds of every sentence for each key (before any review model): the
-        first stage's, re-weighed by the second stage for the questions it serves."""
+        first stage's; in the second stage's domain (``doc.origin``), re-weighed by it for the
+        questions it serves and recalibrated for its other questions."""
         first = self.first_stage(doc, keys, texts)
-        if self.adjustment is None or doc.n == 0:
+        if doc.n == 0:
             return {key: own for key, (own, _, _) in first.items()}
         out = {}
         for key, (own, transfer, qf) in first.items():
-            served = self.adjusted_key(key)
-            out[key] = own if served is None else self.adjustment.log_odds(
-                served, own, transfer, qf, doc.shared)
+            served = self.adjusted_key(key, doc.origin)
+            if served is not None:
+                out[key] = self.adjustment.log_odds(served, own, transfer, qf, doc.shared)
+            elif self.recalibrated_key(key, doc.origin) is not None:
+                out[key] = self.adjustment.first_stage_log_odds(own)
+            else:
+                out[key] = own
         return out
 
     def rank(

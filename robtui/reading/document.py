@@ -6,7 +6,7 @@ file's own characters, so ``text[start:end]`` of a sentence is exactly what the 
 
 from __future__ import annotations
 
-from typing import Literal
+from typing import Literal, get_args
 
 from pydantic import BaseModel, ConfigDict, Field
 
@@ -50,6 +50,7 @@ SECTION_LABELS: tuple[str, ...] = (
 # quotable like a table, never prose.
 BlockKind = Literal["body", "heading", "caption", "table", "figure"]
 DocumentKind = Literal["pdf", "txt", "md", "html", "registry"]
+DOCUMENT_KINDS: tuple[str, ...] = get_args(DocumentKind)
 
 
 def top_section(label: str) -> str:

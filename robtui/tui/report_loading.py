@@ -44,8 +44,13 @@ class LoadedReport:
     suggestions: dict[str, list[Any]] = field(default_factory=dict)
     problem: str | None = None  # the report cannot be shown (missing, changed, unreadable)
     notes: list[str] = field(default_factory=list)  # shown, but the report is usable
-    # scores below this read as "no sentence found for this question" (the ranker's own)
+    # scores below this read as "no sentence found for this question" (the ranker's own) ...
     no_evidence_threshold: float | None = None
+    # ... unless the question has its own (the cut of the report's kind: text or PDF)
+    thresholds: dict[str, float] = field(default_factory=dict)
+
+    def threshold_of(self, question_id: str) -> float | None:
+        return self.thresholds.get(question_id, self.no_evidence_threshold)
     seconds: dict[str, float] = field(default_factory=dict)  # "read", "rank" (for the bench)
 
 
@@ -104,6 +109,7 @@ def load_report(
     if prepared is not None:  # `robtui prepare` (or the workbench in the background) ranked it
         loaded.suggestions = suggestions_of(prepared)
         loaded.no_evidence_threshold = prepared.no_evidence_threshold
+        loaded.thresholds = {qid: q.threshold for qid, q in prepared.questions.items()}
         loaded.seconds["rank"] = time.perf_counter() - started
         return loaded
     loaded.suggestions = rank_document(
@@ -112,9 +118,17 @@ def load_report(
     )
     loaded.seconds["rank"] = time.perf_counter() - started
     try:
-        loaded.no_evidence_threshold = float(ranker_factory().no_evidence_threshold)
+        ranker = ranker_factory()
+        loaded.no_evidence_threshold = float(ranker.no_evidence_threshold)
     except (RobtuiError, AttributeError, TypeError, ValueError):
         loaded.no_evidence_threshold = None
+        return loaded
+    try:
+        loaded.thresholds = {
+            qid: float(ranker.threshold_for(qid, effect, origin=loaded.document.kind))
+            for qid in loaded.suggestions}
+    except (RobtuiError, AttributeError, TypeError, ValueError):
+        pass  # a ranker without per-question cuts: its one threshold serves every question
     return loaded
 
 

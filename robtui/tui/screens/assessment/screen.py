@@ -284,11 +284,12 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
 
     def _question_lines(self, asked) -> list:
         answers = self.session.assessment.answers
-        level = self.current.no_evidence_threshold if self.current else None
+        current = self.current
         focused = self.question_id if self.show_guidance else None
         return [
             line_for(
-                q, answers, self.suggestions_for(q.id), level, show_guidance=q.id == focused
+                q, answers, self.suggestions_for(q.id),
+                current.threshold_of(q.id) if current else None, show_guidance=q.id == focused
             )
             for q in asked
         ]
