@@ -103,6 +103,8 @@ def _boundary_after(text: str, match: re.Match[str], end: int) -> int | None:
     """Where a sentence ends if the punctuation in ``match`` closes one, else None."""
     stop = match.start()
     after = match.end()
+    if text[stop] == "." and stop > 0 and text[stop - 1] in " \t":
+        return None  # a full stop standing apart separates a list: "ADHD . Mood . Cognition"
     # Reference numbers glued to the stop: "shown before.12 The".
     if text[stop] == "." and after < end and text[after].isdigit():
         if stop == 0 or not (text[stop - 1].isalpha() or text[stop - 1] in ")]"):

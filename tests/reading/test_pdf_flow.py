@@ -172,6 +172,29 @@ def test_notes_under_a_table_without_a_mark_belong_to_the_table(tmp_path) -> Non
     assert all(s.block == "body" for s in sentences if s.text.startswith("Participants in"))
 
 
+def test_an_unruled_table_under_its_caption_across_the_columns_gutter_is_a_table(tmp_path) -> None:
+    # labels under the left column, figures under the right: the columns' gutter runs on
+    # through the table's empty middle, so each row is cut in two there
+    path = tmp_path / "captioned.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 100, FILLER * 4)
+    _lines(c, RIGHT, 100, FILLER * 4)
+    _lines(c, LEFT, 400, ["Table 3 Predictors of walking in the invented trial"],
+           font="Helvetica-Bold", size=9.0)
+    c.setFont("Helvetica", 8.0)
+    rows = [("Variables", "Ratio", "95% CI", "P"), ("Group, walkers/others", "", "", "0.925"),
+            ("Age, under 60/over 60", "1.52", "1.10-2.10", "0.012"),
+            ("Diary kept, daily/weekly", "", "", "0.360"), ("Season, summer/winter", "", "", "0.076")]
+    for i, row in enumerate(rows):
+        for x, cell in zip((LEFT, 360.0, 420.0, 500.0), row, strict=True):
+            c.drawString(x, HEIGHT - (414 + 14 * i), cell)
+    texts = _finished(c, path)
+    sentences = _sentences(path)
+    assert not [s.text for s in sentences if s.block == "body" and "Diary kept" in s.text]
+    assert any(s.block == "table" and s.text.startswith("Age, under 60/over 60 | 1.52")
+               for s in sentences), texts
+
+
 def test_column_heads_set_just_below_the_caption_belong_to_the_table(tmp_path) -> None:
     # The heads sit 6 pt under the caption, in smaller type: not the caption's next line.
     path = tmp_path / "heads.pdf"
@@ -348,6 +371,19 @@ def test_real_table_notes_without_a_mark_are_no_body_text() -> None:
     assert all(s.block in ("table", "caption") for s in notes)  # under tables and figures
     assert not any(s.block == "body" and "Group C= the control group" in s.text
                    for s in sentences)
+
+
+BMC_CANCER = "bmccancer2021_prophylactic_hipec_gastric_randomised_phase2.pdf"
+
+
+@_needs(BMC_CANCER)
+def test_real_unruled_table_under_its_caption_is_no_prose() -> None:
+    sentences = _sentences(_real(BMC_CANCER))
+    assert not [s.text for s in sentences if s.block == "body" and "N stage, N0/N1" in s.text]
+    assert any(s.block == "table" and s.text.startswith("T stage, T1 ~ 3/T4 | 15.071")
+               for s in sentences)
+    assert any(s.block == "body" and s.text.startswith("HIPEC with cisplatin did not prolong")
+               for s in sentences)
 
 
 # -- figures drawn in vector graphics --------------------------------------------------------

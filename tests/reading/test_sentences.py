@@ -74,6 +74,9 @@ def sentences(text: str) -> list[str]:
         ),
         ("We measured e.g. mRNA levels. Done.", ["We measured e.g. mRNA levels.", "Done."]),
         ('He said "it worked." Then left.', ['He said "it worked."', "Then left."]),
+        # keywords parted by full stops standing apart are one list, not a sentence each
+        ("Walking . Diaries . Nurse visits . Older adults",
+         ["Walking . Diaries . Nurse visits . Older adults"]),
     ],
 )
 def test_splitter_cases(text: str, expected: list[str]) -> None:

@@ -38,6 +38,7 @@ HEAD_WORDS = 8  # two lines this long between a caption and its rules are a para
 PROSE_ROWS = 3  # lines of prose between two rules that part them into two tables
 HEAD_REACH = 12  # a table's caption stands at most this many lines above its first rule
 CAPTION_RUN = 0.8  # a caption's next line starts within this many body sizes below it
+CAPTION_GAP = 2.5  # a captioned table's rows follow one another within this many lines
 NOTE_GAP = 1.2  # a table's note line follows the one before within this many lines
 _NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+\S")
 _PLAIN_NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+[A-Z]")
@@ -81,6 +82,7 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     columns = column_gutters(gutters, segs)
     regions = _ruled_regions(page.rules, page.height, segs, size)
     regions += _unruled_regions(segs, rows, columns, size)
+    regions += _captioned_regions(segs, size, page.height)
     tables: list[tuple[Box, list[Line]]] = []
     for region in _merged(regions):
         inside = [s for s in segs if _inside(s.line, region)]
@@ -362,6 +364,52 @@ def _unruled_regions(
                         max(ln.bottom for ln in chain) + 1,
                     )
                 )
+    return regions
+
+
+def _captioned_regions(segs: list[Segment], size: float, height: float) -> list[Box]:
+    """Unruled tables found from their caption: a "Table N" caption (and the lines in its size
+    that run on below it) over TABLE_RUN or more rows in print smaller than the page's body,
+    starting no further left than the caption, down to a line in the body's size under the
+    caption, another caption, the page's foot or a gap of CAPTION_GAP lines. Rows
+    are judged whole, across the strips of white a table's empty columns leave (which the
+    row-by-column search takes for gutters): one at least must read as cells."""
+    ordered = sorted(segs, key=lambda s: (s.line.top, s.line.x0))
+    regions: list[Box] = []
+    for seg in ordered:
+        cap = seg.line
+        if not _TABLE_CAPTION.match(cap.text):
+            continue
+        last_cap, last = cap, cap.bottom
+        lines: list[Line] = []
+        rows: dict[int, list[Word]] = {}
+        for other in ordered:
+            line = other.line
+            if other is seg or line.top < cap.bottom - 1:
+                continue
+            if (not lines and 0 <= line.top - last_cap.bottom <= CAPTION_RUN * size
+                    and abs(line.x0 - cap.x0) <= size and abs(line.size - cap.size) <= 0.3):
+                last_cap = line  # the caption runs on
+                last = line.bottom
+                continue
+            if line.top - last > CAPTION_GAP * size or is_caption(line.text):
+                break  # a gap, or the next table's or figure's caption
+            if line.top > height * (1 - MARGIN_SHARE):
+                break  # the page's foot
+            if line.size >= size - NOTE_SMALLER:
+                if line.x0 < cap.x1 and line.x1 > cap.x0:
+                    break  # the text resumes under the caption
+                continue  # prose beside the table
+            if line.x0 < cap.x0 - size:
+                continue  # a table starts at its caption's left edge: this is beside it
+            lines.append(line)
+            rows.setdefault(other.row, []).extend(line.words)
+            last = max(last, line.bottom)
+        if len(rows) >= TABLE_RUN and any(
+            _tabular(sorted(words, key=lambda w: w.box[0]), size) for words in rows.values()
+        ):
+            regions.append((min(ln.x0 for ln in lines) - 1, min(ln.top for ln in lines) - 1,
+                            max(ln.x1 for ln in lines) + 1, max(ln.bottom for ln in lines) + 1))
     return regions
 
 
