@@ -79,6 +79,7 @@ _OPENER = re.compile(r"[\"'“‘(\[]*(?:[A-Z0-9\u0391-\u03a9À-Þ*†‡§¶]|[
 _CAPTION_LABEL = re.compile(
     r"\s*(?:(?:Table|Figure|Fig\.?|Box|Panel)\s+[A-Z]?\d+[A-Za-z]?|\[?\d{1,3}\]?|[a-z])\.\s*$"
 )
+LIST_ITEM_WORDS = 4  # a keyword is a few words (our own setting)
 _WORD_BEFORE = re.compile(r"([A-Za-z][A-Za-z.]*)$")
 
 
@@ -103,8 +104,8 @@ def _boundary_after(text: str, match: re.Match[str], end: int) -> int | None:
     """Where a sentence ends if the punctuation in ``match`` closes one, else None."""
     stop = match.start()
     after = match.end()
-    if text[stop] == "." and stop > 0 and text[stop - 1] in " \t":
-        return None  # a full stop standing apart separates a list: "ADHD . Mood . Cognition"
+    if text[stop] == "." and stop > 0 and text[stop - 1] in " \t" and _in_list(text, stop, end):
+        return None  # a full stop standing apart separates a list: "Walking . Diaries . Mood"
     # Reference numbers glued to the stop: "shown before.12 The".
     if text[stop] == "." and after < end and text[after].isdigit():
         if stop == 0 or not (text[stop - 1].isalpha() or text[stop - 1] in ")]"):
@@ -127,6 +128,18 @@ def _boundary_after(text: str, match: re.Match[str], end: int) -> int | None:
     if text[stop] == "." and _is_abbreviation(text, stop, nxt):
         return None
     return after
+
+
+def _in_list(text: str, stop: int, end: int) -> bool:
+    """Whether the full stop at ``stop``, standing apart, parts the short items of a list
+    (keywords): the item before it has at most LIST_ITEM_WORDS words and another such stop, or
+    the block's end, follows within as many."""
+    before = max(text.rfind(" .", 0, stop), text.rfind(". ", 0, stop), text.rfind("\n", 0, stop))
+    if len(text[before + 1 : stop].split()) > LIST_ITEM_WORDS:
+        return False
+    ahead = text[stop + 1 : end].split("\n", 1)[0]
+    words = ahead.split()[: LIST_ITEM_WORDS + 1]
+    return "." in words or len(words) <= LIST_ITEM_WORDS
 
 
 def _is_abbreviation(text: str, stop: int, next_start: int) -> bool:

@@ -77,6 +77,9 @@ def sentences(text: str) -> list[str]:
         # keywords parted by full stops standing apart are one list, not a sentence each
         ("Walking . Diaries . Nurse visits . Older adults",
          ["Walking . Diaries . Nurse visits . Older adults"]),
+        # but a sentence ending in a stop set apart still ends there
+        ("The diagram shows the flow of the walkers . Baseline data were alike.",
+         ["The diagram shows the flow of the walkers .", "Baseline data were alike."]),
     ],
 )
 def test_splitter_cases(text: str, expected: list[str]) -> None:
