@@ -133,3 +133,16 @@ def test_a_tables_column_heads_and_notes_stay_with_the_table(tmp_path) -> None:
         assert piece in table_text, piece
     assert not any(b == "body" and ("Usual care" in t or "Counts of" in t) for t, b in by_text.items())
     assert sum(b == "body" and "Quillmoor" in t for t, b in by_text.items()) >= 2
+
+
+def test_small_print_naming_funding_an_address_or_an_affiliation_is_an_aside(tmp_path) -> None:
+    notes = [(72, 700, "The study was funded by an invented walking charity.", 7.5),
+             (72, 730, "* A. Author a.author@example.org", 7.5),
+             (72, 760, "1 Department of Walking, Invented University, Quillmoor", 7.5)]
+    path = tmp_path / "notes.pdf"
+    _pdf(path, [_prose_lines(100, 12) + notes])
+    sections = {s.text: s.section for s in read_document(path, use_cache=False).sentences}
+    assert sections["The study was funded by an invented walking charity."] == "other"
+    assert sections["* A. Author a.author@example.org"] == "other"
+    assert sections["1 Department of Walking, Invented University, Quillmoor"] == "other"
+    assert sections[PROSE] != "other"

@@ -239,7 +239,8 @@ def page_blocks(page: PageLines) -> list[PBlock]:
 _FRONT_MATTER = re.compile(
     r"\b(?:licen[cs]e[ed]?|copyright|creative commons|downloaded from|open access|"
     r"correspondence|e-?mail|published online|received:|accepted:|"
-    r"this article is distributed|permits unrestricted)\b|©",
+    r"this article is distributed|permits unrestricted|funded by|"
+    r"(?:department|university|institute|faculty|school) of)\b|©|[\w.+-]+@[\w-]+\.\w",
     re.IGNORECASE,
 )
 
