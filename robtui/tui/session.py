@@ -405,10 +405,7 @@ class AssessmentSession:
             self.assessment = change(fresh)
             self.save(stamp=stamp)
         if self.on_reloaded:
-            self.on_reloaded(
-                "this assessment was changed by another robtui process or an editor: it was "
-                "read again and your change was saved on top of theirs"
-            )
+            self.on_reloaded(reloaded_message(before, fresh, self.assessment))
 
     def reload(self) -> bool:
         """Read the assessment again if it changed on disk; True when it had."""
@@ -548,3 +545,29 @@ def _at(a: Assessment, question_id: str) -> Assessment:
     if a.last_question == question_id:
         return a
     return a.model_copy(update={"last_question": question_id})
+
+
+def reloaded_message(mine: Assessment, theirs: Assessment, saved: Assessment) -> str:
+    """What the reviewer is told when another process had changed the file: which answers
+    that process changed, and whose answer (Y, PY, ...) this change then replaced."""
+    changed = sorted(
+        q for q in set(mine.answers) | set(theirs.answers)
+        if mine.answers.get(q) != theirs.answers.get(q)
+    )
+    text = "this assessment was changed by another robtui process or an editor"
+    if changed:
+        text += f" (answers to {', '.join(changed)})"
+    text += ": it was read again and your change was saved on top of theirs"
+    replaced = [
+        f"{q} {_shown(theirs, q)} → {_shown(saved, q)}"
+        for q in changed
+        if _shown(saved, q) != _shown(theirs, q)
+    ]
+    if replaced:
+        text += f"; yours replaced theirs: {', '.join(replaced)}"
+    return text
+
+
+def _shown(assessment: Assessment, question_id: str) -> str:
+    answer = assessment.answers.get(question_id)
+    return (answer.response if answer else None) or "no answer"

@@ -76,6 +76,12 @@ def test_workbench_session_reads_a_changed_file_and_applies_its_change_on_top(ro
     assert stress.stored_answers(root, "ana") == {"1.1": "Y", "1.2": "N", "1.3": "PY"}
     assert session.assessment.answers["1.2"].response == "N", "the screen shows theirs too"
     assert told and "changed by another" in told[0]
+    assert "(answers to 1.2)" in told[0] and "replaced" not in told[0]  # nothing of theirs
+    cli = ReviewFolder.open(root)
+    cli.update_assessment("ana", "S1", "r1", _answer(cli, "ana", "1.1", "PY"))
+    session.set_response("1.1", "N")  # the same question: the reviewer is told theirs went
+    assert stress.stored_answers(root, "ana")["1.1"] == "N"
+    assert told[-1].endswith("yours replaced theirs: 1.1 PY → N"), told[-1]
 
 
 def test_many_assess_processes_at_once_lose_no_answer(root):
