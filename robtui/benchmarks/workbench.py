@@ -9,7 +9,8 @@ Prints (figures, not pass/fail):
   Pilot's own idle waits of at least 2 x 20 ms);
 - opening a ~15-page two-column PDF (or a real one: --pdf) to its first suggestions: read (not
   cached) and ranked in the worker, and reopened (from the reader's cache); the longest stall
-  of the UI's event loop until the report is laid out shows whether the interface stayed
+  of the UI's event loop until the report is shown (its first screens laid out; the rest is
+  laid out as the reviewer moves on) shows whether the interface stayed
   responsive, and the CPU time of the UI's thread over the same span what the interface itself
   spent (steadier than wall-clock stalls when other processes share the cores); then answer
   keys pressed during another first open, key posted to judgement updated (the wait for the
@@ -178,7 +179,7 @@ class Opening:
     sentences: int
     parts: dict
     keys: list[float]
-    ui_cpu: float = 0.0  # CPU seconds of the interface's thread until the report is laid out
+    ui_cpu: float = 0.0  # CPU seconds of the interface's thread until the report is shown
 
 
 async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening:
@@ -307,11 +308,11 @@ def _run(args: argparse.Namespace) -> int:
             f"rank {_ms(again.parts.get('rank', 0))}]"
         )
         print(
-            f"  longest UI event-loop stall until the report is laid out: {_ms(first.stall)} / "
+            f"  longest UI event-loop stall until the report is shown: {_ms(first.stall)} / "
             f"{_ms(again.stall)}"
         )
         print(
-            f"  CPU time of the interface's thread until the report is laid out: "
+            f"  CPU time of the interface's thread until the report is shown: "
             f"{_ms(first.ui_cpu)} / {_ms(again.ui_cpu)} (less than wall time on a busy machine)"
         )
         if keyed.keys:

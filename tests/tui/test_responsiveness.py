@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import threading
 
 from robtui.tui.app import Workbench
@@ -33,8 +34,7 @@ async def test_keys_work_while_the_report_is_being_ranked(demo_dir):
         await pilot.press("enter", "enter")
         screen = app.screen
         assert isinstance(screen, AssessmentScreen)
-        progress = screen.query_one("#report-progress")
-        label = screen.query_one("#progress-label")
+        progress = label = screen.query_one("#report-progress")
         for _ in range(400):  # reading first (quick when cached), then ranking, held
             if "Ranking" in str(label.render()):
                 break
@@ -45,6 +45,8 @@ async def test_keys_work_while_the_report_is_being_ranked(demo_dir):
         await pilot.pause()
         assert screen.session.response(screen.question_id) == "Y"
         assert screen.session.final("1") == "incomplete"
+        await pilot.pause(1.2)  # the line counts the seconds, so a long stage shows it is alive
+        assert re.search(r"Ranking .* [1-9]\d* s$", str(label.render())), str(label.render())
         held.release.set()
         await settle(pilot)
         assert not progress.display

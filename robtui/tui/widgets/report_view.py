@@ -21,7 +21,13 @@ SUGGESTION_STYLE = "bold #111111 on #f2c078"
 QUOTE_MARK = "❝"
 PASSAGE_MARK = "┃"  # a sentence inside the passage being marked (v ... q)
 HEADING_STYLE = "bold #6fa8dc"
-CHUNK = 60  # sentences wrapped and added per step when a long report is laid out
+# A report is laid out only as far as the reviewer can reach soon: FIRST entries (sentences and
+# section lines; several screens even on a tall terminal) when it opens, then AHEAD more each
+# time the view comes within two screens of the end of what is laid out, or a move (search,
+# suggestion, End) goes further. Laying a whole long report out as it opened had Textual wrap,
+# measure and repaint the view once per batch while the reviewer was typing.
+FIRST = 80
+AHEAD = 60
 GUTTER = 7  # page number column, then the sentence
 
 
@@ -44,7 +50,6 @@ class ReportView(OptionList):
         self.passage_start: int | None = None  # sentence a passage being marked starts at (v)
         self._in_passage: set[int] = set()
         self._built_width = self._width = 0
-        self._generation = 0
         self._entries: list[Sentence | str] = []  # what the options show, in order
 
     # -- content -----------------------------------------------------------------------
@@ -60,11 +65,9 @@ class ReportView(OptionList):
             self.highlighted = first
 
     def _build(self) -> None:
-        """Lay the sentences out at the current width; long reports are added in chunks, each
-        sentence wrapped only when its chunk goes in, so the interface keeps answering keys
-        while they go in."""
+        """Lay the report's first screens out at the current width (the rest follows as the
+        reviewer moves toward it: ``_lay_out_to``)."""
         assert self.document is not None
-        self._generation += 1
         self._built_width = self._width = self._text_width
         entries: list[Sentence | str] = []  # a sentence, or the label of a section heading
         self._index_of = {}
@@ -77,9 +80,7 @@ class ReportView(OptionList):
             self._index_of[sentence.index] = len(entries)
             entries.append(sentence)
         self._entries = entries
-        self.set_options(self._options_between(0, CHUNK))
-        if len(entries) > CHUNK:
-            self.call_later(self._add_chunk, CHUNK, self._generation)
+        self.set_options(self._options_between(0, FIRST))
 
     def _options_between(self, start: int, stop: int) -> list[Option]:
         """The options of entries ``start:stop``, with the marks of the moment."""
@@ -89,20 +90,31 @@ class ReportView(OptionList):
             for entry in self._entries[start:stop]
         ]
 
-    def _add_chunk(self, start: int, generation: int) -> None:
-        if generation != self._generation:
-            return  # a newer layout replaced this one
-        self.add_options(self._options_between(start, start + CHUNK))
-        if start + CHUNK < len(self._entries):
-            self.set_timer(0.001, lambda: self._add_chunk(start + CHUNK, generation))
+    def _lay_out_to(self, entry_index: int) -> None:
+        """Lay the report out up to ``entry_index`` and AHEAD entries beyond (or to its end)."""
+        stop = min(len(self._entries), entry_index + AHEAD)
+        if stop > self.option_count:
+            self.add_options(self._options_between(self.option_count, stop))
+
+    def watch_scroll_y(self, old_value: float, new_value: float) -> None:
+        super().watch_scroll_y(old_value, new_value)
+        if self.option_count < len(self._entries) and (
+            new_value + 2 * self.size.height >= self.virtual_size.height
+        ):  # near the end of what is laid out: the next entries, once this scroll is drawn
+            self.call_later(self._lay_out_to, self.option_count)
+
+    def action_last(self) -> None:
+        """End: the report's last sentence (laying out what is left)."""
+        self._lay_out_to(len(self._entries))
+        super().action_last()
 
     @property
     def laid_out(self) -> bool:
-        """True once every sentence of the report is in the view."""
-        return self.document is None or self.option_count >= len(self._entries)
+        """True once the report's first screens are in the view (the rest is laid out as
+        the reviewer moves toward it)."""
+        return self.document is None or self.option_count >= min(FIRST, len(self._entries))
 
     def show_message(self, text: str) -> None:
-        self._generation += 1
         self.document = None
         self._index_of = {}
         self.set_options([Option(Text(text), disabled=True)])
@@ -152,11 +164,11 @@ class ReportView(OptionList):
 
     def on_resize(self) -> None:
         if self.document is not None and self._built_width != self._text_width:
-            keep = self.highlighted
+            here = self.highlighted_sentence
             self._build()
-            self.highlighted = keep
-            if keep is not None:  # the sentence again a third of the way down
-                self.call_after_refresh(self._centre, keep)
+            if here is not None:  # the sentence again a third of the way down (laid out up
+                self.go_to_sentence(here.index)  # to it first when it lies further on)
+                self.call_after_refresh(self.go_to_sentence, here.index)
 
     def mark(self, suggestions: Sequence[Any], quoted: Iterable[int]) -> None:
         """Show ``suggestions`` (rank order) and the ``quoted`` sentence indexes."""
@@ -196,6 +208,8 @@ class ReportView(OptionList):
     def on_option_list_option_highlighted(self) -> None:
         if self.passage_start is not None:
             self._show_passage()
+        if self.highlighted is not None and self.highlighted + AHEAD // 2 >= self.option_count:
+            self._lay_out_to(self.highlighted)  # the cursor nears the end of what is laid out
 
     def _redraw(self, sentence_indexes: Iterable[int]) -> None:
         for sentence_index in sentence_indexes:
@@ -218,10 +232,8 @@ class ReportView(OptionList):
 
     def go_to_sentence(self, sentence_index: int) -> None:
         option_index = self._index_of.get(sentence_index)
-        if option_index is not None and option_index >= self.option_count:
-            self._generation += 1  # lay out the rest now, then move there
-            self.add_options(self._options_between(self.option_count, len(self._entries)))
         if option_index is not None:
+            self._lay_out_to(option_index)  # with some context after it
             self.highlighted = option_index
             self._centre(option_index)
 

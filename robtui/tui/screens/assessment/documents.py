@@ -6,10 +6,12 @@ A mixin of AssessmentScreen (it uses the screen's session, widgets and ``questio
 
 from __future__ import annotations
 
+import time
 from pathlib import PurePosixPath
 
 from rich.text import Text
 from textual import work
+from textual.timer import Timer
 from textual.widgets import Label, Static
 from textual.worker import get_current_worker
 
@@ -91,16 +93,37 @@ class ReportDocuments:
                 )
         self.app.call_from_thread(self._reports_loaded, self.loaded)
 
+    # What the report pane says while the worker reads: the stage and the seconds it has
+    # taken, counted once a second. A line of text, not an animated bar: a bar redrawn many
+    # times a second takes the interface's time (and the reader's) for the whole reading.
+    _stage_text = "Opening the report …"
+    _stage_since = 0.0
+    _stage_clock: Timer | None = None
+
     def _stage(self, text: str) -> None:
         if not self.is_mounted:
             return
-        self.query_one("#report-progress").display = True
-        self.query_one("#progress-label", Label).update(text)
+        self._stage_text, self._stage_since = text, time.monotonic()
+        self._stop_stage_clock()  # whole seconds from this stage's start
+        self._stage_clock = self.set_interval(1.0, self._show_stage)
+        self._show_stage()
+
+    def _stop_stage_clock(self) -> None:
+        if self._stage_clock is not None:
+            self._stage_clock.stop()
+            self._stage_clock = None
+
+    def _show_stage(self) -> None:
+        seconds = round(time.monotonic() - self._stage_since)
+        label = self.query_one("#report-progress", Label)
+        label.display = True
+        label.update(self._stage_text + (f" {seconds} s" if seconds else ""))
 
     def _reports_loaded(self, loaded: list[LoadedReport]) -> None:
         if not self.is_mounted:  # the reviewer left before the report was ready
             return
         self.loaded = loaded
+        self._stop_stage_clock()
         self.query_one("#report-progress").display = False
         self.document_index = min(self.document_index, max(len(loaded) - 1, 0))
         self._show_current_document()

@@ -23,7 +23,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
-from textual.widgets import Input, Label, ProgressBar, Static, TextArea
+from textual.widgets import Input, Label, Static, TextArea
 
 from robtui.core.explaining import determined_overall
 from robtui.core.model import OVERALL
@@ -144,11 +144,7 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
             with Vertical(id="report-panel"):
                 yield Static("", id="report-question")
                 yield Static("", id="report-heading")
-                with Horizontal(id="report-progress"):
-                    yield Label("Opening the report …", id="progress-label")
-                    yield ProgressBar(
-                        total=None, show_eta=False, show_percentage=False, id="progress-bar"
-                    )
+                yield Label("Opening the report …", id="report-progress")
                 yield ReportView(id="report")
                 yield Input(
                     placeholder="Search the report (enter: next match, escape: close)", id="search"
