@@ -41,6 +41,11 @@ async def test_keys_work_while_the_report_is_being_ranked(demo_dir):
             await pilot.pause(0.025)
         assert progress.display
         assert "Ranking" in str(label.render())
+        await pilot.press("right_square_bracket")  # no suggestions yet: says why
+        await pilot.pause()
+        said = [n.message for n in app._notifications]
+        assert any("still being read" in m for m in said), said
+        assert not any("no suggested sentences" in m for m in said), said
         await pilot.press("y")  # the interface answers while the worker waits
         await pilot.pause()
         assert screen.session.response(screen.question_id) == "Y"

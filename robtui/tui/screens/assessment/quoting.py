@@ -31,7 +31,11 @@ class Quoting:
         suggestions = self.suggestions_for(self.question_id)
         view = self.query_one("#report", ReportView)
         if not suggestions:
-            self.notify("no suggested sentences for this question", timeout=2)
+            if self.query_one("#report-progress").display:  # not read yet: none to say
+                self.notify("the report is still being read: its suggestions come when it is "
+                            "ready", timeout=3)
+            else:
+                self.notify("no suggested sentences for this question", timeout=2)
             return
         order = [s.sentence_index for s in suggestions]
         here = view.highlighted_sentence
