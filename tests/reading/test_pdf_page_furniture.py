@@ -135,7 +135,8 @@ def test_a_tables_column_heads_and_notes_stay_with_the_table(tmp_path) -> None:
     assert sum(b == "body" and "Quillmoor" in t for t, b in by_text.items()) >= 2
 
 
-def test_small_print_naming_funding_an_address_or_an_affiliation_is_an_aside(tmp_path) -> None:
+def test_first_page_small_print_naming_funding_an_address_or_an_affiliation_is_an_aside(
+        tmp_path) -> None:
     notes = [(72, 700, "The study was funded by an invented walking charity.", 7.5),
              (72, 730, "* A. Author a.author@example.org", 7.5),
              (72, 760, "1 Department of Walking, Invented University, Quillmoor", 7.5)]

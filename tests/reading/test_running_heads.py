@@ -54,3 +54,27 @@ def test_running_head_with_page_numbers_is_still_removed(tmp_path) -> None:
     document = read_document(path, use_cache=False)
     assert HEAD not in document.text
     assert [s.text for s in document.sentences if s.block == "body"] == entries
+
+
+def test_running_head_of_a_page_set_landscape_is_removed(tmp_path) -> None:
+    # the head stands as far below the top edge as on the upright pages, which on the shorter
+    # landscape page lies beyond the same share of its height
+    from reportlab.lib.pagesizes import A4, landscape
+    from reportlab.pdfgen import canvas
+
+    path = tmp_path / "landscape.pdf"
+    c = canvas.Canvas(str(path), pagesize=A4)
+    for page in range(1, 7):
+        size = landscape(A4) if page in (3, 4) else A4
+        c.setPageSize(size)
+        c.setFont("Helvetica", 8)
+        c.drawString(72, size[1] - 63, f"Invented Journal of Trials 2030, 3, 12   {page} of 6")
+        c.setFont("Helvetica", 10)
+        for i in range(30 if size == A4 else 20):
+            c.drawString(72, size[1] - 100 - 13 * i,
+                         f"Participant {page * 100 + i} walked on most days of week {i + 1}.")
+        c.showPage()
+    c.save()
+    document = read_document(path, use_cache=False)
+    assert "Invented Journal of Trials" not in document.text
+    assert "Participant 310 walked on most days of week 11." in document.text

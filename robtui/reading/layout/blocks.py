@@ -66,9 +66,11 @@ def _margin_lines(page: PageLines) -> list[Line]:
     """Lines of the top or bottom margin set apart from the page's text: runs of closely
     spaced lines (closer than SET_APART of the body size, whatever their column) that lie in
     the margin, or open (close) in it with at most HEAD_ROWS rows. A paragraph running on
-    from the margin into the page is text."""
-    top_zone = page.height * MARGIN_SHARE
-    bottom_zone = page.height * (1 - MARGIN_SHARE)
+    from the margin into the page is text. The margins are as deep on a page set landscape
+    as on the upright pages around it: the zone is a share of the page's longer side."""
+    depth = max(page.height, page.width) * MARGIN_SHARE
+    top_zone = depth
+    bottom_zone = page.height - depth
     out: list[Line] = []
     for run in _vertical_runs(page.lines, SET_APART * max(page.body_size, 4.0)):
         if any(is_caption(ln.text) for ln in run[:2]):
@@ -239,8 +241,16 @@ def page_blocks(page: PageLines) -> list[PBlock]:
 _FRONT_MATTER = re.compile(
     r"\b(?:licen[cs]e[ed]?|copyright|creative commons|downloaded from|open access|"
     r"correspondence|e-?mail|published online|received:|accepted:|"
-    r"this article is distributed|permits unrestricted|funded by|"
-    r"(?:department|university|institute|faculty|school) of)\b|©|[\w.+-]+@[\w-]+\.\w",
+    r"this article is distributed|permits unrestricted)\b|©",
+    re.IGNORECASE,
+)
+
+
+# Small print on the first page that names funding, an address or an affiliation: the
+# footnotes under the abstract (later pages' small print may be the text's own notes).
+_FIRST_PAGE_NOTE = re.compile(
+    r"\b(?:funded by|(?:department|university|institute|faculty|school) of)\b|"
+    r"[\w.+-]+@[\w-]+\.\w",
     re.IGNORECASE,
 )
 
@@ -255,7 +265,7 @@ def _kind(block: PBlock, body_size: float, body_font: str) -> str:
     if is_caption(first.text):
         return "caption"
     small = statistics.median(ln.size for ln in block.lines) < body_size - 1.2
-    if small and _FRONT_MATTER.search(text):
+    if small and (_FRONT_MATTER.search(text) or (block.page == 1 and _FIRST_PAGE_NOTE.search(text))):
         return "aside"
     if len(block.lines) <= 2 and looks_like_heading(text):
         if first.bold or first.size > body_size + 0.8:
