@@ -193,7 +193,8 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                                           "baseline txt", "baseline pdf", "transfer txt")}
     calib: list[tuple[float, bool]] = []
     thresholds = []
-    flagged = {"with": [0, 0], "without": [0, 0]}  # [flagged as no evidence, total]
+    # per route: [flagged as no evidence, total], with each route's own cut (threshold_for)
+    flagged = {route: {"with": [0, 0], "without": [0, 0]} for route in ("txt", "pdf")}
     groups = np.arange(len(txt_docs))
     for fold, (train, test) in enumerate(GroupKFold(n_splits=folds).split(txt_docs, groups=groups)):
         t0 = time.perf_counter()
@@ -234,10 +235,10 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                         candidate_order(base[key], keep, *layout, spread=False))
                     if route == "txt":
                         calib.extend(zip(scores[key].tolist(), labels.tolist()))
-                        top = float(scores[key][by_score[0]]) if len(by_score) else 0.0
-                        side = "with" if present else "without"
-                        flagged[side][0] += top < ranker.threshold_for(key, origin="txt")
-                        flagged[side][1] += 1
+                    top = float(scores[key][by_score[0]]) if len(by_score) else 0.0
+                    side = flagged[route]["with" if present else "without"]
+                    side[0] += top < ranker.threshold_for(key, origin=doc.document.kind)
+                    side[1] += 1
                 if route == "txt":
                     feats = ranker.features(doc.document)
                     blocks = ranker.question_blocks(feats, keys, [texts.get(k, "") for k in keys])
@@ -373,10 +374,16 @@ def main(argv: list[str] | None = None) -> int:
     for lo, n, mean_p, rate in c["bins"]:
         print(f"  score {lo:.1f}-{lo + 0.1:.1f}: {n:5d} sentences, mean score {mean_p:.3f}, "
               f"observed evidence rate {rate:.3f}")
-    f = result["flagged"]
+    f = result["flagged"]["txt"]
     print(f"No-evidence threshold per fold: {', '.join(f'{t:.3f}' for t in result['thresholds'])}; "
           f"flagged 'no sentence found' for {f['without'][0]}/{f['without'][1]} (article, question) "
           f"pairs without gold evidence and {f['with'][0]}/{f['with'][1]} with it")
+    f = result["flagged"]["pdf"]
+    if f["with"][1] + f["without"][1]:
+        print(f"  PDF route, each question's cut for a PDF (the second stage's, fitted on the real "
+              f"PDFs, for the questions it was fitted on): flagged {f['without'][0]}/"
+              f"{f['without'][1]} pairs without gold evidence and {f['with'][0]}/{f['with'][1]} "
+              "with it")
     from robtui.evidence.training.metrics import macro
 
     m = {n: {a: macro(figs[n], a) for a in ("recall1", "recall3")} for n in figs}
