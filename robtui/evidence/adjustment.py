@@ -13,8 +13,9 @@ cross-validation are in ``evidence/training/real_gold.py``.
 It applies only to documents of the kinds it was fitted and validated on (``domains``: the
 PDFs robtui's PDF reader reads, ``Document.kind == "pdf"``). Text, Markdown, HTML and
 registry records keep the first stage, validated on the corpus text, with its calibration and
-"no sentence found" cut: fitted on the real PDFs, the second stage moved the corpus text's
-first places to abstract sentences the corpus leaves unlabelled (DEVELOPERS.md, retraining).
+"no sentence found" cut: fitted on the real PDFs' reviewer-quote gold, the second stage
+lowered the corpus figures, whose labels are CONSORT items rather than the sentence a reviewer
+quotes (DEVELOPERS.md, retraining; docs/evidence-ranker.md).
 In its domain it re-ranks the questions it ``serves``; for its other questions the first
 stage ranks, with scores recalibrated on the real PDFs (``first_platt``), so that every
 question of the domain is read against one "no sentence found" cut (``threshold``).
