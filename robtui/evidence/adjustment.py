@@ -33,7 +33,7 @@ from pathlib import Path
 import numpy as np
 
 from robtui.errors import ModelFileError
-from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES
+from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, SIGNAL_NAMES
 
 DEFAULT_ADJUSTMENT = Path(__file__).with_name("weights") / "adjustment.npz"
 ADJUSTMENT_FORMAT = 2  # 2: domains and the first stage's recalibration
@@ -43,11 +43,14 @@ _SHARED_USED = ("block=heading", "block=caption", "block=table", "short_sentence
                 "top=methods", "top=results", "top=discussion", "top=other")
 _QUESTION_USED = ("cue_best", "cue_full", "cue_window", "cue_heading", "question_similarity",
                   "question_similarity_window", "in_expected_section", "in_expected_top_section")
+# signals the first stage does not read (features.SIGNAL_NAMES)
+_SIGNALS_USED = ("caption_title",)
 # Shared features, then per-question copies of the first stage's two scores and best cue.
-BASE_NAMES: tuple[str, ...] = ("model", "transfer") + _QUESTION_USED + _SHARED_USED
+BASE_NAMES: tuple[str, ...] = ("model", "transfer") + _QUESTION_USED + _SHARED_USED + _SIGNALS_USED
 PER_QUESTION = ("model", "transfer", "cue_best")
 _Q_COLS = [QUESTION_NAMES.index(n) for n in _QUESTION_USED]
 _S_COLS = [SHARED_NAMES.index(n) for n in _SHARED_USED]
+_G_COLS = [SIGNAL_NAMES.index(n) for n in _SIGNALS_USED]
 
 
 def feature_names(keys: tuple[str, ...] | list[str]) -> list[str]:
@@ -55,11 +58,11 @@ def feature_names(keys: tuple[str, ...] | list[str]) -> list[str]:
 
 
 def base_features(model: np.ndarray, transfer: np.ndarray, question: np.ndarray,
-                  shared: np.ndarray) -> np.ndarray:
+                  shared: np.ndarray, signals: np.ndarray) -> np.ndarray:
     """(n, len(BASE_NAMES)) for one question: its first-stage log-odds (own model, transfer
-    model), its question features and the layout features used."""
+    model), its question features, the layout features and the signals used."""
     return np.column_stack([np.clip(model, -CLIP, CLIP), np.clip(transfer, -CLIP, CLIP),
-                            question[:, _Q_COLS], shared[:, _S_COLS]])
+                            question[:, _Q_COLS], shared[:, _S_COLS], signals[:, _G_COLS]])
 
 
 def design(base: np.ndarray, key: str, keys: list[str] | tuple[str, ...]) -> np.ndarray:
@@ -107,8 +110,9 @@ class Adjustment:
         return self.first_platt[0] * own + self.first_platt[1]
 
     def log_odds(self, key: str, model: np.ndarray, transfer: np.ndarray,
-                 question: np.ndarray, shared: np.ndarray) -> np.ndarray:
-        z = design(base_features(model, transfer, question, shared), key, self.keys) @ self.coef
+                 question: np.ndarray, shared: np.ndarray, signals: np.ndarray) -> np.ndarray:
+        z = design(base_features(model, transfer, question, shared, signals), key,
+                   self.keys) @ self.coef
         return self.platt[0] * z + self.platt[1]
 
 

@@ -9,6 +9,9 @@ Blocks, in the order the weights are stored:
 - per-question features: cue-lexicon coverage of the sentence and of its neighbours, TF-IDF
   cosine between the question's wording and the sentence (and its neighbours), and whether the
   sentence sits in a section where the question's evidence usually sits.
+
+Beside them, signals only the second stage reads (``SIGNAL_NAMES``, evidence/adjustment.py): the
+first stage's weights have no column for them, so adding one needs no retraining of it.
 """
 
 from __future__ import annotations
@@ -46,6 +49,8 @@ SHARED_NAMES: tuple[str, ...] = (
     + tuple(f"block={b}" for b in BLOCKS)
     + ("log_length", "short_sentence", "registry_id", "after_heading")
 )
+# Read by the second stage only (see the module docstring).
+SIGNAL_NAMES: tuple[str, ...] = ("caption_title",)
 QUESTION_NAMES: tuple[str, ...] = (
     "cue_best",
     "cue_full",
@@ -70,6 +75,7 @@ class DocumentFeatures:
     coverage: np.ndarray  # (n, n_cues) cue coverage
     section_names: tuple[str, ...]  # the distinct sections, in order of first appearance
     section_codes: np.ndarray  # (n,) each sentence's index into section_names
+    signals: np.ndarray  # (n, len(SIGNAL_NAMES)), for the second stage
     # the kind of report the sentences were read from (reading.document.DocumentKind): which
     # stages and cuts apply (evidence/adjustment.py); text unless the caller says otherwise
     origin: str = "txt"
@@ -80,6 +86,16 @@ class DocumentFeatures:
 
 
 DIGIT = re.compile(r"\d")
+# A table or figure title ("Table 2 Baseline characteristics", "Figure 1: Trial profile"), not
+# a sentence about one ("Table 2 shows ...", "Figure 1 presents ..."): a verb of showing right
+# after the number makes it prose (common English usage, no source). The reader does not always
+# set a title apart as a caption (a title standing alone above a figure reads as body text).
+CAPTION_TITLE = re.compile(
+    r"^\s*(?:supplementary\s+|additional\s+)?(?:table|figure|fig\.?)\s*[a-z]?\d+[a-z]?[.:]?\s+"
+    r"(?!(?:also\s+)?(?:shows?|presents?|summari[sz]es|lists?|gives?|describes?|displays?|"
+    r"illustrates?|reports?|depicts?|provides?|contains?|compares?|details?|outlines?|"
+    r"includes?|indicates?|demonstrates?|and|or|to|in|of|for|was|were|is|are)\b)",
+    re.IGNORECASE)
 
 
 def lexical_text(text: str) -> str:
@@ -127,6 +143,18 @@ def shared_features(
     return out
 
 
+def signal_features(sentences: Sequence[Sentence]) -> np.ndarray:
+    """(n, len(SIGNAL_NAMES)): whether each sentence is a table or figure title
+    (CAPTION_TITLE). The real PDFs' gold never quotes a title: a reviewer quotes the prose that
+    reports the numbers or the balance, while the corpus annotates titles of flow diagrams and
+    baseline tables as evidence (items 13a, 15), so only the second stage, fitted on the real
+    PDFs, reads this."""
+    out = np.zeros((len(sentences), len(SIGNAL_NAMES)))
+    for row, sentence in enumerate(sentences):
+        out[row, 0] = 1.0 if CAPTION_TITLE.match(sentence.text) else 0.0
+    return out
+
+
 def document_features(
     sentences: Sequence[Sentence], word: TfidfTable, char: TfidfTable, matcher: CueMatcher
 ) -> DocumentFeatures:
@@ -142,6 +170,7 @@ def document_features(
         coverage=matcher.coverage(words),
         section_names=tuple(names),
         section_codes=codes,
+        signals=signal_features(sentences),
     )
 
 

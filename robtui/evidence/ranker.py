@@ -336,7 +336,8 @@ class Ranker:
         for key, (own, transfer, qf) in first.items():
             served = self.adjusted_key(key, doc.origin)
             if served is not None:
-                out[key] = self.adjustment.log_odds(served, own, transfer, qf, doc.shared)
+                out[key] = self.adjustment.log_odds(served, own, transfer, qf, doc.shared,
+                                                    doc.signals)
             elif self.recalibrated_key(key, doc.origin) is not None:
                 out[key] = self.adjustment.first_stage_log_odds(own)
             else:

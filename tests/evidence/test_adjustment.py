@@ -86,7 +86,8 @@ def test_the_second_stage_applies_to_pdfs_only_and_the_threshold_follows(ranker,
     for key in keys:
         own, transfer, qf = stage_one[key]
         assert np.allclose(plain[key], own)
-        expected = 0.5 * (design(base_features(own, transfer, qf, on_pdf.shared), key, keys)
+        expected = 0.5 * (design(base_features(own, transfer, qf, on_pdf.shared,
+                                                          on_pdf.signals), key, keys)
                           @ coef) - 1.0
         assert np.allclose(both[key], expected)
     assert adjusted.threshold_for("1.1", origin="pdf") == 0.2
@@ -148,6 +149,35 @@ def test_the_shipped_second_stage_applies_to_pdfs_only():
     assert shipped is not None and shipped.domains == ("pdf",)
     assert shipped.serves and set(shipped.serves) <= set(shipped.keys)
     assert 0.0 < shipped.threshold < 1.0
+
+
+def test_a_title_signal_reaches_the_second_stage_and_moves_a_title_down(ranker):
+    """The second stage reads features.SIGNAL_NAMES, which the first stage has no column for:
+    a negative caption_title weight ranks a table title below the prose about the same table."""
+    from robtui.evidence.ranker import Ranker
+
+    text = ("Results\n\nTable 1 Baseline characteristics of the orchard workers\n\n"
+            "Baseline characteristics of the orchard workers were similar in the two arms.\n")
+    doc = _as_pdf(document_from_text(text))  # the second stage applies to PDFs
+    keys = ["1.3"]
+    texts = [ranker.weights.question_texts["1.3"]]
+    title = next(i for i, s in enumerate(doc.sentences) if s.text.startswith("Table 1"))
+    feats = ranker.features(doc)
+    assert feats.signals[title].tolist() == [1.0]
+    assert feats.signals[:, 0].sum() == 1.0
+    coef = np.zeros(len(feature_names(keys)))
+    coef[BASE_NAMES.index("model")] = 1.0
+    plain = Ranker(ranker.weights, ranker.cues,
+                   adjustment=Adjustment(keys, coef, np.array([1.0, 0.0]), 0.2))
+    coef = coef.copy()
+    coef[BASE_NAMES.index("caption_title")] = -5.0
+    penalised = Ranker(ranker.weights, ranker.cues,
+                       adjustment=Adjustment(keys, coef, np.array([1.0, 0.0]), 0.2))
+    before = plain.logits(feats, keys, texts)["1.3"]
+    after = penalised.logits(feats, keys, texts)["1.3"]
+    assert np.isclose(before[title] - after[title], 5.0)
+    others = np.arange(len(before)) != title
+    assert np.allclose(before[others], after[others])
 
 
 def _group(article, key, signal, labels):

@@ -166,3 +166,24 @@ def test_a_randomisation_sub_item_also_counts_as_the_randomisation_section():
     assert col("section=methods.randomisation") == [1.0, 1.0, 0.0]
     assert col("section=methods") == [0.0, 0.0, 0.0]  # only the direct parent
     assert col("section=methods.outcomes") == [0.0, 0.0, 1.0]
+
+
+def test_caption_title_signal_tells_a_title_from_prose_about_a_table():
+    from robtui.evidence.features import SIGNAL_NAMES, signal_features
+
+    texts = {
+        "Table 2 Characteristics of the orchard workers at enrolment": 1.0,
+        "Figure 1: Flow of the schools through the study": 1.0,
+        "Fig. 3 Weekly step counts by arm.": 1.0,
+        "Supplementary Table S1. Reasons for leaving the study": 1.0,
+        "Table 2 shows the characteristics of the orchard workers.": 0.0,
+        "Figure 1 presents the flow of schools through the study.": 0.0,
+        "Tables 2 and 3 list the outcomes.": 0.0,
+        "Table 2 and Figure 3 give the outcomes by arm.": 0.0,
+        "Of 212 workers screened, 180 were randomised (figure 1).": 0.0,
+        "The table was set in the canteen.": 0.0,
+    }
+    sentences = [Sentence(index=i, start=0, end=len(t), text=t) for i, t in enumerate(texts)]
+    signals = signal_features(sentences)
+    assert signals.shape == (len(texts), len(SIGNAL_NAMES))
+    assert signals[:, SIGNAL_NAMES.index("caption_title")].tolist() == list(texts.values())

@@ -178,7 +178,8 @@ def article_groups(name: str, document, questions: dict[str, list[GoldSnippet]],
     for key in keys:
         own, transfer, qf = first[key]
         labels = hit_labels(texts, [normalise(g.snippet) for g in questions[key]])
-        out.append(Group(name, key, base_features(own, transfer, qf, feats.shared), labels, keep,
+        out.append(Group(name, key, base_features(own, transfer, qf, feats.shared, feats.signals),
+                         labels, keep,
                          tuple(s.text for s in document.sentences)))
     return out
 
