@@ -172,3 +172,26 @@ def test_a_sentence_interrupted_by_poppler_counts_only_on_the_second_figure() ->
                        "the homes twice a week. after randomisation by the team.")
     assert intact_across_interruption(whole, across)
     assert not intact_across_interruption(whole, across, own)
+
+
+def test_misses_are_listed_by_the_fair_rank_when_the_bench_has_it(capsys):
+    """The shipped second stage has seen every article's gold, so --misses lists the misses of
+    the leave-one-article-out ranks, with the shipped rank beside them."""
+    from robtui.benchmarks.real_pdfs import Pair, print_misses
+
+    def pair(question, rank, loao):
+        return Pair(article="invented2030", question=question, answerable=True, rank=rank,
+                    spread_rank=rank, no_sections_rank=rank, top_score=0.5, flagged=False,
+                    top3_reference=0, top3_table=0, baseline_rank=4, baseline_top=0.1,
+                    loao_rank=loao, top_text="A sentence that came first.", snippets=("gold",))
+
+    print_misses([pair("1.1", 1, 3), pair("1.2", 2, 1), pair("1.3", 1, 1)])
+    printed = capsys.readouterr().out
+    assert "leave one article out" in printed
+    assert "invented2030 1.1: rank 3 (as shipped 1)" in printed
+    assert "invented2030 1.2" not in printed and "invented2030 1.3" not in printed
+
+    print_misses([pair("2.1", 2, None), pair("2.2", 1, None)])
+    printed = capsys.readouterr().out
+    assert "as shipped;" in printed
+    assert "invented2030 2.1: rank 2," in printed and "invented2030 2.2" not in printed
