@@ -383,7 +383,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
     from robtui.evidence.ranker import Ranker
     from robtui.evidence.training.reader_faults import without_sections
     from robtui.evidence.training.real_gold import article_groups
-    from robtui.reading.document import top_section
+    from robtui.reading.document import CELL_BLOCKS, top_section
     from robtui.reading.reader import read_document
 
     questions = list(gold)
@@ -445,7 +445,7 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
             top3_reference=sum(
                 top_section(s.section) == "references" or looks_like_reference(s.text, tail)
                 for s in top3),
-            top3_table=sum(document.sentences[s.sentence_index].block in ("table", "figure")
+            top3_table=sum(document.sentences[s.sentence_index].block in CELL_BLOCKS
                            or looks_like_table_cell(s.text) for s in top3),
             baseline_rank=first_hit(base_order, base_labels),
             baseline_top=float(base[base_order[0], j]) if len(base_sentences) else 0.0,

@@ -156,7 +156,8 @@ def signal_features(sentences: Sequence[Sentence]) -> np.ndarray:
 
 
 def document_features(
-    sentences: Sequence[Sentence], word: TfidfTable, char: TfidfTable, matcher: CueMatcher
+    sentences: Sequence[Sentence], word: TfidfTable, char: TfidfTable, matcher: CueMatcher,
+    origin: str = "txt",
 ) -> DocumentFeatures:
     folded = [lexical_text(s.text) for s in sentences]
     words = [tokens(s.text) for s in sentences]  # cues are matched on the text as written
@@ -171,6 +172,7 @@ def document_features(
         section_names=tuple(names),
         section_codes=codes,
         signals=signal_features(sentences),
+        origin=origin,
     )
 
 

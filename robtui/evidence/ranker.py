@@ -32,7 +32,7 @@ from robtui.evidence.features import (
     stacked_features,
 )
 from robtui.evidence.model import RankerWeights, load_weights
-from robtui.reading.document import Document, top_section
+from robtui.reading.document import CELL_BLOCKS, Document, top_section
 
 
 @dataclass(frozen=True)
@@ -132,7 +132,7 @@ def suggestible(sentences: Sequence) -> np.ndarray:
         if s.block == "heading":
             keep[i] = not _topic_heading(s.text)
         else:
-            keep[i] = not (s.block in ("table", "figure")
+            keep[i] = not (s.block in CELL_BLOCKS
                            or top_section(s.section) == "references" or _fragment(s.text))
     return keep if keep.any() else np.ones(len(sentences), dtype=bool)
 
@@ -257,9 +257,8 @@ class Ranker:
 
     def features(self, document: Document) -> DocumentFeatures:
         w = self.weights
-        feats = document_features(document.sentences, w.word, w.char, self.matcher)
-        feats.origin = document.kind
-        return feats
+        return document_features(document.sentences, w.word, w.char, self.matcher,
+                                 origin=document.kind)
 
     def _question_vectors(self, texts: list[str]) -> np.ndarray:
         """(n_word, len(texts)) word TF-IDF of the question wordings, cached per wording list."""

@@ -49,6 +49,8 @@ SECTION_LABELS: tuple[str, ...] = (
 # "figure": the text drawn in a figure (a flowchart's boxes, a chart's labels); searchable and
 # quotable like a table, never prose.
 BlockKind = Literal["body", "heading", "caption", "table", "figure"]
+# The blocks of cells and boxes rather than sentences: never suggested as evidence.
+CELL_BLOCKS: tuple[str, ...] = ("table", "figure")
 DocumentKind = Literal["pdf", "txt", "md", "html", "registry"]
 DOCUMENT_KINDS: tuple[str, ...] = get_args(DocumentKind)
 

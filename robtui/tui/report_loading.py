@@ -48,10 +48,10 @@ class LoadedReport:
     no_evidence_threshold: float | None = None
     # ... unless the question has its own (the cut of the report's kind: text or PDF)
     thresholds: dict[str, float] = field(default_factory=dict)
+    seconds: dict[str, float] = field(default_factory=dict)  # "read", "rank" (for the bench)
 
     def threshold_of(self, question_id: str) -> float | None:
         return self.thresholds.get(question_id, self.no_evidence_threshold)
-    seconds: dict[str, float] = field(default_factory=dict)  # "read", "rank" (for the bench)
 
 
 def load_report(
