@@ -14,6 +14,8 @@ import math
 import re
 from collections import Counter
 from dataclasses import dataclass, field
+from functools import cache
+from types import SimpleNamespace
 
 RULE_MAX_HEIGHT = 2.0  # a path this flat (points) is a rule, not a shape
 RULE_MIN_WIDTH = 60.0
@@ -59,51 +61,73 @@ def _quantise(radians: float) -> int:
     return -1
 
 
-def _address_returning(function, argtypes):
-    """A twin of a PDFium binding that returns the pointer as a plain int (a dict key)."""
-    prototype = ctypes.CFUNCTYPE(ctypes.c_void_p, *argtypes)
+_VALUES = (ctypes.c_int, ctypes.c_uint, ctypes.c_ulong, ctypes.c_double, ctypes.c_float)
+
+
+def _plain(function):
+    """A twin of a pypdfium2 raw binding that takes and returns pointers as plain addresses
+    (``c_void_p``: ints and ``byref`` both pass). The typed pointers of the bindings cost ctypes
+    more per call than PDFium's own work when asked once per character; the twin calls the same
+    PDFium function."""
+    def plain(kind):
+        return kind if kind is None or kind in _VALUES else ctypes.c_void_p
+
+    prototype = ctypes.CFUNCTYPE(plain(function.restype), *map(plain, function.argtypes))
     return prototype(ctypes.cast(function, ctypes.c_void_p).value)
 
 
+@cache
+def _pdfium():
+    """The PDFium calls made per character or per text object, as :func:`_plain` twins."""
+    from pypdfium2 import raw
+
+    names = ("FPDFText_CountChars", "FPDFText_GetUnicode", "FPDFText_IsGenerated", "FPDFText_GetCharOrigin",
+             "FPDFText_GetLooseCharBox", "FPDFText_GetTextObject", "FPDFText_GetMatrix",
+             "FPDFText_GetFontSize", "FPDFTextObj_GetFont", "FPDFFont_GetBaseFontName")
+    return SimpleNamespace(raw=raw, **{name.split("_", 1)[1]: _plain(getattr(raw, name))
+                                       for name in names})
+
+
 class _Fonts:
-    """Font name, size scale and angle by PDFium text object (asked once per object)."""
+    """Font name, size scale and angle by PDFium text object (asked once per object; a font's
+    name once per font)."""
 
-    def __init__(self, raw) -> None:
-        self.raw = raw
+    def __init__(self, calls) -> None:
+        self.calls = calls
         self.by_object: dict[int, tuple[str, float, int]] = {}
+        self.names: dict[int, str] = {}
         self.buffer = ctypes.create_string_buffer(256)
-        self.matrix = raw.FS_MATRIX()
+        self.matrix = calls.raw.FS_MATRIX()
+        self.matrix_ref = ctypes.byref(self.matrix)
 
-    def of(self, textpage, index: int, address: int) -> tuple[str, float, int]:
+    def of(self, textpage: int, index: int, address: int) -> tuple[str, float, int]:
         """(font name, size in points, angle) of the text object at ``address``."""
         found = self.by_object.get(address)
         if found is not None:
             return found
-        raw = self.raw
-        name = ""
-        m = self.matrix
-        raw.FPDFText_GetMatrix(textpage, index, ctypes.byref(m))
+        calls, m = self.calls, self.matrix
+        calls.GetMatrix(textpage, index, self.matrix_ref)
         scale = math.hypot(m.c, m.d) or 1.0
-        size = raw.FPDFText_GetFontSize(textpage, index) * scale
-        if address:
-            obj = ctypes.cast(address, raw.FPDF_PAGEOBJECT)
-            font = raw.FPDFTextObj_GetFont(obj)
-            if font and raw.FPDFFont_GetBaseFontName(font, self.buffer, 256):
-                name = self.buffer.value.decode("utf-8", "replace")
-        found = (_SUBSET.sub("", name), size, _quantise(math.atan2(m.b, m.a)))
+        size = calls.GetFontSize(textpage, index) * scale
+        font = calls.GetFont(address) if address else None
+        name = self.names.get(font) if font else ""
+        if name is None:
+            name = ""
+            if calls.GetBaseFontName(font, self.buffer, 256):
+                name = _SUBSET.sub("", self.buffer.value.decode("utf-8", "replace"))
+            self.names[font] = name
+        found = (name, size, _quantise(math.atan2(m.b, m.a)))
         self.by_object[address] = found
         return found
 
 
 def read_glyphs(page, number: int) -> PageGlyphs:
     """The glyphs, rules and image count of a pypdfium2 ``PdfPage``."""
-    from pypdfium2 import raw
-
     left, bottom, right, top = page.get_cropbox()
     width, height = right - left, top - bottom
     textpage = page.get_textpage()
     try:
-        chars = _chars(raw, textpage.raw, left, top)
+        chars = _chars(_pdfium(), ctypes.cast(textpage.raw, ctypes.c_void_p).value, left, top)
     finally:
         textpage.close()
     rules, shapes, images = _objects(page, left, top)
@@ -120,21 +144,20 @@ def read_glyphs(page, number: int) -> PageGlyphs:
     return PageGlyphs(number, width, height, glyphs, turned, rules, images, shapes)
 
 
-def _chars(raw, tp, left: float, top: float) -> list[Glyph]:
-    fonts = _Fonts(raw)
-    text_object = _address_returning(
-        raw.FPDFText_GetTextObject, raw.FPDFText_GetTextObject.argtypes
-    )
-    unicode_of, generated = raw.FPDFText_GetUnicode, raw.FPDFText_IsGenerated
-    origin_of, box_of = raw.FPDFText_GetCharOrigin, raw.FPDFText_GetLooseCharBox
+def _chars(calls, tp: int, left: float, top: float) -> list[Glyph]:
+    """The characters of the text page at address ``tp`` (see :func:`_pdfium`)."""
+    fonts = _Fonts(calls)
+    text_object = calls.GetTextObject
+    unicode_of, generated = calls.GetUnicode, calls.IsGenerated
+    origin_of, box_of = calls.GetCharOrigin, calls.GetLooseCharBox
     ox, oy = ctypes.c_double(), ctypes.c_double()
     pox, poy = ctypes.byref(ox), ctypes.byref(oy)
-    rect = raw.FS_RECTF()
+    rect = calls.raw.FS_RECTF()
     prect = ctypes.byref(rect)
     out: list[Glyph] = []
     last_address, font = -1, ("", 0.0, 0)
     space_before = False
-    for i in range(raw.FPDFText_CountChars(tp)):
+    for i in range(calls.CountChars(tp)):
         code = unicode_of(tp, i)
         if code in (0x0D, 0x0A):
             continue  # PDFium's own line breaks: the baselines decide here
