@@ -184,4 +184,4 @@ def vocabulary_from_bytes(raw: np.ndarray) -> dict[str, int]:
     """Inverse of :func:`vocabulary_to_bytes`."""
     text = raw.tobytes().decode("utf-8")
     terms = text.split("\n") if text else []
-    return {term: i for i, term in enumerate(terms)}
+    return dict(zip(terms, range(len(terms))))

@@ -35,6 +35,7 @@ FLOATS = ("caption", "table", "figure", "aside")
 # block (our own setting, no source: footnotes and table notes are set 1.5-3 pt smaller).
 SMALL_PRINT = 1.0
 _ATTACHED_DASHES = ("-", "\u2010", "\u2011", "\u2013", "\u2014")  # hyphens, en and em dash
+_EDGE_PUNCTUATION = re.compile(r"^\W+|\W+$")
 _TERMINAL = re.compile(r"[.?!:][\"'”’)\]]*(?:\d+(?:[,–-]\d+)*)?$")
 
 
@@ -134,7 +135,7 @@ class TextBuilder:
     def _learn(self, word: str) -> None:
         if word.endswith("-"):
             return  # a fragment before a line break, not a word
-        clean = re.sub(r"^\W+|\W+$", "", word).lower()
+        clean = _EDGE_PUNCTUATION.sub("", word).lower()
         if not clean:
             return
         (self.hyphen_words if "-" in clean else self.plain_words).add(clean)

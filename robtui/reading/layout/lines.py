@@ -19,6 +19,7 @@ import unicodedata
 from collections import Counter
 from dataclasses import dataclass
 from functools import cache, cached_property
+from operator import attrgetter
 
 from robtui.reading.layout.glyphs import Glyph
 from robtui.reading.normalise import normalise_chars
@@ -113,6 +114,7 @@ def make_line(words: list[Word]) -> Line:
     )
 
 
+@cache
 @cache
 def family_key(font: str) -> str:
     """A font's name without its subset tag or a numbered variant ("AdvTT86d47313+20")."""
@@ -218,10 +220,12 @@ def _overlaps(row: Row, chain: Row) -> bool:
 
 # -- words -------------------------------------------------------------------------------------
 
+_X0 = attrgetter("x0")
+
 
 def words_of(row: Row) -> list[Word]:
     """The words of a row, left to right."""
-    glyphs = sorted(row.glyphs, key=lambda g: g.x0)
+    glyphs = sorted(row.glyphs, key=_X0)
     glyphs = _compose_marks(glyphs)
     words: list[Word] = []
     current: list[Glyph] = []
@@ -236,9 +240,10 @@ def words_of(row: Row) -> list[Word]:
             gap = g.x0 - prev.x1
             if marks_only and (g.size >= small or g.size > 1.25 * prev.size):
                 _flush(current, words)  # a footnote mark before a word: "a Values are"
-            least = WORD_GAP * max(min(g.size, prev.size), 4.0)
             if g.space_before:  # PDFium saw a space here from the font's own spacing
                 least = -GUESSED_OVERLAP * g.size
+            else:
+                least = WORD_GAP * max(min(g.size, prev.size), 4.0)
             if gap > least or g.x0 < prev.x0 - 0.5:
                 _flush(current, words)
         marks_only = (marks_only or not current) and g.size < small and g.baseline < raised
@@ -330,28 +335,18 @@ def _compose_marks(glyphs: list[Glyph]) -> list[Glyph]:
 def _flush(current: list[Glyph], words: list[Word]) -> None:
     if not current:
         return
-    raw = "".join(g.text for g in current)
+    raw = "".join([g.text for g in current])
     soft = raw.endswith("\u00ad")
     text = raw if raw.isascii() else normalise_chars(raw).strip()
     if text:
         if soft:
             text += "\u00ad"  # a soft hyphen ending the word: the line joins without a space
         font = current[len(current) // 2].font
-        x0, top, x1, bottom, size = current[0].x0, current[0].top, 0.0, 0.0, 0.0
-        for g in current:
-            top = min(top, g.top)
-            x1 = max(x1, g.x1)
-            bottom = max(bottom, g.bottom)
-            size = max(size, g.size)
-            x0 = min(x0, g.x0)
-        words.append(
-            Word(
-                text,
-                (x0, top, x1, bottom),
-                font_is_bold(font),
-                font_is_italic(font),
-                round(size, 2),
-                family_key(font),
-            )
-        )
+        # one min/max per coordinate over a list: cheaper than a call per glyph; the far edges
+        # and the size start from 0.0, as they always have
+        box = (min([g.x0 for g in current]), min([g.top for g in current]),
+               max([0.0] + [g.x1 for g in current]), max([0.0] + [g.bottom for g in current]))
+        size = max([0.0] + [g.size for g in current])
+        words.append(Word(text, box, font_is_bold(font), font_is_italic(font), round(size, 2),
+                          family_key(font)))
     current.clear()
