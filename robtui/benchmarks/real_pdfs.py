@@ -26,7 +26,8 @@ import subprocess
 import sys
 import tempfile
 import time
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
+from contextlib import ExitStack, contextmanager
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
@@ -335,23 +336,44 @@ class PageSeconds:
         return [self.seconds[n] for n in sorted(self.seconds)]
 
 
-def cold_suggest(path: Path, runs: int = 1) -> tuple[float, float]:
+def cold_suggest(path: Path, runs: int = 1, *, bytecode: str | None = None) -> tuple[float, float]:
     """Median wall and CPU (user + system) seconds of ``runs`` runs of `robtui suggest --json`,
-    each in a new process with an empty cache: what a user waits for, start-up included."""
+    each in a new process with an empty cache: what a user waits for, start-up included.
+    ``bytecode``: a folder of compiled modules (see :func:`compiled_bytecode`) to start from."""
+    walls, cpus = zip(*(_cold_run(path, bytecode) for _ in range(runs)))
+    return float(np.median(walls)), float(np.median(cpus))
+
+
+def _cold_run(path: Path, bytecode: str | None = None) -> tuple[float, float]:
+    """Wall and CPU seconds of one `robtui suggest --json` in a new process, empty cache."""
     import resource
 
-    walls, cpus = [], []
-    for _ in range(runs):
-        with tempfile.TemporaryDirectory() as tmp:
-            env = dict(os.environ, ROBTUI_CACHE_DIR=tmp)
-            before = resource.getrusage(resource.RUSAGE_CHILDREN)
-            t = time.perf_counter()
-            subprocess.run([sys.executable, "-m", "robtui", "suggest", str(path), "--json"],
-                           capture_output=True, check=True, env=env)
-            walls.append(time.perf_counter() - t)
-            after = resource.getrusage(resource.RUSAGE_CHILDREN)
-            cpus.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
-    return float(np.median(walls)), float(np.median(cpus))
+    with tempfile.TemporaryDirectory() as tmp:
+        env = dict(os.environ, ROBTUI_CACHE_DIR=tmp)
+        if bytecode is not None:
+            env["PYTHONPYCACHEPREFIX"] = bytecode
+        before = resource.getrusage(resource.RUSAGE_CHILDREN)
+        t = time.perf_counter()
+        subprocess.run([sys.executable, "-m", "robtui", "suggest", str(path), "--json"],
+                       capture_output=True, check=True, env=env)
+        wall = time.perf_counter() - t
+        after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return wall, after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime
+
+
+@contextmanager
+def compiled_bytecode(sample: Path) -> Iterator[str]:
+    """A temporary folder of compiled modules (Python's PYTHONPYCACHEPREFIX), filled by one
+    `robtui suggest` on ``sample`` with bytecode writing allowed: a process given it starts as
+    an installed copy does (pip compiles a package's modules when it installs them), where
+    PYTHONDONTWRITEBYTECODE makes every process compile robtui's modules again. Nothing is
+    written beside the sources."""
+    with tempfile.TemporaryDirectory() as prefix, tempfile.TemporaryDirectory() as cache:
+        env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+        env.update(PYTHONPYCACHEPREFIX=prefix, ROBTUI_CACHE_DIR=cache)
+        subprocess.run([sys.executable, "-m", "robtui", "suggest", str(sample), "--json"],
+                       capture_output=True, check=True, env=env)
+        yield prefix
 
 
 def load_average() -> str:
@@ -747,33 +769,52 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def speed_only(folder: Path, names: Sequence[str], cold_runs: int, process: bool) -> dict:
-    """Print and return the speed figures alone (a quick run on a busy machine)."""
+    """Print and return the speed figures alone (a quick run on a busy machine). Where Python
+    writes no bytecode, each cold run is paired with one started from compiled modules (the
+    two alternate, so the machine's load falls on both alike): what compiling costs."""
     from robtui.reading.reader import read_document
 
     print(f"Speed on real published trial PDFs ({folder}); load average {load_average()}")
     note = bytecode_note()
     if note:
-        print(f"  note: {note}")
+        print(f"  note: {note}; 'compiled' starts from modules compiled once, as an installed "
+              "copy does")
     print("  article                   pages  read s  s/page slowest pdftotext ratio"
-          "  suggest (cpu)")
+          "  suggest (cpu)" + ("  compiled (cpu)" if note and process else ""))
     rows = []
-    for name in names:
-        path = Path(folder) / name
-        reference = pdftotext(path)
-        page_s = PageSeconds()
-        t = time.perf_counter()
-        document = read_document(path, use_cache=False, on_page=page_s.seen)
-        read_s = time.perf_counter() - t
-        wall, cpu = cold_suggest(path, cold_runs) if process else (None, None)
-        ref_s = reference[1] if reference else None
-        pages = document.pages or 0
-        rows.append({"article": name, "pages": pages, "read_s": read_s,
-                     "slowest_page_s": max(page_s.by_page(), default=0.0),
-                     "pdftotext_s": ref_s, "suggest_s": wall, "suggest_cpu_s": cpu})
-        print(f"  {name[:24]:<24} {pages:>6} {read_s:7.2f} {read_s / max(pages, 1):7.3f}"
-              f" {rows[-1]['slowest_page_s']:7.3f} {'-' if ref_s is None else f'{ref_s:8.2f}':>9}"
-              f" {'-' if not ref_s else f'{read_s / ref_s:.0f}x':>5}"
-              f"  {'-' if wall is None else f'{wall:6.2f} ({cpu:.2f})'}", flush=True)
+    with ExitStack() as stack:
+        bytecode = (stack.enter_context(compiled_bytecode(Path(folder) / names[0]))
+                    if note and process and names else None)
+        for name in names:
+            path = Path(folder) / name
+            reference = pdftotext(path)
+            page_s = PageSeconds()
+            t = time.perf_counter()
+            document = read_document(path, use_cache=False, on_page=page_s.seen)
+            read_s = time.perf_counter() - t
+            wall = cpu = compiled = compiled_cpu = None
+            if process:
+                plain, from_compiled = [], []
+                for k in range(cold_runs):  # which goes first alternates
+                    order = [(plain, None), (from_compiled, bytecode)] if bytecode else [
+                        (plain, None)]
+                    for into, prefix in order[:: -1 if k % 2 else 1]:
+                        into.append(_cold_run(path, prefix))
+                wall, cpu = (float(np.median(x)) for x in zip(*plain))
+                if from_compiled:
+                    compiled, compiled_cpu = (float(np.median(x)) for x in zip(*from_compiled))
+            ref_s = reference[1] if reference else None
+            pages = document.pages or 0
+            rows.append({"article": name, "pages": pages, "read_s": read_s,
+                         "slowest_page_s": max(page_s.by_page(), default=0.0),
+                         "pdftotext_s": ref_s, "suggest_s": wall, "suggest_cpu_s": cpu,
+                         "compiled_suggest_s": compiled, "compiled_suggest_cpu_s": compiled_cpu})
+            print(f"  {name[:24]:<24} {pages:>6} {read_s:7.2f} {read_s / max(pages, 1):7.3f}"
+                  f" {rows[-1]['slowest_page_s']:7.3f} {'-' if ref_s is None else f'{ref_s:8.2f}':>9}"
+                  f" {'-' if not ref_s else f'{read_s / ref_s:.0f}x':>5}"
+                  f"  {'-' if wall is None else f'{wall:6.2f} ({cpu:.2f})'}"
+                  f"{'' if compiled is None else f'  {compiled:6.2f} ({compiled_cpu:.2f})'}",
+                  flush=True)
     per_page = [r["read_s"] / max(r["pages"], 1) for r in rows]
     print(f"  read seconds per page (in process, no cache): median {np.median(per_page):.3f}; "
           f"slowest page {max(r['slowest_page_s'] for r in rows):.3f} s")
@@ -791,6 +832,15 @@ def speed_only(folder: Path, names: Sequence[str], cold_runs: int, process: bool
             line += f"; ratio of medians to pdftotext {ratio:.0f}x"
         print(line)
         figures["cold_suggest_median_s"] = float(np.median(walls))
+        compiled = [r for r in cold if r["compiled_suggest_s"] is not None]
+        if compiled:
+            median = float(np.median([r["compiled_suggest_s"] for r in compiled]))
+            print(f"  the same from compiled modules (as an installed copy starts; runs alternated "
+                  f"with the above): median {median:.2f} s per article (CPU "
+                  f"{np.median([r['compiled_suggest_cpu_s'] for r in compiled]):.2f} s), longest "
+                  f"{max(r['compiled_suggest_s'] for r in compiled):.2f} s; compiling costs "
+                  f"{np.median(walls) - median:.2f} s of the median")
+            figures["compiled_cold_suggest_median_s"] = median
     print(f"  load average after: {load_average()}")
     return figures
 

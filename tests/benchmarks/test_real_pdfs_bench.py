@@ -124,7 +124,7 @@ def test_bench_runs_on_one_real_article(capsys, tmp_path):
 def test_speed_only_times_a_cold_suggest_and_reading_per_page(capsys, tmp_path):
     import json
 
-    from robtui.benchmarks.real_pdfs import main
+    from robtui.benchmarks.real_pdfs import bytecode_note, main
 
     out = tmp_path / "speed.json"
     assert main(["--articles", "trials2015_oral", "--speed-only", "--cold-runs", "1",
@@ -135,6 +135,12 @@ def test_speed_only_times_a_cold_suggest_and_reading_per_page(capsys, tmp_path):
     assert row["article"] == "trials2015_oral_malodor_hygiene_rct.pdf" and row["pages"] > 0
     assert 0 < row["slowest_page_s"] <= row["read_s"]
     assert row["suggest_s"] > 0 and row["suggest_cpu_s"] > 0
+    # where no bytecode is written, the runs from compiled modules are timed beside
+    if bytecode_note() is not None:
+        assert row["compiled_suggest_s"] > 0 and row["compiled_suggest_cpu_s"] > 0
+        assert "the same from compiled modules" in printed
+    else:
+        assert row["compiled_suggest_s"] is None and "compiled modules" not in printed
 
 
 def test_page_profile_prints_the_slowest_page_and_memory_along_the_file(capsys) -> None:
