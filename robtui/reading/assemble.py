@@ -16,8 +16,11 @@ from robtui.reading.sentences import split_sentences
 
 Box = tuple[float, float, float, float]
 
+# A caption opens with a capital ("Table 2", "FIGURE 1", "Fig. 3"); "table 1." opening a line
+# in a paragraph is the text naming it.
 _CAPTION = re.compile(
-    r"^(?:(?:supplementary|extended data|online)\s+)?(?:table|fig\.?|figure|chart)\s*[A-Z]?\d+[A-Za-z]?\b",
+    r"^(?=(?-i:[A-Z]))(?:(?:supplementary|extended data|online)\s+)?(?:table|fig\.?|figure|chart)"
+    r"\s*[A-Z]?\d+[A-Za-z]?\b",
     re.IGNORECASE,
 )
 _HEADING_END_OK = re.compile(r"[\w)\]?:’'\"]$")

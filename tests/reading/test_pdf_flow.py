@@ -113,6 +113,71 @@ def test_a_justified_line_with_wide_spaces_keeps_its_word_order(tmp_path) -> Non
     assert "clinic nurse. the walking group and their nurses. Diaries were kept" in " ".join(texts)
 
 
+def test_a_figure_title_in_the_side_column_is_a_caption_with_its_legend(tmp_path) -> None:
+    path = tmp_path / "side_caption.pdf"
+    c = _canvas(path)
+    _lines(c, 150, 80, FILLER * 5)
+    _lines(c, 20, 200, ["Figure 1: Flow of walkers"], font="Helvetica-Bold", size=7.0)
+    _lines(c, 20, 208.5, ["*Two walkers moved away", "before the last visit of",
+                          "the invented study."], font="Helvetica", size=7.0, leading=8.5)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    title = next(s for s in sentences if s.text.startswith("Figure 1: Flow of walkers"))
+    legend = next(s for s in sentences if "Two walkers moved away" in s.text)
+    assert title.block == "caption" and title.section != "other"  # not a side note
+    assert legend.block == "caption"
+
+
+def test_a_line_opening_with_the_text_naming_a_table_is_no_caption(tmp_path) -> None:
+    path = tmp_path / "table_named.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, FILLER * 2)
+    _lines(c, LEFT, top, ["The parts of the invented programme are listed in",
+                          "table 1. The walkers met their nurse once a week",
+                          "at the clinic in the town."])
+    _lines(c, RIGHT, 100, FILLER * 3)
+    sentences = _finished(c, path)
+    assert "The parts of the invented programme are listed in table 1." in sentences
+    assert "The walkers met their nurse once a week at the clinic in the town." in sentences
+
+
+def test_a_shaded_table_of_terms_and_their_descriptions_is_a_table(tmp_path) -> None:
+    path = tmp_path / "framed_table.pdf"
+    c = _canvas(path)
+    c.setFillGray(0.9)
+    c.rect(LEFT - 6, HEIGHT - 250, 510, 160, stroke=0, fill=1)
+    c.setFillGray(0.0)
+    _lines(c, LEFT, 100, ["Table 1 Parts of the invented walking programme"], font="Helvetica",
+           size=9.0)
+    c.setLineWidth(0.5)
+    for y in (106, 122, 240):
+        c.line(LEFT, HEIGHT - y, 545, HEIGHT - y)
+    _lines(c, LEFT, 116, ["Part"], font="Helvetica-Bold", size=9.0)
+    _lines(c, 130, 116, ["What happens"], font="Helvetica-Bold", size=9.0)
+    rows = [("Walks", ["The walkers meet twice a week and walk together for an hour around the",
+                       "lake in the invented park of the town."]),
+            ("Diaries", ["Each walker writes down the minutes walked on every day of the week."]),
+            ("Visits", ["A nurse sees each walker at the clinic once a month and reads the diary",
+                        "with them before the next walk."]),
+            ("Prizes", ["Walkers who keep their diary for a whole month get a small prize."])]
+    top = 134.0
+    for part, lines in rows:
+        _lines(c, LEFT, top, [part], font="Helvetica", size=9.0)
+        top = _lines(c, 130, top, lines, font="Helvetica", size=9.0, leading=11.0)
+    _lines(c, LEFT, 270, FILLER)
+    _lines(c, RIGHT, 270, FILLER)
+    c.showPage()
+    c.save()
+    sentences = _sentences(path)
+    rows = [s.text for s in sentences if s.block == "table"]
+    assert ("Walks | The walkers meet twice a week and walk together for an hour around the lake "
+            "in the invented park of the town.") in rows
+    assert "Part | What happens" in rows
+    assert not any(s.block in ("figure", "body") and "walkers meet twice" in s.text
+                   for s in sentences)
+
+
 def _ruled_table(c, top: float, caption: str, rows: list[tuple[str, str, str]]) -> float:
     _lines(c, LEFT, top, [caption], font="Helvetica-Bold", size=9.0)
     top += 10

@@ -196,7 +196,7 @@ def page_blocks(page: PageLines) -> list[PBlock]:
     current: PBlock | None = None
     prev: Line | None = None
     for line in plain:
-        new = (
+        new = not _legend_of(current, line, prev, body_size) and (
             current is None
             or prev is None
             or line.column != prev.column
@@ -237,6 +237,19 @@ def page_blocks(page: PageLines) -> list[PBlock]:
     return blocks
 
 
+def _legend_of(caption: PBlock | None, line: Line, prev: Line | None, body_size: float) -> bool:
+    """Whether ``line`` goes on with the caption block above it whatever its weight and column:
+    small print set straight under the caption's last line, from its left edge, in its size
+    (a figure's legend or notes under a bold title)."""
+    return (
+        caption is not None and prev is not None and is_caption(caption.lines[0].text)
+        and line.size < body_size - 0.5 and abs(line.size - prev.size) <= 0.6
+        and 0 < line.top - prev.top <= 1.6 * prev.size
+        and abs(line.x0 - caption.lines[0].x0) <= prev.size
+        and not is_caption(line.text)
+    )
+
+
 # Small print that is not the article's text: licences, copyright, download stamps, addresses.
 _FRONT_MATTER = re.compile(
     r"\b(?:licen[cs]e[ed]?|copyright|creative commons|downloaded from|open access|"
@@ -260,10 +273,10 @@ def _kind(block: PBlock, body_size: float, body_font: str) -> str:
     text = " ".join(ln.text for ln in block.lines)
     if _numbers_only(text):
         return "ticks"
+    if is_caption(first.text):
+        return "caption"  # also in a side column: the figure's title, not a side note
     if first.column == "aside":
         return "aside"
-    if is_caption(first.text):
-        return "caption"
     small = statistics.median(ln.size for ln in block.lines) < body_size - 1.2
     if small and (_FRONT_MATTER.search(text) or (block.page == 1 and _FIRST_PAGE_NOTE.search(text))):
         return "aside"
@@ -398,7 +411,32 @@ def _table_rows(lines: list[Line]) -> list[list[Line]]:
             rows[-1].append(line)
         else:
             rows.append([line])
-    return [_cells(row) for row in rows]
+    out: list[list[Line]] = []
+    for row in rows:
+        cells = _cells(row)
+        held = _wrapped_cell(out[-1], cells) if out else None
+        if held is None:
+            out.append(cells)
+        else:
+            out[-1][held] = make_line(out[-1][held].words + cells[0].words)
+    return out
+
+
+def _wrapped_cell(above: list[Line], cells: list[Line]) -> int | None:
+    """Which cell of the row above a lone cell goes on (its words wrapped to the next line):
+    the one it starts under, within half its type size, straight below it (less than a line
+    apart), when that cell ends
+    no sentence and the lone cell opens in lower case ("... different from the" over "usual
+    sports."). A capital or a figure opens a row of its own."""
+    if len(cells) != 1 or not cells[0].text[:1].islower() or len(cells[0].words[0].text) < 2:
+        return None  # a note's mark ("a Mean ± SD") opens a note
+    lone = cells[0]
+    for i, cell in enumerate(above):
+        size = max(cell.size, 1.0)
+        if (abs(cell.x0 - lone.x0) <= size / 2 and -0.2 * size < lone.top - cell.bottom <= 0.8 * size
+                and not _SENTENCE_END.search(cell.text)):
+            return i
+    return None
 
 
 JUSTIFIED_CELL_EM = 2.0  # our own setting: notes' spaces reach 1.2 em, column heads' 4 em

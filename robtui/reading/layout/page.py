@@ -39,13 +39,14 @@ PROSE_ROWS = 3  # lines of prose between two rules that part them into two table
 HEAD_REACH = 12  # a table's caption stands at most this many lines above its first rule
 CAPTION_RUN = 0.8  # a caption's next line starts within this many body sizes below it
 CAPTION_GAP = 2.5  # a captioned table's rows follow one another within this many lines
+CAPTION_CELL_ROWS = 3  # rows of two cells or more under a table's caption make a table
 NOTE_GAP = 1.2  # a table's note line follows the one before within this many lines
 _NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+\S")
 _PLAIN_NOTE_MARK = re.compile(r"^(?:[a-z]|[*†‡§¶]+)\s+[A-Z]")
 _NOTE_LEAD = re.compile(r"^(?:notes?|abbreviations?|source|key)\b\s*[:.]", re.IGNORECASE)
 NOTE_SMALLER = 0.5  # a note with a mark is set this many points smaller than the page's body
 PLAIN_NOTE_SMALLER = 1.0  # and one without a mark this many
-_TABLE_CAPTION = re.compile(r"^(?:supplementary\s+)?table\s*[A-Z]?\d+", re.IGNORECASE)
+_TABLE_CAPTION = re.compile(r"^(?=(?-i:[A-Z]))(?:supplementary\s+)?table\s*[A-Z]?\d+", re.IGNORECASE)
 
 
 @dataclass
@@ -86,7 +87,7 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
     tables: list[tuple[Box, list[Line]]] = []
     for region in _merged(regions):
         inside = [s for s in segs if _inside(s.line, region)]
-        if inside and _table_like(inside, size):
+        if inside and (_table_like(inside, size) or _captioned_cells(segs, inside, region, size)):
             head = _table_head(segs, region, size)
             notes = _table_notes(segs, region, size)
             tables.append((region, [s.line for s in head + inside + notes]))
@@ -183,25 +184,49 @@ def _table_like(inside: list[Segment], size: float) -> bool:
     return cells >= 0.3 * len(rows) or numeric >= 0.5 * len(words)
 
 
-def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
-    """The column heads of a table set between its caption ("Table 2 ...") and its first rule:
-    what lies there within the table's width, when a caption stands above within HEAD_REACH
-    lines and no two lines there hold HEAD_WORDS words or more (a paragraph)."""
+def _caption_over(segs: list[Segment], region: Box, size: float) -> Line | None:
+    """The nearest "Table N" caption standing over the region within HEAD_REACH lines."""
     x0, top, x1, _ = region
     captions = [
         s.line for s in segs
         if _TABLE_CAPTION.match(s.line.text) and s.line.bottom <= top + 1
         and top - s.line.bottom <= HEAD_REACH * size and s.line.x0 < x1 and s.line.x1 > x0
     ]
-    if not captions:
+    return max(captions, key=lambda ln: ln.bottom) if captions else None
+
+
+def _captioned_cells(segs: list[Segment], inside: list[Segment], region: Box,
+                     size: float) -> bool:
+    """Rules under a "Table N" caption holding rows parted into cells (a term beside its
+    description in CAPTION_CELL_ROWS rows or more, the rows of a table of words) are a table,
+    however much prose its cells hold; boxed text has no caption and one piece to a row."""
+    if _caption_over(segs, region, size) is None:
+        return False
+    pieces: dict[int, int] = {}
+    for seg in inside:
+        pieces[seg.row] = pieces.get(seg.row, 0) + 1
+    return sum(n > 1 for n in pieces.values()) >= CAPTION_CELL_ROWS
+
+
+def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
+    """The column heads of a table set between its caption ("Table 2 ...") and its first rule:
+    what lies there within the table's width, when a caption stands above within HEAD_REACH
+    lines and no two lines there hold HEAD_WORDS words or more (a paragraph)."""
+    x0, top, x1, _ = region
+    caption = _caption_over(segs, region, size)
+    if caption is None:
         return []
-    caption = max(captions, key=lambda ln: ln.bottom)
     between = [s for s in segs if s.line.top >= caption.bottom - 1 and s.line.bottom <= top + 1
                and x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size
                and s.line is not caption]
+    pieces: dict[int, int] = {}  # pieces of each row within the table's width
+    for s in segs:
+        if x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size:
+            pieces[s.row] = pieces.get(s.row, 0) + 1
     caption_lines = {id(s.line) for s in segs if s.line.top < caption.bottom + size
                      and s.line.top >= caption.top and s.line.x0 >= caption.x0 - 1
-                     and abs(s.line.size - caption.size) <= 0.3}
+                     and abs(s.line.size - caption.size) <= 0.3
+                     and pieces.get(s.row, 1) == 1}  # a row parted into cells is column heads
     between = [s for s in between if id(s.line) not in caption_lines]
     if sum(len(s.line.words) >= HEAD_WORDS for s in between) >= 2:
         return []  # a paragraph between a caption and the rules: not a head
