@@ -52,6 +52,7 @@ class TextBuilder:
         self.maker = SentenceMaker()
         self.plain_words: set[str] = set()
         self.hyphen_words: set[str] = set()
+        self._joined = False  # the next word is the second half of one joined across a line end
 
     def _put(self, text: str) -> tuple[int, int]:
         start = self.length
@@ -99,7 +100,12 @@ class TextBuilder:
                 self._put(" ")
             start, end = self._put(text)
             words.append((start, end, page, word.box))
-            self._learn(text)
+            if self._joined:
+                # a word's second half after a line-end hyphen that was dropped is no word of
+                # its own ("agree-" + "ment"), and the joined word only a guess: neither learnt
+                self._joined = False
+            else:
+                self._learn(text)
 
     def _join_point(self, next_word: str) -> str:
         """Join a line to the previous one: drop a line-end hyphen or add a space."""
@@ -107,6 +113,7 @@ class TextBuilder:
         if prev.endswith(SOFT_HYPHEN):  # the typesetter's own hyphenation: always joined
             self.parts[-1] = prev[:-1]
             self.length -= 1
+            self._joined = True
             return next_word
         if len(prev) >= 2 and prev.endswith("-") and prev[-2].isalnum():
             fragment = re.sub(r"^\W+", "", prev[:-1])
@@ -120,6 +127,7 @@ class TextBuilder:
                     return next_word
                 self.parts[-1] = prev[:-1]
                 self.length -= 1
+                self._joined = True
                 return next_word
             return next_word
         if prev.endswith(("-", "−")) and next_word[:1].isdigit():

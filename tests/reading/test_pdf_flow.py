@@ -86,16 +86,30 @@ def test_a_footnote_between_a_paragraphs_two_columns_floats_after_it(tmp_path) -
     assert "The study was funded by an invented charity for walkers." in texts
 
 
-def test_a_dash_set_against_its_word_at_a_line_end_joins_without_a_space(tmp_path) -> None:
-    path = tmp_path / "dashes.pdf"
+def _paragraph_texts(path: Path, lines: list[str]) -> list[str]:
+    """Sentences of a page whose left column ends with ``lines`` after two filler paragraphs."""
     c = _canvas(path)
     top = _lines(c, LEFT, 100, FILLER * 2)
-    _lines(c, LEFT, top, ["Dizziness on standing up\u2014", "which passed within the hour\u2014was seen",
-                          "in two walkers (see figure 2a\u2013", "c) and in none of the others."])
+    _lines(c, LEFT, top, lines)
     _lines(c, RIGHT, 100, FILLER * 3)
-    texts = _finished(c, path)
+    return _finished(c, path)
+
+
+def test_a_dash_set_against_its_word_at_a_line_end_joins_without_a_space(tmp_path) -> None:
+    texts = _paragraph_texts(tmp_path / "dashes.pdf", [
+        "Dizziness on standing up\u2014", "which passed within the hour\u2014was seen",
+        "in two walkers (see figure 2a\u2013", "c) and in none of the others."])
     assert ("Dizziness on standing up\u2014which passed within the hour\u2014was seen in two walkers "
             "(see figure 2a\u2013c) and in none of the others.") in texts
+
+
+def test_a_word_broken_at_a_line_end_joins_though_its_halves_were_seen_apart(tmp_path) -> None:
+    texts = _paragraph_texts(tmp_path / "hyphens.pdf", [
+        "Walkers were asked whether they agree with the plan of the",
+        "study and were given a written docu-",
+        "ment about the walks. Despite their initial agree-",
+        "ment, two walkers stopped in the first week."])
+    assert "Despite their initial agreement, two walkers stopped in the first week." in texts
 
 
 def test_a_justified_line_with_wide_spaces_keeps_its_word_order(tmp_path) -> None:
@@ -130,14 +144,10 @@ def test_a_figure_title_in_the_side_column_is_a_caption_with_its_legend(tmp_path
 
 
 def test_a_line_opening_with_the_text_naming_a_table_is_no_caption(tmp_path) -> None:
-    path = tmp_path / "table_named.pdf"
-    c = _canvas(path)
-    top = _lines(c, LEFT, 100, FILLER * 2)
-    _lines(c, LEFT, top, ["The parts of the invented programme are listed in",
-                          "table 1. The walkers met their nurse once a week",
-                          "at the clinic in the town."])
-    _lines(c, RIGHT, 100, FILLER * 3)
-    sentences = _finished(c, path)
+    sentences = _paragraph_texts(tmp_path / "table_named.pdf", [
+        "The parts of the invented programme are listed in",
+        "table 1. The walkers met their nurse once a week",
+        "at the clinic in the town."])
     assert "The parts of the invented programme are listed in table 1." in sentences
     assert "The walkers met their nurse once a week at the clinic in the town." in sentences
 

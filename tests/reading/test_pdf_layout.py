@@ -91,6 +91,15 @@ def test_footnote_mark_before_a_word_is_its_own_word() -> None:
     assert _text(rows_of(glyphs)) == ["a Values are means"]
 
 
+def test_a_slash_set_between_spaces_parts_the_words_either_side() -> None:
+    before = _glyphs("2030", 10, 100, size=8.5, advance=4.2)
+    slash = _glyphs("/", before[-1].x1 + 1.8, 100, size=8.5, advance=2.4)
+    slash[0].space_before = True  # PDFium's guess from the font's spacing
+    after = _glyphs("Accepted", slash[0].x1 + 0.8, 100, size=8.5, advance=4.2)
+    tight = _glyphs("and/or", 10, 120, size=8.5, advance=4.2)
+    assert _text(rows_of(before + slash + after + tight)) == ["2030 / Accepted", "and/or"]
+
+
 def _two_column_page(gutter: float, offset: float) -> list[Glyph]:
     """A full-width title, then two columns of prose whose baselines are ``offset`` apart,
     separated by a ``gutter`` (points)."""

@@ -29,6 +29,7 @@ Box = tuple[float, float, float, float]
 BAND_ABOVE = 0.8  # share of the font size above the baseline that still belongs to the line
 BAND_BELOW = 0.3
 WORD_GAP = 0.1  # a gap wider than this share of the font size separates words
+_SPACED_MARKS = frozenset("/|=+×–—&")  # marks a typesetter may set between word spaces
 GUESSED_OVERLAP = 0.1  # where PDFium guessed a space, only glyphs overlapping more are one word
 MIDDLE = 0.35  # a glyph's middle sits this share of its size above its baseline
 LETTER_RUN = 4  # pieces of one or two characters in a row that may be letter-spaced text
@@ -244,6 +245,8 @@ def words_of(row: Row) -> list[Word]:
                 least = -GUESSED_OVERLAP * g.size
             else:
                 least = WORD_GAP * max(min(g.size, prev.size), 4.0)
+                if len(current) == 1 and prev.text in _SPACED_MARKS and prev.space_before:
+                    least /= 2  # a mark set between spaces ("2016 / Accepted"): narrower after
             if gap > least or g.x0 < prev.x0 - 0.5:
                 _flush(current, words)
         marks_only = (marks_only or not current) and g.size < small and g.baseline < raised
