@@ -4,16 +4,20 @@ Prints (figures, not pass/fail):
 - start to first screen: a fresh process importing the app and showing the review overview
   (headless), and the same inside a warm process;
 - keystroke to updated judgement (target <= 50 ms): the time from the answer key's action to
-  the proposed domain and overall judgements being updated on screen, including the atomic
-  save of the assessment; plus Pilot's full round trip per key (an upper bound that includes
-  Pilot's own idle waits of at least 2 x 20 ms);
+  the proposed domain and overall judgements being updated on screen; Pilot's full round trip
+  per key (an upper bound that includes Pilot's own idle waits); keys due as a quick
+  typist's (every 100 ms), from when each was due to its judgement updated, with the event
+  loop's longest stall meanwhile;
+- how long the saves of those keys held up the interface: each write of the assessment (atomic,
+  fsync included) timed on the interface's thread (where the keys wait for it) and in the
+  writer thread (where they do not);
 - opening a ~15-page two-column PDF (or a real one: --pdf) to its first suggestions: read (not
   cached) and ranked in the worker, and reopened (from the reader's cache); the longest stall
   of the UI's event loop until the report is shown (its first screens laid out; the rest is
   laid out as the reviewer moves on) shows whether the interface stayed
   responsive, and the CPU time of the UI's thread over the same span what the interface itself
   spent (steadier than wall-clock stalls when other processes share the cores); then answer
-  keys pressed during another first open, key posted to judgement updated (the wait for the
+  keys pressed during another first open, key due to judgement updated (the wait for the
   event loop included). The reader's cache is a fresh folder.
 
 The PDF is rendered from articles of the shared CONSORT-TM corpus (Kilicoglu et al., J Biomed
@@ -31,6 +35,7 @@ import statistics
 import subprocess
 import sys
 import tempfile
+import threading
 import time
 import uuid
 from dataclasses import dataclass
@@ -132,7 +137,39 @@ async def _open_row(pilot, study_id: str):
     return app.screen
 
 
-async def _keystrokes(root: Path, study_id: str, count: int) -> tuple[list[float], list[float]]:
+class _SaveClock:
+    """Stands in for a folder's ``save_assessment``: times every write and notes whether it ran
+    on the interface's thread (where it holds up the keys) or in a writer thread."""
+
+    def __init__(self, folder) -> None:
+        self._save = folder.save_assessment
+        self.on_ui: list[float] = []
+        self.in_writer: list[float] = []
+        self._ui_thread = threading.get_ident()
+
+    def __call__(self, assessment):
+        started = time.perf_counter()
+        try:
+            return self._save(assessment)
+        finally:
+            took = time.perf_counter() - started
+            on_ui = threading.get_ident() == self._ui_thread
+            (self.on_ui if on_ui else self.in_writer).append(took)
+
+
+@dataclass
+class Keying:
+    """Answer keys on an opened assessment: Pilot's presses, then keys due as a quick
+    typist's (KEY_INTERVAL apart) while the saves go on."""
+
+    handler: list[float]  # key action -> judgements updated
+    round_trip: list[float]  # Pilot's press, idle waits included
+    posted: list[float]  # key due -> judgement updated
+    stall: float  # the event loop's longest stall while the keys were pressed
+    saves: _SaveClock
+
+
+async def _keystrokes(root: Path, study_id: str, count: int) -> Keying:
     from robtui.tui.app import Workbench
 
     app = Workbench(root, REVIEWER)
@@ -142,21 +179,33 @@ async def _keystrokes(root: Path, study_id: str, count: int) -> tuple[list[float
         screen = await _open_row(pilot, study_id)
         await app.workers.wait_for_complete()
         await pilot.pause()
+        saves = _SaveClock(screen.session.folder)
+        screen.session.folder.save_assessment = saves  # this instance only
         for i in range(count):
             started = time.perf_counter()
             await pilot.press("y" if i % 2 else "n")
             round_trip.append(time.perf_counter() - started)
             handler.append(screen.last_update_seconds)
-    return handler, round_trip
+        ticks: list[float] = []
+        timer = screen.set_interval(0.005, lambda: ticks.append(time.perf_counter()))
+        typist = _Typist()
+        for _ in range(count):
+            await typist.press(app, screen)
+        timer.stop()
+        await app.workers.wait_for_complete()
+        gaps = [b - a for a, b in itertools.pairwise(ticks)] or [0.0]
+    return Keying(handler, round_trip, typist.latencies, max(gaps), saves)
 
 
 KEY_INTERVAL = 0.1  # seconds between answer keys pressed during an opening (a quick typist)
 
 
-async def _answer_key(app, screen, key: str, timeout: float = 5.0) -> float | None:
-    """Post an answer key as the terminal would and wait for its judgement: seconds from the
-    key's posting to the judgement updated (None if it was not updated within ``timeout``).
-    Pilot's press is not used here: it waits for the whole process to fall idle, worker too."""
+async def _answer_key(app, screen, key: str, due: float, timeout: float = 5.0) -> float | None:
+    """Post an answer key as the terminal would and wait for its judgement: seconds from when
+    the key was due (a typist pressed it; the bench's own coroutine may only get to post it
+    after a stall of the event loop, as a real key waits in the driver's queue) to the
+    judgement updated (None if it was not updated within ``timeout``). Pilot's press is not
+    used here: it waits for the whole process to fall idle, worker too."""
     from textual import events
 
     posted = time.perf_counter()
@@ -165,13 +214,30 @@ async def _answer_key(app, screen, key: str, timeout: float = 5.0) -> float | No
         if time.perf_counter() - posted > timeout:
             return None
         await asyncio.sleep(0.001)
-    return screen.last_update_at - posted
+    return screen.last_update_at - min(due, posted)
+
+
+class _Typist:
+    """Answer keys due every KEY_INTERVAL seconds from the first."""
+
+    def __init__(self) -> None:
+        self.due = time.perf_counter()
+        self.latencies: list[float] = []
+
+    async def press(self, app, screen) -> None:
+        """Wait until the next key is due (at once if it is overdue), press it, time it."""
+        await asyncio.sleep(max(0.0, self.due - time.perf_counter()))
+        key = "y" if len(self.latencies) % 2 else "n"
+        latency = await _answer_key(app, screen, key, self.due)
+        if latency is not None:
+            self.latencies.append(latency)
+        self.due = max(self.due + KEY_INTERVAL, time.perf_counter())
 
 
 @dataclass
 class Opening:
     """One opening of the PDF's result: to first suggestions, the UI loop's longest stall, and
-    the answer keys pressed meanwhile (key posted -> judgement updated, waits included)."""
+    the answer keys pressed meanwhile (key due -> judgement updated, waits included)."""
 
     seconds: float
     stall: float
@@ -180,6 +246,7 @@ class Opening:
     parts: dict
     keys: list[float]
     ui_cpu: float = 0.0  # CPU seconds of the interface's thread until the report is shown
+    saves: _SaveClock | None = None  # the writes of the answer keys
 
 
 async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening:
@@ -191,10 +258,12 @@ async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
         ticks: list[float] = []
-        latencies: list[float] = []
+        typist = _Typist()
         started = time.perf_counter()
         cpu_started = time.thread_time()  # this thread runs the event loop: the interface
         screen = await _open_row(pilot, study_id)
+        saves = _SaveClock(screen.session.folder)
+        screen.session.folder.save_assessment = saves
         timer = screen.set_interval(0.005, lambda: ticks.append(time.perf_counter()))
         view = screen.query_one("#report")
         elapsed = None
@@ -202,10 +271,7 @@ async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening
             if screen.loaded and screen.loaded[0].document is None:
                 raise SystemExit(f"the benchmark PDF could not be read: {screen.loaded[0].problem}")
             if keys:
-                latency = await _answer_key(app, screen, "y" if len(latencies) % 2 else "n")
-                if latency is not None:
-                    latencies.append(latency)
-                await asyncio.sleep(KEY_INTERVAL)
+                await typist.press(app, screen)
             if elapsed is None and screen.loaded and screen.loaded[0].suggestions:
                 await pilot.pause()
                 elapsed = time.perf_counter() - started
@@ -213,10 +279,24 @@ async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening
         await pilot.pause()
         ui_cpu = time.thread_time() - cpu_started
         timer.stop()
+        await app.workers.wait_for_complete()
         gaps = [b - a for a, b in itertools.pairwise(ticks)] or [0.0]
         document = screen.loaded[0].document
         return Opening(elapsed, max(gaps), document.pages or 0, len(document.sentences),
-                       screen.loaded[0].seconds, latencies, ui_cpu)
+                       screen.loaded[0].seconds, typist.latencies, ui_cpu, saves)
+
+
+def _print_saves(saves: _SaveClock, keys: int) -> None:
+    """How long the saves of those keys held up the interface (fsync included)."""
+    print(f"saves of those {keys} answer keys: {len(saves.on_ui) + len(saves.in_writer)} writes "
+          "(keys given while a write is under way go in the next one)")
+    if saves.on_ui:
+        print(f"  on the interface's thread (the keys wait): {_spread(saves.on_ui)}, "
+              f"{_ms(sum(saves.on_ui))} in all  [target: none over 50 ms]")
+    else:
+        print("  on the interface's thread (the keys wait): none")
+    if saves.in_writer:
+        print(f"  in the writer thread (the keys go on):     {_spread(saves.in_writer)}")
 
 
 def _parts(pdf: Path) -> tuple[float, float]:
@@ -285,10 +365,14 @@ def _run(args: argparse.Namespace) -> int:
         print(f"  fresh process, imports included: {_ms(cold)} (+ {_ms(python)} interpreter start)")
         print(f"  warm process:                    {_ms(warm)}")
 
-        handler, round_trip = asyncio.run(_keystrokes(root, first_study, args.keys))
+        keying = asyncio.run(_keystrokes(root, first_study, args.keys))
         print("keystroke to updated judgement (answer key on question 1.1, saved each time)")
-        print(f"  key action -> judgements updated: {_spread(handler)}  [target <= 50 ms]")
-        print(f"  Pilot round trip per key:         {_spread(round_trip)}")
+        print(f"  key action -> judgements updated: {_spread(keying.handler)}  [target <= 50 ms]")
+        print(f"  Pilot round trip per key:         {_spread(keying.round_trip)}")
+        print(f"  keys due {KEY_INTERVAL * 1000:.0f} ms apart, key due -> judgement updated: "
+              f"{_spread(keying.posted)}  [target <= 50 ms]; longest event-loop stall "
+              f"{_ms(keying.stall)}")
+        _print_saves(keying.saves, 2 * args.keys)
 
         report_loading._ranker = None  # the first open pays for loading the ranker too
         first = asyncio.run(_open_pdf(root, "bench-pdf"))
@@ -316,8 +400,9 @@ def _run(args: argparse.Namespace) -> int:
             f"{_ms(first.ui_cpu)} / {_ms(again.ui_cpu)} (less than wall time on a busy machine)"
         )
         if keyed.keys:
-            print(f"  answer keys pressed during a first open, key posted -> judgement updated: "
+            print(f"  answer keys pressed during a first open, key due -> judgement updated: "
                   f"{_spread(keyed.keys)}  [target <= 50 ms]; longest stall {_ms(keyed.stall)}")
+            _print_saves(keyed.saves, len(keyed.keys))
         read, rank = _parts(pdf)
         print(f"  of which, outside the app: reading (not cached) {_ms(read)}, ranking {_ms(rank)}")
     return 0

@@ -80,6 +80,7 @@ class Workbench(App[int]):
         self.preparation_failures: list[str] = []
         self._preparation_cancel = threading.Event()
         self.closing = threading.Event()  # set when the app ends
+        self._quit_unsaved = False  # told that changes could not be saved: ctrl+q quits anyway
         if prepare_in_background or ranker_factory is shared_ranker:
             # Reports are prepared in worker processes (in the background, and a long PDF when
             # it is opened: report_loading.prepare_apart). multiprocessing's resource tracker is
@@ -206,12 +207,27 @@ class Workbench(App[int]):
         self.push_screen(CompareScreen(session))
 
     async def action_quit(self) -> None:
-        """Quit; anything typed but not yet saved is written first."""
-        for screen in self.screen_stack:
-            if isinstance(screen, AssessmentScreen):
-                screen.save_pending()
+        """Quit once every change is on disk: what was typed is queued, the queue written
+        (the reviewer is told when that takes a moment, and what failed; ctrl+q again then
+        quits without it)."""
+        screens = [s for s in self.screen_stack if isinstance(s, AssessmentScreen)]
+        for screen in screens:
+            screen.save_pending()
+        if self._quit_unsaved or not any(s.saves_outstanding() for s in screens):
+            self._quit_now()
+            return
+        self.run_worker(self._quit_when_saved(screens), group="quitting", exclusive=True)
+
+    async def _quit_when_saved(self, screens: list[AssessmentScreen]) -> None:
+        saved = [await screen.saves_written("quitting") for screen in screens]
+        if all(saved):
+            self._quit_now()
+        else:
+            self._quit_unsaved = True
+
+    def _quit_now(self) -> None:
         self._preparation_cancel.set()  # the workers end at once; prepared reports are kept
-        await super().action_quit()
+        self.exit()
 
     def action_help(self) -> None:
         """The key map, with the domain keys of the study being assessed (else of every

@@ -6,10 +6,12 @@ reviewer's name); another reviewer's answers reach the screen only through the l
 comparison (``ReviewSession.comparison_pairs``), which refuses anyone but the review's lead.
 
 An ``AssessmentSession`` wraps one assessment: every change goes through
-robtui.core.assessing and is saved at once (``ReviewFolder.save_assessment`` is atomic and
-refuses a file another process changed since it was read). When that happens the session
-reads the file again, applies the same change on top of the other process's work, saves, and
-tells the screen (``on_reloaded``): neither writer's answers are lost.
+robtui.core.assessing, is shown at once and queued to be saved in order
+(robtui.tui.save_queue; the workbench writes the queue in a worker thread, so a slow disk never
+holds up the keys). ``ReviewFolder.save_assessment`` is atomic and refuses a file another
+process changed since it was read; then the file is read again, the same changes are applied
+on top of the other process's work and saved, and the screen is told (``on_reloaded``):
+neither writer's answers are lost.
 """
 
 from __future__ import annotations
@@ -30,9 +32,9 @@ from robtui.core.rules import (
     stamp_rules_version,
 )
 from robtui.errors import DataFileError, InputError, RobtuiError
-from robtui.files import StaleFileError
 from robtui.store.progress import assessment_progress, override_notes
 from robtui.store.review_folder import ReviewFolder
+from robtui.tui.save_queue import SaveQueue, WriteReport
 from robtui.workspace import Workspace, check_reviewer_name
 
 STATUS_NOT_STARTED = "not started"
@@ -257,10 +259,16 @@ class AssessmentSession:
 
     review_session: ReviewSession
     assessment: Assessment
-    on_saved: Callable[[Path], None] | None = None
-    unsaved_error: str | None = field(default=None)
+    unsaved_error: str | None = field(default=None)  # why the last write failed
     # Called with a sentence when the file had changed on disk and was read again.
     on_reloaded: Callable[[str], None] | None = None
+    # Set by a front end that writes the queue off its interface thread: starts a writer
+    # (a worker calling ``saves.write``); None: each change is written at once, here.
+    start_writer: Callable[[], None] | None = None
+    _saves: SaveQueue = field(init=False, repr=False)
+
+    def __post_init__(self) -> None:
+        self._saves = SaveQueue(self.folder, self.assessment)  # as read from disk
 
     @property
     def folder(self) -> ReviewFolder:
@@ -363,58 +371,57 @@ class AssessmentSession:
         )
 
     # -- changing it (each saves) ------------------------------------------------------
-    def save(self, *, stamp: bool = True) -> Path:
-        """Write the assessment now (atomic); keeps it in memory if the write fails.
+    @property
+    def saves(self) -> SaveQueue:
+        """This assessment's changes not yet on disk (robtui.tui.save_queue)."""
+        return self._saves
 
-        The rules version the session read is recorded with every change (``stamp``); a save
-        of the reviewer's position alone keeps the version the answers were made under.
-        """
-        if stamp:
-            self.assessment = stamp_rules_version(self.assessment, self.review_session.rules)
+    def save(self) -> Path:
+        """Write the assessment as it is now (a new one: ``ReviewSession.start``)."""
+        self.assessment = stamp_rules_version(self.assessment, self.review_session.rules)
         try:
             path = self.folder.save_assessment(self.assessment)
-        except StaleFileError:
-            raise  # _commit reads the file again and applies the change on top
         except (RobtuiError, OSError) as error:
-            self.unsaved_error = str(error)
             raise DataFileError(f"could not save the assessment: {error}") from error
-        self.unsaved_error = None
-        if self.on_saved:
-            self.on_saved(path)
+        self._saves = SaveQueue(self.folder, self.assessment)
         return path
 
     def _commit(self, change: Callable[[Assessment], Assessment], *, stamp: bool = True) -> None:
-        """Apply ``change`` and save; when another process saved the file meanwhile, read
-        theirs, apply the same change to it and save that (nothing of theirs is lost)."""
-        before = self.assessment
-        self.assessment = change(before)
-        try:
-            self.save(stamp=stamp)
-            return
-        except StaleFileError:
-            self.assessment = before
-        a = self.assessment
-        with self.folder.locked():
-            fresh = self.folder.load_assessment(a.reviewer, a.study_id, a.result_id)
-            if fresh is None:
-                raise DataFileError(
-                    f"{self.folder.assessment_path(a.reviewer, a.study_id, a.result_id)} was "
-                    "removed by another process: nothing was saved; reopen the assessment"
-                )
-            self.assessment = fresh
-            self.assessment = change(fresh)
-            self.save(stamp=stamp)
-        if self.on_reloaded:
-            self.on_reloaded(reloaded_message(before, fresh, self.assessment))
+        """Apply ``change`` to what the screen shows (an InputError leaves everything as it
+        was) and queue it to be saved. The rules version the session read is recorded with
+        every change (``stamp``); a move of the reviewer's position alone keeps the version
+        the answers were made under.
 
-    def reload(self) -> bool:
-        """Read the assessment again if it changed on disk; True when it had."""
-        a = self.assessment
-        fresh = self.folder.load_assessment(a.reviewer, a.study_id, a.result_id)
-        if fresh is None or fresh == a:
-            return False
-        self.assessment = fresh
-        return True
+        With ``start_writer`` set, the front end writes the queue off its interface thread
+        and hands each report to ``settle``; without, it is written now, here (and a failed
+        or reloaded write raises or calls ``on_reloaded`` as ``settle`` says)."""
+        rules = self.review_session.rules
+
+        def step(a: Assessment) -> Assessment:
+            return stamp_rules_version(change(a), rules) if stamp else change(a)
+
+        self.assessment = step(self.assessment)
+        if not self.saves.add(step):
+            return  # the writer under way takes it in its next write
+        if self.start_writer is not None:
+            self.start_writer()
+            return
+        for report in self.saves.write():
+            self.settle(report, raise_error=True)
+
+    def settle(self, report: WriteReport, *, raise_error: bool = False) -> None:
+        """Take a write's report (on the interface's thread): what is shown is built again
+        when another process's work was read, the panel's 'not saved' line follows the
+        write, and ``on_reloaded`` says what the other process changed."""
+        self.unsaved_error = report.error
+        if report.changed_view:
+            self.assessment = self.saves.view()
+        if report.reloaded and self.on_reloaded:
+            self.on_reloaded(report.reloaded)
+        if raise_error and report.error:
+            raise DataFileError(report.error)
+        if raise_error and report.refused:
+            raise InputError("; ".join(report.refused))
 
     def _editable(self) -> None:
         if self.is_complete:
@@ -545,29 +552,3 @@ def _at(a: Assessment, question_id: str) -> Assessment:
     if a.last_question == question_id:
         return a
     return a.model_copy(update={"last_question": question_id})
-
-
-def reloaded_message(mine: Assessment, theirs: Assessment, saved: Assessment) -> str:
-    """What the reviewer is told when another process had changed the file: which answers
-    that process changed, and whose answer (Y, PY, ...) this change then replaced."""
-    changed = sorted(
-        q for q in set(mine.answers) | set(theirs.answers)
-        if mine.answers.get(q) != theirs.answers.get(q)
-    )
-    text = "this assessment was changed by another robtui process or an editor"
-    if changed:
-        text += f" (answers to {', '.join(changed)})"
-    text += ": it was read again and your change was saved on top of theirs"
-    replaced = [
-        f"{q} {_shown(theirs, q)} → {_shown(saved, q)}"
-        for q in changed
-        if _shown(saved, q) != _shown(theirs, q)
-    ]
-    if replaced:
-        text += f"; yours replaced theirs: {', '.join(replaced)}"
-    return text
-
-
-def _shown(assessment: Assessment, question_id: str) -> str:
-    answer = assessment.answers.get(question_id)
-    return (answer.response if answer else None) or "no answer"

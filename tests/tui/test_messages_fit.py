@@ -14,7 +14,7 @@ from .helpers import LOW_PATH, answer_domain, said_on_screen, screen_lines, sett
 
 RELOADED = ("this assessment was changed by another robtui process or an editor (answers to "
             "1.2, 2.1): it was read again and your change was saved on top of theirs; yours "
-            "replaced theirs: 1.2 PY → N")  # session.reloaded_message's longest form
+            "replaced theirs: 1.2 PY → N")  # save_queue.reloaded_message's longest form
 LONG_WORD = ("could not save the assessment: /home/reviewer/reviews/sleep-trials-2026/"
              "assessments/ana/GOA--physical-activity-10-weeks.json is read-only")
 

@@ -8,8 +8,9 @@ answers change. Every change is saved at once through the AssessmentSession.
 This module holds the screen's layout, its keys and moving about (questions, domains, panes,
 search); the rest is in its own module each: documents.py (reading and showing the study's
 documents), quoting.py (suggestions and quotes), justifying.py (the justification field),
-judging.py (override, support and direction, summary, effect, complete), form_text.py (what
-the panels say).
+judging.py (override, support and direction, summary, effect, complete), saving.py (the
+changes written in a worker, in order; leaving waits for them), form_text.py (what the panels
+say).
 """
 
 from __future__ import annotations
@@ -40,6 +41,7 @@ from robtui.tui.screens.assessment.form_text import (
 from robtui.tui.screens.assessment.judging import Judging
 from robtui.tui.screens.assessment.justifying import Justifying
 from robtui.tui.screens.assessment.quoting import CANDIDATE_NOTE, Quoting
+from robtui.tui.screens.assessment.saving import Saving
 from robtui.tui.session import AssessmentSession
 from robtui.tui.widgets.judgement_strip import DomainTab, JudgementStrip
 from robtui.tui.widgets.justification import JustificationArea
@@ -55,7 +57,7 @@ def _answer_bindings() -> list[Binding]:
     ]
 
 
-class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[None]):
+class AssessmentScreen(Saving, Judging, Quoting, Justifying, ReportDocuments, Screen[None]):
     AUTO_FOCUS = "#questions"
     BINDINGS: ClassVar[list[BindingType]] = [
         *_answer_bindings(),
@@ -164,6 +166,7 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
 
     def on_mount(self) -> None:
         self.session.on_reloaded = self._reloaded
+        self.start_saving_in_background()
         self.query_one("#search", Input).display = False
         before = self.session.effect
         self._guard(self.session.follow_result_effect)
@@ -400,7 +403,7 @@ class AssessmentScreen(Judging, Quoting, Justifying, ReportDocuments, Screen[Non
         if self._close_search():
             return
         self._flush_justification()
-        self.dismiss(None)
+        self.leave_when_saved()
 
     def action_guidance(self) -> None:
         """Show or hide the focused question's guidance (under the question)."""
