@@ -64,11 +64,43 @@ def _parse_questions(raw: str | None) -> list[str] | None:
 
 
 def run(args: argparse.Namespace) -> int:
+    import gc
     import json
 
+    from robtui.workspace.suggesting import SuggestRequest, payload, rank_file
+
+    # Start-up (imports, the question set, the ranker's tables) makes objects that live as long
+    # as the process: the cyclic garbage collector is off meanwhile, then gc.freeze() keeps them
+    # out of every later collection (Python's gc documentation), so the many short-lived objects
+    # of reading a PDF are collected without walking start-up's again each time.
+    gc.disable()
+    try:
+        files, options, ranker = _start_up(args)
+    finally:
+        gc.freeze()
+        gc.enable()
+    many = len(files) > 1 or args.lists or any(Path(f).is_dir() for f in args.files)
+    if many:
+        return _run_many([SuggestRequest(str(f), **options) for f in files], args, ranker)
+    document, ranking = rank_file(SuggestRequest(str(files[0]), **options), ranker)
+    if not document.sentences:
+        why = "; ".join(document.warnings) or "the reader found no text"
+        print(f"robtui: {files[0]}: no sentences to rank ({why})", file=sys.stderr)
+    if args.json:
+        print(json.dumps(payload(document, ranking), ensure_ascii=False))
+        return 0
+    thresholds = {qid: ranker.threshold_for(qid, args.effect, origin=document.kind)
+                  for qid in ranking}
+    untrained = {qid for qid in ranking if not ranker.is_trained(qid, args.effect)}
+    print(_render(ranking, thresholds, untrained, document.path))
+    return 0
+
+
+def _start_up(args: argparse.Namespace) -> tuple[list[Path], dict, object]:
+    """The options checked, the files listed and the ranker loaded (errors before any reading)."""
     from robtui.errors import InputError
     from robtui.evidence.ranker import load_ranker
-    from robtui.workspace.suggesting import SuggestRequest, files_to_suggest, payload, rank_file
+    from robtui.workspace.suggesting import SuggestRequest, files_to_suggest
 
     if args.top < 1:
         raise InputError(f"--top must be at least 1 (got {args.top})")
@@ -99,21 +131,7 @@ def run(args: argparse.Namespace) -> int:
         if unknown:
             raise InputError(f"unknown question id(s) for the {args.effect} effect: "
                              f"{', '.join(unknown)}; known: {', '.join(known)}")
-    many = len(files) > 1 or args.lists or any(Path(f).is_dir() for f in args.files)
-    if many:
-        return _run_many([SuggestRequest(str(f), **options) for f in files], args, ranker)
-    document, ranking = rank_file(SuggestRequest(str(files[0]), **options), ranker)
-    if not document.sentences:
-        why = "; ".join(document.warnings) or "the reader found no text"
-        print(f"robtui: {files[0]}: no sentences to rank ({why})", file=sys.stderr)
-    if args.json:
-        print(json.dumps(payload(document, ranking), ensure_ascii=False))
-        return 0
-    thresholds = {qid: ranker.threshold_for(qid, args.effect, origin=document.kind)
-                  for qid in ranking}
-    untrained = {qid for qid in ranking if not ranker.is_trained(qid, args.effect)}
-    print(_render(ranking, thresholds, untrained, document.path))
-    return 0
+    return files, options, ranker
 
 
 def _run_many(requests, args, ranker) -> int:
