@@ -47,11 +47,16 @@ def _texts(path: Path, block: str | None = None) -> list[str]:
     return [s.text for s in _sentences(path) if block is None or s.block == block]
 
 
-def _finished(canvas, path: Path) -> list[str]:
-    """End the page, save the PDF and read its sentences' texts."""
+def _sentences_of_finished(canvas, path: Path) -> list:
+    """End the page, save the PDF and read its sentences."""
     canvas.showPage()
     canvas.save()
-    return _texts(path)
+    return _sentences(path)
+
+
+def _finished(canvas, path: Path) -> list[str]:
+    """End the page, save the PDF and read its sentences' texts."""
+    return [s.text for s in _sentences_of_finished(canvas, path)]
 
 
 def test_a_caption_on_the_next_page_does_not_end_the_paragraph(tmp_path) -> None:
@@ -186,6 +191,41 @@ def test_a_shaded_table_of_terms_and_their_descriptions_is_a_table(tmp_path) -> 
     assert "Part | What happens" in rows
     assert not any(s.block in ("figure", "body") and "walkers meet twice" in s.text
                    for s in sentences)
+
+
+def test_a_ruled_table_on_a_page_turned_landscape_keeps_its_rules(tmp_path) -> None:
+    """The table's text and rules are drawn turned (the page reads landscape): rows broken by a
+    wrapped cell and a group's label stay one table, as its rules say."""
+    path = tmp_path / "landscape.pdf"
+    c = _canvas(path)
+    c.translate(WIDTH, 0)
+    c.rotate(90)  # from here on x runs up the page: a landscape page HEIGHT wide, WIDTH tall
+
+    def row(top: float, cells: list[str]) -> None:
+        c.setFont("Times-Roman", 9.0)
+        for x, cell in zip((60.0, 160.0, 260.0, 360.0, 460.0), cells, strict=False):
+            c.drawString(x, WIDTH - top, cell)
+
+    c.setFont("Times-Bold", 11.0)
+    c.drawString(60, WIDTH - 80, "Table 2 Walks of the invented study by walker")
+    tops = [110.0, 124.0, 138.0, 152.0]
+    row(tops[0], ["Walker", "Week", "Minutes", "Place", "Notes"])
+    row(tops[1], ["1", "3", "45", "Lake", "Walked with"])
+    row(tops[2], ["2", "4", "50", "Park", "Alone"])
+    row(tops[3], ["3", "5", "35", "Lake", "Alone"])
+    row(163.0, ["", "", "", "", "a friend of the family"])
+    row(178.0, ["Walkers of the second town:"])
+    tops += [192.0, 206.0, 220.0]
+    row(tops[4], ["4", "2", "55", "Hill", "Alone"])
+    row(tops[5], ["5", "6", "40", "Lake", "Alone"])
+    row(tops[6], ["6", "1", "30", "Park", "Alone"])
+    c.setLineWidth(0.5)
+    for y in (101.0, 114.0, 128.0, 142.0, 168.0, 182.0, 196.0, 210.0, 224.0):
+        c.line(60, WIDTH - y, 600, WIDTH - y)
+    sentences = _sentences_of_finished(c, path)
+    body = [s.text for s in sentences if s.block == "body"]
+    assert not any("second town" in t or "a friend" in t for t in body)
+    assert any("second town" in s.text for s in sentences if s.block == "table")
 
 
 def _ruled_table(c, top: float, caption: str, rows: list[tuple[str, str, str]]) -> float:

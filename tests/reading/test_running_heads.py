@@ -28,16 +28,21 @@ def _log_pdf(path, pages: int, lines_per_page: int, *, head: bool) -> list[str]:
             c.drawString(72, height - 30, f"{HEAD}, page {page + 40}")
             c.drawString(width / 2, 20, str(page))
         c.setFont("Helvetica", 10)
-        y = height - 52  # the first entry sits in the top margin, as in a dense log
-        for _ in range(lines_per_page):
-            n = len(entries) + 1
-            entry = f"Entry {n} records that participant {n * 7} was randomised in week {n % 9 + 1}."
-            c.drawString(72, y, entry)
-            entries.append(entry)
-            y -= 12.5
-        c.showPage()
+        first = len(entries) + 1
+        entries += _drawn(c, height - 52, [  # the first entry sits in the top margin, as in a log
+            f"Entry {n} records that participant {n * 7} was randomised in week {n % 9 + 1}."
+            for n in range(first, first + lines_per_page)])
     c.save()
     return entries
+
+
+def _drawn(c, y: float, lines: list[str]) -> list[str]:
+    """Draw ``lines`` from ``y`` (points from the page's foot) down and end the page."""
+    for line in lines:
+        c.drawString(72, y, line)
+        y -= 12.5
+    c.showPage()
+    return lines
 
 
 @pytest.mark.parametrize("lines_per_page", [1, 3, 60])
@@ -78,3 +83,37 @@ def test_running_head_of_a_page_set_landscape_is_removed(tmp_path) -> None:
     document = read_document(path, use_cache=False)
     assert "Invented Journal of Trials" not in document.text
     assert "Participant 310 walked on most days of week 11." in document.text
+
+
+def test_first_page_foot_with_its_page_range_and_a_head_in_two_fonts_are_removed(
+        tmp_path) -> None:
+    """Page 1's foot names the journal with the article's page range where later pages' foot
+    has none; on the last pages the head's numbers are set apart in another font."""
+    from reportlab.lib.pagesizes import A4
+    from reportlab.pdfgen import canvas
+
+    height = A4[1]
+    path = tmp_path / "feet.pdf"
+    c = canvas.Canvas(str(path), pagesize=A4)
+    sentences = []
+    for page in range(1, 11):
+        if 1 < page < 8:
+            c.setFont("Helvetica-Oblique", 10)
+            c.drawString(72, height - 30, "Heron et al. Walking Letters (2030) 4:12")
+        elif page >= 8:
+            c.setFont("Helvetica-Oblique", 10)
+            c.drawString(72, height - 30, "Heron et al. Walking Letters")
+            c.setFont("Helvetica", 10)
+            c.drawString(230, height - 30, "(2030) 4:12")  # in the body's size, set apart
+        c.setFont("Helvetica", 8)
+        foot = "Invented Journal of Walking 2030:4"
+        c.drawString(72, 30, f"{foot} 101–109" if page == 1 else foot)
+        c.setFont("Times-Roman", 10)
+        sentences += _drawn(c, height - 80, [
+            f"On day {day} of week {page} the walkers of the study met at the lake."
+            for day in range(1, 41)])
+    c.save()
+    document = read_document(path, use_cache=False)
+    assert "Invented Journal of Walking" not in document.text
+    assert "Heron et al." not in document.text and "(2030) 4:12" not in document.text
+    assert [s.text for s in document.sentences if s.block == "body"] == sentences

@@ -127,6 +127,16 @@ def _page_bound(numbers: dict[int, tuple[int, ...]]) -> bool:
     return True
 
 
+_END_NUMBERS = re.compile(r"(?:\s+[#\W]*#[#\W]*)+$")
+
+
+def _without_end_numbers(signature: str) -> str:
+    """A signature without the numbers ending it ("journal #:# #–#" -> "journal #:#"), when
+    two words of letters are left (a bare page number leaves nothing to match)."""
+    stripped = _END_NUMBERS.sub("", signature)
+    return stripped if len(re.findall(r"[^\W\d_]{2,}", stripped)) >= 2 else ""
+
+
 def strip_running(page: PageLines, running: set[str]) -> PageLines:
     """The page without running heads, page numbers and small print above the text.
 
@@ -136,6 +146,7 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
     """
     body_size = _body_size(page.lines)
     margin = {id(ln) for ln in _margin_lines(page)}
+    bare = {_without_end_numbers(sig) for sig in running} - {""}
 
     def running_line(ln: Line) -> bool:
         if id(ln) not in margin or is_caption(ln.text):
@@ -143,9 +154,21 @@ def strip_running(page: PageLines, running: set[str]) -> PageLines:
         signature = _signature(ln)
         if signature in running or _PAGE_NUMBER.match(signature):
             return True
+        if _without_end_numbers(signature) in bare:
+            return True  # the running foot with other numbers at its end (page 1's page range)
         return ln.top < page.height / 2 and ln.size < body_size - 0.8
 
-    kept = [ln for ln in page.lines if not running_line(ln) and not _CONTINUED.match(ln.text)]
+    dropped = [ln for ln in page.lines if running_line(ln)]
+
+    def beside_dropped(ln: Line) -> bool:
+        """Numbers alone in the margin on a dropped line's row: a piece of that running head
+        set in another font ("Author et al. Journal" + "(2030) 12:34")."""
+        return (id(ln) in margin and not any(ch.isalpha() for ch in ln.text)
+                and any(abs(ln.top - d.top) <= 2 for d in dropped))
+
+    gone = {id(ln) for ln in dropped}
+    kept = [ln for ln in page.lines if id(ln) not in gone and not beside_dropped(ln)
+            and not _CONTINUED.match(ln.text)]
     return PageLines(
         page.number, page.width, page.height, kept, page.tables, page.warnings, page.body_size,
         page.figures,

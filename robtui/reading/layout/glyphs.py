@@ -135,7 +135,9 @@ def read_glyphs(page, number: int) -> PageGlyphs:
     main = angles.most_common(1)[0][0] if angles else 0
     if main not in (0, -1):
         chars = [_turn(c, main, width, height) for c in chars]
-        rules, shapes = [], []  # in the other frame; not worth turning
+        # the rules of a table set landscape are turned with its text; the drawings are not
+        rules = _turned_rules(shapes, main, width, height)
+        shapes = []
         if main in (90, 270):
             width, height = height, width
         main = 0
@@ -205,6 +207,23 @@ def _turn(g: Glyph, angle: int, width: float, height: float) -> Glyph:
     else:
         return g
     return Glyph(g.text, x0, x1, top, bottom, baseline, g.size, g.font, 0 if g.angle == angle else -1, g.space_before)
+
+
+def _turned_rules(shapes: list[Box], angle: int, width: float, height: float
+                  ) -> list[tuple[float, float, float]]:
+    """The paths that are horizontal rules in the frame where text drawn at ``angle`` reads
+    left to right (on a page set landscape, its vertical lines), as x0, x1, top."""
+    rules = []
+    for x0, top, x1, bottom in shapes:
+        if angle == 90:
+            x0, top, x1, bottom = height - bottom, x0, height - top, x1
+        elif angle == 270:
+            x0, top, x1, bottom = top, width - x1, bottom, width - x0
+        else:  # 180
+            x0, top, x1, bottom = width - x1, height - bottom, width - x0, height - top
+        if bottom - top <= RULE_MAX_HEIGHT and x1 - x0 > RULE_MIN_WIDTH:
+            rules.append((x0, x1, top))
+    return rules
 
 
 def _objects(
