@@ -146,6 +146,7 @@ def test_a_figure_title_in_the_side_column_is_a_caption_with_its_legend(tmp_path
     legend = next(s for s in sentences if "Two walkers moved away" in s.text)
     assert title.block == "caption" and title.section != "other"  # not a side note
     assert legend.block == "caption"
+    assert title.text == "Figure 1: Flow of walkers"  # the bold title is a sentence of its own
 
 
 def test_a_line_opening_with_the_text_naming_a_table_is_no_caption(tmp_path) -> None:

@@ -218,8 +218,10 @@ def page_blocks(page: PageLines) -> list[PBlock]:
     blocks: list[PBlock] = []
     current: PBlock | None = None
     prev: Line | None = None
+    legends: set[int] = set()  # blocks opened by a caption's legend in another weight
     for line in plain:
-        new = not _legend_of(current, line, prev, body_size) and (
+        legend = _legend_of(current, line, prev, body_size)
+        new = not legend and (
             current is None
             or prev is None
             or line.column != prev.column
@@ -238,14 +240,17 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             and not is_caption(current.lines[0].text)
             or _abstract_run_in_opens(line, prev, body_font)
         )
-        if new:
+        if new or legend and prev.words[-1].bold and not line.words[0].bold:
+            # the caption's bold title ends its line, its legend follows: two blocks
             current = PBlock("body", [line], page.number)
             blocks.append(current)
+            if legend:
+                legends.add(id(current))
         else:
             current.lines.append(line)
         prev = line
     for block in blocks:
-        block.kind = _kind(block, body_size, body_font)
+        block.kind = "caption" if id(block) in legends else _kind(block, body_size, body_font)
     # Figures standing alone outside any table are a chart's axis ticks: not the article's text.
     blocks = [b for b in blocks if b.kind != "ticks"]
     blocks = _with_run_in_split(blocks, body_font)
