@@ -11,6 +11,7 @@ Prints (figures, not pass/fail):
 - how long the saves of those keys held up the interface: each write of the assessment (atomic,
   fsync included) timed on the interface's thread (where the keys wait for it) and in the
   writer thread (where they do not);
+- Python's full garbage collections meanwhile (each holds every thread, the interface's too);
 - opening a ~15-page two-column PDF (or a real one: --pdf) to its first suggestions: read (not
   cached) and ranked in the worker, and reopened (from the reader's cache); the longest stall
   of the UI's event loop until the report is shown (its first screens laid out; the rest is
@@ -28,6 +29,7 @@ from __future__ import annotations
 
 import argparse
 import asyncio
+import gc
 import itertools
 import os
 import shutil
@@ -40,11 +42,15 @@ import time
 import uuid
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Self
 
 from robtui.reading.cache import CACHE_ENV
 
 SIZE = (140, 42)
 REVIEWER = "bench"
+# As `robtui open` runs it: what exists once the first screen is up kept out of full garbage
+# collections (tui/app.py); --no-freeze runs the workbench without.
+FREEZE = True
 
 _CHILD = """
 import time; t0 = time.perf_counter()
@@ -172,7 +178,7 @@ class Keying:
 async def _keystrokes(root: Path, study_id: str, count: int) -> Keying:
     from robtui.tui.app import Workbench
 
-    app = Workbench(root, REVIEWER)
+    app = Workbench(root, REVIEWER, freeze_startup_objects=FREEZE)
     handler, round_trip = [], []
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
@@ -247,6 +253,8 @@ class Opening:
     keys: list[float]
     ui_cpu: float = 0.0  # CPU seconds of the interface's thread until the report is shown
     saves: _SaveClock | None = None  # the writes of the answer keys
+    stall_cpu: float = 0.0  # CPU seconds of the interface's thread within the longest stall
+    turn_cpu: float = 0.0  # the most CPU the interface's thread spent between two ticks
 
 
 async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening:
@@ -254,17 +262,18 @@ async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening
     answer keys are pressed while the worker reads and ranks, as a reviewer would."""
     from robtui.tui.app import Workbench
 
-    app = Workbench(root, REVIEWER)
+    app = Workbench(root, REVIEWER, freeze_startup_objects=FREEZE)
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
-        ticks: list[float] = []
-        typist = _Typist()
+        ticks: list[tuple[float, float]] = []
         started = time.perf_counter()
         cpu_started = time.thread_time()  # this thread runs the event loop: the interface
         screen = await _open_row(pilot, study_id)
+        typist = _Typist()  # the first key is due once the screen is there
         saves = _SaveClock(screen.session.folder)
         screen.session.folder.save_assessment = saves
-        timer = screen.set_interval(0.005, lambda: ticks.append(time.perf_counter()))
+        timer = screen.set_interval(
+            0.005, lambda: ticks.append((time.perf_counter(), time.thread_time())))
         view = screen.query_one("#report")
         elapsed = None
         while elapsed is None or not view.laid_out:
@@ -280,10 +289,45 @@ async def _open_pdf(root: Path, study_id: str, *, keys: bool = False) -> Opening
         ui_cpu = time.thread_time() - cpu_started
         timer.stop()
         await app.workers.wait_for_complete()
-        gaps = [b - a for a, b in itertools.pairwise(ticks)] or [0.0]
+        gaps = [(b[0] - a[0], b[1] - a[1]) for a, b in itertools.pairwise(ticks)] or [(0.0, 0.0)]
         document = screen.loaded[0].document
-        return Opening(elapsed, max(gaps), document.pages or 0, len(document.sentences),
-                       screen.loaded[0].seconds, typist.latencies, ui_cpu, saves)
+        return Opening(elapsed, max(gaps)[0], document.pages or 0, len(document.sentences),
+                       screen.loaded[0].seconds, typist.latencies, ui_cpu, saves,
+                       max(gaps)[1], max(cpu for _, cpu in gaps))
+
+
+class _FullCollections:
+    """Python's full garbage collections (generation 2) while it is on: each one's wall time
+    and thread. A full collection holds the interpreter lock throughout, so every thread,
+    the interface's too, waits for it (gc.callbacks, Python's gc module documentation)."""
+
+    def __init__(self) -> None:
+        self.seen: list[tuple[float, str]] = []
+        self._started: dict[int, float] = {}
+
+    def _callback(self, phase: str, info: dict) -> None:
+        if info.get("generation") != 2:
+            return
+        key = threading.get_ident()
+        if phase == "start":
+            self._started[key] = time.perf_counter()
+        elif key in self._started:
+            took = time.perf_counter() - self._started.pop(key)
+            self.seen.append((took, threading.current_thread().name))
+
+    def __enter__(self) -> Self:
+        gc.callbacks.append(self._callback)
+        return self
+
+    def __exit__(self, *_: object) -> None:
+        gc.callbacks.remove(self._callback)
+
+    def line(self) -> str:
+        if not self.seen:
+            return "none"
+        longest = max(self.seen)
+        return (f"{len(self.seen)}, {_ms(sum(t for t, _ in self.seen))} in all, longest "
+                f"{_ms(longest[0])} (in {longest[1]})")
 
 
 def _print_saves(saves: _SaveClock, keys: int) -> None:
@@ -319,11 +363,16 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--keys", type=int, default=40, help="answer keystrokes to time")
     parser.add_argument("--pdf", type=Path, default=None,
                         help="open this PDF (a real article) instead of a rendered one")
+    parser.add_argument("--no-freeze", action="store_true",
+                        help="leave the objects of the workbench's start in Python's full "
+                             "garbage collections (robtui open freezes them)")
     args = parser.parse_args(argv)
     if args.pdf is not None and not args.pdf.is_file():
         from robtui.errors import InputError
 
         raise InputError(f"--pdf {args.pdf}: no such file")
+    global FREEZE
+    FREEZE = not args.no_freeze
     saved_cache = os.environ.get(CACHE_ENV)
     try:
         return _run(args)
@@ -365,21 +414,25 @@ def _run(args: argparse.Namespace) -> int:
         print(f"  fresh process, imports included: {_ms(cold)} (+ {_ms(python)} interpreter start)")
         print(f"  warm process:                    {_ms(warm)}")
 
-        keying = asyncio.run(_keystrokes(root, first_study, args.keys))
-        print("keystroke to updated judgement (answer key on question 1.1, saved each time)")
+        with _FullCollections() as collections_keys:
+            keying = asyncio.run(_keystrokes(root, first_study, args.keys))
+        print("keystroke to updated judgement (answer key on question 1.1, saved each time; "
+              f"start's objects {'frozen' if FREEZE else 'not frozen (--no-freeze)'})")
         print(f"  key action -> judgements updated: {_spread(keying.handler)}  [target <= 50 ms]")
         print(f"  Pilot round trip per key:         {_spread(keying.round_trip)}")
         print(f"  keys due {KEY_INTERVAL * 1000:.0f} ms apart, key due -> judgement updated: "
               f"{_spread(keying.posted)}  [target <= 50 ms]; longest event-loop stall "
               f"{_ms(keying.stall)}")
         _print_saves(keying.saves, 2 * args.keys)
+        print(f"  full garbage collections meanwhile (every thread waits): {collections_keys.line()}")
 
         report_loading._ranker = None  # the first open pays for loading the ranker too
         first = asyncio.run(_open_pdf(root, "bench-pdf"))
         again = asyncio.run(_open_pdf(root, "bench-pdf"))
         os.environ[CACHE_ENV] = str(workdir / "cache-keys")  # cold again, keys pressed
         report_loading._ranker = None
-        keyed = asyncio.run(_open_pdf(root, "bench-pdf", keys=True))
+        with _FullCollections() as collections_open:
+            keyed = asyncio.run(_open_pdf(root, "bench-pdf", keys=True))
         print(f"opening a {first.pages}-page PDF ({first.sentences} sentences, from {origin})")
         print(
             f"  to first suggestions, first open (not cached; loads the ranker): {_ms(first.seconds)}"
@@ -393,7 +446,13 @@ def _run(args: argparse.Namespace) -> int:
         )
         print(
             f"  longest UI event-loop stall until the report is shown: {_ms(first.stall)} / "
-            f"{_ms(again.stall)}"
+            f"{_ms(again.stall)}; the interface's own CPU in it {_ms(first.stall_cpu)} / "
+            f"{_ms(again.stall_cpu)}"
+        )
+        print(
+            f"  most CPU of the interface's thread without a turn for the keys (between two "
+            f"5 ms ticks): {_ms(first.turn_cpu)} / {_ms(again.turn_cpu)}  [a key waits at "
+            "least this long; target <= 50 ms]"
         )
         print(
             f"  CPU time of the interface's thread until the report is shown: "
@@ -401,8 +460,12 @@ def _run(args: argparse.Namespace) -> int:
         )
         if keyed.keys:
             print(f"  answer keys pressed during a first open, key due -> judgement updated: "
-                  f"{_spread(keyed.keys)}  [target <= 50 ms]; longest stall {_ms(keyed.stall)}")
+                  f"{_spread(keyed.keys)}  [target <= 50 ms]; longest stall {_ms(keyed.stall)} "
+                  f"(the interface's own CPU in it {_ms(keyed.stall_cpu)}; most between two "
+                  f"ticks {_ms(keyed.turn_cpu)})")
             _print_saves(keyed.saves, len(keyed.keys))
+        print(f"  full garbage collections during that open (every thread waits): "
+              f"{collections_open.line()}")
         read, rank = _parts(pdf)
         print(f"  of which, outside the app: reading (not cached) {_ms(read)}, ranking {_ms(rank)}")
     return 0

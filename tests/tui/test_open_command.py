@@ -31,6 +31,7 @@ def test_open_from_inside_a_review_finds_it(demo_dir, monkeypatch):
     assert main(["open", "--reviewer", "maren"]) == 0
     assert opened[0].folder.root.resolve() == demo_dir.resolve()
     assert opened[0].reviewer == "maren"
+    assert opened[0].freeze_startup_objects, "robtui open keeps its start out of full gc"
 
 
 def test_open_refuses_a_name_not_on_the_review(demo_dir, capsys, monkeypatch):
