@@ -556,3 +556,41 @@ def test_real_flowchart_is_a_figure_not_prose() -> None:
 def test_real_chart_titles_are_no_headings() -> None:
     heads = [s.text for s in _sentences(_real(SPRINGER)) if s.block == "heading"]
     assert not any("Picture Recogni" in h for h in heads)
+
+
+BMJ_OPEN = "bmjopen2017_goactive.pdf"
+TRIALS_LANDSCAPE = "trials2014_pge1_provisional.pdf"
+
+
+@_needs(LANCET)
+@_needs(SPRINGER)
+def test_real_figure_titles_in_a_side_column_are_captions() -> None:
+    lancet = _sentences(_real(LANCET))
+    title = next(s for s in lancet if s.text.startswith("Figure 1: Trial profile"))
+    assert title.block == "caption" and title.text == "Figure 1: Trial profile"
+    springer = _sentences(_real(SPRINGER))
+    assert all(s.block == "caption" for s in springer if s.text.startswith("Fig. 3 "))
+    assert any(s.text.startswith("Fig. 3 ") for s in springer)
+    assert "Received: 30 March 2016 / Accepted: 28 October 2016 /" in " ".join(
+        s.text for s in springer)
+
+
+@_needs(BMJ_OPEN)
+def test_real_framed_table_of_descriptions_is_a_table_and_words_rejoin() -> None:
+    sentences = _sentences(_real(BMJ_OPEN))
+    rows = {s.text: s.block for s in sentences if s.text.startswith("Choice | ")}
+    assert rows and set(rows.values()) == {"table"}
+    assert not any(s.block == "figure" and "tutor group chooses" in s.text for s in sentences)
+    body = " ".join(s.text for s in sentences if s.block == "body")
+    assert "are presented in table 1. Briefly," in body
+    assert "Despite initial agreement," in body
+
+
+@_needs(DOVE)
+@_needs(TRIALS_LANDSCAPE)
+def test_real_first_page_foot_and_a_landscape_tables_rows_are_no_prose() -> None:
+    dove = _sentences(_real(DOVE))
+    assert not any("Development and Therapy 2021:15 1485" in s.text for s in dove)
+    landscape = _sentences(_real(TRIALS_LANDSCAPE))
+    cells = [s for s in landscape if "matter signal" in s.text]
+    assert cells and all(s.block == "table" for s in cells)
