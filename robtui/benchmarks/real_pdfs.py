@@ -354,8 +354,7 @@ def _cold_run(path: Path, bytecode: str | None = None) -> tuple[float, float]:
             env["PYTHONPYCACHEPREFIX"] = bytecode
         before = resource.getrusage(resource.RUSAGE_CHILDREN)
         t = time.perf_counter()
-        subprocess.run([sys.executable, "-m", "robtui", "suggest", str(path), "--json"],
-                       capture_output=True, check=True, env=env)
+        _suggest_in_new_process(path, env)
         wall = time.perf_counter() - t
         after = resource.getrusage(resource.RUSAGE_CHILDREN)
     return wall, after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime
@@ -371,9 +370,14 @@ def compiled_bytecode(sample: Path) -> Iterator[str]:
     with tempfile.TemporaryDirectory() as prefix, tempfile.TemporaryDirectory() as cache:
         env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
         env.update(PYTHONPYCACHEPREFIX=prefix, ROBTUI_CACHE_DIR=cache)
-        subprocess.run([sys.executable, "-m", "robtui", "suggest", str(sample), "--json"],
-                       capture_output=True, check=True, env=env)
+        _suggest_in_new_process(sample, env)
         yield prefix
+
+
+def _suggest_in_new_process(path: Path, env: dict[str, str]) -> None:
+    """`robtui suggest --json` on ``path`` in a new Python process with environment ``env``."""
+    subprocess.run([sys.executable, "-m", "robtui", "suggest", str(path), "--json"],
+                   capture_output=True, check=True, env=env)
 
 
 def load_average() -> str:

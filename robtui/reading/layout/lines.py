@@ -116,7 +116,6 @@ def make_line(words: list[Word]) -> Line:
 
 
 @cache
-@cache
 def family_key(font: str) -> str:
     """A font's name without its subset tag or a numbered variant ("AdvTT86d47313+20")."""
     return re.sub(r"\+\w{1,3}$", "", font)

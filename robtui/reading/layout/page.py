@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import itertools
 import re
+from collections import Counter
 from dataclasses import dataclass, field
 
 from robtui.reading.assemble import is_caption
@@ -168,10 +169,8 @@ def _table_like(inside: list[Segment], size: float) -> bool:
     box of short lines is one when some of its rows hold several cells, or mostly figures: one
     line of words to a row (a registration box, a cover page's links) is boxed text."""
     by_row: dict[int, list[Word]] = {}
-    pieces: dict[int, int] = {}
     for seg in inside:
         by_row.setdefault(seg.row, []).extend(seg.line.words)
-        pieces[seg.row] = pieces.get(seg.row, 0) + 1
     rows = [sorted(words, key=lambda w: w.box[0]) for words in by_row.values()]
     tabular = sum(_tabular(words, size) for words in rows)
     if tabular >= 0.3 * len(rows):
@@ -179,7 +178,7 @@ def _table_like(inside: list[Segment], size: float) -> bool:
     words = [w for seg in inside for w in seg.line.words]
     if len(words) / len(inside) >= 5:
         return False
-    cells = sum(n > 1 for n in pieces.values())
+    cells = _rows_in_cells(inside)
     numeric = sum(bool(NUMERIC.match(w.text)) for w in words)
     return cells >= 0.3 * len(rows) or numeric >= 0.5 * len(words)
 
@@ -202,10 +201,17 @@ def _captioned_cells(segs: list[Segment], inside: list[Segment], region: Box,
     however much prose its cells hold; boxed text has no caption and one piece to a row."""
     if _caption_over(segs, region, size) is None:
         return False
-    pieces: dict[int, int] = {}
-    for seg in inside:
-        pieces[seg.row] = pieces.get(seg.row, 0) + 1
-    return sum(n > 1 for n in pieces.values()) >= CAPTION_CELL_ROWS
+    return _rows_in_cells(inside) >= CAPTION_CELL_ROWS
+
+
+def _pieces_by_row(segs: list[Segment]) -> Counter[int]:
+    """How many pieces (cells) each row of text is cut into."""
+    return Counter(s.row for s in segs)
+
+
+def _rows_in_cells(segs: list[Segment]) -> int:
+    """The rows cut into two pieces or more."""
+    return sum(n > 1 for n in _pieces_by_row(segs).values())
 
 
 def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
@@ -216,13 +222,10 @@ def _table_head(segs: list[Segment], region: Box, size: float) -> list[Segment]:
     caption = _caption_over(segs, region, size)
     if caption is None:
         return []
-    between = [s for s in segs if s.line.top >= caption.bottom - 1 and s.line.bottom <= top + 1
-               and x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size
+    within = [s for s in segs if x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size]
+    between = [s for s in within if s.line.top >= caption.bottom - 1 and s.line.bottom <= top + 1
                and s.line is not caption]
-    pieces: dict[int, int] = {}  # pieces of each row within the table's width
-    for s in segs:
-        if x0 - size <= (s.line.x0 + s.line.x1) / 2 <= x1 + size:
-            pieces[s.row] = pieces.get(s.row, 0) + 1
+    pieces = _pieces_by_row(within)  # pieces of each row within the table's width
     caption_lines = {id(s.line) for s in segs if s.line.top < caption.bottom + size
                      and s.line.top >= caption.top and s.line.x0 >= caption.x0 - 1
                      and abs(s.line.size - caption.size) <= 0.3
