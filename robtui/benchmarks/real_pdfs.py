@@ -401,18 +401,13 @@ def bytecode_note() -> str | None:
     return None
 
 
-def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, wordings: dict[str, str],
-                    *, process: bool = True, guidance: dict[str, str] | None = None,
-                    cold_runs: int = 1) -> tuple[Reading, list[Pair], list[Planted], list]:
-    """Read one PDF, rank every gold question, and score both robtui and the baselines; also
-    the article's groups for the second stage's leave-one-article-out figures."""
-    from robtui.evidence.ranker import Ranker
-    from robtui.evidence.training.reader_faults import without_sections
-    from robtui.evidence.training.real_gold import article_groups
-    from robtui.reading.document import CELL_BLOCKS, top_section
+def read_quality(path: Path, *, process: bool = False, cold_runs: int = 1) -> tuple[Reading, object, str]:
+    """Read one PDF and measure its reading against ``pdftotext``'s: prose-sentence integrity
+    (strict and across interruptions), sections found, seconds. Returns the Reading, the
+    reader's Document and pdftotext's text ("" when poppler is not installed)."""
+    from robtui.reading.document import top_section
     from robtui.reading.reader import read_document
 
-    questions = list(gold)
     reference = pdftotext(path)
     ref_text, ref_s = reference if reference is not None else ("", None)
     t = time.perf_counter()
@@ -434,8 +429,61 @@ def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, word
     reading = Reading(path.name, document.pages or 0, len(document.sentences), len(prose),
                       len(prose) - len(broken) if ref_text else 0, found, read_s, ref_s,
                       suggest_s, suggest_cpu_s, list(document.warnings), broken, page_s.by_page(),
-                      interrupted, document.kind,
-                      ranker.adjustment is not None and ranker.adjustment.applies_to(document.kind))
+                      interrupted, document.kind)
+    return reading, document, ref_text
+
+
+def other_layouts(folder: Path, names: Sequence[str] | None = None) -> list[Reading]:
+    """The reading of every PDF in ``folder`` (the real articles of other layouts, without
+    gold: ``real-pdfs/more/``), or of those whose names start with one of ``names``."""
+    paths = sorted(Path(folder).glob("*.pdf"))
+    if names:
+        paths = [p for p in paths if any(p.name.startswith(n) for n in names)]
+    return [read_quality(p)[0] for p in paths]
+
+
+def report_other_layouts(readings: Sequence[Reading], folder: Path) -> dict:
+    """Print the reading table of the articles without gold; return its figures for JSON."""
+    print(f"\nOther layouts, no gold ({folder}): prose-sentence integrity against pdftotext, "
+          "strict and across interruptions, and sections found")
+    print("  article                          pages  prose  strict  forgiving  sections")
+    per_article = {}
+    for r in readings:
+        forgiving = (r.intact + len(r.interrupted)) / r.prose if r.prose else None
+        short = "".join(c if s in r.sections else "." for s, c in zip(KEY_SECTIONS, "AIMRDB"))
+        per_article[r.article] = {"pages": r.pages, "prose": r.prose, "intact": r.intact,
+                                  "integrity": r.intact / r.prose if r.prose else None,
+                                  "integrity_across_interruptions": forgiving,
+                                  "sections": r.sections, "read_s": r.read_s}
+        print(f"  {r.article[:32]:<32} {r.pages:>5} {r.prose:>6}   {_fmt(per_article[r.article]['integrity'])}"
+              f"     {_fmt(forgiving)}   {short:<6} ({len(r.sections)}/{len(KEY_SECTIONS)})")
+    prose = sum(r.prose for r in readings)
+    intact = sum(r.intact for r in readings)
+    forgiven = sum(len(r.interrupted) for r in readings)
+    with_both = sum({"methods", "results"} <= set(r.sections) for r in readings)
+    print(f"  pooled: strict {intact}/{prose} = {_fmt(intact / prose if prose else None)}, "
+          f"across interruptions {intact + forgiven}/{prose} = "
+          f"{_fmt((intact + forgiven) / prose if prose else None)}; articles with methods and "
+          f"results found: {with_both}/{len(readings)}; with no key section: "
+          f"{sum(not r.sections for r in readings)}")
+    return {"per_article": per_article, "integrity": intact / prose if prose else None,
+            "integrity_across_interruptions": (intact + forgiven) / prose if prose else None}
+
+
+def measure_article(path: Path, gold: dict[str, list[GoldSnippet]], ranker, wordings: dict[str, str],
+                    *, process: bool = True, guidance: dict[str, str] | None = None,
+                    cold_runs: int = 1) -> tuple[Reading, list[Pair], list[Planted], list]:
+    """Read one PDF, rank every gold question, and score both robtui and the baselines; also
+    the article's groups for the second stage's leave-one-article-out figures."""
+    from robtui.evidence.ranker import Ranker
+    from robtui.evidence.training.reader_faults import without_sections
+    from robtui.evidence.training.real_gold import article_groups
+    from robtui.reading.document import CELL_BLOCKS, top_section
+
+    questions = list(gold)
+    reading, document, ref_text = read_quality(path, process=process, cold_runs=cold_runs)
+    reading.second_stage = (ranker.adjustment is not None
+                            and ranker.adjustment.applies_to(document.kind))
 
     by_score = ranker.rank(document, questions, top=None)
     spread = ranker.rank(document, questions, top=None, spread=True)
@@ -768,6 +816,10 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--speed-only", action="store_true",
                    help="only the speed figures: reading per page, the slowest page, cold "
                         "`robtui suggest`, pdftotext beside (no ranking, no baselines)")
+    p.add_argument("--more", choices=("auto", "no", "only"), default="auto",
+                   help="the reading table of the articles of other layouts without gold, in the "
+                        "folder's more/ (auto: when it exists, after the gold articles; only: that "
+                        "table alone, fast; --articles and --broken apply to it too)")
     p.add_argument("--json", type=Path, default=None, help="also write the figures to this file")
     return p
 
@@ -859,10 +911,26 @@ def main(argv: list[str] | None = None) -> int:
     if folder is None:
         raise InputError(f"no real-PDF folder found: pass --folder PATH (the folder holding "
                          f"gold.json) or set ${FOLDER_ENV}")
+    wanted = [w.strip() for w in (args.articles or "").split(",") if w.strip()]
+    more = Path(folder) / "more"
+    if args.more == "only":
+        if not more.is_dir():
+            raise InputError(f"--more only: {more} is not a folder (the articles of other layouts)")
+        readings = other_layouts(more, wanted)
+        if not readings:
+            raise InputError(f"no PDF in {more}" + (f" matches --articles {args.articles!r}"
+                                                    if wanted else ""))
+        figures = {"other_layouts": report_other_layouts(readings, more)}
+        if args.broken:
+            print_broken(readings, args.broken)
+        if args.json is not None:
+            from robtui.files import write_text_atomic
+
+            write_text_atomic(args.json, json.dumps({"figures": figures}, indent=2) + "\n")
+        return 0
     gold = load_gold(folder)
     names = list(gold)
-    if args.articles:
-        wanted = [w.strip() for w in args.articles.split(",") if w.strip()]
+    if wanted:
         names = [n for n in names if any(n.startswith(w) for w in wanted)]
         if not names:
             raise InputError(f"--articles {args.articles!r} matches no article of {folder}/gold.json")
@@ -910,10 +978,15 @@ def main(argv: list[str] | None = None) -> int:
     figures = report(readings, pairs)
     figures["second_stage_served"] = served
     figures["planted"] = report_planted(planted)
+    others = []
+    if args.more == "auto" and more.is_dir():
+        others = other_layouts(more, wanted)
+        if others:
+            figures["other_layouts"] = report_other_layouts(others, more)
     if args.misses:
         print_misses(pairs)
     if args.broken:
-        print_broken(readings, args.broken)
+        print_broken([*readings, *others], args.broken)
     if args.json is not None:
         from robtui.files import write_text_atomic
 

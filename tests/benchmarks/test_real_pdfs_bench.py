@@ -201,3 +201,32 @@ def test_misses_are_listed_by_the_fair_rank_when_the_bench_has_it(capsys):
     printed = capsys.readouterr().out
     assert "as shipped;" in printed
     assert "invented2030 2.1: rank 2," in printed and "invented2030 2.2" not in printed
+
+
+@needs_real
+@needs_poppler
+def test_other_layouts_table_reads_more_without_gold(capsys, tmp_path):
+    import json
+
+    from robtui.benchmarks.real_pdfs import main
+
+    if not (FOLDER / "more").is_dir():
+        pytest.skip("../shared/real-pdfs/more is not present")
+    out = tmp_path / "more.json"
+    assert main(["--more", "only", "--articles", "medicine2020", "--broken", "5",
+                 "--json", str(out)]) == 0
+    printed = capsys.readouterr().out
+    assert "Other layouts, no gold" in printed and "Pooled over" not in printed
+    figures = json.loads(out.read_text())["figures"]["other_layouts"]
+    [(name, row)] = figures["per_article"].items()
+    assert name.startswith("medicine2020") and row["prose"] > 0
+    assert 0.0 < row["integrity"] <= row["integrity_across_interruptions"] <= 1.0
+    assert "methods" in row["sections"]
+
+
+def test_other_layouts_only_without_a_more_folder_says_so(tmp_path):
+    from robtui.benchmarks.real_pdfs import main
+    from robtui.errors import InputError
+
+    with pytest.raises(InputError, match="more"):
+        main(["--folder", str(tmp_path), "--more", "only"])
