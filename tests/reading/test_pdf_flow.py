@@ -594,3 +594,17 @@ def test_real_first_page_foot_and_a_landscape_tables_rows_are_no_prose() -> None
     landscape = _sentences(_real(TRIALS_LANDSCAPE))
     cells = [s for s in landscape if "matter signal" in s.text]
     assert cells and all(s.block == "table" for s in cells)
+
+
+MDPI_EMBEDDED = "more/nutrients2018_protein_exercise_frailty_metaanalysis.pdf"
+
+
+@_needs(MDPI_EMBEDDED)
+def test_real_text_hidden_by_an_embedded_figures_clip_is_not_read() -> None:
+    # each figure is placed from an embedded page whose other text the clip hides: it had been
+    # read too, so the page's sentences came twice, one copy offset into the other
+    body = [s.text for s in _sentences(_real(MDPI_EMBEDDED)) if s.block == "body"]
+    twice = "In addition, one RCT reported changes in global frailty scores [54]."
+    assert body.count(twice) == 1
+    assert ("The effects of PS plus exercise training on the frailty indices at each "
+            "follow-up duration are shown in Figure 3.") in body

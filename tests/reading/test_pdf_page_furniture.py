@@ -147,3 +147,48 @@ def test_first_page_small_print_naming_funding_an_address_or_an_affiliation_is_a
     assert sections["* A. Author a.author@example.org"] == "other"
     assert sections["1 Department of Walking, Invented University, Quillmoor"] == "other"
     assert sections[PROSE] != "other"
+
+
+def _embedded_figure_pdf(path, shift: tuple[float, float] = (0.0, 0.0)) -> None:
+    """A page of prose, and a figure placed from a form (as a page embedded from another PDF
+    is): the form holds the figure's label inside its clip and an earlier page's text outside
+    it, which the clip hides; the form is placed moved by ``shift``."""
+    from reportlab.lib.pagesizes import A4
+    from reportlab.pdfgen import canvas
+
+    height = A4[1]
+    c = canvas.Canvas(str(path), pagesize=A4)
+    c.setFont("Helvetica", 10)
+    for i, (x, y, text, size) in enumerate(_prose_lines(400, 8)):
+        c.drawString(x, height - y, text)
+    c.beginForm("embedded")
+    c.saveState()
+    clip = c.beginPath()
+    clip.rect(72, height - 300, 450, 200)  # the figure's frame, 100-300 pt from the top
+    c.clipPath(clip, stroke=0, fill=0)
+    c.setFont("Helvetica", 9)
+    c.drawString(100, height - 200, "Forest plot of the invented outcome")
+    c.setFont("Helvetica", 10)
+    for i in range(6):  # an older page's prose, far below the frame: drawn, never seen
+        c.drawString(72, height - 600 - 13 * i,
+                     "Hidden sentence of an earlier version about the Ravelston cohort.")
+    c.restoreState()
+    c.endForm()
+    c.saveState()
+    c.translate(*shift)
+    c.doForm("embedded")
+    c.restoreState()
+    c.showPage()
+    c.save()
+
+
+@pytest.mark.parametrize("shift", [(0.0, 0.0), (7.0, -40.0)])
+def test_text_a_clip_hides_is_not_read(tmp_path, shift) -> None:
+    # MDPI's Nutrients 2018 article places each figure from an embedded page whose other text,
+    # clipped away, poppler and the reader both read: every sentence of the page came twice
+    path = tmp_path / "embedded.pdf"
+    _embedded_figure_pdf(path, shift)
+    document = read_document(path, use_cache=False)
+    assert "Ravelston" not in document.text
+    assert "Forest plot of the invented outcome" in document.text
+    assert "Quillmoor" in document.text

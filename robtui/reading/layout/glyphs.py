@@ -21,6 +21,8 @@ RULE_MAX_HEIGHT = 2.0  # a path this flat (points) is a rule, not a shape
 RULE_MIN_WIDTH = 60.0
 SHAPE_MIN = 3.0  # a path smaller than this both ways (a dot, a glyph-like mark) is no shape
 MAX_SHAPES = 3000  # a page with more drawn paths is vector art: figures are not searched
+MAX_FORM_OBJECTS = 20000  # objects inside forms searched for clipped text, per page
+CLIP_SLACK = 1.0  # points: a glyph whose centre is this near its clip still shows
 Box = tuple[float, float, float, float]
 _SUBSET = re.compile(r"^[A-Z]{6}\+")  # the subset tag of an embedded font
 
@@ -125,12 +127,14 @@ def read_glyphs(page, number: int) -> PageGlyphs:
     """The glyphs, rules and image count of a pypdfium2 ``PdfPage``."""
     left, bottom, right, top = page.get_cropbox()
     width, height = right - left, top - bottom
+    rules, shapes, images, forms = _objects(page, left, top)
+    frames = _clip_frames(forms, left, top) if forms else {}
     textpage = page.get_textpage()
     try:
-        chars = _chars(_pdfium(), ctypes.cast(textpage.raw, ctypes.c_void_p).value, left, top)
+        chars = _chars(_pdfium(), ctypes.cast(textpage.raw, ctypes.c_void_p).value, left, top,
+                       frames)
     finally:
         textpage.close()
-    rules, shapes, images = _objects(page, left, top)
     angles = Counter(c.angle for c in chars if not c.text.isspace())
     main = angles.most_common(1)[0][0] if angles else 0
     if main not in (0, -1):
@@ -146,8 +150,12 @@ def read_glyphs(page, number: int) -> PageGlyphs:
     return PageGlyphs(number, width, height, glyphs, turned, rules, images, shapes)
 
 
-def _chars(calls, tp: int, left: float, top: float) -> list[Glyph]:
-    """The characters of the text page at address ``tp`` (see :func:`_pdfium`)."""
+def _chars(calls, tp: int, left: float, top: float,
+           frames: dict[int, Box] | None = None) -> list[Glyph]:
+    """The characters of the text page at address ``tp`` (see :func:`_pdfium`), but those
+    whose centre lies outside their text object's frame in ``frames`` (hidden by a clip)."""
+    frames = frames or {}
+    frame: Box | None = None
     fonts = _Fonts(calls)
     text_object = calls.GetTextObject
     unicode_of, generated = calls.GetUnicode, calls.IsGenerated
@@ -172,7 +180,14 @@ def _chars(calls, tp: int, left: float, top: float) -> list[Glyph]:
         address = text_object(tp, i) or 0
         if address != last_address:
             font = fonts.of(tp, i, address)
+            frame = frames.get(address)
             last_address = address
+        if frame is not None:
+            cx, cy = (rect.left + rect.right) / 2 - left, top - (rect.top + rect.bottom) / 2
+            if not (frame[0] - CLIP_SLACK <= cx <= frame[2] + CLIP_SLACK
+                    and frame[1] - CLIP_SLACK <= cy <= frame[3] + CLIP_SLACK):
+                space_before = False
+                continue
         name, size, angle = font
         if angle == 0:
             x0, x1 = rect.left - left, rect.right - left
@@ -228,13 +243,15 @@ def _turned_rules(shapes: list[Box], angle: int, width: float, height: float
 
 def _objects(
     page, left: float, top: float
-) -> tuple[list[tuple[float, float, float]], list[Box], int]:
-    """Horizontal rules, the bounds of drawn shapes (paths; for figures) and the number of
-    images, from the page's top-level objects; past MAX_SHAPES paths only rules are kept."""
+) -> tuple[list[tuple[float, float, float]], list[Box], int, list]:
+    """Horizontal rules, the bounds of drawn shapes (paths; for figures), the number of
+    images and the form objects, from the page's top-level objects; past MAX_SHAPES paths only
+    rules are kept."""
     from pypdfium2 import raw
 
     rules: list[tuple[float, float, float]] = []
     shapes: list[Box] = []
+    forms: list = []
     images = 0
     x0, y0, x1, y1 = (ctypes.c_float() for _ in range(4))
     handle = page.raw
@@ -243,10 +260,95 @@ def _objects(
         kind = raw.FPDFPageObj_GetType(obj)
         if kind == raw.FPDF_PAGEOBJ_IMAGE:
             images += 1
+        elif kind == raw.FPDF_PAGEOBJ_FORM:
+            forms.append(obj)
         elif kind == raw.FPDF_PAGEOBJ_PATH and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1):
             w, h = x1.value - x0.value, y1.value - y0.value
             if h <= RULE_MAX_HEIGHT and w > RULE_MIN_WIDTH:
                 rules.append((x0.value - left, x1.value - left, top - y1.value))
             if len(shapes) <= MAX_SHAPES and (w >= SHAPE_MIN or h >= SHAPE_MIN):
                 shapes.append((x0.value - left, top - y1.value, x1.value - left, top - y0.value))
-    return rules, shapes, images
+    return rules, shapes, images, forms
+
+
+Matrix = tuple[float, float, float, float, float, float]  # a b c d e f, as PDF writes it
+IDENTITY: Matrix = (1.0, 0.0, 0.0, 1.0, 0.0, 0.0)
+
+
+def _then(inner: Matrix, outer: Matrix) -> Matrix:
+    """The matrix that applies ``inner`` and then ``outer``."""
+    a, b, c, d, e, f = inner
+    A, B, C, D, E, F = outer
+    return (a * A + b * C, a * B + b * D, c * A + d * C, c * B + d * D,
+            e * A + f * C + E, e * B + f * D + F)
+
+
+def _clip_box(raw, obj, matrix: Matrix) -> tuple[float, float, float, float] | None:
+    """The bounds (x0, y0, x1, y1 in page space, y up) of the intersection of an object's clip
+    paths' bounds, its own space mapped by ``matrix``; None when it has no clip."""
+    clip = raw.FPDFPageObj_GetClipPath(obj)
+    if not clip:
+        return None
+    box = None
+    x, y = ctypes.c_float(), ctypes.c_float()
+    for p in range(max(raw.FPDFClipPath_CountPaths(clip), 0)):
+        points = []
+        for k in range(max(raw.FPDFClipPath_CountPathSegments(clip, p), 0)):
+            segment = raw.FPDFClipPath_GetPathSegment(clip, p, k)
+            if segment and raw.FPDFPathSegment_GetPoint(segment, x, y):
+                points.append((x.value, y.value))
+        if not points:
+            continue
+        a, b, c, d, e, f = matrix
+        xs = [a * px + c * py + e for px, py in points]
+        ys = [b * px + d * py + f for px, py in points]
+        here = (min(xs), min(ys), max(xs), max(ys))
+        box = here if box is None else (max(box[0], here[0]), max(box[1], here[1]),
+                                        min(box[2], here[2]), min(box[3], here[3]))
+    return box
+
+
+def _clip_frames(forms: list, left: float, top: float) -> dict[int, Box]:
+    """For each text object drawn inside a form XObject (a page or figure placed from another
+    PDF) under a clip, the frame it can be seen in: its clip paths' bounds, intersected with
+    those of the forms around it, in points from the crop box's top left. A page embedded to
+    show one figure keeps the rest of its text, hidden by the clip: PDFium's text layer holds
+    it all the same. Top-level text is not searched (it is seldom clipped away, and asking
+    for every object's clip costs time)."""
+    from pypdfium2 import raw
+
+    frames: dict[int, Box] = {}
+    budget = [MAX_FORM_OBJECTS]
+    m = raw.FS_MATRIX()
+
+    def walk(form, outer: Matrix, around) -> None:
+        matrix = IDENTITY
+        if raw.FPDFPageObj_GetMatrix(form, m):
+            matrix = (m.a, m.b, m.c, m.d, m.e, m.f)
+        own = _clip_box(raw, form, outer)
+        if own is not None and around is not None:
+            own = (max(own[0], around[0]), max(own[1], around[1]),
+                   min(own[2], around[2]), min(own[3], around[3]))
+        around = own if own is not None else around
+        inner = _then(matrix, outer)
+        for i in range(max(raw.FPDFFormObj_CountObjects(form), 0)):
+            budget[0] -= 1
+            if budget[0] < 0:
+                return
+            obj = raw.FPDFFormObj_GetObject(form, i)
+            kind = raw.FPDFPageObj_GetType(obj)
+            if kind == raw.FPDF_PAGEOBJ_FORM:
+                walk(obj, inner, around)
+            elif kind == raw.FPDF_PAGEOBJ_TEXT:
+                box = _clip_box(raw, obj, inner)
+                if box is not None and around is not None:
+                    box = (max(box[0], around[0]), max(box[1], around[1]),
+                           min(box[2], around[2]), min(box[3], around[3]))
+                box = box if box is not None else around
+                if box is not None:
+                    frames[ctypes.cast(obj, ctypes.c_void_p).value] = (
+                        box[0] - left, top - box[3], box[2] - left, top - box[1])
+
+    for form in forms:
+        walk(form, IDENTITY, None)
+    return frames
