@@ -608,3 +608,24 @@ def test_real_text_hidden_by_an_embedded_figures_clip_is_not_read() -> None:
     assert body.count(twice) == 1
     assert ("The effects of PS plus exercise training on the frailty indices at each "
             "follow-up duration are shown in Figure 3.") in body
+
+
+def test_a_cycle_in_the_page_head_leaves_the_columns_in_order(tmp_path) -> None:
+    # the journal's name set high at the right, a title under it, and a note in small print
+    # beside the title's last line, left of the name: each comes before the next by Breuel's
+    # rules, the last before the first (an author's raised mark does it on the real page). That cycle had the whole page sorted by height, so a right
+    # column starting a point higher than the left one was read first (Medicine 2020, more/)
+    path = tmp_path / "cycle.pdf"
+    c = _canvas(path)
+    _lines(c, 300, 40, ["Journal"], "Helvetica-Bold", 16, 18)
+    _lines(c, 50, 60, ["Study protocol"], "Helvetica", 9)
+    _lines(c, 50, 100, ["A walking diary kept in the invented Heron trial",
+                        "and its nurses"], "Helvetica-Bold", 16, 20)
+    _lines(c, 250, 118, ["(protocol)"], "Helvetica", 8)
+    _lines(c, LEFT, 300, ["Introduction"], "Times-Bold", 11)
+    _lines(c, LEFT, 318, FILLER + ["The diaries were read by two nurses who knew the"])
+    _lines(c, RIGHT, 299, ["allocation of each participant in the two groups."] + FILLER)
+    texts = _finished(c, path)
+    whole = " ".join(texts)
+    assert "who knew the allocation of each participant in the two groups." in whole
+    assert whole.index("Introduction") < whole.index("allocation of each participant")

@@ -307,16 +307,23 @@ def reading_order(blocks: list[GeoBlock]) -> list[GeoBlock] | None:
     ready = [(b.top, b.x0, i) for i, b in enumerate(blocks) if indegree[i] == 0]
     heapq.heapify(ready)
     order: list[int] = []
-    while ready:
+    done = [False] * n
+    waiting = sorted(range(n), key=lambda i: (blocks[i].top, blocks[i].x0))
+    while len(order) < n:
+        if not ready:
+            # a cycle (a small mark beside a title can close one): the highest block still
+            # waiting goes next, and the order holds for the rest of the page
+            i = next(i for i in waiting if not done[i])
+            heapq.heappush(ready, (blocks[i].top, blocks[i].x0, i))
         _, _, i = heapq.heappop(ready)
+        if done[i]:
+            continue
+        done[i] = True
         order.append(i)
         for j in after[i]:
             indegree[j] -= 1
-            if indegree[j] == 0:
+            if indegree[j] == 0 and not done[j]:
                 heapq.heappush(ready, (blocks[j].top, blocks[j].x0, j))
-    if len(order) < n:  # a cycle: ties broken by position for the rest
-        rest = sorted((i for i in range(n) if i not in set(order)), key=lambda i: blocks[i].top)
-        order.extend(rest)
     return [blocks[i] for i in order]
 
 
