@@ -27,7 +27,13 @@ from pathlib import Path
 
 import numpy as np
 
-from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
+from robtui.evidence.features import (
+    QUESTION_NAMES,
+    SHARED_NAMES,
+    is_pointer,
+    is_software_statement,
+    lexical_text,
+)
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
 from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid, suggestible
 from robtui.evidence.tfidf import TfidfTable
@@ -86,7 +92,24 @@ class Settings:
     # training rows when its positives are rarer there than ABSTRACT_RATE_SHARE of its rate
     # elsewhere; they are still ranked and scored.
     abstract_unlabelled: bool = False
+    # A sentence that only points to a figure (features.is_pointer: "Figure 1 Trial profile",
+    # "Figure 1 shows the trial profile.") names where the numbers are, one that only names the
+    # statistical program (features.is_software_statement: "Analyses were done with Stata
+    # 10.1.") what computed them: the corpus annotates the first with the items the figure
+    # reports (13a, 13b, 16), the second as a statistical method (12a); a reviewer quotes the
+    # prose that gives the numbers or the analysis. "below_prose": such a sentence is taught
+    # as a counter-example wherever its article has another sentence annotated for the
+    # question (or item), and kept as annotated where it is the article's only one;
+    # "labelled": as annotated. Training only: evaluation keeps the corpus's labels. Table
+    # titles stay as annotated: taught below the prose too, the corpus's 1.3 (baseline table)
+    # fell (docs/evidence-ranker.md).
+    pointers: str = "below_prose"
 
+
+POINTERS_NOTE = ("sentences that only point to a figure or only name the statistical program "
+                 "(features.is_pointer, is_software_statement) taught as "
+                 "counter-examples where their article has another sentence annotated for the "
+                 "question or item")
 
 # Our rule, no source: an item annotated in abstracts at under a tenth of its rate in the rest
 # of the article is taken as not annotated there (8b: one abstract sentence in the corpus).
@@ -109,6 +132,7 @@ class Prepared:
     groups: np.ndarray  # document number of each row
     docs: list[LabelledDocument] = field(default_factory=list)
     abstract: np.ndarray | None = None  # per row: the reader put the sentence in the abstract
+    pointer: np.ndarray | None = None  # per row: a pointer (Settings.pointers)
 
     @cached_property
     def suggestible(self) -> list[np.ndarray]:
@@ -176,6 +200,7 @@ def prepare(
     generic_parts: dict[str, list] = {k: [] for k in keys}
     groups = []
     abstract: list[bool] = []
+    pointer: list[bool] = []
     seen = faulty_documents([d.document for d in docs],
                             settings.section_dropout if training else 0.0, settings.seed)
     for number, (doc, document) in enumerate(zip(docs, seen)):
@@ -188,13 +213,35 @@ def prepare(
             generic_parts[key].append(generic_block(blocks[key], feats.shared))
         groups.extend([number] * feats.n)
         abstract.extend(top_section(s.section) == "abstract" for s in doc.document.sentences)
+        pointer.extend(is_pointer(s.text) or is_software_statement(s.text)
+                       for s in doc.document.sentences)
     from scipy.sparse import vstack
 
     X = {k: vstack(parts[k]).tocsr() for k in keys}
     y = {k: np.concatenate([d.labels[k] for d in docs]).astype(int) for k in keys}
+    pointers = np.asarray(pointer, dtype=bool)
+    if training:
+        y = {k: training_labels(v, pointers, np.asarray(groups), settings) for k, v in y.items()}
     generic_X = {k: np.vstack(generic_parts[k]) for k in keys}
     return Prepared(space, keys, X, y, generic_X, np.asarray(groups), docs,
-                    np.asarray(abstract, dtype=bool))
+                    np.asarray(abstract, dtype=bool), pointers)
+
+
+def training_labels(y: np.ndarray, pointer: np.ndarray | None, groups: np.ndarray,
+                    settings: Settings) -> np.ndarray:
+    """``y`` (0/1 per row; ``groups``: each row's article) as training reads it: with
+    Settings.pointers "below_prose", a ``pointer`` row is 0 where its article has another
+    positive."""
+    if settings.pointers == "labelled" or pointer is None:
+        return y
+    if settings.pointers != "below_prose":
+        raise ValueError(f"unknown pointers {settings.pointers!r}: use below_prose or labelled")
+    out = y.copy()
+    for g in np.unique(groups[(y > 0) & pointer]):
+        rows = groups == g
+        if (y[rows] > 0)[~pointer[rows]].any():
+            out[rows & pointer] = 0
+    return out
 
 
 def labelled_rows(y: np.ndarray, abstract: np.ndarray | None, settings: Settings) -> np.ndarray | None:
@@ -335,6 +382,7 @@ def fit_items(prep: Prepared, items: list[str], settings: Settings) -> ItemModel
     oof = np.zeros((X.shape[0], len(items)))
     for j, item in enumerate(items):
         y = np.concatenate([d.items[item] for d in prep.docs]).astype(int)
+        y = training_labels(y, prep.pointer, prep.groups, settings)
         rows = labelled_rows(y, prep.abstract, settings)
         fit_X, fit_y = (X, y) if rows is None else (X[rows], y[rows])
         coef[j], intercept[j] = fit_key(fit_X, fit_y, item_settings)
@@ -627,6 +675,7 @@ def train(
                           "sentences " + ("left out of the training rows of items the corpus "
                                           "does not annotate in abstracts"
                                           if settings.abstract_unlabelled else "kept as labelled")),
+        "pointers": (POINTERS_NOTE if settings.pointers == "below_prose" else "kept as annotated"),
         "untrained_questions": "transfer model over question-relative features "
                                "(cue lexicon, question wording similarity, expected section)",
         "libraries": _versions(),
