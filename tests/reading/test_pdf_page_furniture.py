@@ -192,3 +192,21 @@ def test_text_a_clip_hides_is_not_read(tmp_path, shift) -> None:
     assert "Ravelston" not in document.text
     assert "Forest plot of the invented outcome" in document.text
     assert "Quillmoor" in document.text
+
+
+def test_a_foot_of_the_left_hand_pages_alone_is_a_running_foot(tmp_path) -> None:
+    # the Biochemical Society's journal sets its compilation line at the foot of the
+    # left-hand (even) pages only, and not on its last pages: on 4 of 12 pages, under the
+    # share of all pages that a running line needs, it had stayed in the body text
+    foot = "Invented Society journal compilation of the year 2030 and its members"
+    pages = []
+    for number in range(1, 13):
+        items = _prose_lines(90, 40)
+        if number % 2 == 0 and number <= 8:
+            items.append((72, 800, foot, 8))
+        pages.append(items)
+    path = tmp_path / "facing.pdf"
+    _pdf(path, pages)
+    document = read_document(path, use_cache=False)
+    assert "Invented Society" not in document.text
+    assert "Quillmoor" in document.text

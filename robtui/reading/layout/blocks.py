@@ -32,6 +32,10 @@ from robtui.reading.sections import (
 # (lines of one paragraph are about 0.2 apart in their glyph boxes; our own setting, no source).
 SET_APART = 0.6
 HEAD_ROWS = 4  # a running head or footer has at most this many rows
+# A running line set on facing pages of one side only repeats on this share of that side's
+# pages, and on at least FACING_MIN of them (our own rule, no source).
+FACING_SHARE = 0.6
+FACING_MIN = 3
 NUMBER_RUN = 5
 NUMBER_SHARE = 0.6
 _PAGE_NUMBER = re.compile(r"^(?:page\s*)?#+(?:\s*(?:of|/)\s*#+)?$", re.IGNORECASE)
@@ -111,7 +115,17 @@ def running_signatures(pages: list[PageLines]) -> set[str]:
                 seen[page.number] = tuple(int(n) for n in re.findall(r"\d+", line.text)[:8])
                 counts[signature] += 1
     needed = max(2, int(0.4 * len(pages) + 0.5))
-    return {sig for sig, n in counts.items() if n >= needed and _page_bound(numbers[sig])}
+    by_parity = Counter(page.number % 2 for page in pages)
+
+    def repeats(signature: str, n: int) -> bool:
+        if n >= needed:
+            return True
+        # facing pages: a head or foot of the left-hand (even) or right-hand (odd) pages alone
+        parities = {number % 2 for number in numbers[signature]}
+        return len(parities) == 1 and n >= max(
+            FACING_MIN, int(FACING_SHARE * by_parity[parities.pop()] + 0.5))
+
+    return {sig for sig, n in counts.items() if repeats(sig, n) and _page_bound(numbers[sig])}
 
 
 def _page_bound(numbers: dict[int, tuple[int, ...]]) -> bool:
