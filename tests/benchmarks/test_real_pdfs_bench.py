@@ -230,3 +230,12 @@ def test_other_layouts_only_without_a_more_folder_says_so(tmp_path):
 
     with pytest.raises(InputError, match="more"):
         main(["--folder", str(tmp_path), "--more", "only"])
+
+
+def test_a_sentence_that_differs_only_in_white_space_is_told_apart() -> None:
+    from robtui.benchmarks.real_pdfs import spaced_apart
+
+    reference = normalise("binding with Tyr369 . The dose was 40 mg/m2 ) daily and more")
+    sentences = ["binding with Tyr369.", "The dose was 40 mg/m2) daily",
+                 "The dose was 45 mg/m2) daily"]
+    assert spaced_apart(sentences, reference) == sentences[:2]
