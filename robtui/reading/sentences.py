@@ -71,6 +71,8 @@ ABBREVIATIONS: frozenset[str] = frozenset(
 _CANDIDATE = re.compile(r"[.?!](?:[\"'”’)\]]*)")
 # Reference numbers after a full stop: "before.12", "before.3,4", "before.18 19 20", "before.27–31".
 _CITATION_TAIL = re.compile(r"\d{1,3}(?:(?:[,\u2013\-]|\s(?=\d{1,3}\b))\d{1,3})*(?=\s)")
+# Bracketed reference numbers after a full stop: "age.[1,2]", "before.[3–5]", "low.[4, 7]".
+_BRACKET_CITATION = re.compile(r"\[\d{1,3}(?:\s?[,\u2013\-]\s?\d{1,3})*\]")
 # What may open a sentence: a capital or digit (after quotes or brackets), a footnote mark, or
 # a lower-case name with capitals or digits in it ("sPLA2 was", "hs-CRP rose", "mRNA levels").
 _OPENER = re.compile(r"[\"'“‘(\[]*(?:[A-Z0-9\u0391-\u03a9À-Þ*†‡§¶]|[a-z]{1,4}-?[A-Z0-9])")
@@ -114,6 +116,11 @@ def _boundary_after(text: str, match: re.Match[str], end: int) -> int | None:
         if tail is None:
             return None
         after = tail.end()
+    elif text[stop] == "." and after < end and text[after] == "[":
+        bracket = _BRACKET_CITATION.match(text, after, end)
+        if bracket is None:
+            return None
+        after = bracket.end()
     if after >= end:
         return None
     if not text[after].isspace():

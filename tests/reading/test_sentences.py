@@ -43,6 +43,10 @@ def sentences(text: str) -> list[str]:
             ["This was shown before.12", "The next step followed.3,4", "Then we stopped."],
         ),
         (
+            "It rose with age.[1,2] Because of this, we waited.[3–5] Then we stopped.",
+            ["It rose with age.[1,2]", "Because of this, we waited.[3–5]", "Then we stopped."],
+        ),
+        (
             "It is debated.6 7 In particular, doses vary.18 19 20 21 Whether it helps is unclear.",
             [
                 "It is debated.6 7",
