@@ -323,6 +323,18 @@ class Reading:
     def integrity(self) -> float:
         return self.intact / self.prose if self.prose else float("nan")
 
+    @property
+    def section_code(self) -> str:
+        """The key sections found, a letter each ("AIM.DB": no results)."""
+        return "".join(c if s in self.sections else "." for s, c in zip(KEY_SECTIONS, "AIMRDB"))
+
+
+def pooled_integrity(readings: Sequence[Reading]) -> tuple[int, int, int]:
+    """(intact, forgiven, prose) summed over ``readings``: strict integrity is intact / prose,
+    across interruptions (intact + forgiven) / prose."""
+    return (sum(r.intact for r in readings), sum(len(r.interrupted) for r in readings),
+            sum(r.prose for r in readings))
+
 
 class PageSeconds:
     """Seconds per page as the PDF reader reports them (a page may be reported twice)."""
@@ -462,18 +474,15 @@ def report_other_layouts(readings: Sequence[Reading], folder: Path) -> dict:
     per_article = {}
     for r in readings:
         forgiving = (r.intact + len(r.interrupted)) / r.prose if r.prose else None
-        short = "".join(c if s in r.sections else "." for s, c in zip(KEY_SECTIONS, "AIMRDB"))
         per_article[r.article] = {"pages": r.pages, "prose": r.prose, "intact": r.intact,
                                   "integrity": r.intact / r.prose if r.prose else None,
                                   "integrity_across_interruptions": forgiving,
                                   "sections": r.sections, "read_s": r.read_s,
                                   "spacing_only": len(r.spaced)}
         print(f"  {r.article[:32]:<32} {r.pages:>5} {r.prose:>6}   {_fmt(per_article[r.article]['integrity'])}"
-              f"     {_fmt(forgiving)}   {short:<6} ({len(r.sections)}/{len(KEY_SECTIONS)})"
+              f"     {_fmt(forgiving)}   {r.section_code:<6} ({len(r.sections)}/{len(KEY_SECTIONS)})"
               f"  {len(r.spaced):>6}")
-    prose = sum(r.prose for r in readings)
-    intact = sum(r.intact for r in readings)
-    forgiven = sum(len(r.interrupted) for r in readings)
+    intact, forgiven, prose = pooled_integrity(readings)
     with_both = sum({"methods", "results"} <= set(r.sections) for r in readings)
     print(f"  pooled: strict {intact}/{prose} = {_fmt(intact / prose if prose else None)}, "
           f"across interruptions {intact + forgiven}/{prose} = "
@@ -696,7 +705,6 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
         per_page = r.read_s / max(r.pages, 1)
         ref = r.pdftotext_s / max(r.pages, 1) if r.pdftotext_s else None
         ratio = r.read_s / r.pdftotext_s if r.pdftotext_s else None
-        short = "".join(c if s in r.sections else "." for s, c in zip(KEY_SECTIONS, "AIMRDB"))
         per_article[r.article] = {"answerable": len(mine),
                                   "recall": [recall(ours, k) for k in (1, 3, 5)],
                                   "baseline": [recall(theirs, k) for k in (1, 3, 5)],
@@ -708,18 +716,16 @@ def report(readings: Sequence[Reading], pairs: Sequence[Pair]) -> dict:
                                   "slowest_page_s": max(r.page_s, default=None)}
         print(f"  {r.article[:16]:<16} {len(mine):>3} {_recalls(ours)} | "
               f"{_fmt(recall(theirs, 1))} {_fmt(recall(theirs, 3))} |   {_fmt(r.integrity)}   "
-              f"{short:<6} ({len(r.sections)}/{len(KEY_SECTIONS)})  {r.pages:>4}  {per_page:6.3f}"
+              f"{r.section_code:<6} ({len(r.sections)}/{len(KEY_SECTIONS)})  {r.pages:>4}  {per_page:6.3f}"
               f"  {'-' if ref is None else f'{ref:.4f}':>8} {'-' if ratio is None else f'{ratio:.0f}x':>5}"
               f" {'-' if r.suggest_s is None else f'{r.suggest_s:.2f}':>7}"
               f" {'' if r.suggest_cpu_s is None else f'({r.suggest_cpu_s:.2f})'}")
-    prose = sum(r.prose for r in readings)
-    intact = sum(r.intact for r in readings)
+    intact, forgiven, prose = pooled_integrity(readings)
     print("  sections: A abstract, I introduction, M methods, R results, D discussion, "
           "B references (bibliography); s/page: robtui's reader in process, no cache")
     with_both = sum({"methods", "results"} <= set(r.sections) for r in readings)
     print(f"  prose-sentence integrity, pooled: {intact}/{prose} = {_fmt(intact / prose if prose else None)}"
           f"; articles with methods and results found: {with_both}/{len(readings)}")
-    forgiven = sum(len(r.interrupted) for r in readings)
     print(f"  ... counting as intact the {forgiven} that pdftotext holds in at most "
           f"{INTERRUPTION_PIECES} pieces parted only by text robtui keeps out of its body "
           "(page furniture, floats): "

@@ -271,21 +271,17 @@ def _objects(
     return rules, shapes, images, forms
 
 
-Matrix = tuple[float, float, float, float, float, float]  # a b c d e f, as PDF writes it
-IDENTITY: Matrix = (1.0, 0.0, 0.0, 1.0, 0.0, 0.0)
+def _intersect(a: Box | None, b: Box | None) -> Box | None:
+    """The overlap of two (x0, y0, x1, y1) boxes; either alone when the other is None."""
+    if a is None or b is None:
+        return a if b is None else b
+    return (max(a[0], b[0]), max(a[1], b[1]), min(a[2], b[2]), min(a[3], b[3]))
 
 
-def _then(inner: Matrix, outer: Matrix) -> Matrix:
-    """The matrix that applies ``inner`` and then ``outer``."""
-    a, b, c, d, e, f = inner
-    A, B, C, D, E, F = outer
-    return (a * A + b * C, a * B + b * D, c * A + d * C, c * B + d * D,
-            e * A + f * C + E, e * B + f * D + F)
-
-
-def _clip_box(raw, obj, matrix: Matrix) -> tuple[float, float, float, float] | None:
+def _clip_box(raw, obj, matrix) -> Box | None:
     """The bounds (x0, y0, x1, y1 in page space, y up) of the intersection of an object's clip
-    paths' bounds, its own space mapped by ``matrix``; None when it has no clip."""
+    paths' bounds, its own space mapped by ``matrix`` (a pypdfium2 PdfMatrix); None when it
+    has no clip."""
     clip = raw.FPDFPageObj_GetClipPath(obj)
     if not clip:
         return None
@@ -296,15 +292,10 @@ def _clip_box(raw, obj, matrix: Matrix) -> tuple[float, float, float, float] | N
         for k in range(max(raw.FPDFClipPath_CountPathSegments(clip, p), 0)):
             segment = raw.FPDFClipPath_GetPathSegment(clip, p, k)
             if segment and raw.FPDFPathSegment_GetPoint(segment, x, y):
-                points.append((x.value, y.value))
-        if not points:
-            continue
-        a, b, c, d, e, f = matrix
-        xs = [a * px + c * py + e for px, py in points]
-        ys = [b * px + d * py + f for px, py in points]
-        here = (min(xs), min(ys), max(xs), max(ys))
-        box = here if box is None else (max(box[0], here[0]), max(box[1], here[1]),
-                                        min(box[2], here[2]), min(box[3], here[3]))
+                points.append(matrix.on_point(x.value, y.value))
+        if points:
+            xs, ys = [px for px, _ in points], [py for _, py in points]
+            box = _intersect(box, (min(xs), min(ys), max(xs), max(ys)))
     return box
 
 
@@ -315,22 +306,17 @@ def _clip_frames(forms: list, left: float, top: float) -> dict[int, Box]:
     show one figure keeps the rest of its text, hidden by the clip: PDFium's text layer holds
     it all the same. Top-level text is not searched (it is seldom clipped away, and asking
     for every object's clip costs time)."""
-    from pypdfium2 import raw
+    from pypdfium2 import PdfMatrix, raw
 
     frames: dict[int, Box] = {}
     budget = [MAX_FORM_OBJECTS]
     m = raw.FS_MATRIX()
 
-    def walk(form, outer: Matrix, around) -> None:
-        matrix = IDENTITY
-        if raw.FPDFPageObj_GetMatrix(form, m):
-            matrix = (m.a, m.b, m.c, m.d, m.e, m.f)
-        own = _clip_box(raw, form, outer)
-        if own is not None and around is not None:
-            own = (max(own[0], around[0]), max(own[1], around[1]),
-                   min(own[2], around[2]), min(own[3], around[3]))
-        around = own if own is not None else around
-        inner = _then(matrix, outer)
+    def walk(form, outer: PdfMatrix, around: Box | None) -> None:
+        matrix = PdfMatrix.from_raw(m) if raw.FPDFPageObj_GetMatrix(form, m) else PdfMatrix()
+        # a form's clip is in the space around it; what it draws is in its own matrix's space
+        around = _intersect(_clip_box(raw, form, outer), around)
+        inner = matrix.multiply(outer)
         for i in range(max(raw.FPDFFormObj_CountObjects(form), 0)):
             budget[0] -= 1
             if budget[0] < 0:
@@ -340,15 +326,11 @@ def _clip_frames(forms: list, left: float, top: float) -> dict[int, Box]:
             if kind == raw.FPDF_PAGEOBJ_FORM:
                 walk(obj, inner, around)
             elif kind == raw.FPDF_PAGEOBJ_TEXT:
-                box = _clip_box(raw, obj, inner)
-                if box is not None and around is not None:
-                    box = (max(box[0], around[0]), max(box[1], around[1]),
-                           min(box[2], around[2]), min(box[3], around[3]))
-                box = box if box is not None else around
+                box = _intersect(_clip_box(raw, obj, inner), around)
                 if box is not None:
                     frames[ctypes.cast(obj, ctypes.c_void_p).value] = (
                         box[0] - left, top - box[3], box[2] - left, top - box[1])
 
     for form in forms:
-        walk(form, IDENTITY, None)
+        walk(form, PdfMatrix(), None)
     return frames
