@@ -5,7 +5,9 @@ line when its middle lies in the line's band (from 0.8 of the line's font size a
 baseline to 0.3 below), so superscripts, subscripts and ligature, quote or dash glyphs drawn
 from a second font a few points higher stay in their words. Chains on one baseline are then
 merged (PDFs that write a line in several pieces). Words break at spaces and at gaps wider
-than a fraction of the font size. Spacing accents drawn over a letter are composed with it;
+than a fraction of the font size. Spacing accents drawn over a letter are composed with it,
+also one drawn after its line's text, back over its letter (the text after it goes on with
+that line);
 soft hyphens are kept as U+00AD for the text builder to join on. Band and gap shares are
 common practice for PDF text extraction, our own settings, no source.
 """
@@ -167,12 +169,18 @@ def rows_of(glyphs: list[Glyph]) -> list[Row]:
         if g.text.isspace() and current is not None:
             current.glyphs.append(g)
             continue
-        if (
+        continues = (
             current is not None
             and last is not None
             and current.holds(g)
             and g.x0 >= last.x0 - 0.6 * current.size
-        ):
+        )
+        if not continues and _is_mark(g.text) and current is not None:
+            # an accent drawn after its line, back over its letter ("A" + ring): a chain of
+            # its own, and the text after it goes on with the line it interrupted
+            chains.append(Row([g], g.baseline, g.size))
+            continue
+        if continues:
             current.glyphs.append(g)
             if g.size > current.size * 1.15 and g.baseline >= current.baseline - 0.2 * g.size:
                 current.size, current.baseline = g.size, g.baseline
@@ -195,7 +203,8 @@ def _merge_chains(chains: list[Row]) -> list[Row]:
         for k in (key - 1, key, key + 1):
             for row in buckets.get(k, ()):
                 close = abs(row.baseline - chain.baseline) <= max(1.0, 0.2 * row.size)
-                small = chain.size < 0.9 * row.size and all(row.holds(g) for g in chain.glyphs)
+                small = ((chain.size < 0.9 * row.size or all(_is_mark(g.text) for g in chain.glyphs))
+                         and all(row.holds(g) for g in chain.glyphs))
                 if (close or small) and not _overlaps(row, chain):
                     home = row
                     break
@@ -305,15 +314,16 @@ def _joined(a: Word, b: Word) -> Word:
     )
 
 
+def _is_mark(text: str) -> bool:
+    """A spacing accent or a combining mark, alone."""
+    return len(text) == 1 and (text in _SPACING_MARKS or unicodedata.combining(text) > 0)
+
+
 def _compose_marks(glyphs: list[Glyph]) -> list[Glyph]:
     """Accents drawn over a neighbouring letter become combining marks after that letter."""
     if not _MARK.search("".join(g.text for g in glyphs)):
         return glyphs
-    marks = [
-        i
-        for i, g in enumerate(glyphs)
-        if g.text in _SPACING_MARKS or unicodedata.combining(g.text[:1] or " ")
-    ]
+    marks = [i for i, g in enumerate(glyphs) if _is_mark(g.text)]
     out = list(glyphs)
     drop: set[int] = set()
     for i in marks:

@@ -1,0 +1,99 @@
+"""Glyphs a typesetter draws out of the line's order: accents set back over their letter,
+marks stacked into one sign, symbol fonts whose boxes reach into the next line. Small invented
+PDFs are drawn with reportlab in its bundled Vera font (it holds the marks); the real-PDF tests
+read the shared articles (../shared/real-pdfs) and skip with a reason when they are absent.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from robtui.reading.reader import read_document
+
+WIDTH, HEIGHT = 595.0, 842.0
+LEFT, RIGHT = 50.0, 315.0
+SIZE = 9.0
+LEADING = 11.5
+FILLER = [
+    "Walkers in the invented Heron trial kept a diary of",
+    "their walks on most days of the week and handed it",
+    "to the study nurse at each of the planned visits to",
+    "the clinic, where the nurse read it with them again.",
+]
+CLINSCI = "more/clinsci2014_ace_ndomain_inhibitor_design.pdf"
+
+
+def _font() -> str:
+    """reportlab's bundled Vera, registered once (a TrueType font holding the marks)."""
+    import reportlab
+    from reportlab.pdfbase import pdfmetrics
+    from reportlab.pdfbase.ttfonts import TTFont
+
+    if "HeronVera" not in pdfmetrics.getRegisteredFontNames():
+        pdfmetrics.registerFont(TTFont("HeronVera", str(Path(reportlab.__file__).parent / "fonts"
+                                                         / "Vera.ttf")))
+    return "HeronVera"
+
+
+def _canvas(path: Path):
+    from reportlab.pdfgen.canvas import Canvas
+
+    canvas = Canvas(str(path), pagesize=(WIDTH, HEIGHT))
+    canvas.setFont(_font(), SIZE)
+    return canvas
+
+
+def _draw(canvas, x: float, top: float, text: str) -> float:
+    """Draw ``text`` at ``x`` on the baseline ``top`` points from the page's top; its right end."""
+    canvas.drawString(x, HEIGHT - top, text)
+    return x + canvas.stringWidth(text, _font(), SIZE)
+
+
+def _filler(canvas, x: float, top: float, lines: list[str]) -> float:
+    for line in lines:
+        _draw(canvas, x, top, line)
+        top += LEADING
+    return top
+
+
+def _texts(canvas, path: Path) -> list[str]:
+    canvas.showPage()
+    canvas.save()
+    return [s.text for s in read_document(path, use_cache=False).sentences]
+
+
+def test_an_accent_drawn_after_its_line_over_a_letter_is_composed_in_place(tmp_path) -> None:
+    # "2.2 Å": the A set at a line's start, the ring drawn back over it after the line's first
+    # half, 1.4 pt higher, and the line going on after it (how one publisher sets the angstrom)
+    path = tmp_path / "ring.pdf"
+    c = _canvas(path)
+    top = _filler(c, LEFT, 100, FILLER)
+    _draw(c, LEFT, top, "The invented walking sensor was set at 2.2")
+    top += LEADING
+    end = _draw(c, LEFT, top, "A above the ankle of")
+    ring_x = LEFT + (c.stringWidth("A", _font(), SIZE) - c.stringWidth("\u02da", _font(), SIZE)) / 2
+    _draw(c, ring_x, top - 1.4, "\u02da")
+    _draw(c, end + c.stringWidth(" ", _font(), SIZE), top, "each walker in the trial.")
+    _filler(c, LEFT, top + LEADING, FILLER)
+    _filler(c, RIGHT, 100, FILLER * 3)
+    texts = _texts(c, path)
+    assert ("The invented walking sensor was set at 2.2 \u00c5 above the ankle of each walker "
+            "in the trial.") in texts
+
+
+def _real(name: str) -> list:
+    """The sentences of a shared real PDF (ROBTUI_REAL_PDFS or ../shared/real-pdfs), or a skip."""
+    from robtui.benchmarks.real_pdfs import default_folder
+
+    folder = default_folder()
+    if folder is None or not (folder / name).exists():
+        pytest.skip(f"shared real PDF {name} (../shared/real-pdfs) absent")
+    return read_document(folder / name, use_cache=False).sentences
+
+
+def test_real_angstroms_set_as_a_ring_over_an_a_are_composed() -> None:
+    body = [s.text for s in _real(CLINSCI) if s.block == "body"]
+    assert not any("\u02da" in text for text in body)  # no ring standing apart in the prose
+    assert sum("\u00c5" in text for text in body) >= 3
