@@ -97,3 +97,56 @@ def test_real_angstroms_set_as_a_ring_over_an_a_are_composed() -> None:
     body = [s.text for s in _real(CLINSCI) if s.block == "body"]
     assert not any("\u02da" in text for text in body)  # no ring standing apart in the prose
     assert sum("\u00c5" in text for text in body) >= 3
+
+
+def _deep_font(folder: Path) -> str:
+    """Vera with the declared descent of a math font (nearly an em below the baseline): PDFium's
+    loose boxes of its glyphs reach into the next line."""
+    font_tools = pytest.importorskip("fontTools.ttLib")
+    import reportlab
+    from reportlab.pdfbase import pdfmetrics
+    from reportlab.pdfbase.ttfonts import TTFont
+
+    if "HeronDeep" not in pdfmetrics.getRegisteredFontNames():
+        font = font_tools.TTFont(str(Path(reportlab.__file__).parent / "fonts" / "Vera.ttf"))
+        deep = int(0.95 * font["head"].unitsPerEm)
+        font["hhea"].descent = font["OS/2"].sTypoDescender = font["head"].yMin = -deep
+        font["OS/2"].usWinDescent = deep
+        for record in font["name"].names:  # a name of its own: not taken for Vera itself
+            if record.nameID in (1, 3, 4, 6):
+                record.string = "HeronDeep"
+        font.save(str(folder / "deep.ttf"))
+        pdfmetrics.registerFont(TTFont("HeronDeep", str(folder / "deep.ttf")))
+    return "HeronDeep"
+
+
+def test_signs_from_a_font_with_a_deep_descent_keep_the_lines_in_order(tmp_path) -> None:
+    # "=" and a "±" drawn as "+" over "-" (the "+" 0.9 pt up, the "-" 3 pt down) in a math font
+    # whose declared descent is nearly an em, on two lines of a column of text
+    path = tmp_path / "signs.pdf"
+    deep = _deep_font(tmp_path)
+    c = _canvas(path)
+    top = _filler(c, LEFT, 100, FILLER)
+    lines = [("The invented walkers covered a mean of", "4.5", "0.3 km a day (walking group)"),
+             ("and", "3.1", "0.4 km a day in the control group in"),
+             ("the first of the weeks, and", "4.8", "0.2 km in the last.")]
+    for head, mean, rest in lines:
+        x = _draw(c, LEFT, top, head + " ")
+        c.setFont(deep, SIZE)
+        c.drawString(x, HEIGHT - top, "=")
+        x += c.stringWidth("= ", deep, SIZE)
+        c.setFont(_font(), SIZE)
+        x = _draw(c, x, top, mean + " ")
+        c.setFont(deep, SIZE)
+        c.drawString(x, HEIGHT - top + 0.9, "+")
+        c.drawString(x, HEIGHT - top - 3.0, "\u2212")
+        x += c.stringWidth("+ ", deep, SIZE)
+        c.setFont(_font(), SIZE)
+        _draw(c, x, top, rest)
+        top += LEADING
+    _filler(c, LEFT, top, FILLER)
+    _filler(c, RIGHT, 100, FILLER * 3)
+    texts = _texts(c, path)
+    assert ("The invented walkers covered a mean of = 4.5 \u00b1 0.3 km a day (walking group) and "
+            "= 3.1 \u00b1 0.4 km a day in the control group in the first of the weeks, and = 4.8 "
+            "\u00b1 0.2 km in the last.") in texts

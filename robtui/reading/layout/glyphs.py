@@ -23,6 +23,11 @@ SHAPE_MIN = 3.0  # a path smaller than this both ways (a dot, a glyph-like mark)
 MAX_SHAPES = 3000  # a page with more drawn paths is vector art: figures are not searched
 MAX_FORM_OBJECTS = 20000  # objects inside forms searched for clipped text, per page
 CLIP_SLACK = 1.0  # points: a glyph whose centre is this near its clip still shows
+# PDFium's loose box spans the font's declared ascent and descent; symbol and math fonts declare
+# a descent of nearly a whole em, so a "=" or a stacked "-" would reach into the next line. A
+# box taller than TALL_BOX of the size (and under SANE_BOX: a larger one means the size itself is
+# wrong) ends DESCENT_MAX of the size below its baseline, as a text font's does.
+TALL_BOX, SANE_BOX, DESCENT_MAX = 1.3, 3.0, 0.3
 Box = tuple[float, float, float, float]
 _SUBSET = re.compile(r"^[A-Z]{6}\+")  # the subset tag of an embedded font
 
@@ -193,6 +198,8 @@ def _chars(calls, tp: int, left: float, top: float,
             x0, x1 = rect.left - left, rect.right - left
             gtop, gbottom = top - rect.top, top - rect.bottom
             baseline = top - oy.value
+            if TALL_BOX * size < gbottom - gtop < SANE_BOX * size:
+                gbottom = min(gbottom, baseline + DESCENT_MAX * size)
         else:  # kept in page coordinates; _turn maps them into the text's own frame
             x0, x1 = min(rect.left, rect.right) - left, max(rect.left, rect.right) - left
             gtop, gbottom = top - max(rect.top, rect.bottom), top - min(rect.top, rect.bottom)

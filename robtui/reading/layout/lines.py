@@ -7,7 +7,7 @@ from a second font a few points higher stay in their words. Chains on one baseli
 merged (PDFs that write a line in several pieces). Words break at spaces and at gaps wider
 than a fraction of the font size. Spacing accents drawn over a letter are composed with it,
 also one drawn after its line's text, back over its letter (the text after it goes on with
-that line);
+that line); a sign drawn as two glyphs stacked over one place ("+" over "-") is its one character;
 soft hyphens are kept as U+00AD for the text builder to join on. Band and gap shares are
 common practice for PDF text extraction, our own settings, no source.
 """
@@ -57,6 +57,10 @@ _SPACING_MARKS = {
     "\u02d9": "\u0307",  # dot above
     "\u02dd": "\u030b",  # double acute
 }
+# Signs some PDFs draw as two glyphs stacked over one place: (upper, lower) -> the sign.
+_STACKED_SIGNS = {("+", "\u2212"): "\u00b1", ("+", "-"): "\u00b1", ("+", "_"): "\u00b1",
+                  ("\u2212", "+"): "\u2213", ("-", "+"): "\u2213"}
+_STACKED_PARTS = frozenset("+")
 _MARK = re.compile("[\u0300-\u036f" + "".join(_SPACING_MARKS) .replace("^", "\\^") + "]")
 BOLD_MARKS = ("bold", "black", "heavy", "semibold", "demi", "medium", "extrabold")
 _BOLD_STYLES = ("bd", "b", "sb", "db", "med", "md", "blk", "hv", "bdit", "bi", "mdit", "bdcn")
@@ -235,7 +239,7 @@ _X0 = attrgetter("x0")
 def words_of(row: Row) -> list[Word]:
     """The words of a row, left to right."""
     glyphs = sorted(row.glyphs, key=_X0)
-    glyphs = _compose_marks(glyphs)
+    glyphs = _compose_marks(_stacked_signs(glyphs))
     words: list[Word] = []
     current: list[Glyph] = []
     raised, small = row.baseline - 0.2 * row.size, 0.85 * row.size
@@ -312,6 +316,27 @@ def _joined(a: Word, b: Word) -> Word:
         (a.box[0], min(a.box[1], b.box[1]), b.box[2], max(a.box[3], b.box[3])),
         a.bold, a.italic, a.size, a.font,
     )
+
+
+def _stacked_signs(glyphs: list[Glyph]) -> list[Glyph]:
+    """A sign drawn as two glyphs stacked over one place ("+" over "-") becomes its one
+    character ("±"), spanning both. ``glyphs`` sorted by x0."""
+    if not any(g.text in _STACKED_PARTS for g in glyphs):
+        return glyphs
+    out: list[Glyph] = []
+    for g in glyphs:
+        prev = out[-1] if out else None
+        if (prev is not None and abs(prev.x0 - g.x0) <= 0.5 and abs(prev.x1 - g.x1) <= 0.5
+                and abs(prev.baseline - g.baseline) > 0.1 * g.size):
+            upper, lower = (prev, g) if prev.baseline < g.baseline else (g, prev)
+            sign = _STACKED_SIGNS.get((upper.text, lower.text))
+            if sign is not None:
+                out[-1] = Glyph(sign, upper.x0, upper.x1, upper.top, lower.bottom, lower.baseline,
+                                upper.size, upper.font, upper.angle,
+                                prev.space_before or g.space_before)
+                continue
+        out.append(g)
+    return out
 
 
 def _is_mark(text: str) -> bool:
