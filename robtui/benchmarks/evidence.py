@@ -155,7 +155,6 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         generic_block,
         layout_of,
         sigmoid,
-        suggestible,
     )
     from robtui.evidence.training.corpus import load_corpus, load_mapping
     from robtui.evidence.training.corpus_docs import labelled_documents
@@ -221,9 +220,9 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                 doc = docs[i]
                 scores, base, logits = _scores_for(ranker, doc, keys, texts)
                 # every column ranks the same candidates as `suggest`: no bare topic headings
-                keep = suggestible(doc.document.sentences)
                 layout = layout_of(doc.document.sentences)
                 for key in keys:
+                    keep = ranker.suggestible(doc.document.sentences, key)
                     labels, present = doc.labels[key], doc.present[key]
                     by_score = candidate_order(logits[key], keep, *layout, spread=False)
                     tallies[f"model {route}"].add(key, scores[key], labels, present, by_score)

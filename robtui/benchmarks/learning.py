@@ -100,7 +100,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     the "shipped" model (trained on other articles); the documents' labels are the simulated
     reviewer's notion of evidence (see with_practice).
     """
-    from robtui.evidence.ranker import candidate_order, layout_of, suggestible
+    from robtui.evidence.ranker import candidate_order, layout_of
     from robtui.evidence.review_model import (
         PASSED_OVER,
         PASSED_OVER_WEIGHT,
@@ -116,13 +116,14 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     def texts_of(doc):
         return [s.text for s in doc.document.sentences]
 
-    layouts: dict[str, tuple] = {}  # per article: suggestible sentences, sections, headings
+    layouts: dict[tuple[str, str], tuple] = {}  # per article and key: suggestible, layout
 
-    def shown(z, doc) -> np.ndarray:  # the order the workbench shows
-        if doc.article_id not in layouts:
+    def shown(z, doc, key) -> np.ndarray:  # the order the workbench shows
+        if (doc.article_id, key) not in layouts:
             sentences = doc.document.sentences
-            layouts[doc.article_id] = (suggestible(sentences), *layout_of(sentences))
-        return candidate_order(z, *layouts[doc.article_id], spread=True)
+            layouts[doc.article_id, key] = (ranker.suggestible(sentences, key),
+                                            *layout_of(sentences))
+        return candidate_order(z, *layouts[doc.article_id, key], spread=True)
 
     evaluated = [(doc, shipped_logits(doc), texts_of(doc)) for doc in eval_docs]
 
@@ -133,10 +134,10 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
             for key in keys:
                 if doc.present[key]:
                     z = z_of[key]
-                    p[key] = first_hit_rank(z, doc.labels[key], shown(z, doc))
+                    p[key] = first_hit_rank(z, doc.labels[key], shown(z, doc, key))
                     if model:
                         z = z + model.logit(key, sentences)
-                    b[key] = first_hit_rank(z, doc.labels[key], shown(z, doc))
+                    b[key] = first_hit_rank(z, doc.labels[key], shown(z, doc, key))
             plain.append(p)
             blended.append(b)
         return plain, blended
@@ -151,7 +152,7 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
         for key in keys:
             base = shipped[key]
             z = base + model.logit(key, sentences) if model else base
-            order = shown(z, doc)[:5]
+            order = shown(z, doc, key)[:5]
             dismissed = set()
             for i in order:
                 if doc.labels[key][i]:

@@ -10,12 +10,13 @@ from __future__ import annotations
 
 import re
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import numpy as np
 
 from robtui.errors import ModelFileError
+from robtui.evidence.sentence_kinds import NOT_EVIDENCE
 
 CUES_PATH = Path(__file__).with_name("cues.toml")
 TOKEN = re.compile(r"[a-z0-9]+")
@@ -29,6 +30,9 @@ class CueEntry:
     cues: tuple[str, ...]
     sections: tuple[str, ...]
     same_as: str | None = None
+    # kinds of sentence never suggested for the question (sentence_kinds.NOT_EVIDENCE names): the
+    # lexicon's `never_evidence` for every question, then the entry's own `never`
+    never: tuple[str, ...] = ()
 
 
 def model_key(question_id: str, effect: str = "assignment") -> str:
@@ -43,6 +47,7 @@ def load_cues(path: Path | None = None) -> dict[str, CueEntry]:
     path = path or CUES_PATH
     try:
         raw = tomllib.loads(path.read_text(encoding="utf-8"))
+        everywhere = tuple(str(k) for k in raw.get("never_evidence", ()))
         entries = {}
         for key, body in raw["questions"].items():
             entries[key] = CueEntry(
@@ -50,13 +55,20 @@ def load_cues(path: Path | None = None) -> dict[str, CueEntry]:
                 cues=tuple(str(c) for c in body.get("cues", ())),
                 sections=tuple(str(s) for s in body.get("sections", ())),
                 same_as=body.get("same_as"),
+                never=tuple(str(k) for k in body.get("never", ())),
             )
     except (OSError, tomllib.TOMLDecodeError, KeyError, TypeError, AttributeError) as error:
         raise ModelFileError(
             f"{path}: the cue lexicon cannot be read ({error}); restore it from the robtui "
             "package (reinstall robtui or `git checkout` the file)"
         ) from error
-    # An entry that only says same_as borrows the other entry's cues and sections.
+    unknown = sorted({k for k in everywhere if k not in NOT_EVIDENCE}
+                     | {k for e in entries.values() for k in e.never if k not in NOT_EVIDENCE})
+    if unknown:
+        raise ModelFileError(
+            f"{path}: unknown kind(s) of sentence in `never`/`never_evidence`: "
+            f"{', '.join(unknown)}; known: {', '.join(NOT_EVIDENCE)}")
+    # An entry that only says same_as borrows the other entry's cues, sections and kinds.
     for key, entry in list(entries.items()):
         if entry.same_as and entry.same_as in entries:
             base = entries[entry.same_as]
@@ -65,8 +77,10 @@ def load_cues(path: Path | None = None) -> dict[str, CueEntry]:
                 entry.cues or base.cues,
                 entry.sections or base.sections,
                 entry.same_as,
+                entry.never or base.never,
             )
-    return entries
+    return {key: replace(entry, never=tuple(dict.fromkeys(everywhere + entry.never)))
+            for key, entry in entries.items()}
 
 
 def tokens(text: str) -> list[str]:

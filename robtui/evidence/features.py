@@ -23,6 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from robtui.evidence.cues import CueEntry, CueMatcher, tokens
+from robtui.evidence.sentence_kinds import DIGIT
 from robtui.evidence.tfidf import SparseRows, TfidfTable
 from robtui.reading.document import SECTION_LABELS, Sentence, top_section
 
@@ -85,7 +86,6 @@ class DocumentFeatures:
         return self.shared.shape[0]
 
 
-DIGIT = re.compile(r"\d")
 # A table or figure title ("Table 2 Baseline characteristics", "Figure 1: Trial profile"), not
 # a sentence about one ("Table 2 shows ...", "Figure 1 presents ..."): a verb of showing right
 # after the number makes it prose (common English usage, no source). The reader does not always
@@ -96,43 +96,6 @@ CAPTION_TITLE = re.compile(
     r"illustrates?|reports?|depicts?|provides?|contains?|compares?|details?|outlines?|"
     r"includes?|indicates?|demonstrates?|and|or|to|in|of|for|was|were|is|are)\b)",
     re.IGNORECASE)
-
-# The reference a figure's title or a sentence pointing to it opens with ("Figure 1", "Fig. 2:").
-FIGURE_REFERENCE = re.compile(
-    r"^\s*(?:supplementary\s+|additional\s+)?(?:figure|fig\.?)\s*[a-z]?\d+[a-z]?[.:]?",
-    re.IGNORECASE)
-
-
-def is_pointer(text: str) -> bool:
-    """A sentence that only points to a figure: it opens with the reference and carries no
-    number of its own ("Figure 1 Trial profile", "Figure 1 shows the trial profile."), where
-    "Figure 1 shows the trial profile; 529 patients entered" reports numbers itself. Tables are
-    left out on purpose: a table's rows are text a reviewer can quote, and its title names
-    that evidence (training, Settings.pointers)."""
-    reference = FIGURE_REFERENCE.match(text)
-    return reference is not None and not DIGIT.search(text, reference.end())
-
-
-# Statistical programs as methods sections name them (from memory, no source); the acronyms
-# are matched in capitals only.
-SOFTWARE = re.compile(
-    r"\b(?:SPSS|SAS|Stata|STATA|GraphPad|Prism|Minitab|MedCalc|Epi ?Info|JMP|Statistica"
-    r"|R Foundation|R Core Team|R version|(?i:statistical software|software package"
-    r"|statistical package for))\b")
-# What a sentence naming the program may say besides it and still say nothing of the analysis.
-_SOFTWARE_FILLER = frozenset(
-    ["a", "all", "an", "analyses", "analysed", "analysis", "analyzed", "and", "by", "carried", "conducted", "data", "did", "done", "for", "in", "inc", "institute", "ibm", "is", "of", "on", "out", "package", "performed", "program", "programme", "results", "science", "sciences", "social", "software", "statistical", "statistics", "the", "undertaken", "used", "using", "version", "was", "we", "were", "windows", "with"])
-
-
-def is_software_statement(text: str) -> bool:
-    """A sentence that only names the statistical program ("Analyses were done with Stata
-    10.1.", "Statistical analysis was performed using SPSS (version 16)"): no word left once
-    the program, what is in brackets and the filler of such sentences are set aside. Training
-    reads it as a pointer (Settings.pointers)."""
-    if not SOFTWARE.search(text):
-        return False
-    bare = SOFTWARE.sub(" ", re.sub(r"\([^)]*\)", " ", text))
-    return all(w in _SOFTWARE_FILLER or len(w) < 2 for w in re.findall(r"[a-z]+", bare.lower()))
 
 
 def lexical_text(text: str) -> str:

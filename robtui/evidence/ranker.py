@@ -32,6 +32,7 @@ from robtui.evidence.features import (
     stacked_features,
 )
 from robtui.evidence.model import RankerWeights, load_weights
+from robtui.evidence.sentence_kinds import NOT_EVIDENCE
 from robtui.reading.document import CELL_BLOCKS, Document, top_section
 
 
@@ -114,8 +115,9 @@ def _fragment(text: str) -> bool:
     return first.isalpha() and first.islower() and words < TAIL_MIN_WORDS
 
 
-def suggestible(sentences: Sequence) -> np.ndarray:
-    """Per sentence, whether it may be suggested. Never suggested:
+def suggestible(sentences: Sequence, never: Sequence[str] = ()) -> np.ndarray:
+    """Per sentence, whether it may be suggested (for a question whose cue entry's ``never``
+    lists kinds of sentence, sentence_kinds.NOT_EVIDENCE). Never suggested:
     - a bare topic heading (:func:`_topic_heading`): it tells where evidence may be but holds
       none a reviewer could quote; the sentences under it are suggested. (In the corpus no such
       heading carries a mapped item; headings that do are titles of tables and figures or hold
@@ -125,8 +127,11 @@ def suggestible(sentences: Sequence) -> np.ndarray:
     - table cells (block "table") and a figure's text (block "figure": flowchart boxes, chart
       labels): the reader keeps them searchable and quotable, but a row of a table or a box of
       a flowchart is not the sentence that reports what it shows;
-    - fragments (:func:`_fragment`).
+    - fragments (:func:`_fragment`);
+    - a sentence of a kind in ``never`` (a figure pointer, a sentence that only names the
+      statistical program, an analyst's blinding for the questions on awareness).
     If a document has nothing else, every sentence stays suggestible."""
+    kinds = [NOT_EVIDENCE[name] for name in never]
     keep = np.ones(len(sentences), dtype=bool)
     for i, s in enumerate(sentences):
         if s.block == "heading":
@@ -134,6 +139,8 @@ def suggestible(sentences: Sequence) -> np.ndarray:
         else:
             keep[i] = not (s.block in CELL_BLOCKS
                            or top_section(s.section) == "references" or _fragment(s.text))
+        if keep[i] and kinds:
+            keep[i] = not any(kind(s.text) for kind in kinds)
     return keep if keep.any() else np.ones(len(sentences), dtype=bool)
 
 
@@ -238,6 +245,15 @@ class Ranker:
         if self.adjustment is None or not self.adjustment.applies_to(origin):
             return None
         return self._adjustment_key(key, self.adjustment.keys)
+
+    def never(self, key: str) -> tuple[str, ...]:
+        """The kinds of sentence never suggested for ``key`` (its cue entry's ``never``)."""
+        entry = self.cues.get(key)
+        return entry.never if entry is not None else ()
+
+    def suggestible(self, sentences: Sequence, key: str) -> np.ndarray:
+        """:func:`suggestible` for the question of ``key``."""
+        return suggestible(sentences, self.never(key))
 
     def is_trained(self, question_id: str, effect: str = "assignment") -> bool:
         """True when the question has a model of its own (else the transfer model ranks it)."""
@@ -385,9 +401,9 @@ class Ranker:
             for key in keys:
                 logits[key] = logits[key] + review_model.logit(key, sentence_texts)
         result: dict[str, list[Suggestion]] = {}
-        keep = suggestible(document.sentences)
         sections, headings = layout_of(document.sentences)
         for qid, key in zip(wanted, keys):
+            keep = self.suggestible(document.sentences, key)
             scores = sigmoid(logits[key])
             shown = logits[key] if threshold is None else np.where(
                 scores >= threshold, logits[key], -np.inf)

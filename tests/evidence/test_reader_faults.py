@@ -3,7 +3,7 @@ unannotated, pointers taught below the prose (invented text only)."""
 
 import numpy as np
 
-from robtui.evidence.features import is_pointer, is_software_statement
+from robtui.evidence.sentence_kinds import is_pointer, is_software_statement
 from robtui.evidence.training.reader_faults import faulty_documents, without_sections
 from robtui.evidence.training.train import Settings, labelled_rows, training_labels
 from robtui.reading.text import document_from_text

@@ -154,7 +154,7 @@ class Group:
     key: str
     base: np.ndarray  # (n, len(BASE_NAMES))
     labels: np.ndarray  # (n,) bool
-    keep: np.ndarray  # (n,) what `suggest` may show (ranker.suggestible)
+    keep: np.ndarray  # (n,) what `suggest` may show for the question (Ranker.suggestible)
     texts: tuple[str, ...] = ()  # the sentences, for listing misses (never stored)
 
     @property
@@ -165,7 +165,7 @@ class Group:
 def article_groups(name: str, document, questions: dict[str, list[GoldSnippet]],
                    ranker) -> list[Group]:
     """One article's (article, question) groups, with ``ranker``'s first stage."""
-    from robtui.evidence.ranker import active_questions, suggestible
+    from robtui.evidence.ranker import active_questions
 
     wording = dict(active_questions("assignment"))
     keys = [q for q in questions if q in wording]
@@ -173,9 +173,9 @@ def article_groups(name: str, document, questions: dict[str, list[GoldSnippet]],
     first = ranker.first_stage(feats, keys, [ranker.weights.question_texts.get(k) or wording[k]
                                              for k in keys])
     texts = [normalise(s.text) for s in document.sentences]
-    keep = suggestible(document.sentences)
     out = []
     for key in keys:
+        keep = ranker.suggestible(document.sentences, key)
         own, transfer, qf = first[key]
         labels = hit_labels(texts, [normalise(g.snippet) for g in questions[key]])
         out.append(Group(name, key, base_features(own, transfer, qf, feats.shared, feats.signals),

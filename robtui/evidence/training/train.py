@@ -27,15 +27,10 @@ from pathlib import Path
 
 import numpy as np
 
-from robtui.evidence.features import (
-    QUESTION_NAMES,
-    SHARED_NAMES,
-    is_pointer,
-    is_software_statement,
-    lexical_text,
-)
+from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
 from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid, suggestible
+from robtui.evidence.sentence_kinds import is_pointer, is_software_statement
 from robtui.evidence.tfidf import TfidfTable
 from robtui.evidence.training.corpus_docs import LabelledDocument
 from robtui.evidence.training.metrics import QuestionFigures, first_hit_rank, macro
@@ -92,9 +87,9 @@ class Settings:
     # training rows when its positives are rarer there than ABSTRACT_RATE_SHARE of its rate
     # elsewhere; they are still ranked and scored.
     abstract_unlabelled: bool = False
-    # A sentence that only points to a figure (features.is_pointer: "Figure 1 Trial profile",
+    # A sentence that only points to a figure (sentence_kinds.is_pointer: "Figure 1 Trial profile",
     # "Figure 1 shows the trial profile.") names where the numbers are, one that only names the
-    # statistical program (features.is_software_statement: "Analyses were done with Stata
+    # statistical program (sentence_kinds.is_software_statement: "Analyses were done with Stata
     # 10.1.") what computed them: the corpus annotates the first with the items the figure
     # reports (13a, 13b, 16), the second as a statistical method (12a); a reviewer quotes the
     # prose that gives the numbers or the analysis. "below_prose": such a sentence is taught
@@ -107,7 +102,7 @@ class Settings:
 
 
 POINTERS_NOTE = ("sentences that only point to a figure or only name the statistical program "
-                 "(features.is_pointer, is_software_statement) taught as "
+                 "(sentence_kinds.is_pointer, is_software_statement) taught as "
                  "counter-examples where their article has another sentence annotated for the "
                  "question or item")
 
