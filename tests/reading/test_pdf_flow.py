@@ -629,3 +629,35 @@ def test_a_cycle_in_the_page_head_leaves_the_columns_in_order(tmp_path) -> None:
     whole = " ".join(texts)
     assert "who knew the allocation of each participant in the two groups." in whole
     assert whole.index("Introduction") < whole.index("allocation of each participant")
+
+
+def test_a_side_note_set_higher_in_small_type_beside_a_line_is_not_read_into_it(tmp_path) -> None:
+    # a side note in 6.5 pt a narrow 9 pt beside the text column (too few rows for a gutter);
+    # its leading is tighter than the text's, so its second line sits 3 pt higher than the line
+    # beside it: the note is not read into that line's sentence
+    path = tmp_path / "side-note.pdf"
+    c = _canvas(path)
+    text = ["The invented Heron trial asked each walker to wear a pedometer",
+            "(Pacer 2, Stepworks, Quillmoor) on every day of the study. The",
+            "trial was registered with the invented registry of walking studies,",
+            "number HR-0042, before the first walker was enrolled in it."]
+    top = _lines(c, LEFT, 100, FILLER, font="Times-Roman", size=9.0, leading=11.0)
+    _lines(c, LEFT, top, text, font="Times-Roman", size=9.0, leading=11.0)
+    side = LEFT + c.stringWidth(text[2], "Times-Roman", 9.0) + 9.0
+    _lines(c, side, top + 11.0, ["For the pedometer's maker see", "https://stepworks.example.org/"],
+           font="Times-Roman", size=6.5, leading=8.0)
+    _lines(c, LEFT, top + 4 * 11.0, FILLER, font="Times-Roman", size=9.0, leading=11.0)
+    texts = _finished(c, path)
+    assert ("The trial was registered with the invented registry of walking studies, number "
+            "HR-0042, before the first walker was enrolled in it.") in texts
+
+
+LANCET_HAEMATOL = "more/lancethaematol2021_marietta_single_arm_phase2.pdf"
+
+
+@_needs(LANCET_HAEMATOL)
+def test_real_side_notes_set_higher_stay_out_of_the_registration_sentence() -> None:
+    registration = [s.text for s in _sentences(_real(LANCET_HAEMATOL))
+                    if s.block == "body" and "ClinicalTrials" in s.text]
+    assert len(registration) >= 2  # the summary's and the methods'
+    assert not any("http" in text for text in registration)

@@ -32,6 +32,7 @@ SPLIT_EM = 2.2
 MAX_BLOCKS = 220
 JUSTIFIED_GAPS = 4
 JUSTIFIED_SPREAD = 0.15
+_SIDE_WORD = re.compile(r"[^\W\d_]{4}")  # four letters in a row: a word, not a reference mark
 _LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-])$")  # beyond this many blocks on a page, the plain order is used
 
 
@@ -165,7 +166,9 @@ class Segment:
 
 
 def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: float) -> list[Segment]:
-    """Rows cut at the gutters running past them and at very wide gaps."""
+    """Rows cut at the gutters running past them, at very wide gaps and before a side note in
+    smaller type a little apart (also one set higher than the line, unless it is a raised
+    reference mark)."""
     out: list[Segment] = []
     for index, row in enumerate(rows):
         cuts = sorted(
@@ -188,7 +191,9 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             other_type = (
                 gap > 0.5 * size
                 and abs(word.size - prev.size) > 0.15 * size
-                and abs(word.box[3] - prev.box[3]) < 0.25 * size  # not a raised reference
+                and (abs(word.box[3] - prev.box[3]) < 0.25 * size  # not a raised reference,
+                     # though set higher, a word in smaller type is the side note's too
+                     or word.size < prev.size and _SIDE_WORD.search(word.text) is not None)
             )
             wide = gap > SPLIT_EM * max(size, word.size) and not (
                 spacing[k] and abs(gap - spacing[k]) <= JUSTIFIED_SPREAD * spacing[k])
