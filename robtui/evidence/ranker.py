@@ -131,17 +131,32 @@ def suggestible(sentences: Sequence, never: Sequence[str] = ()) -> np.ndarray:
     - a sentence of a kind in ``never`` (a figure pointer, a sentence that only names the
       statistical program, an analyst's blinding for the questions on awareness).
     If a document has nothing else, every sentence stays suggestible."""
-    kinds = [NOT_EVIDENCE[name] for name in never]
-    keep = np.ones(len(sentences), dtype=bool)
-    for i, s in enumerate(sentences):
-        if s.block == "heading":
-            keep[i] = not _topic_heading(s.text)
-        else:
-            keep[i] = not (s.block in CELL_BLOCKS
-                           or top_section(s.section) == "references" or _fragment(s.text))
-        if keep[i] and kinds:
-            keep[i] = not any(kind(s.text) for kind in kinds)
-    return keep if keep.any() else np.ones(len(sentences), dtype=bool)
+    return SuggestibleMasks(sentences)(never)
+
+
+class SuggestibleMasks:
+    """:func:`suggestible` for the questions of one document: the rules that do not depend on
+    the question are applied once, and each kind of sentence is tested once."""
+
+    def __init__(self, sentences: Sequence):
+        self.sentences = sentences
+        self.base = np.ones(len(sentences), dtype=bool)
+        for i, s in enumerate(sentences):
+            if s.block == "heading":
+                self.base[i] = not _topic_heading(s.text)
+            else:
+                self.base[i] = not (s.block in CELL_BLOCKS or top_section(s.section) == "references"
+                                    or _fragment(s.text))
+        self._kinds: dict[str, np.ndarray] = {}
+
+    def __call__(self, never: Sequence[str] = ()) -> np.ndarray:
+        keep = self.base.copy()
+        for name in never:
+            if name not in self._kinds:
+                test = NOT_EVIDENCE[name]
+                self._kinds[name] = np.array([test(s.text) for s in self.sentences], dtype=bool)
+            keep &= ~self._kinds[name]
+        return keep if keep.any() else np.ones(len(self.sentences), dtype=bool)
 
 
 def candidate_order(log_odds: np.ndarray, keep: np.ndarray, sections: Sequence[str],
@@ -402,8 +417,9 @@ class Ranker:
                 logits[key] = logits[key] + review_model.logit(key, sentence_texts)
         result: dict[str, list[Suggestion]] = {}
         sections, headings = layout_of(document.sentences)
+        masks = SuggestibleMasks(document.sentences)
         for qid, key in zip(wanted, keys):
-            keep = self.suggestible(document.sentences, key)
+            keep = masks(self.never(key))
             scores = sigmoid(logits[key])
             shown = logits[key] if threshold is None else np.where(
                 scores >= threshold, logits[key], -np.inf)
