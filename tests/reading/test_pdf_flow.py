@@ -661,3 +661,21 @@ def test_real_side_notes_set_higher_stay_out_of_the_registration_sentence() -> N
                     if s.block == "body" and "ClinicalTrials" in s.text]
     assert len(registration) >= 2  # the summary's and the methods'
     assert not any("http" in text for text in registration)
+
+
+def test_a_charts_number_in_small_type_beside_a_column_is_no_label_of_its_line(tmp_path) -> None:
+    # the last cell of a chart's row ("(10)", 6.5 pt) ends just left of the gutter, 4 pt above
+    # the baseline of a line of the right-hand column: it is not that line's list number
+    path = tmp_path / "chart-cell.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 100, FILLER * 2)
+    for x, cell in zip((LEFT, 110, 170, 230, 292), ("at relapse", "(0)", "(2)", "(7)", "(10)")):
+        _lines(c, x, 100 + 12 * 15 - 4, [cell], size=6.5)  # 4 pt above the line beside it
+    _lines(c, LEFT, 100 + 12 * 17, FILLER * 2)
+    right = ["Of the walkers who kept a diary in the first weeks, most went on",
+             "walking to the end of the invented study, and the nurses counted",
+             "their minutes at each visit. Nine (60%) of the fifteen walkers",
+             "who missed a visit came to the next one."]
+    _lines(c, RIGHT, 100, FILLER * 2 + right + FILLER * 2)
+    texts = _finished(c, path)
+    assert "Nine (60%) of the fifteen walkers who missed a visit came to the next one." in texts

@@ -185,8 +185,10 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             prev = piece[-1]
             gap = word.box[0] - prev.box[2]
             gutter = at_gutter[k]
-            if gutter and len(piece) == 1 and _LIST_LABEL.match(prev.text):
-                gutter = False  # a hanging list number or bullet belongs to its item
+            if (gutter and len(piece) == 1 and _LIST_LABEL.match(prev.text)
+                    and abs(word.size - prev.size) <= 0.15 * size):
+                gutter = False  # a hanging list number or bullet belongs to its item (in its type:
+                # a chart's last tick "(10)" beside the column is no label of the column's line)
             # a side note set beside the text in much smaller type, a little apart
             other_type = (
                 gap > 0.5 * size
