@@ -29,7 +29,13 @@ import numpy as np
 
 from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
-from robtui.evidence.ranker import Ranker, active_questions, generic_block, sigmoid, suggestible
+from robtui.evidence.ranker import (
+    Ranker,
+    SuggestibleMasks,
+    active_questions,
+    generic_block,
+    sigmoid,
+)
 from robtui.evidence.sentence_kinds import is_pointer, is_software_statement
 from robtui.evidence.tfidf import TfidfTable
 from robtui.evidence.training.corpus_docs import LabelledDocument
@@ -130,9 +136,13 @@ class Prepared:
     pointer: np.ndarray | None = None  # per row: a pointer (Settings.pointers)
 
     @cached_property
-    def suggestible(self) -> list[np.ndarray]:
-        """Per document, the sentences `suggest` may show (ranker.suggestible)."""
-        return [suggestible(d.document.sentences) for d in self.docs]
+    def _masks(self) -> list[SuggestibleMasks]:
+        return [SuggestibleMasks(d.document.sentences) for d in self.docs]
+
+    def suggestible(self, number: int, key: str) -> np.ndarray:
+        """The sentences of document ``number`` that `suggest` may show for ``key``
+        (Ranker.suggestible)."""
+        return self._masks[number](self.space.never(key))
 
 
 def fit_tables(texts: list[str], settings: Settings) -> tuple[TfidfTable, TfidfTable]:
@@ -490,7 +500,7 @@ def fit_weights(
             for number, doc in enumerate(prep.docs):
                 rows = prep.groups == number
                 if rows.any():  # the best suggestion, as `suggest` would show it
-                    tops.append(float(p[rows][prep.suggestible[number]].max()))
+                    tops.append(float(p[rows][prep.suggestible(number, key)].max()))
                     present.append(doc.present[key])
     generic, generic_b, generic_platt, generic_cut = _fit_generic(prep, trained, settings,
                                                                   calibrate)
@@ -549,7 +559,7 @@ def _fit_generic(prep: Prepared, keys: list[str], settings: Settings, calibrate:
             for number, doc in enumerate(prep.docs):
                 rows = np.nonzero(prep.groups == number)[0] + offset
                 if len(rows):
-                    tops.append(float(p[rows][prep.suggestible[number]].max()))
+                    tops.append(float(p[rows][prep.suggestible(number, key)].max()))
                     present.append(doc.present[key])
             offset += n
         cut = youden_threshold(tops, present)
