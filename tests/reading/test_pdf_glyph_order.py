@@ -150,3 +150,39 @@ def test_signs_from_a_font_with_a_deep_descent_keep_the_lines_in_order(tmp_path)
     assert ("The invented walkers covered a mean of = 4.5 \u00b1 0.3 km a day (walking group) and "
             "= 3.1 \u00b1 0.4 km a day in the control group in the first of the weeks, and = 4.8 "
             "\u00b1 0.2 km in the last.") in texts
+
+
+def _plain_pdf(path: Path, lines: list[bytes]) -> None:
+    """A one-page PDF written by hand in Helvetica whose encoding gives code 1 a glyph name of
+    our own, which maps to no character (as a bullet or a prime from a symbol font may)."""
+    content = b"BT /F1 10 Tf 14 TL 72 720 Td " + b" ".join(b"(%s) '" % line for line in lines)
+    content += b" ET"
+    objects = [
+        b"<< /Type /Catalog /Pages 2 0 R >>",
+        b"<< /Type /Pages /Kids [3 0 R] /Count 1 >>",
+        (b"<< /Type /Page /Parent 2 0 R /MediaBox [0 0 595 842] /Resources << /Font << /F1 5 0 R"
+         b" >> >> /Contents 4 0 R >>"),
+        b"<< /Length %d >>\nstream\n" % len(content) + content + b"\nendstream",
+        (b"<< /Type /Font /Subtype /Type1 /BaseFont /Helvetica /Encoding << /Type /Encoding"
+         b" /BaseEncoding /WinAnsiEncoding /Differences [1 /heronmark] >> >>"),
+    ]
+    out, offsets = b"%PDF-1.4\n", []
+    for number, body in enumerate(objects, 1):
+        offsets.append(len(out))
+        out += b"%d 0 obj\n" % number + body + b"\nendobj\n"
+    xref = len(out)
+    out += b"xref\n0 %d\n0000000000 65535 f \n" % (len(objects) + 1)
+    out += b"".join(b"%010d 00000 n \n" % offset for offset in offsets)
+    out += b"trailer\n<< /Size %d /Root 1 0 R >>\nstartxref\n%d\n%%%%EOF\n" % (len(objects) + 1,
+                                                                            xref)
+    path.write_bytes(out)
+
+
+def test_a_glyph_mapped_to_no_character_reads_as_the_replacement_character(tmp_path) -> None:
+    path = tmp_path / "unmapped.pdf"
+    _plain_pdf(path, [b"Walkers kept a diary of their walks on most days.",
+                      b"\001 Diaries were read at each visit to the clinic.",
+                      b"The nurse counted the minutes in the diaries."])
+    document = read_document(path, use_cache=False)
+    assert not any(ch < " " and ch not in "\t\n" for ch in document.text)
+    assert any("\ufffd Diaries were read at each visit" in s.text for s in document.sentences)

@@ -112,7 +112,11 @@ def load_gold(folder: Path) -> dict[str, dict[str, list[GoldSnippet]]]:
 _QUOTES = str.maketrans({c: "'" for c in "\u2018\u2019\u201a\u201b\u2032\u00b4`"}
                         | {c: '"' for c in "\u201c\u201d\u201e\u201f\u2033"}
                         | {c: "-" for c in "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\ufe63\uff0d"}
-                        | {"\u00ad": None, "\u200b": None, "\ufeff": None})
+                        | {"\u00ad": None, "\u200b": None, "\ufeff": None}
+                        # a glyph mapped to no character: pdftotext prints its control code,
+                        # robtui's reader U+FFFD; neither is text, both compare as a space
+                        | {chr(c): " " for c in range(0x20) if chr(c) not in "\t\n\r"}
+                        | {"\ufffd": " "})
 _LINE_END_HYPHEN = re.compile(r"-[ \t]*\n[ \t]*")
 # pdftotext keeps a soft hyphen (U+00AD) where the typesetter broke a word at a line end.
 _SOFT_LINE_END = re.compile("\u00ad(?=[ \t]*\n)")
@@ -122,7 +126,8 @@ SPACE = re.compile(r"\s+")
 def normalise(text: str) -> str:
     """Text as the scoring compares it: NFKC (ligatures spelled out), soft hyphens dropped,
     quotes and dashes unified, hyphens dropped (so a line-end hyphen rejoined either way reads
-    the same), combining marks composed, lower case, white space collapsed."""
+    the same), combining marks composed, glyphs mapped to no character (control codes, U+FFFD)
+    read as spaces, lower case, white space collapsed."""
     text = _SOFT_LINE_END.sub("-", unicodedata.normalize("NFKC", text)).translate(_QUOTES)
     text = _LINE_END_HYPHEN.sub("", text).replace("-", "")
     return SPACE.sub(" ", text).strip().lower()

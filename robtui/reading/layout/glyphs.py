@@ -179,7 +179,10 @@ def _chars(calls, tp: int, left: float, top: float,
         if code == 0x20 and generated(tp, i):
             space_before = True  # PDFium's guess from the font's spacing: words_of weighs it
             continue
-        text = chr(code) if code and not 0xD800 <= code <= 0xDFFF else "\ufffd"
+        # a control code is a glyph the PDF maps to no character (a bullet, a prime drawn
+        # from a symbol font): shown as the replacement character, never as a control code
+        plain = code >= 0x20 and not 0xD800 <= code <= 0xDFFF or code in (0x02, 0x09)
+        text = chr(code) if plain else "\ufffd"
         origin_of(tp, i, pox, poy)
         box_of(tp, i, prect)
         address = text_object(tp, i) or 0
