@@ -679,3 +679,43 @@ def test_a_charts_number_in_small_type_beside_a_column_is_no_label_of_its_line(t
     _lines(c, RIGHT, 100, FILLER * 2 + right + FILLER * 2)
     texts = _finished(c, path)
     assert "Nine (60%) of the fifteen walkers who missed a visit came to the next one." in texts
+
+
+def test_bulleted_items_hung_left_of_a_gutter_read_one_by_one(tmp_path) -> None:
+    # eligibility criteria after bullets set in a strip of their own, 9 pt left of the items'
+    # text (a gutter between them); two items wrap onto a second line under their text
+    import reportlab
+    from reportlab.pdfbase import pdfmetrics
+    from reportlab.pdfbase.ttfonts import TTFont
+
+    if "HeronVeraB" not in pdfmetrics.getRegisteredFontNames():  # a font holding the bullet
+        pdfmetrics.registerFont(TTFont("HeronVeraB", str(Path(reportlab.__file__).parent / "fonts"
+                                                          / "Vera.ttf")))
+    path = tmp_path / "items.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, FILLER * 2, font="HeronVeraB", size=8.0, leading=11.0)
+    top = _lines(c, LEFT, top + 6, ["Conditions for taking part"], font="HeronVeraB", size=8.0)
+    items = [["Aged 60 years or more"], ["Able to walk for ten minutes without a stick or", "a frame"],
+             ["Living within five miles of the clinic"],
+             ["Willing to keep a diary of the walks for all of", "the twelve weeks"]]
+    for item in items:
+        _lines(c, LEFT + 4, top, ["\u2022"], font="HeronVeraB", size=8.0)
+        top = _lines(c, LEFT + 16, top, item, font="HeronVeraB", size=8.0, leading=11.0)
+    _lines(c, LEFT, top + 6, FILLER, font="HeronVeraB", size=8.0, leading=11.0)
+    _lines(c, RIGHT, 100, FILLER * 4, font="HeronVeraB", size=8.0, leading=11.0)
+    texts = _finished(c, path)
+    assert "\u2022 Aged 60 years or more" in texts
+    assert "\u2022 Able to walk for ten minutes without a stick or a frame" in texts
+    assert "\u2022 Living within five miles of the clinic" in texts
+    assert "\u2022 Willing to keep a diary of the walks for all of the twelve weeks" in texts
+
+
+VOCAL = "more/bmccancer2021_vocal_laryngeal_radiation_rct_protocol.pdf"
+
+
+@_needs(VOCAL)
+def test_real_items_after_unmapped_bullets_are_read_one_by_one() -> None:
+    # the protocol sets its eligibility criteria and assessments after bullets drawn from a
+    # symbol font that maps them to no character, in a strip left of the items' text
+    body = [s.text for s in _sentences(_real(VOCAL)) if s.block == "body"]
+    assert sum(text.startswith("\ufffd ") for text in body) >= 25  # each item opens a sentence

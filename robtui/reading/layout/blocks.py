@@ -238,7 +238,8 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         new = not legend and (
             current is None
             or prev is None
-            or line.column != prev.column
+            or line.item_x is not None  # a list item opens at its bullet
+            or line.column != prev.column and not _wraps_item(current, line, prev, leading)
             or line.top - prev.top > 1.35 * max(leading, prev.size * 1.25)
             or line.top < prev.top
             or line.bold != prev.bold
@@ -277,6 +278,19 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         rows = [[make_line([w for line in group for w in line.words])] for group in groups]
         blocks.append(PBlock("figure", [], page.number, rows=rows))
     return blocks
+
+
+def _wraps_item(block: PBlock | None, line: Line, prev: Line | None, leading: float) -> bool:
+    """Whether ``line`` goes on with the list item ``block`` opened by a bullet hung left of a
+    gutter: it starts where the item's text does, on the next line, in its type."""
+    if block is None or prev is None:
+        return False
+    item_x = block.lines[0].item_x
+    return (
+        item_x is not None and abs(line.x0 - item_x) <= 1.0
+        and 0 < line.top - prev.top <= 1.35 * max(leading, prev.size * 1.25)
+        and abs(line.size - prev.size) <= 0.6
+    )
 
 
 def _legend_of(caption: PBlock | None, line: Line, prev: Line | None, body_size: float) -> bool:

@@ -32,8 +32,12 @@ SPLIT_EM = 2.2
 MAX_BLOCKS = 220
 JUSTIFIED_GAPS = 4
 JUSTIFIED_SPREAD = 0.15
+# Bullets set before list items; U+FFFD: a glyph mapped to no character, at a line's start
+# most often a bullet drawn from a symbol font.
+_BULLETS = "[\u2022\u25aa\u25b8\u25ba\u25cf\u25a0\u27a2\ufffd]"
+_BULLET = re.compile(_BULLETS)
 _SIDE_WORD = re.compile(r"[^\W\d_]{4}")  # four letters in a row: a word, not a reference mark
-_LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-])$")  # beyond this many blocks on a page, the plain order is used
+_LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-]|" + _BULLETS + ")$")
 
 
 @dataclass
@@ -181,6 +185,7 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
         ]
         spacing = _cell_spacing(row.words, at_gutter)
         piece = [row.words[0]]
+        bulleted = False  # the piece opens with a bullet hung left of a gutter
         for k, word in enumerate(row.words[1:]):
             prev = piece[-1]
             gap = word.box[0] - prev.box[2]
@@ -189,6 +194,7 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
                     and abs(word.size - prev.size) <= 0.15 * size):
                 gutter = False  # a hanging list number or bullet belongs to its item (in its type:
                 # a chart's last tick "(10)" beside the column is no label of the column's line)
+                bulleted = _BULLET.fullmatch(prev.text) is not None
             # a side note set beside the text in much smaller type, a little apart
             other_type = (
                 gap > 0.5 * size
@@ -200,11 +206,11 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             wide = gap > SPLIT_EM * max(size, word.size) and not (
                 spacing[k] and abs(gap - spacing[k]) <= JUSTIFIED_SPREAD * spacing[k])
             if gutter or other_type or wide:
-                out.append(_segment(piece, cuts, width, index))
-                piece = [word]
+                out.append(_segment(piece, cuts, width, index, bulleted))
+                piece, bulleted = [word], False
             else:
                 piece.append(word)
-        out.append(_segment(piece, cuts, width, index))
+        out.append(_segment(piece, cuts, width, index, bulleted))
     return out
 
 
@@ -235,8 +241,11 @@ def justified_spacing(words: list[Word]) -> float | None:
     return typical
 
 
-def _segment(words: list[Word], cuts: list[Gutter], width: float, row: int) -> Segment:
+def _segment(words: list[Word], cuts: list[Gutter], width: float, row: int,
+             bulleted: bool = False) -> Segment:
     line = make_line(words)
+    if bulleted and len(words) > 1:
+        line.item_x = words[1].box[0]
     left = max((g.x1 for g in cuts if g.x1 <= line.x0 + 0.5), default=0.0)
     right = min((g.x0 for g in cuts if g.x0 >= line.x1 - 0.5), default=width)
     return Segment(line, (left, right), row)

@@ -86,6 +86,7 @@ class Line:
     bottom: float
     column: str = "full"  # which column block the line was read in ("full" spans the page)
     page: int = 0  # set when a paragraph collects lines from several pages
+    item_x: float | None = None  # a list item's text starts here, after a bullet hung left of it
 
     # A line's words do not change once it is made, so its summaries are computed once.
     @cached_property
