@@ -81,6 +81,11 @@ _OPENER = re.compile(r"[\"'“‘(\[]*(?:[A-Z0-9\u0391-\u03a9À-Þ*†‡§¶]|[
 _CAPTION_LABEL = re.compile(
     r"\s*(?:(?:Table|Figure|Fig\.?|Box|Panel)\s+[A-Z]?\d+[A-Za-z]?|\[?\d{1,3}\]?|[a-z])\.\s*$"
 )
+# A bullet standing apart opens a list item, which is a sentence of its own whether or not the
+# item before it ends with a full stop ("... to schools ▸ Simplified points system ▸ ...");
+# after a number it is a degree sign some typesetters draw with a bullet ("16 ◦ C"). U+FFFD, a
+# glyph mapped to no character, is a bullet when an item with a capital follows it.
+_BULLET = re.compile(r"(?<=\s)(?<!\d\s)(?:[•▪▫◦▸►‣⁃●■](?=\s)|\ufffd(?=\s[A-Z]))")
 LIST_ITEM_WORDS = 4  # a keyword is a few words (our own setting)
 _WORD_BEFORE = re.compile(r"([A-Za-z][A-Za-z.]*)$")
 
@@ -90,8 +95,10 @@ def split_sentences(text: str, start: int = 0, end: int | None = None) -> list[t
     end = len(text) if end is None else end
     spans: list[tuple[int, int]] = []
     cursor = start
-    for match in _CANDIDATE.finditer(text, start, end):
-        boundary = _boundary_after(text, match, end)
+    stops = [(m.end(), m) for m in _CANDIDATE.finditer(text, start, end)]
+    bullets = [(m.start(), None) for m in _BULLET.finditer(text, start, end)]
+    for at, match in sorted(stops + bullets, key=lambda pair: pair[0]):
+        boundary = at if match is None else _boundary_after(text, match, end)
         if boundary is None or boundary <= cursor:
             continue
         if _CAPTION_LABEL.fullmatch(text, cursor, boundary):

@@ -681,28 +681,34 @@ def test_a_charts_number_in_small_type_beside_a_column_is_no_label_of_its_line(t
     assert "Nine (60%) of the fifteen walkers who missed a visit came to the next one." in texts
 
 
-def test_bulleted_items_hung_left_of_a_gutter_read_one_by_one(tmp_path) -> None:
-    # eligibility criteria after bullets set in a strip of their own, 9 pt left of the items'
-    # text (a gutter between them); two items wrap onto a second line under their text
+def _bullet_font() -> str:
+    """reportlab's bundled Vera, registered once: a font holding the bullet."""
     import reportlab
     from reportlab.pdfbase import pdfmetrics
     from reportlab.pdfbase.ttfonts import TTFont
 
-    if "HeronVeraB" not in pdfmetrics.getRegisteredFontNames():  # a font holding the bullet
+    if "HeronVeraB" not in pdfmetrics.getRegisteredFontNames():
         pdfmetrics.registerFont(TTFont("HeronVeraB", str(Path(reportlab.__file__).parent / "fonts"
                                                           / "Vera.ttf")))
+    return "HeronVeraB"
+
+
+def test_bulleted_items_hung_left_of_a_gutter_read_one_by_one(tmp_path) -> None:
+    # eligibility criteria after bullets set in a strip of their own, 9 pt left of the items'
+    # text (a gutter between them); two items wrap onto a second line under their text
+    font = _bullet_font()
     path = tmp_path / "items.pdf"
     c = _canvas(path)
-    top = _lines(c, LEFT, 100, FILLER * 2, font="HeronVeraB", size=8.0, leading=11.0)
-    top = _lines(c, LEFT, top + 6, ["Conditions for taking part"], font="HeronVeraB", size=8.0)
+    top = _lines(c, LEFT, 100, FILLER * 2, font=font, size=8.0, leading=11.0)
+    top = _lines(c, LEFT, top + 6, ["Conditions for taking part"], font=font, size=8.0)
     items = [["Aged 60 years or more"], ["Able to walk for ten minutes without a stick or", "a frame"],
              ["Living within five miles of the clinic"],
              ["Willing to keep a diary of the walks for all of", "the twelve weeks"]]
     for item in items:
-        _lines(c, LEFT + 4, top, ["\u2022"], font="HeronVeraB", size=8.0)
-        top = _lines(c, LEFT + 16, top, item, font="HeronVeraB", size=8.0, leading=11.0)
-    _lines(c, LEFT, top + 6, FILLER, font="HeronVeraB", size=8.0, leading=11.0)
-    _lines(c, RIGHT, 100, FILLER * 4, font="HeronVeraB", size=8.0, leading=11.0)
+        _lines(c, LEFT + 4, top, ["\u2022"], font=font, size=8.0)
+        top = _lines(c, LEFT + 16, top, item, font=font, size=8.0, leading=11.0)
+    _lines(c, LEFT, top + 6, FILLER, font=font, size=8.0, leading=11.0)
+    _lines(c, RIGHT, 100, FILLER * 4, font=font, size=8.0, leading=11.0)
     texts = _finished(c, path)
     assert "\u2022 Aged 60 years or more" in texts
     assert "\u2022 Able to walk for ten minutes without a stick or a frame" in texts
@@ -719,3 +725,22 @@ def test_real_items_after_unmapped_bullets_are_read_one_by_one() -> None:
     # symbol font that maps them to no character, in a strip left of the items' text
     body = [s.text for s in _sentences(_real(VOCAL)) if s.block == "body"]
     assert sum(text.startswith("\ufffd ") for text in body) >= 25  # each item opens a sentence
+
+
+def test_bullets_standing_apart_open_list_items_of_their_own(tmp_path) -> None:
+    # a box of changes made after the invented pilot: items set after bullets, run on in one
+    # paragraph, most without a full stop; a bullet after a number (a degree sign some
+    # typesetters draw with a bullet glyph) stays in its sentence
+    font = _bullet_font()
+    path = tmp_path / "bullets.pdf"
+    c = _canvas(path)
+    box = ["Changes after the pilot: \u2022 Shorter diaries for the walkers",
+           "\u2022 A second nurse at each clinic \u2022 Walks kept under 25 \u2022 C on",
+           "summer days. \u2022 Reminders by text message."]
+    _lines(c, LEFT, 100, FILLER * 2 + box + FILLER, font=font, size=8.0)
+    _lines(c, RIGHT, 100, FILLER * 3, font=font, size=8.0)
+    texts = _finished(c, path)
+    assert "\u2022 Shorter diaries for the walkers" in texts
+    assert "\u2022 A second nurse at each clinic" in texts
+    assert "\u2022 Walks kept under 25 \u2022 C on summer days." in texts
+    assert "\u2022 Reminders by text message." in texts
