@@ -545,6 +545,31 @@ def test_flowchart_box_text_is_a_figure_block_and_a_boxed_panel_stays_prose(tmp_
     assert any(s.block == "caption" and s.text.startswith("Figure 1") for s in sentences)
 
 
+def test_a_flowchart_placed_as_a_form_is_a_figure_block(tmp_path) -> None:
+    # the same boxes, lines and labels drawn inside a form XObject the page places once
+    path = tmp_path / "flowchart-form.pdf"
+    c = _canvas(path)
+    _lines(c, LEFT, 80, FILLER)
+    c.beginForm("heronflow")
+    _box(c, 120, 160, 150, 24, ["Assessed for eligibility (n=310)"])
+    _box(c, 300, 200, 170, 34, ["Excluded (n=70)", "Did not meet inclusion criteria (n=52)"])
+    _box(c, 120, 250, 150, 24, ["Randomly assigned (n=240)"])
+    _box(c, 60, 310, 150, 24, ["Allocated to walking (n=120)"])
+    _box(c, 260, 310, 150, 24, ["Allocated to resting (n=120)"])
+    for x0, t0, x1, t1 in ((195, 184, 195, 250), (195, 274, 135, 310), (195, 274, 335, 310)):
+        c.line(x0, HEIGHT - t0, x1, HEIGHT - t1)
+    c.endForm()
+    c.doForm("heronflow")
+    _lines(c, LEFT, 350, ["Figure 1 Flow of participants through the invented trial."],
+           font="Helvetica", size=8.0)
+    _lines(c, LEFT, 400, FILLER)
+    sentences = _sentences_of_finished(c, path)
+    figure = [s.text for s in sentences if s.block == "figure"]
+    assert "Randomly assigned (n=240)" in figure
+    body = " ".join(s.text for s in sentences if s.block == "body")
+    assert "Randomly assigned" not in body and "Allocated to walking" not in body
+
+
 @_needs(LANCET)
 def test_real_flowchart_is_a_figure_not_prose() -> None:
     sentences = _sentences(_real(LANCET))
@@ -744,3 +769,18 @@ def test_bullets_standing_apart_open_list_items_of_their_own(tmp_path) -> None:
     assert "\u2022 A second nurse at each clinic" in texts
     assert "\u2022 Walks kept under 25 \u2022 C on summer days." in texts
     assert "\u2022 Reminders by text message." in texts
+
+
+def test_an_italic_subheading_over_prose_that_opens_with_a_figure_is_a_heading(tmp_path) -> None:
+    # "3.1. Walker Flow" in italics, the body's size, over a paragraph opening "Figure 1 shows"
+    path = tmp_path / "subheading.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, FILLER)
+    _lines(c, LEFT, top + 6, ["3.1. Walker Flow"], font="Times-Italic")
+    _lines(c, LEFT, top + 24, ["Figure 1 shows how the walkers went through the invented",
+                               "trial from the first visit to the last one, and how many of",
+                               "them walked in each of the twelve weeks of the study."])
+    _lines(c, LEFT, top + 70, FILLER)
+    _lines(c, RIGHT, 100, FILLER * 3)
+    sentences = _sentences_of_finished(c, path)
+    assert any(s.block == "heading" and s.text == "3.1. Walker Flow" for s in sentences)

@@ -357,6 +357,15 @@ def _numbers_only(text: str) -> bool:
     return numbers >= NUMBER_RUN and numbers >= NUMBER_SHARE * len(tokens)
 
 
+_POINTER = re.compile(r"^\S+\s*[A-Z]?\d+[A-Za-z]?\s+[a-z]")  # "Figure 1 shows", "Table 2 lists"
+
+
+def _points_to_a_float(block: PBlock) -> bool:
+    """A paragraph opening like a caption whose label goes on in lower case: prose about a
+    figure or table ("Figure 1 shows a flow diagram of ..."), not its caption."""
+    return _POINTER.match(block.lines[0].text) is not None
+
+
 def _stands_as_heading(block: PBlock, following: list[PBlock], body_font: str) -> bool:
     """A short line alone in italics or in another font than the body's, followed by a
     paragraph of body text in the same column: a subheading."""
@@ -368,7 +377,7 @@ def _stands_as_heading(block: PBlock, following: list[PBlock], body_font: str) -
     if not (line.italic or line.font != body_font):
         return False
     return (
-        nxt.kind == "body"
+        (nxt.kind == "body" or nxt.kind == "caption" and _points_to_a_float(nxt))
         and nxt.lines[0].column == line.column
         and sum(len(ln.words) for ln in nxt.lines) >= 8
         and nxt.lines[0].font == body_font

@@ -133,7 +133,9 @@ def read_glyphs(page, number: int) -> PageGlyphs:
     left, bottom, right, top = page.get_cropbox()
     width, height = right - left, top - bottom
     rules, shapes, images, forms = _objects(page, left, top)
-    frames = _clip_frames(forms, left, top) if forms else {}
+    frames: dict[int, Box] = {}
+    if forms:
+        frames = _form_contents(forms, left, top, shapes)
     textpage = page.get_textpage()
     try:
         chars = _chars(_pdfium(), ctypes.cast(textpage.raw, ctypes.c_void_p).value, left, top,
@@ -309,18 +311,20 @@ def _clip_box(raw, obj, matrix) -> Box | None:
     return box
 
 
-def _clip_frames(forms: list, left: float, top: float) -> dict[int, Box]:
+def _form_contents(forms: list, left: float, top: float, shapes: list[Box]) -> dict[int, Box]:
     """For each text object drawn inside a form XObject (a page or figure placed from another
     PDF) under a clip, the frame it can be seen in: its clip paths' bounds, intersected with
     those of the forms around it, in points from the crop box's top left. A page embedded to
     show one figure keeps the rest of its text, hidden by the clip: PDFium's text layer holds
     it all the same. Top-level text is not searched (it is seldom clipped away, and asking
-    for every object's clip costs time)."""
+    for every object's clip costs time). The bounds of the paths the forms draw (a flowchart's
+    boxes placed as a form) are added to ``shapes``, as the page's own are, up to MAX_SHAPES."""
     from pypdfium2 import PdfMatrix, raw
 
     frames: dict[int, Box] = {}
     budget = [MAX_FORM_OBJECTS]
     m = raw.FS_MATRIX()
+    x0, y0, x1, y1 = (ctypes.c_float() for _ in range(4))
 
     def walk(form, outer: PdfMatrix, around: Box | None) -> None:
         matrix = PdfMatrix.from_raw(m) if raw.FPDFPageObj_GetMatrix(form, m) else PdfMatrix()
@@ -340,6 +344,13 @@ def _clip_frames(forms: list, left: float, top: float) -> dict[int, Box]:
                 if box is not None:
                     frames[ctypes.cast(obj, ctypes.c_void_p).value] = (
                         box[0] - left, top - box[3], box[2] - left, top - box[1])
+            elif (kind == raw.FPDF_PAGEOBJ_PATH and len(shapes) <= MAX_SHAPES
+                  and raw.FPDFPageObj_GetBounds(obj, x0, y0, x1, y1)):
+                corners = [inner.on_point(x, y) for x in (x0.value, x1.value)
+                           for y in (y0.value, y1.value)]
+                xs, ys = [px for px, _ in corners], [py for _, py in corners]
+                if max(xs) - min(xs) >= SHAPE_MIN or max(ys) - min(ys) >= SHAPE_MIN:
+                    shapes.append((min(xs) - left, top - max(ys), max(xs) - left, top - min(ys)))
 
     for form in forms:
         walk(form, PdfMatrix(), None)
