@@ -56,7 +56,7 @@ def test_assessment_questions_with_guidance(snap_compare, demo_dir, size):
     async def answer_then_guidance(pilot):
         await _answer_and_step(pilot)
         await pilot.press("tab", "g")  # back to the questions (on 80x24), guidance shown
-        await pilot.pause()
+        await settle(pilot)  # the pane switch lays the report out again: wait for it
 
     app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
     assert snap_compare(app, terminal_size=size, run_before=answer_then_guidance)
@@ -75,7 +75,7 @@ def test_summary_and_not_complete_yet_dialogs(snap_compare, demo_dir, size, key)
     async def open_dialog(pilot):
         await _answer_and_step(pilot)
         await pilot.press("tab", key)
-        await pilot.pause()
+        await settle(pilot)
 
     app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
     assert snap_compare(app, terminal_size=size, run_before=open_dialog)
