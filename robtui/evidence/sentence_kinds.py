@@ -49,11 +49,14 @@ def is_software_statement(text: str) -> bool:
     return all(w in _SOFTWARE_FILLER or len(w) < 2 for w in re.findall(r"[a-z]+", bare.lower()))
 
 
-# Words that report blinding, and the people a statistical analysis is done by (common trial
-# reporting, from memory, no source).
-_BLINDING = re.compile(r"\b(?:blind\w*|mask\w*|unaware|not aware|without knowledge)\b", re.IGNORECASE)
+# Words that report blinding, and the people who analyse or monitor a trial's data (common
+# trial reporting, from memory, no source).
+_BLINDING = re.compile(r"\b(?:(?:un)?blind\w*|(?:un)?mask\w*|unaware|not aware|without knowledge)\b",
+                       re.IGNORECASE)
 _ANALYST = re.compile(r"\b(?:(?:bio)?statisticians?|(?:data )?analysts?|data managers?"
-                      r"|analy[sz](?:ed|ing) (?:the )?data)\b", re.IGNORECASE)
+                      r"|analy[sz](?:ed|ing) (?:the )?data"
+                      r"|data (?:and )?(?:safety )?monitoring (?:committee|board)s?"
+                      r"|I?DMCs?|DSMBs?|steering committees?)\b", re.IGNORECASE)
 # Anyone else a blinding sentence may name; a role word before "group", "allocation" and the
 # like names a group, not a person ("the assigned patient group").
 _OTHER_PARTY = re.compile(
@@ -66,11 +69,13 @@ _GROUP_OF = re.compile(r"\b\w+(?:'s)? (?:groups?|allocations?|assignments?|arms?
 
 
 def is_analyst_blinding(text: str) -> bool:
-    """A sentence whose only blinded party is whoever analysed the data ("The data were
-    analyzed by a statistician who was not aware of the assigned group."). The signalling
-    questions on awareness name participants, carers and people delivering the intervention,
-    and outcome assessors (RoB 2, Sterne et al., BMJ 2019;366:l4898; questions 2.1, 2.2, 4.3):
-    an analyst's blinding answers none of them. Any other party named keeps the sentence."""
+    """A sentence of blinding (or unblinding) whose only people are those who analyse or
+    monitor the data ("The data were analyzed by a statistician who was not aware of the
+    assigned group.", "An independent data monitoring committee reviewed unblinded safety
+    data."). The signalling questions on awareness name participants, carers and people
+    delivering the intervention, and outcome assessors (RoB 2, Sterne et al., BMJ
+    2019;366:l4898; questions 2.1, 2.2, 4.3): an analyst's or a monitoring committee's
+    blinding answers none of them. Any other party named keeps the sentence."""
     if not (_BLINDING.search(text) and _ANALYST.search(text)):
         return False
     return not _OTHER_PARTY.search(_GROUP_OF.sub(" ", text))

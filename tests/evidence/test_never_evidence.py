@@ -18,11 +18,15 @@ def test_an_analysts_blinding_is_told_from_anyone_elses():
         "The data were analysed by a statistician who was not aware of the assigned patient group.")
     assert is_analyst_blinding("An independent statistician, blinded to allocation, did the analysis.")
     assert is_analyst_blinding("Data analysts were masked to the treatment arm.")
+    assert is_analyst_blinding("An independent data monitoring committee saw unblinded data.")
+    assert is_analyst_blinding("The DSMB reviewed the safety data unmasked.")
     # another party named: the sentence may answer a question on awareness
     assert not is_analyst_blinding("Patients and the statistician were blinded to allocation.")
     assert not is_analyst_blinding("Outcome assessors and the data analyst were masked.")
     assert not is_analyst_blinding("The trial statistician generated the allocation sequence.")
     assert not is_analyst_blinding("Participants were unaware of group assignment.")
+    assert not is_analyst_blinding("The data monitoring committee met twice a year.")  # no blinding
+    assert not is_analyst_blinding("Participants were unblinded after the final visit.")
 
 
 def test_the_lexicon_excludes_pointers_and_programs_everywhere_and_analysts_for_awareness():
