@@ -221,8 +221,9 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
                 scores, base, logits = _scores_for(ranker, doc, keys, texts)
                 # every column ranks the same candidates as `suggest`: no bare topic headings
                 layout = layout_of(doc.document.sentences)
+                suggestible_for = ranker.suggestible(doc.document.sentences)
                 for key in keys:
-                    keep = ranker.suggestible(doc.document.sentences, key)
+                    keep = suggestible_for(key)
                     labels, present = doc.labels[key], doc.present[key]
                     by_score = candidate_order(logits[key], keep, *layout, spread=False)
                     tallies[f"model {route}"].add(key, scores[key], labels, present, by_score)

@@ -116,14 +116,14 @@ def simulate(ranker, learn_docs, eval_docs, keys, texts, step: int):
     def texts_of(doc):
         return [s.text for s in doc.document.sentences]
 
-    layouts: dict[tuple[str, str], tuple] = {}  # per article and key: suggestible, layout
+    layouts: dict[str, tuple] = {}  # per article: suggestible per key, sections, headings
 
     def shown(z, doc, key) -> np.ndarray:  # the order the workbench shows
-        if (doc.article_id, key) not in layouts:
+        if doc.article_id not in layouts:
             sentences = doc.document.sentences
-            layouts[doc.article_id, key] = (ranker.suggestible(sentences, key),
-                                            *layout_of(sentences))
-        return candidate_order(z, *layouts[doc.article_id, key], spread=True)
+            layouts[doc.article_id] = (ranker.suggestible(sentences), *layout_of(sentences))
+        suggestible_for, *layout = layouts[doc.article_id]
+        return candidate_order(z, suggestible_for(key), *layout, spread=True)
 
     evaluated = [(doc, shipped_logits(doc), texts_of(doc)) for doc in eval_docs]
 

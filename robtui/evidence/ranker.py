@@ -12,7 +12,7 @@ Scores are calibrated (Platt scaling on grouped out-of-fold scores), so a best s
 from __future__ import annotations
 
 import re
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -266,9 +266,11 @@ class Ranker:
         entry = self.cues.get(key)
         return entry.never if entry is not None else ()
 
-    def suggestible(self, sentences: Sequence, key: str) -> np.ndarray:
-        """:func:`suggestible` for the question of ``key``."""
-        return suggestible(sentences, self.never(key))
+    def suggestible(self, sentences: Sequence) -> Callable[[str], np.ndarray]:
+        """Per key, :func:`suggestible` for its question: the rules shared by every question
+        applied once, each kind of sentence tested once."""
+        masks = SuggestibleMasks(sentences)
+        return lambda key: masks(self.never(key))
 
     def is_trained(self, question_id: str, effect: str = "assignment") -> bool:
         """True when the question has a model of its own (else the transfer model ranks it)."""
@@ -417,9 +419,9 @@ class Ranker:
                 logits[key] = logits[key] + review_model.logit(key, sentence_texts)
         result: dict[str, list[Suggestion]] = {}
         sections, headings = layout_of(document.sentences)
-        masks = SuggestibleMasks(document.sentences)
+        suggestible_for = self.suggestible(document.sentences)
         for qid, key in zip(wanted, keys):
-            keep = masks(self.never(key))
+            keep = suggestible_for(key)
             scores = sigmoid(logits[key])
             shown = logits[key] if threshold is None else np.where(
                 scores >= threshold, logits[key], -np.inf)

@@ -178,9 +178,10 @@ def article_groups(name: str, document, questions: dict[str, list[GoldSnippet]],
     first = ranker.first_stage(feats, keys, [ranker.weights.question_texts.get(k) or wording[k]
                                              for k in keys])
     texts = [normalise(s.text) for s in document.sentences]
+    suggestible_for = ranker.suggestible(document.sentences)
     out = []
     for key in keys:
-        keep = ranker.suggestible(document.sentences, key)
+        keep = suggestible_for(key)
         own, transfer, qf = first[key]
         labels = hit_labels(texts, [normalise(g.snippet) for g in questions[key]])
         out.append(Group(name, key, base_features(own, transfer, qf, feats.shared, feats.signals),

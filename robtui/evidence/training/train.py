@@ -31,7 +31,6 @@ from robtui.evidence.features import QUESTION_NAMES, SHARED_NAMES, lexical_text
 from robtui.evidence.model import DEFAULT_WEIGHTS, GENERIC_NAMES, RankerWeights, save_weights
 from robtui.evidence.ranker import (
     Ranker,
-    SuggestibleMasks,
     active_questions,
     generic_block,
     sigmoid,
@@ -136,13 +135,13 @@ class Prepared:
     pointer: np.ndarray | None = None  # per row: a pointer (Settings.pointers)
 
     @cached_property
-    def _masks(self) -> list[SuggestibleMasks]:
-        return [SuggestibleMasks(d.document.sentences) for d in self.docs]
+    def _suggestible(self) -> list:
+        return [self.space.suggestible(d.document.sentences) for d in self.docs]
 
     def suggestible(self, number: int, key: str) -> np.ndarray:
         """The sentences of document ``number`` that `suggest` may show for ``key``
         (Ranker.suggestible)."""
-        return self._masks[number](self.space.never(key))
+        return self._suggestible[number](key)
 
 
 def fit_tables(texts: list[str], settings: Settings) -> tuple[TfidfTable, TfidfTable]:
