@@ -383,6 +383,31 @@ def joined_abstract_subheading(title: str) -> str | None:
     return rest if is_abstract_subheading(rest) else None
 
 
+# Top-level names that open a section again in an article of several studies (a feasibility
+# study, then the trial, each with its own methods and results), printed on one heading line
+# with the first subheading: "METHODS Recruitment and randomisation".
+_REOPENING = frozenset({"methods", "method", "results", "discussion"})
+
+
+def joined_top_subheading(title: str) -> tuple[str, str] | None:
+    """For one heading that joins a top-level name to its first subheading ("METHODS
+    Recruitment and randomisation", "Results Participant flow"), (top-level label, subheading);
+    else None. The name must be set apart: in capitals, or followed by a capitalised word."""
+    words = title.split()
+    if len(words) < 2:
+        return None
+    first = normalise_heading(words[0])
+    if first not in _REOPENING:
+        return None
+    rest = " ".join(words[1:])
+    if not (words[0].isupper() or words[1][:1].isupper()):
+        return None
+    norm = normalise_heading(rest)
+    if not norm or norm.split()[0] in {"and", "of", "the", "for", "in", "on", "from", "to"}:
+        return None
+    return TOP_LEVEL[first], rest
+
+
 @dataclass
 class SectionTracker:
     """Follows the headings of a document and says which section the text is in."""
@@ -415,6 +440,12 @@ class SectionTracker:
         if joined is None and self._opens_unlabelled_abstract(norm):
             joined = title  # "Purpose:" first on the page, with no "Abstract" above it
         label = "abstract" if joined else match_heading(title, self.current)
+        reopened = None if joined or self.in_abstract else joined_top_subheading(title)
+        if reopened is not None and (label is None or top_section(label) != reopened[0]):
+            top, rest = reopened
+            label = match_heading(rest, top) or top
+            if top_section(label) != top:  # "METHODS Funding": the subheading is not in methods
+                label = top
         if label is None:
             # Unknown subheading: stay in the enclosing top-level section.
             self.current = top_section(self.current)

@@ -114,6 +114,29 @@ def test_a_heading_that_only_starts_with_summary_is_not_an_abstract() -> None:
     assert tracker.heading("Abstract") == "abstract"  # the plain heading still opens it
 
 
+def test_a_second_study_opens_methods_again_at_a_joined_heading() -> None:
+    """An article reporting a feasibility study and then the trial has a second "Methods"
+    after the first "Results"; printed on one line with its first subheading ("METHODS
+    Recruitment and randomisation") it once read as a results subheading, and the trial's
+    methods (blinding, analysis) as results."""
+    tracker = SectionTracker()
+    for heading in ("Methods", "Statistical analysis", "Results"):
+        tracker.heading(heading)
+    assert tracker.heading("METHODS Recruitment and randomisation") == "methods.randomisation"
+    assert tracker.heading("Statistical analysis") == "methods.statistical_methods"
+    assert tracker.heading("Results Participant flow") == "results.participant_flow"
+    assert tracker.heading("DISCUSSION Principal findings") == "discussion"
+
+
+@pytest.mark.parametrize("heading", ["Results of the feasibility study", "Methods used",
+                                     "methods in brief"])
+def test_headings_that_only_start_with_a_section_name_are_not_joined(heading: str) -> None:
+    tracker = SectionTracker()
+    tracker.heading("Results")
+    tracker.heading("Recruitment")
+    assert tracker.heading(heading) == "results"
+
+
 REPORT = """A fictional trial of something
 
 Abstract
