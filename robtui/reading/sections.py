@@ -213,6 +213,7 @@ ABSTRACT_SUB = frozenset(
         "subjects",
         "importance",
         "outcomes",
+        "discussion",  # protocols: Background, Methods/Design, Discussion, Trial registration
     ]
 )
 _ABSTRACT_PHRASES = frozenset(
@@ -312,7 +313,9 @@ def is_abstract_subheading(title: str) -> bool:
     norm = normalise_heading(title)
     if norm in _ABSTRACT_PHRASES:
         return True
-    return all(word in ABSTRACT_SUB or word in {"and", "of", "the"} for word in norm.split())
+    # "Methods/Design", the subheading of protocol abstracts in several journals
+    words = norm.replace("/", " ").split()
+    return all(word in ABSTRACT_SUB or word in {"and", "of", "the"} for word in words)
 
 
 # Run-in headings: "Randomisation and masking. Patients were ...".

@@ -107,6 +107,17 @@ def test_journal_abstract_subheadings_keep_the_abstract_together() -> None:
     assert tracker.heading("Introduction") == "introduction"
 
 
+def test_a_protocol_abstract_keeps_its_methods_design_subheading() -> None:
+    tracker = SectionTracker()
+    tracker.heading("Abstract")
+    tracker.heading("Background")
+    assert tracker.heading("Methods/Design") == "abstract"
+    assert tracker.heading("Discussion") == "abstract"
+    assert tracker.heading("Trial registration") == "abstract"
+    assert tracker.heading("Background") == "introduction"
+    assert tracker.heading("Methods/Design") == "methods"
+
+
 def test_a_heading_that_only_starts_with_summary_is_not_an_abstract() -> None:
     tracker = SectionTracker()
     tracker.heading("Methods")
