@@ -156,6 +156,60 @@ def test_reading_order_full_width_block_between_column_runs() -> None:
                       ["lower", "left"], ["lower", "right"]]
 
 
+def _columns_then_headed_full_width_block(heading_font: str) -> list[Glyph]:
+    """Two columns (the left one a line longer), then under them a one-word heading at the left
+    margin and a full-width paragraph: the back matter of a two-column article's last page."""
+    glyphs = []
+    for i in range(6):
+        glyphs += _glyphs(f"left column {i} text here", 40, 100 + 12 * i)
+        if i < 5:
+            glyphs += _glyphs(f"right column {i} text here", 300, 100 + 12 * i)
+    glyphs += _glyphs("Acknowledgements", 40, 190, font=heading_font)
+    for i in range(2):
+        glyphs += _glyphs(f"we thank {i} the invented people who helped with this invented page ok",
+                          40, 202 + 12 * i)
+    return glyphs
+
+
+def test_a_heading_under_the_columns_is_read_with_the_block_it_heads() -> None:
+    """Breuel's rules alone put the heading (left of the right column, nothing between them)
+    before the right column, cutting the right column's text off the left column's."""
+    page = analyse_page(PageGlyphs(1, 595.0, 842.0,
+                                   _columns_then_headed_full_width_block("Body-Bold"), [], [], 0))
+    texts = [line.text for line in page.lines]
+    assert len(texts) == 14  # nothing lost or doubled
+    assert texts[:6] == [f"left column {i} text here" for i in range(6)]
+    assert texts[6:11] == [f"right column {i} text here" for i in range(5)]
+    assert texts[11] == "Acknowledgements"
+    assert texts[12].startswith("we thank 0")
+
+
+def test_a_plain_short_line_under_the_columns_keeps_breuels_order() -> None:
+    # not set apart as a heading: the short line is the left column's last, as before
+    page = analyse_page(PageGlyphs(1, 595.0, 842.0,
+                                   _columns_then_headed_full_width_block("Body"), [], [], 0))
+    texts = [line.text for line in page.lines]
+    assert texts.index("Acknowledgements") < texts.index("right column 0 text here")
+
+
+def test_headings_stacked_over_their_text_stay_in_order() -> None:
+    glyphs = _glyphs("Abstract", 40, 100, font="Body-Bold", size=12.0)
+    glyphs += _glyphs("Background", 40, 114, font="Body-Bold")
+    glyphs += _glyphs("an invented opening line of the abstract under its headings", 40, 128)
+    glyphs += _glyphs("and a second invented line of the same paragraph of text", 40, 140)
+    blocks = geo_blocks(*_segments_and_size(glyphs))
+    size = _segments_and_size(glyphs)[1]
+    order = reading_order(blocks, size)
+    lines = [seg.line.text for block in order for seg in block.segments]
+    assert lines[:2] == ["Abstract", "Background"] and len(lines) == 4
+
+
+def _segments_and_size(glyphs: list[Glyph]):
+    rows = text_rows(rows_of(glyphs))
+    size = body_size(rows)
+    return segments(rows, find_gutters(rows, size), 595.0, size), size
+
+
 def test_a_page_that_defeats_the_analysis_is_read_in_plain_order(monkeypatch) -> None:
     def broken(page, rows):
         raise ValueError("invented failure")

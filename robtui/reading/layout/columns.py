@@ -308,8 +308,65 @@ def _same_cell(a: tuple[float, float], b: tuple[float, float]) -> bool:
     return abs(a[0] - b[0]) < 2 and abs(a[1] - b[1]) < 2
 
 
-def reading_order(blocks: list[GeoBlock]) -> list[GeoBlock] | None:
-    """Blocks in reading order (Breuel 2003), or None when the page has too many to order."""
+# A heading set apart this near (share of the body size) above a block leads into that block.
+LEAD_IN_GAP_EM = 1.5
+LEAD_IN_WORDS = 12
+
+
+def _lead_ins(blocks: list[GeoBlock], size: float) -> dict[int, int]:
+    """{heading block: the block it leads into}: a block of one or two short lines set apart
+    (bold, or larger than the body), with a block starting just below it that spans it.
+    A heading is read with the text it heads: alone, Breuel's rules put a heading that sits
+    under a run of columns, above a full-width block, before the columns' right-hand run."""
+    out: dict[int, int] = {}
+    for i, a in enumerate(blocks):
+        lines = [seg.line for seg in a.segments]
+        if len(lines) > 2 or any(len(ln.words) > LEAD_IN_WORDS for ln in lines):
+            continue
+        if not all(ln.bold or ln.size >= size + 0.8 for ln in lines):
+            continue
+        below = [(b.top, j) for j, b in enumerate(blocks)
+                 if j != i and b.top >= a.bottom - 1 and b.x0 <= a.x0 + 1 and b.x1 >= a.x1 - 1]
+        if not below:
+            continue
+        top, j = min(below)
+        crossing = any(k not in (i, j) and c.top < top and c.bottom > a.bottom
+                       and c.x0 < a.x1 and c.x1 > a.x0 for k, c in enumerate(blocks))
+        if top - a.bottom <= LEAD_IN_GAP_EM * size and not crossing:
+            out[i] = j
+    return out
+
+
+def reading_order(blocks: list[GeoBlock], size: float = 0.0) -> list[GeoBlock] | None:
+    """Blocks in reading order (Breuel 2003), or None when the page has too many to order.
+    With the body ``size``, a heading is ordered as one with the block it leads into."""
+    leads = _lead_ins(blocks, size) if size else {}
+    if leads:
+        heads: dict[int, list[int]] = {}  # the block led into: the headings above it, in order
+        for i in sorted(leads, key=lambda i: blocks[i].top):
+            j = leads[i]
+            seen = {i}
+            while j in leads and j not in seen:  # "Abstract" over "Background" over the text
+                seen.add(j)
+                j = leads[j]
+            heads.setdefault(j, []).append(i)
+        units: list[GeoBlock] = []
+        members: dict[int, list[GeoBlock]] = {}
+        for j, b in enumerate(blocks):
+            if j in leads:
+                continue
+            unit = b
+            if j in heads:
+                group = [blocks[i] for i in heads[j]] + [b]
+                unit = GeoBlock([seg for g in group for seg in g.segments],
+                                min(g.x0 for g in group), min(g.top for g in group),
+                                max(g.x1 for g in group), max(g.bottom for g in group))
+                members[id(unit)] = group
+            units.append(unit)
+        ordered = reading_order(units)
+        if ordered is None:
+            return None
+        return [m for unit in ordered for m in members.get(id(unit), [unit])]
     n = len(blocks)
     if n > MAX_BLOCKS:
         return None

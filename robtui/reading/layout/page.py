@@ -103,7 +103,7 @@ def _analysed(page: PageGlyphs, rows: list[TextRow]) -> PageLines:
         taken = {id(s) for group in groups for s in group}
         segs = [s for s in segs if id(s) not in taken]
     blocks = geo_blocks(segs, size)
-    ordered = reading_order(blocks)
+    ordered = reading_order(blocks, size)
     warnings = []
     if ordered is None:
         warnings.append(
