@@ -336,3 +336,54 @@ def test_short_lines_beside_the_other_column_leave_no_gutter_in_their_own() -> N
     size = body_size(rows)
     lefts = [g for g in find_gutters(rows, size) if g.x1 < 300]
     assert lefts == []
+
+
+# -- style changes between lines ---------------------------------------------------------------
+
+
+def _mixed_line(pieces: list[tuple[str, str]], x: float, baseline: float) -> list[Glyph]:
+    """One line set from (text, font) pieces, a space between them."""
+    glyphs = []
+    for text, font in pieces:
+        glyphs += _glyphs(text, x, baseline, font=font)
+        x += (len(text) + 1) * 5.0
+    return glyphs
+
+
+def _page_texts_by_block(glyphs: list[Glyph]) -> list[list[str]]:
+    from robtui.reading.layout.blocks import page_blocks
+
+    page = analyse_page(PageGlyphs(1, 595.0, 842.0, glyphs, [], [], 0))
+    return [[line.text for line in block.lines] for block in page_blocks(page)]
+
+
+def test_a_line_of_statistics_with_italic_letters_stays_in_its_paragraph() -> None:
+    """Counted by word, "(p = 0.01; d = 0.70) and oppo-" is mostly italic and once parted
+    from its paragraph, leaving "oppo-" / "sitional" unjoined."""
+    glyphs = _glyphs("an invented paragraph line that runs on to the", 40, 100)
+    italic, roman = "Body-Italic", "Body"
+    glyphs += _mixed_line([("(p", italic), ("=", italic), ("0.01;", roman), ("d", italic),
+                           ("=", italic), ("0.70),", roman), ("conduct", roman), ("(p", italic),
+                           ("<", italic), ("0.01)", roman), ("oppo-", roman)], 40, 112)
+    glyphs += _glyphs("sitional part of the same invented sentence here.", 40, 124)
+    assert len(_page_texts_by_block(glyphs)) == 1
+
+
+def test_a_phrase_in_italics_for_emphasis_stays_in_its_paragraph() -> None:
+    glyphs = _glyphs("in the second term we conducted", 40, 100)
+    # 37 of the line's 52 letters in italics; a line nearly all in italics (STYLE_THROUGHOUT)
+    # still parts, as an italic subheading must
+    glyphs += _mixed_line([("a", "Body"), ("cluster-randomised controlled pilot trial",
+                                           "Body-Italic"), ("in", "Body"), ("three", "Body"),
+                           ("schools", "Body")], 40, 112)
+    glyphs += _glyphs("of the invented region.", 40, 124)
+    assert len(_page_texts_by_block(glyphs)) == 1
+
+
+def test_an_italic_subheading_still_opens_a_block() -> None:
+    glyphs = _glyphs("the end of an invented paragraph.", 40, 100)
+    glyphs += _glyphs("Invented Rating Scale (IRS)", 40, 112, font="Body-Italic")
+    glyphs += _glyphs("A new paragraph of invented text follows here", 40, 124)
+    glyphs += _glyphs("and goes on over a second line of text.", 40, 136)
+    blocks = _page_texts_by_block(glyphs)
+    assert ["Invented Rating Scale (IRS)"] in blocks

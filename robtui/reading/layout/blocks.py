@@ -222,6 +222,12 @@ def _leading(lines: list[Line]) -> float:
     return statistics.median(gaps) if gaps else 12.0
 
 
+def _style_changes(prev: Line, line: Line) -> bool:
+    """Two lines each set in one style throughout, and in different ones: a heading, a
+    caption's title or a legend begins or ends. A line of mixed styles changes none."""
+    return prev.style is not None and line.style is not None and prev.style != line.style
+
+
 def page_blocks(page: PageLines) -> list[PBlock]:
     """Blocks of one page in reading order: body, heading, caption, aside; tables and
     figures last."""
@@ -242,11 +248,11 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             or line.column != prev.column and not _wraps_item(current, line, prev, leading)
             or line.top - prev.top > 1.35 * max(leading, prev.size * 1.25)
             or line.top < prev.top
-            or line.bold != prev.bold
-            or line.italic != prev.italic
+            or _style_changes(prev, line)
             or abs(line.size - prev.size) > 0.6
             or (line.font == body_font) != (prev.font == body_font)
             and min(len(line.words), len(prev.words)) <= 8
+            and line.style is not None and prev.style is not None  # not italics in a line
             or line.font != prev.font
             and len(current.lines) == 1
             and len(prev.words) <= 6

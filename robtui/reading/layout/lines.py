@@ -77,6 +77,13 @@ class Word:
     font: str = ""  # the font's family key (subset tag and variant number removed)
 
 
+# Share of a line's letters in one style (bold or not, italic or not) for the line to be set in
+# that style throughout (our own setting, no source): a heading's few other letters are a
+# bracketed abbreviation or a number.
+STYLE_THROUGHOUT = 0.8
+STYLE_MIN_LETTERS = 4
+
+
 @dataclass
 class Line:
     words: list[Word]
@@ -100,6 +107,24 @@ class Line:
     @cached_property
     def italic(self) -> bool:
         return sum(w.italic for w in self.words) * 2 > len(self.words)
+
+    @cached_property
+    def style(self) -> tuple[bool, bool] | None:
+        """(bold, italic) when the line is set in one style throughout (at least
+        STYLE_THROUGHOUT of its letters bold, or not, and italic, or not), else None: a mixed
+        line, such as statistics with their italic p, d and n ("(p = 0.01; d = 0.70), conduct
+        (p < 0.01; d = 1.03) and oppo-") or a phrase set in italics for emphasis."""
+        letters = [sum(ch.isalpha() for ch in w.text) for w in self.words]
+        total = sum(letters)
+        if total < STYLE_MIN_LETTERS:  # "p = .973.", "η2 = .002).": too few letters to tell
+            return None
+        out = []
+        for attr in ("bold", "italic"):
+            share = sum(n for w, n in zip(self.words, letters) if getattr(w, attr)) / total
+            if STYLE_THROUGHOUT > share > 1 - STYLE_THROUGHOUT:
+                return None
+            out.append(share >= STYLE_THROUGHOUT)
+        return out[0], out[1]
 
     @cached_property
     def size(self) -> float:
