@@ -20,7 +20,12 @@ Box = tuple[float, float, float, float]
 # in a paragraph is the text naming it.
 _CAPTION = re.compile(
     r"^(?=(?-i:[A-Z]))(?:(?:supplementary|extended data|online)\s+)?(?:table|fig\.?|figure|chart)"
-    r"\s*[A-Z]?\d+[A-Za-z]?\b",
+    r"\s*[A-Z]?\d+[A-Za-z]?\b"
+    # a caption names its float; a sentence about it goes on with a verb or a conjunction
+    # ("Figure 2 shows the flow of participants", "Table 1 and figure 2 give"): prose
+    r"(?!\s+(?-i:(?:shows?|presents?|summari[sz]es?|illustrates?|gives?|depicts?|displays?"
+    r"|lists?|reports?|describes?|provides?|compares?|contains?|details|outlines?|indicates?"
+    r"|demonstrates?|reveals?|highlights?|and|also|was|were|is|are)\b))",
     re.IGNORECASE,
 )
 _HEADING_END_OK = re.compile(r"[\w)\]?:’'\"]$")

@@ -187,3 +187,15 @@ def test_a_report_opening_with_a_section_keeps_its_subheadings() -> None:
     doc = document_from_text("Abstract\n\nKey findings\n\nWalking lifted mood a little.\n")
     kinds = {s.text: s.block for s in doc.sentences}
     assert kinds["Abstract"] == "heading" and kinds["Key findings"] == "heading"
+
+
+@pytest.mark.parametrize("opening", ["Table 1 shows", "Figure 2 presents", "Table 2 and figure 1 give"])
+def test_a_paragraph_that_speaks_of_a_table_is_prose_not_its_caption(opening: str) -> None:
+    """"Table 1 shows baseline characteristics..." opens a paragraph of results, and was read
+    as a caption (kept apart from the prose and weighed as one by the ranker)."""
+    text = ("Results\n\n"
+            f"{opening} the invented baseline data of both groups. The groups were similar.\n\n"
+            "Table 1. Baseline data of the invented groups.\n")
+    by_text = {s.text: s for s in document_from_text(text).sentences}
+    assert by_text["The groups were similar."].block == "body"
+    assert by_text["Table 1. Baseline data of the invented groups."].block == "caption"
