@@ -58,3 +58,14 @@ def test_evidence_benchmark_small_run_ranks_better_than_its_baseline():
     # reading order keeps the first place: recall@1 is the same in both orders
     assert macro(figs["spread txt"], "recall1") == model
     assert len(result["thresholds"]) == 2
+
+
+def test_first_hit_rank_when_the_order_leaves_every_positive_out() -> None:
+    from robtui.evidence.training.metrics import first_hit_rank
+
+    labels = np.array([False, True, False])
+    scores = np.array([0.1, 0.9, 0.5])
+    assert first_hit_rank(scores, labels) == 1
+    assert first_hit_rank(scores, labels, np.array([2, 1])) == 2
+    # the candidates shown leave the only evidence out (a kind never suggested): a miss
+    assert first_hit_rank(scores, labels, np.array([2, 0])) is None

@@ -16,7 +16,8 @@ def first_hit_rank(scores: np.ndarray, labels: np.ndarray,
         return None
     if order is None:
         order = np.argsort(-scores, kind="stable")
-    return int(np.nonzero(labels[order])[0][0]) + 1
+    hits = np.nonzero(labels[order])[0]  # none when the order leaves every positive out
+    return int(hits[0]) + 1 if len(hits) else None
 
 
 def auroc(scores: Sequence[float], positive: Sequence[bool]) -> float | None:
