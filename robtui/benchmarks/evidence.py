@@ -3,7 +3,10 @@
 Grouped cross-validation only: for each fold the ranker is trained (settings as shipped, see
 the weights' provenance) on the other folds' articles and evaluated on the held-out ones, as
 text read by robtui's text reader and as two-column PDFs rendered from the same text and read
-by robtui's PDF reader. Beside it, in the same run, a baseline: TF-IDF cosine between the
+by robtui's PDF reader: drawn by robtui's own writer (devtools/pdf_writer.py, the "pdf" route)
+and by reportlab's platypus (devtools/platypus_writer.py, the "platypus" route: Times body,
+Helvetica-Bold headings, justified columns, a layout the reader was not tuned on), each with
+the share of the gold sentences the reading gives back. Beside it, in the same run, a baseline: TF-IDF cosine between the
 question's wording and each sentence (the fold's vocabulary). Per mapped question and
 macro-averaged: recall@1/3/5, MRR, sentences read before the first hit, AUROC of "evidence
 present" from the top score. Then calibration, the no-evidence threshold, the transfer model
@@ -33,7 +36,9 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--corpus", type=Path, default=None, help="corpus folder (default ../shared/corpus)")
     p.add_argument("--folds", type=int, default=5, help="grouped CV folds (default 5)")
     p.add_argument("--articles", type=int, default=None, help="first N articles only (quick runs)")
-    p.add_argument("--no-pdf", action="store_true", help="skip the PDF route")
+    p.add_argument("--no-pdf", action="store_true", help="skip the PDF routes")
+    p.add_argument("--writer", choices=("both", "robtui", "platypus"), default="both",
+                   help="which PDF routes: robtui's writer, reportlab platypus or both (default)")
     p.add_argument("--no-speed", action="store_true", help="skip the timings")
     p.add_argument("--speed-only", action="store_true",
                    help="only the timings (no cross-validation; about a minute)")
@@ -140,14 +145,40 @@ def _calibration(pairs: list[tuple[float, bool]]) -> dict:
     return {"ece": float(ece), "brier": float(np.mean((s - y) ** 2)), "bins": table}
 
 
+PDF_ROUTES = {"pdf": "robtui", "platypus": "platypus"}  # route -> the writer drawing its PDFs
+
+
+def _read_pdfs(corpus, mapping, writer: str) -> tuple[list, dict]:
+    """The corpus drawn by ``writer``, read and labelled, with how many gold sentences the
+    readings give back (bench reading's measure, averaged over the articles)."""
+    from robtui.benchmarks._corpus_pdf import labelled_pdf_documents
+    from robtui.benchmarks.reading import sentence_recovery
+
+    t0 = time.perf_counter()
+    with tempfile.TemporaryDirectory() as tmp:
+        docs = labelled_pdf_documents(corpus, mapping, Path(tmp), writer)
+    seconds = time.perf_counter() - t0
+    found = [sentence_recovery(a, d.document) for a, d in zip(corpus, docs, strict=True)]
+    n = max(1, len(found))
+    recovery = {
+        "writer": writer, "seconds": seconds,
+        "recovered": sum(r.recovered for r in found) / n,
+        "as_one": sum(r.as_one for r in found) / n,
+        "exact_f1": sum(r.exact_f1 for r in found) / n,
+        "unaligned": sum(s is None for d in docs for s in d.spans),
+        "sentences": sum(len(d.spans) for d in docs),
+    }
+    return docs, recovery
+
+
 def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool,
-                   second_stage: bool = True) -> dict:
+                   second_stage: bool = True, writers: tuple[str, ...] = ("robtui", "platypus"),
+                   ) -> dict:
     """Grouped CV on the corpus: each fold's first stage trained on the other articles; the
     shipped second stage (learned on the real PDFs, none of them in the corpus) on top of it
-    unless ``second_stage`` is False."""
+    unless ``second_stage`` is False. ``writers``: which PDF routes (PDF_ROUTES) when ``pdf``."""
     from sklearn.model_selection import GroupKFold
 
-    from robtui.benchmarks._corpus_pdf import labelled_pdf_documents
     from robtui.evidence.adjustment import load_adjustment
     from robtui.evidence.ranker import (
         Ranker,
@@ -164,7 +195,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     if adjustment is None:
         print("second stage: none (first stage alone)")
     else:
-        routes = ("txt", "pdf") if pdf else ("txt",)
+        routes = ("txt", "pdf") if pdf else ("txt",)  # every PDF route is a PDF report
         print("second stage: the shipped one (weights/adjustment.npz) on each fold's first stage, "
               f"for {', '.join(adjustment.domains)} reports only: "
               + ", ".join(f"{r} route {'with' if adjustment.applies_to(r) else 'without'} it"
@@ -178,22 +209,25 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
     t0 = time.perf_counter()
     txt_docs = labelled_documents(corpus, mapping, "txt")
     print(f"read {len(txt_docs)} articles as text in {time.perf_counter() - t0:.1f} s")
-    pdf_docs = None
-    if pdf:
-        t0 = time.perf_counter()
-        with tempfile.TemporaryDirectory() as tmp:
-            pdf_docs = labelled_pdf_documents(corpus, mapping, Path(tmp))
-        lost = sum(s is None for d in pdf_docs for s in d.spans)
-        total = sum(len(d.spans) for d in pdf_docs)
-        print(f"rendered and read {len(pdf_docs)} two-column PDFs in "
-              f"{time.perf_counter() - t0:.1f} s ({lost} of {total} PDF sentences not aligned "
-              "to the source text; they count as non-hits)")
-    tallies = {name: Tally() for name in ("model txt", "model pdf", "spread txt", "spread pdf",
-                                          "baseline txt", "baseline pdf", "transfer txt")}
+    routes_docs: dict[str, list] = {"txt": txt_docs}
+    recovery: dict[str, dict] = {}
+    for route, writer in PDF_ROUTES.items():
+        if not pdf or writer not in writers:
+            continue
+        routes_docs[route], recovery[route] = _read_pdfs(corpus, mapping, writer)
+        r = recovery[route]
+        print(f"{route} route: drew ({writer}) and read {len(corpus)} two-column PDFs in "
+              f"{r['seconds']:.1f} s; gold sentences recovered {r['recovered']:.3f}, as one "
+              f"sentence {r['as_one']:.3f}, exact sentence-text F1 {r['exact_f1']:.3f} "
+              f"({r['unaligned']} of {r['sentences']} PDF sentences not aligned to the source "
+              "text; they count as non-hits)")
+    tallies = {f"{kind} {route}": Tally() for kind in ("model", "spread", "baseline")
+               for route in routes_docs}
+    tallies["transfer txt"] = Tally()
     calib: list[tuple[float, bool]] = []
     thresholds = []
     # per route: [flagged as no evidence, total], with each route's own cut (threshold_for)
-    flagged = {route: {"with": [0, 0], "without": [0, 0]} for route in ("txt", "pdf")}
+    flagged = {route: {"with": [0, 0], "without": [0, 0]} for route in ("txt", *PDF_ROUTES)}
     groups = np.arange(len(txt_docs))
     for fold, (train, test) in enumerate(GroupKFold(n_splits=folds).split(txt_docs, groups=groups)):
         t0 = time.perf_counter()
@@ -214,9 +248,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
             transfer[key] = LogisticRegression(C=1.0, solver="liblinear",
                                                random_state=settings.seed).fit(gx, gy)
         for i in test:
-            for route, docs in (("txt", txt_docs), ("pdf", pdf_docs)):
-                if docs is None:
-                    continue
+            for route, docs in routes_docs.items():
                 doc = docs[i]
                 scores, base, logits = _scores_for(ranker, doc, keys, texts)
                 # every column ranks the same candidates as `suggest`: no bare topic headings
@@ -256,6 +288,7 @@ def cross_validate(corpus_dir: Path, folds: int, articles: int | None, pdf: bool
         "calibration": _calibration(calib),
         "thresholds": thresholds,
         "flagged": flagged,
+        "recovery": recovery,
         "settings": asdict(settings),
     }
 
@@ -354,17 +387,22 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     print("Evidence ranking on unseen articles (grouped cross-validation by article)")
     print("Corpus: CONSORT-TM development split; Kilicoglu et al., J Biomed Inform 2021;116:103717")
+    writers = ("robtui", "platypus") if args.writer == "both" else (args.writer,)
     result = cross_validate(Path(corpus), args.folds, args.articles, not args.no_pdf,
-                            second_stage=not args.first_stage_only)
+                            second_stage=not args.first_stage_only, writers=writers)
     figs = result["figures"]
     keys = result["keys"]
-    cols = {n: figs[n] for n in ("model txt", "model pdf") if n in figs}
-    _print_table("Ranker (trained on the other folds), sentences by score", cols, keys)
-    cols = {n: figs[n] for n in ("spread txt", "spread pdf") if n in figs}
+    routes = ("txt", *PDF_ROUTES)
+
+    def columns(kind: str) -> dict:
+        return {f"{kind} {r}": figs[f"{kind} {r}"] for r in routes if f"{kind} {r}" in figs}
+
+    _print_table("Ranker (trained on the other folds), sentences by score", columns("model"), keys)
     _print_table("The same ranker in reading order (spread over sections, as the workbench and "
-                 "`suggest --spread` show it)", cols, keys)
-    cols = {n: figs[n] for n in ("baseline txt", "baseline pdf") if n in figs}
-    _print_table("Baseline: TF-IDF cosine of question wording and sentence (same run)", cols, keys)
+                 "`suggest --spread` show it)", columns("spread"), keys)
+    _print_table("Baseline: TF-IDF cosine of question wording and sentence (same run)",
+                 columns("baseline"), keys)
+    print("  pdf = drawn by robtui's writer; platypus = drawn by reportlab platypus")
     _print_table("Transfer model (used for questions without training data), leave-one-question-out",
                  {"transfer txt": figs["transfer txt"]}, keys)
     print("  read = mean sentences read before the first hit; AUROC = evidence present vs absent "
@@ -378,32 +416,40 @@ def main(argv: list[str] | None = None) -> int:
     print(f"No-evidence threshold per fold: {', '.join(f'{t:.3f}' for t in result['thresholds'])}; "
           f"flagged 'no sentence found' for {f['without'][0]}/{f['without'][1]} (article, question) "
           f"pairs without gold evidence and {f['with'][0]}/{f['with'][1]} with it")
-    f = result["flagged"]["pdf"]
-    if f["with"][1] + f["without"][1]:
-        print(f"  PDF route, each question's cut for a PDF (the second stage's, fitted on the real "
-              f"PDFs, for the questions it was fitted on): flagged {f['without'][0]}/"
-              f"{f['without'][1]} pairs without gold evidence and {f['with'][0]}/{f['with'][1]} "
-              "with it")
+    for route in PDF_ROUTES:
+        f = result["flagged"][route]
+        if f["with"][1] + f["without"][1]:
+            print(f"  {route} route, each question's cut for a PDF (the second stage's, fitted on "
+                  f"the real PDFs, for the questions it was fitted on): flagged {f['without'][0]}/"
+                  f"{f['without'][1]} pairs without gold evidence and {f['with'][0]}/"
+                  f"{f['with'][1]} with it")
     from robtui.evidence.training.metrics import macro
 
     m = {n: {a: macro(figs[n], a) for a in ("recall1", "recall3")} for n in figs}
     print(f"\nTargets: {TARGETS}")
-    for name in ("model txt", "model pdf", "spread txt", "spread pdf"):
+    for name in [f"{kind} {r}" for kind in ("model", "spread") for r in routes]:
         if name in m:
             print(f"  {name}: macro recall@1 {m[name]['recall1']:.3f}, recall@3 {m[name]['recall3']:.3f}")
-    if "model pdf" in m:
-        print(f"  PDF - txt: recall@1 {m['model pdf']['recall1'] - m['model txt']['recall1']:+.3f}, "
-              f"recall@3 {m['model pdf']['recall3'] - m['model txt']['recall3']:+.3f}")
+    for route in PDF_ROUTES:
+        name = f"model {route}"
+        if name in m:
+            print(f"  {route} - txt: recall@1 {m[name]['recall1'] - m['model txt']['recall1']:+.3f}, "
+                  f"recall@3 {m[name]['recall3'] - m['model txt']['recall3']:+.3f}")
+    for route, r in result["recovery"].items():
+        print(f"  {route} reading: gold sentences recovered {r['recovered']:.3f}, as one sentence "
+              f"{r['as_one']:.3f}")
     for key in ("1.2", "2.1", "5.1"):
         if key in figs["model txt"]:
-            print(f"  AUROC {key}: txt {_fmt(figs['model txt'][key].auroc)}"
-                  + (f", pdf {_fmt(figs['model pdf'][key].auroc)}" if "model pdf" in figs else ""))
+            print(f"  AUROC {key}: " + ", ".join(
+                f"{r} {_fmt(figs[f'model {r}'][key].auroc)}" for r in routes
+                if f"model {r}" in figs))
     speed = {} if args.no_speed else _speed(Path(corpus))
     if speed:
         _print_speed(speed)
     _write_json(args.json, {
         "figures": {n: {k: asdict(v) for k, v in f.items()} for n, f in figs.items()},
         "calibration": result["calibration"], "speed": speed, "settings": result["settings"],
+        "recovery": result["recovery"],
     })
     return 0
 

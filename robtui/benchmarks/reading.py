@@ -2,7 +2,8 @@
 
 Figures on the development articles of the shared CONSORT-TM corpus (Kilicoglu et al.,
 J Biomed Inform 2021;116:103717), read as text (document_from_text) and rendered as
-two-column PDFs (render_text_as_pdf, then read_document):
+two-column PDFs (render_text_as_pdf, then read_document; ``--writer platypus``: drawn by
+reportlab's platypus instead, devtools/platypus_writer.py, a layout the reader was not tuned on):
 
 - sentence-boundary F1 against the gold sentence offsets (text input: exact offsets);
 - share of gold sentences recovered from the PDF text (rapidfuzz ratio >= 90 against a PDF
@@ -233,37 +234,24 @@ def full_width_lines(article: Article) -> int:
     return sum(1 for line in article.text[:end].splitlines() if line.strip())
 
 
-def measure_article(article: Article, workdir: Path) -> ArticleFigures:
-    from rapidfuzz import process
-
-    from robtui.devtools.pdf_writer import render_text_as_pdf
+def measure_article(article: Article, workdir: Path, writer: str = "robtui") -> ArticleFigures:
+    from robtui.benchmarks._corpus_pdf import render_article
     from robtui.reading.reader import read_document
     from robtui.reading.text import document_from_text
 
-    gold = [_stripped(article.text, s.start, s.end) for s in article.sentences]
-    gold = [g for g in gold if g[1] > g[0]]
+    gold = gold_spans(article)
     txt = document_from_text(article.text, path=article.id)
     predicted = {(s.start, s.end) for s in txt.sentences}
     txt_f1 = _prf({e for _, e in predicted}, {e for _, e in gold})
     txt_exact = _prf(predicted, set(gold))
 
-    pdf_path = workdir / f"{article.id}.pdf"
-    render_text_as_pdf(article.text, pdf_path, full_width_lines=full_width_lines(article))
+    pdf_path = workdir / f"{article.id}-{writer}.pdf"
+    render_article(article, pdf_path, writer, full_width_lines(article))
     pdf = read_document(pdf_path, use_cache=False)
-    candidates = _pdf_candidates(pdf)
-    cand_texts = [c[0] for c in candidates]
-    single = [_squash(s.text) for s in pdf.sentences]
-    recovered = recovered_sentence = 0
+    recovery = sentence_recovery(article, pdf)
     methods_total = right_txt = right_pdf = 0
     abstract_total = abstract_txt = abstract_pdf = 0
-    gold_texts = [_squash(article.text[a:b]) for a, b in gold]
-    # Exact sentence matches between the PDF's and the gold sentences measure boundaries.
-    pdf_f1 = _prf(set(single), set(gold_texts))
-    for (a, b), gtext in zip(gold, gold_texts, strict=True):
-        index = _pdf_sentence_of(gtext, a / len(article.text), pdf, candidates, cand_texts)
-        recovered += index is not None
-        one = process.extractOne(gtext, single, scorer=fuzz.ratio)
-        recovered_sentence += one is not None and one[1] >= RECOVERY_CUTOFF
+    for (a, _), index in zip(gold, recovery.indices, strict=True):
         hit = txt.sentence_at(a)
         pdf_section = pdf.sentences[index].section if index is not None else None
         if in_gold_abstract(article, a):
@@ -276,21 +264,59 @@ def measure_article(article: Article, workdir: Path) -> ArticleFigures:
         methods_total += 1
         right_txt += hit is not None and label_ok(hit.section, accepted)
         right_pdf += pdf_section is not None and label_ok(pdf_section, accepted)
-    n = max(1, len(gold))
     return ArticleFigures(
         txt_f1,
         txt_exact,
-        pdf_f1,
-        recovered / n,
-        recovered_sentence / n,
+        recovery.exact_f1,
+        recovery.recovered,
+        recovery.as_one,
         methods_total,
         right_txt,
         right_pdf,
         abstract_total,
         abstract_txt,
         abstract_pdf,
-        _abstract_kept_in_columns(article, gold, gold_texts, workdir / "columns"),
+        _abstract_kept_in_columns(article, gold, recovery.gold_texts, workdir / "columns", writer),
     )
+
+
+@dataclass
+class Recovery:
+    """How well a PDF reading gives an article's gold sentences back."""
+
+    recovered: float  # share recovered by a PDF sentence or a run of two or three
+    as_one: float  # share recovered by one PDF sentence
+    exact_f1: float  # F1 of PDF sentences equal to gold ones (boundaries)
+    gold_texts: list[str]
+    indices: list[int | None]  # each gold sentence's PDF sentence (None: not recovered)
+
+
+def gold_spans(article: Article) -> list[tuple[int, int]]:
+    """The article's gold sentences as offsets without surrounding white space."""
+    gold = [_stripped(article.text, s.start, s.end) for s in article.sentences]
+    return [g for g in gold if g[1] > g[0]]
+
+
+def sentence_recovery(article: Article, pdf: Document) -> Recovery:
+    """The gold sentences of ``article`` found in ``pdf`` (rapidfuzz ratio >= RECOVERY_CUTOFF)."""
+    from rapidfuzz import process
+
+    gold = gold_spans(article)
+    candidates = _pdf_candidates(pdf)
+    cand_texts = [c[0] for c in candidates]
+    single = [_squash(s.text) for s in pdf.sentences]
+    gold_texts = [_squash(article.text[a:b]) for a, b in gold]
+    indices: list[int | None] = []
+    as_one = 0
+    for (a, _), gtext in zip(gold, gold_texts, strict=True):
+        indices.append(_pdf_sentence_of(gtext, a / len(article.text), pdf, candidates,
+                                        cand_texts))
+        one = process.extractOne(gtext, single, scorer=fuzz.ratio)
+        as_one += one is not None and one[1] >= RECOVERY_CUTOFF
+    n = max(1, len(gold))
+    # Exact sentence matches between the PDF's and the gold sentences measure boundaries.
+    return Recovery(sum(i is not None for i in indices) / n, as_one / n,
+                    _prf(set(single), set(gold_texts)), gold_texts, indices)
 
 
 def _pdf_sentence_of(gold_text: str, where: float, pdf: Document,
@@ -306,7 +332,7 @@ def _pdf_sentence_of(gold_text: str, where: float, pdf: Document,
 
 
 def _abstract_kept_in_columns(article: Article, gold: list[tuple[int, int]],
-                              gold_texts: list[str], folder: Path) -> int:
+                              gold_texts: list[str], folder: Path, writer: str = "robtui") -> int:
     """Gold abstract sentences the PDF reader places in the abstract when the abstract is set
     in two columns below a full-width title (as `bench evidence` renders the articles): its
     heading and first subheading then stand on consecutive lines of one column."""
@@ -315,7 +341,7 @@ def _abstract_kept_in_columns(article: Article, gold: list[tuple[int, int]],
     from robtui.benchmarks._corpus_pdf import pdf_document
 
     folder.mkdir(exist_ok=True)
-    pdf = pdf_document(article, folder)
+    pdf = pdf_document(article, folder, writer)
     single = [_squash(s.text) for s in pdf.sentences]
     kept = 0
     for (a, _), gtext in zip(gold, gold_texts, strict=True):
@@ -508,6 +534,10 @@ def main(argv: list[str]) -> int:
         "--large-pages", type=int, default=300, help="pages of the memory test PDF (0 skips it)"
     )
     parser.add_argument("--skip-corpus", action="store_true", help="speed and memory only")
+    parser.add_argument("--writer", choices=("robtui", "platypus"), default="robtui",
+                        help="which writer draws the corpus PDFs: robtui's own "
+                             "(devtools/pdf_writer.py, default) or reportlab's platypus "
+                             "(devtools/platypus_writer.py, a layout the reader was not tuned on)")
     parser.add_argument("--pages-of", type=Path, nargs="+", default=None, metavar="PDF",
                         help="only the page-by-page time and memory of these PDFs")
     args = parser.parse_args(argv)
@@ -523,7 +553,7 @@ def main(argv: list[str]) -> int:
     with tempfile.TemporaryDirectory(prefix="robtui-bench-reading-") as tmp:
         workdir = Path(tmp)
         if articles and not args.skip_corpus:
-            _print_corpus(articles, workdir, corpus)
+            _print_corpus(articles, workdir, corpus, args.writer)
         elif not articles:
             print("no corpus found (pass --corpus PATH); speed and memory on a sample report")
         source = [a.text for a in articles] if articles else [_sample_text()]
@@ -531,10 +561,12 @@ def main(argv: list[str]) -> int:
     return 0
 
 
-def _print_corpus(articles: list[Article], workdir: Path, corpus: Path) -> None:
-    rows = [measure_article(a, workdir) for a in articles]
+def _print_corpus(articles: list[Article], workdir: Path, corpus: Path,
+                  writer: str = "robtui") -> None:
+    rows = [measure_article(a, workdir, writer) for a in articles]
     total = sum(r.methods_total for r in rows)
-    print(f"corpus: {corpus} ({len(articles)} development articles, CONSORT-TM)")
+    print(f"corpus: {corpus} ({len(articles)} development articles, CONSORT-TM); PDFs drawn by "
+          + ("robtui's writer" if writer == "robtui" else "reportlab platypus"))
     print(
         f"  txt  sentence-boundary F1 (end offsets)  {statistics.mean(r.txt_f1 for r in rows):.3f}"
     )
