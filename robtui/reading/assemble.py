@@ -25,7 +25,10 @@ _CAPTION = re.compile(
     # ("Figure 2 shows the flow of participants", "Table 1 and figure 2 give"): prose
     r"(?!\s+(?-i:(?:shows?|presents?|summari[sz]es?|illustrates?|gives?|depicts?|displays?"
     r"|lists?|reports?|describes?|provides?|compares?|contains?|details|outlines?|indicates?"
-    r"|demonstrates?|reveals?|highlights?|and|also|was|were|is|are)\b))",
+    r"|demonstrates?|reveals?|highlights?|and|also|was|were|is|are)\b))"
+    # a label that a bracket, a semicolon or a comma goes on from is a reference in running
+    # text wrapped to a line's start ("Figure A3) that are", "Table 2, which"), no caption
+    r"(?!\s*[)\];])(?!\s*,(?!\s*cont))",
     re.IGNORECASE,
 )
 _HEADING_END_OK = re.compile(r"[\w)\]?:’'\"]$")

@@ -17,6 +17,7 @@ from robtui.errors import ReadingError
 from robtui.reading.assemble import Block, Box, SentenceMaker
 from robtui.reading.document import Document
 from robtui.reading.layout.blocks import (
+    INDENT_EM,
     PBlock,
     is_cover_sheet,
     page_blocks,
@@ -170,7 +171,7 @@ class BlockFlow:
             return
         if block.kind == "body" and self.open is not None and column_start and _continues(
             self.open.lines[-1], block.lines[0]
-        ):
+        ) and not _opens_indented(block):
             for line in block.lines:
                 line.page = block.page
             self.open.lines.extend(block.lines)
@@ -213,6 +214,16 @@ def _continues(last: Line, first: Line) -> bool:
         and last.bold == first.bold
         and last.italic == first.italic
     )
+
+
+def _opens_indented(block: PBlock) -> bool:
+    """A block whose first line is set in from the next by a paragraph's indent opens a
+    paragraph: it does not go on with the one left open in the column before."""
+    if len(block.lines) < 2:
+        return False
+    first, second = block.lines[0], block.lines[1]
+    low, high = INDENT_EM
+    return low * first.size <= first.x0 - second.x0 <= high * first.size
 
 
 # -- the reader --------------------------------------------------------------------------------

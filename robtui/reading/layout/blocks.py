@@ -4,8 +4,9 @@ Rules (common practice for journal PDFs, no source): lines at the top or bottom 
 repeat on many pages (digits ignored), bare page numbers and small print above the text are
 running heads, but only when they are set apart from the page's text (a paragraph running on
 from the margin into the page is text, however often its wording comes back) and, for lines
-that repeat with other numbers, when those numbers follow the page number. Blocks break at a change of column, wider line gaps and font changes; blocks
-opening with "Table n" / "Figure n" are captions; table regions are tables, after the text.
+that repeat with other numbers, when those numbers follow the page number. Blocks break at a
+change of column, wider line gaps, a first-line indent and font changes; blocks opening with
+"Table n" / "Figure n" are captions; table regions are tables, after the text.
 """
 
 from __future__ import annotations
@@ -17,7 +18,7 @@ from collections import Counter
 from dataclasses import dataclass, field
 
 from robtui.reading.assemble import is_caption, looks_like_heading
-from robtui.reading.layout.columns import JUSTIFIED_SPREAD, justified_spacing
+from robtui.reading.layout.columns import JUSTIFIED_SPREAD, is_list_label, justified_spacing
 from robtui.reading.layout.lines import Line, make_line
 from robtui.reading.layout.page import MARGIN_SHARE, NUMERIC, PageLines
 from robtui.reading.sections import (
@@ -32,6 +33,7 @@ from robtui.reading.sections import (
 # (lines of one paragraph are about 0.2 apart in their glyph boxes; our own setting, no source).
 SET_APART = 0.6
 HEAD_ROWS = 4  # a running head or footer has at most this many rows
+LEADING_SAMPLE = 3  # steps between body lines enough to tell the page's leading
 # A running line set on facing pages of one side only repeats on this share of that side's
 # pages, and on at least FACING_MIN of them (our own rule, no source).
 FACING_SHARE = 0.6
@@ -213,13 +215,19 @@ def is_cover_sheet(page: PageLines) -> bool:
 # -- blocks ----------------------------------------------------------------------------------
 
 
-def _leading(lines: list[Line]) -> float:
+def _leading(lines: list[Line], body_font: str = "") -> float:
+    """The page's line pitch: the median step between lines of one column in one size, taken
+    between lines of the body's font when there are a few (a page of spaced-out short lines
+    in another font, a list of abbreviations set as headings, sets no leading of its own)."""
     gaps = [
-        b.top - a.top
+        (b.top - a.top, a.font == b.font == body_font)
         for a, b in itertools.pairwise(lines)
         if a.column == b.column and 5 < b.top - a.top < 30 and abs(a.size - b.size) < 0.5
     ]
-    return statistics.median(gaps) if gaps else 12.0
+    body = [gap for gap, in_body in gaps if in_body]
+    if len(body) >= LEADING_SAMPLE:
+        return statistics.median(body)
+    return statistics.median(gap for gap, _ in gaps) if gaps else 12.0
 
 
 def _style_changes(prev: Line, line: Line) -> bool:
@@ -232,14 +240,14 @@ def page_blocks(page: PageLines) -> list[PBlock]:
     """Blocks of one page in reading order: body, heading, caption, aside; tables and
     figures last."""
     plain = page.lines
-    leading = _leading(plain)
     body_size = _body_size(plain)
     body_font = _body_font(plain, body_size)
+    leading = _leading(plain, body_font)
     blocks: list[PBlock] = []
     current: PBlock | None = None
     prev: Line | None = None
     legends: set[int] = set()  # blocks opened by a caption's legend in another weight
-    for line in plain:
+    for index, line in enumerate(plain):
         legend = _legend_of(current, line, prev, body_size)
         new = not legend and (
             current is None
@@ -259,7 +267,9 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             and looks_like_heading(prev.text)
             or is_caption(line.text)
             and not is_caption(current.lines[0].text)
+            and not _runs_on(prev, line)
             or _abstract_run_in_opens(line, prev, body_font)
+            or _indent_opens(line, prev, plain[index + 1] if index + 1 < len(plain) else None)
         )
         if new or legend and prev.words[-1].bold and not line.words[0].bold:
             # the caption's bold title ends its line, its legend follows: two blocks
@@ -284,6 +294,45 @@ def page_blocks(page: PageLines) -> list[PBlock]:
         rows = [[make_line([w for line in group for w in line.words])] for group in groups]
         blocks.append(PBlock("figure", [], page.number, rows=rows))
     return blocks
+
+
+def _runs_on(prev: Line, line: Line) -> bool:
+    """Whether ``line``, which opens like a caption, goes on with the sentence ``prev`` left
+    unfinished, in its type and leading: a reference in running text wrapped to a line's start
+    ("... shown in" over "Supplementary Table 1. The dose ..."). A float that interrupts a
+    paragraph stands apart in its type or by a gap, which part the blocks anyway."""
+    return (
+        line.column == prev.column
+        and not _SENTENCE_END.search(prev.text)
+        and prev.text[-1:].isalnum()
+        and abs(line.x0 - prev.x0) <= 0.3 * line.size
+        and line.font == prev.font and abs(line.size - prev.size) <= 0.3
+        and 0 < line.top - prev.top <= 1.6 * line.size
+    )
+
+
+INDENT_EM = (0.6, 4.0)  # a paragraph's first line is set in by this much of the size
+
+
+def _indent_opens(line: Line, prev: Line | None, nxt: Line | None) -> bool:
+    """Whether ``line`` opens a paragraph by its first-line indent (no wider gap above it, as
+    most journals set paragraphs): set in by INDENT_EM of its size from the line above, in the
+    same column and type, with the line below back at that line's left edge (lines that stay
+    set in hang under a list item or a reference, a line under an item's text after its
+    number or bullet goes on with it). The last line of a column opens one only after a line
+    that ends a sentence."""
+    if prev is None or line.column != prev.column or abs(line.size - prev.size) > 0.6:
+        return False
+    if (len(prev.words) > 1 and is_list_label(prev.words[0].text)
+            and abs(line.x0 - prev.words[1].box[0]) <= 0.3 * line.size):
+        return False
+    indent = line.x0 - prev.x0
+    if not (INDENT_EM[0] * line.size <= indent <= INDENT_EM[1] * line.size
+            and 0 < line.top - prev.top < 2 * line.size):
+        return False
+    if nxt is not None and nxt.column == line.column and 0 < nxt.top - line.top < 2 * line.size:
+        return abs(nxt.x0 - prev.x0) <= 0.3 * line.size
+    return _SENTENCE_END.search(prev.text) is not None
 
 
 def _wraps_item(block: PBlock | None, line: Line, prev: Line | None, leading: float) -> bool:

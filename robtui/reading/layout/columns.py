@@ -32,12 +32,19 @@ SPLIT_EM = 2.2
 MAX_BLOCKS = 220
 JUSTIFIED_GAPS = 4
 JUSTIFIED_SPREAD = 0.15
+FLUSH = 0.15  # a stretched line's ends lie this near (share of the size) its neighbour's
+PROSE_GAP_EM = 1.0  # words of prose stand closer than this (share of the size); cells further
 # Bullets set before list items; U+FFFD: a glyph mapped to no character, at a line's start
 # most often a bullet drawn from a symbol font.
 _BULLETS = "[\u2022\u25aa\u25b8\u25ba\u25cf\u25a0\u27a2\ufffd]"
 _BULLET = re.compile(_BULLETS)
 _SIDE_WORD = re.compile(r"[^\W\d_]{4}")  # four letters in a row: a word, not a reference mark
 _LIST_LABEL = re.compile(r"^(?:\(?\d{1,3}[.)]?|\[\d{1,3}\]|[a-z][.)]|[•·▪◦–-]|" + _BULLETS + ")$")
+
+
+def is_list_label(text: str) -> bool:
+    """Whether ``text`` (one word) is a list number or bullet set before an item."""
+    return _LIST_LABEL.match(text) is not None
 
 
 @dataclass
@@ -167,6 +174,7 @@ class Segment:
     line: Line
     cell: tuple[float, float]  # the gutters (or page edges) either side of the line
     row: int  # index of the row the segment was cut from
+    justified: bool = False  # its wide gaps are a justified line's word spaces, not cells
 
 
 def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: float) -> list[Segment]:
@@ -183,9 +191,10 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             any(a.box[2] <= g.x0 + 0.5 and b.box[0] >= g.x1 - 0.5 for g in cuts)
             for a, b in itertools.pairwise(row.words)
         ]
-        spacing = _cell_spacing(row.words, at_gutter)
+        spacing = _cell_spacing(row.words, at_gutter, rows, index, size)
         piece = [row.words[0]]
         bulleted = False  # the piece opens with a bullet hung left of a gutter
+        justified = False
         for k, word in enumerate(row.words[1:]):
             prev = piece[-1]
             gap = word.box[0] - prev.box[2]
@@ -206,21 +215,27 @@ def segments(rows: list[TextRow], gutters: list[Gutter], width: float, size: flo
             wide = gap > SPLIT_EM * max(size, word.size) and not (
                 spacing[k] and abs(gap - spacing[k]) <= JUSTIFIED_SPREAD * spacing[k])
             if gutter or other_type or wide:
-                out.append(_segment(piece, cuts, width, index, bulleted))
-                piece, bulleted = [word], False
+                out.append(_segment(piece, cuts, width, index, bulleted, justified))
+                piece, bulleted, justified = [word], False, False
             else:
                 piece.append(word)
-        out.append(_segment(piece, cuts, width, index, bulleted))
+                justified = justified or spacing[k] is not None
+        out.append(_segment(piece, cuts, width, index, bulleted, justified))
     return out
 
 
-def _cell_spacing(words: list[Word], at_gutter: list[bool]) -> list[float | None]:
-    """For each gap of the row, the justified word space of the stretch between gutters that
-    holds it (None where the stretch is not set justified with alike spaces)."""
+def _cell_spacing(words: list[Word], at_gutter: list[bool], rows: list[TextRow], index: int,
+                  size: float) -> list[float | None]:
+    """For each gap of the row (``rows[index]``), the justified word space of the stretch
+    between gutters that holds it (None where the stretch is not set justified with alike
+    spaces); a short line stretched flush with the lines above or below it counts too."""
     out: list[float | None] = []
     start = 0
     for end in [k for k, cut in enumerate(at_gutter) if cut] + [len(words) - 1]:
-        spacing = justified_spacing(words[start : end + 1])
+        stretch = words[start : end + 1]
+        spacing = justified_spacing(stretch)
+        if spacing is None:
+            spacing = _flush_spacing(stretch, rows, index, size)
         out.extend([spacing] * (end - start))
         if end < len(at_gutter):
             out.append(None)  # the gutter itself
@@ -241,14 +256,55 @@ def justified_spacing(words: list[Word]) -> float | None:
     return typical
 
 
+def _flush_spacing(words: list[Word], rows: list[TextRow], index: int,
+                   size: float) -> float | None:
+    """The word space of a line of a few words (fewer than JUSTIFIED_GAPS gaps, alike)
+    stretched to its column's width, as justified text without hyphenation sets a line of
+    long words: both its ends line up, within FLUSH of the size, with the ends of a line of
+    prose above or below it (JUSTIFIED_GAPS words or more, set closer than a cell's gap
+    (PROSE_GAP_EM) apart). None otherwise: a table's cells do not stand under a line of prose."""
+    gaps = [b.box[0] - a.box[2] for a, b in itertools.pairwise(words)]
+    if not gaps or len(gaps) >= JUSTIFIED_GAPS or max(gaps) < PROSE_GAP_EM * size:
+        return None  # no gap a cell's wide: nothing to tell apart
+    typical = statistics.median(gaps)
+    if typical <= 0 or any(abs(g - typical) > JUSTIFIED_SPREAD * typical for g in gaps):
+        return None
+    left, right, reach = words[0].box[0], words[-1].box[2], FLUSH * size
+    for row in _lines_beside(rows, index, left - reach, right + reach):
+        inside = [w for w in row if w.box[0] >= left - reach and w.box[2] <= right + reach]
+        if (len(inside) > JUSTIFIED_GAPS and abs(inside[0].box[0] - left) <= reach
+                and abs(inside[-1].box[2] - right) <= reach
+                and all(b.box[0] - a.box[2] < PROSE_GAP_EM * size
+                        for a, b in itertools.pairwise(inside))):
+            return typical
+    return None
+
+
+def _lines_beside(rows: list[TextRow], index: int, left: float, right: float) -> list[list[Word]]:
+    """The words between ``left`` and ``right`` of the nearest rows above and below
+    ``rows[index]`` that hold any there, within two lines' height: the lines of the same
+    column (another column's baselines may lie between them)."""
+    out = []
+    row = rows[index]
+    for step in (-1, 1):
+        i = index + step
+        while 0 <= i < len(rows) and abs(rows[i].top - row.top) <= 2.5 * max(row.size, 1.0):
+            inside = [w for w in rows[i].words if w.box[2] > left and w.box[0] < right]
+            if inside:
+                out.append(inside)
+                break
+            i += step
+    return out
+
+
 def _segment(words: list[Word], cuts: list[Gutter], width: float, row: int,
-             bulleted: bool = False) -> Segment:
+             bulleted: bool = False, justified: bool = False) -> Segment:
     line = make_line(words)
     if bulleted and len(words) > 1:
         line.item_x = words[1].box[0]
     left = max((g.x1 for g in cuts if g.x1 <= line.x0 + 0.5), default=0.0)
     right = min((g.x0 for g in cuts if g.x0 >= line.x1 - 0.5), default=width)
-    return Segment(line, (left, right), row)
+    return Segment(line, (left, right), row, justified)
 
 
 # -- blocks and their order --------------------------------------------------------------------

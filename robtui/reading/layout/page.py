@@ -315,9 +315,11 @@ def _parts_rules(segs: list[Segment], between: Box, size: float) -> bool:
 NUMERIC = re.compile(r"^[(\[<>≤≥±+−–-]*[\d.,·]+[%)\]*†‡,;]*$")
 
 
-def _tabular(words: list[Word], size: float) -> bool:
+def _tabular(words: list[Word], size: float, justified: bool = False) -> bool:
     """A row piece that reads as table cells: two or more wide gaps, with short cells or
-    figures; or three or more tokens that are mostly numbers spread wide apart."""
+    figures; or three or more tokens that are mostly numbers spread wide apart. Words of a
+    line set ``justified`` (columns.Segment.justified: alike wide spaces) are cells only by
+    their figures."""
     if len(words) < 3:
         return False
     gaps = [b.box[0] - a.box[2] for a, b in itertools.pairwise(words)]
@@ -325,6 +327,8 @@ def _tabular(words: list[Word], size: float) -> bool:
     numeric = sum(bool(NUMERIC.match(w.text)) for w in words) / len(words)
     if (wide >= 2 and numeric >= 0.3) or (wide >= 1 and numeric >= 0.5):
         return True
+    if justified:
+        return False
     cells, longest = 1, 0
     run = 1
     for gap in gaps:
@@ -364,16 +368,17 @@ def column_gutters(gutters: list[Gutter], segs: list[Segment]) -> list[Gutter]:
 def _unruled_regions(
     segs: list[Segment], rows: list[TextRow], columns: list[Gutter], size: float
 ) -> list[Box]:
-    by_row: dict[tuple[int, tuple[int, int]], list[Line]] = {}
+    by_row: dict[tuple[int, tuple[int, int]], list[Segment]] = {}
     for s in segs:
         cuts = [g for g in columns if g.top - 1 <= s.line.top and s.line.bottom <= g.bottom + 1]
         left = max((g.x1 for g in cuts if g.x1 <= s.line.x0 + 0.5), default=0.0)
         right = min((g.x0 for g in cuts if g.x0 >= s.line.x1 - 0.5), default=-1.0)
-        by_row.setdefault((s.row, (round(left), round(right))), []).append(s.line)
+        by_row.setdefault((s.row, (round(left), round(right))), []).append(s)
     runs: dict[tuple[int, int], list[list[Line]]] = {}
-    for (row, cell), cells in sorted(by_row.items()):
+    for (row, cell), pieces in sorted(by_row.items()):
+        cells = [s.line for s in pieces]
         words = sorted((w for c in cells for w in c.words), key=lambda w: w.box[0])
-        if not _tabular(words, size):
+        if not _tabular(words, size, justified=all(s.justified for s in pieces)):
             continue
         chains = runs.setdefault(cell, [])
         if chains and rows[row].top - max(ln.bottom for ln in chains[-1]) <= 2.5 * size:
