@@ -191,6 +191,10 @@ class BlockFlow:
         note, a figure's labels): it floats like a caption instead of ending the paragraph."""
         if self.open is None or block.kind != "body":
             return False
+        if len(self.open.lines) <= 3 and all(ln.bold for ln in self.open.lines):
+            # a short paragraph all in bold and larger (a title read as a paragraph) holds no
+            # footnotes: the text set below it ends it
+            return False
         size = statistics.median(ln.size for ln in block.lines)
         return size < statistics.median(ln.size for ln in self.open.lines) - SMALL_PRINT
 

@@ -91,6 +91,28 @@ def test_a_footnote_between_a_paragraphs_two_columns_floats_after_it(tmp_path) -
     assert "The study was funded by an invented charity for walkers." in texts
 
 
+def test_body_text_under_a_bold_title_read_as_a_paragraph_is_no_footnote(tmp_path) -> None:
+    """A two-line bold title set larger than the text (its first line broken at a hyphen, so
+    read as a paragraph) held the paragraphs under it as small print, and the last of them was
+    not joined to its end on the next page (a one-column manuscript)."""
+    wide = ["The team counted the minutes walked in all the weeks of the study without asking",
+            "the participants twice about the same days or the same visits to the nurse."]
+    path = tmp_path / "title.pdf"
+    c = _canvas(path)
+    top = _lines(c, LEFT, 100, wide * 2, size=12.0, leading=14.0)
+    top = _lines(c, LEFT, top + 12, ["Second study: an invented randomised trial of walking in sub-",
+                                     "urban adults who walk little"], font="Times-Bold",
+                 size=13.5, leading=16.0)
+    top = _lines(c, LEFT, top + 6, wide * 2, size=12.0, leading=14.0)
+    _lines(c, LEFT, top, ["The sample size was set to show a fall from 50% in the"], size=12.0)
+    c.showPage()
+    _lines(c, LEFT, 100, ["control group to 34% in the walking group.", *wide], size=12.0,
+           leading=14.0)
+    texts = _finished(c, path)
+    assert ("The sample size was set to show a fall from 50% in the control group to 34% in "
+            "the walking group.") in texts
+
+
 def _paragraph_texts(path: Path, lines: list[str]) -> list[str]:
     """Sentences of a page whose left column ends with ``lines`` after two filler paragraphs."""
     c = _canvas(path)
