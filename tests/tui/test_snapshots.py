@@ -66,7 +66,10 @@ def test_assessment_screen_with_suggestions(snap_compare, demo_dir, size):
     assert snap_compare(app, terminal_size=size, run_before=_answer_and_step)
 
 
-@pytest.mark.parametrize("size", SIZES)
+# On 80x24 the question list alone fills the screen, and whether it already counts the focused
+# question's suggestions under the guidance depends on when they arrive (one CI run in two drew
+# "5 suggested sentences"): that size is checked by its content below, not by a picture.
+@pytest.mark.parametrize("size", SIZES[1:])
 def test_assessment_questions_with_guidance(snap_compare, demo_dir, size):
     async def answer_then_guidance(pilot):
         await _answer_and_step(pilot)
@@ -80,6 +83,19 @@ def test_assessment_questions_with_guidance(snap_compare, demo_dir, size):
 
     app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
     assert snap_compare(app, terminal_size=size, run_before=answer_then_guidance)
+
+
+async def test_guidance_on_80x24_shows_under_the_focused_question(demo_dir):
+    app = Workbench(demo_dir, NEW_REVIEWER, ranker_factory=FixedRanker)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await _answer_and_step(pilot)
+        await pilot.press("tab", "g")
+        await _steady(pilot)
+        questions = pilot.app.screen.query_one(QuestionList)
+        assert questions.has_focus and questions.focused_question == "1.2"
+        shown = pilot.app.export_screenshot()
+        assert "Guidance: Ask whether the person enrolling could have known" in shown.replace("&#160;", " ")
+        assert "Was the allocation sequence concealed" in shown.replace("&#160;", " ")
 
 
 @pytest.mark.parametrize("size", SIZES)
