@@ -192,8 +192,8 @@ class BlockFlow:
         if self.open is None or block.kind != "body":
             return False
         if len(self.open.lines) <= 3 and all(ln.bold for ln in self.open.lines):
-            # a short paragraph all in bold and larger (a title read as a paragraph) holds no
-            # footnotes: the text set below it ends it
+            # a short paragraph all in bold (a title read as a paragraph) holds no footnotes:
+            # the text set below it ends it
             return False
         size = statistics.median(ln.size for ln in block.lines)
         return size < statistics.median(ln.size for ln in self.open.lines) - SMALL_PRINT

@@ -230,10 +230,16 @@ def _leading(lines: list[Line], body_font: str = "") -> float:
     return statistics.median(gap for gap, _ in gaps) if gaps else 12.0
 
 
+def _both_set_in_one_style(prev: Line, line: Line) -> bool:
+    """Whether each line is set in one style throughout (Line.style): a line of mixed styles,
+    such as statistics with italic letters, says nothing of where a block begins."""
+    return prev.style is not None and line.style is not None
+
+
 def _style_changes(prev: Line, line: Line) -> bool:
     """Two lines each set in one style throughout, and in different ones: a heading, a
-    caption's title or a legend begins or ends. A line of mixed styles changes none."""
-    return prev.style is not None and line.style is not None and prev.style != line.style
+    caption's title or a legend begins or ends."""
+    return _both_set_in_one_style(prev, line) and prev.style != line.style
 
 
 def page_blocks(page: PageLines) -> list[PBlock]:
@@ -260,7 +266,7 @@ def page_blocks(page: PageLines) -> list[PBlock]:
             or abs(line.size - prev.size) > 0.6
             or (line.font == body_font) != (prev.font == body_font)
             and min(len(line.words), len(prev.words)) <= 8
-            and line.style is not None and prev.style is not None  # not italics in a line
+            and _both_set_in_one_style(prev, line)
             or line.font != prev.font
             and len(current.lines) == 1
             and len(prev.words) <= 6

@@ -420,9 +420,8 @@ def reading_order(blocks: list[GeoBlock], size: float = 0.0) -> list[GeoBlock] |
                 members[id(unit)] = group
             units.append(unit)
         ordered = reading_order(units)
-        if ordered is None:
-            return None
-        return [m for unit in ordered for m in members.get(id(unit), [unit])]
+        return None if ordered is None else [
+            m for unit in ordered for m in members.get(id(unit), [unit])]
     n = len(blocks)
     if n > MAX_BLOCKS:
         return None
