@@ -17,7 +17,8 @@ from robtui.reading.sentences import split_sentences
 Box = tuple[float, float, float, float]
 
 # A caption opens with a capital ("Table 2", "FIGURE 1", "Fig. 3"); "table 1." opening a line
-# in a paragraph is the text naming it.
+# in a paragraph is the text naming it. These rules and the verbs below are how journals set
+# captions and write about floats (common practice, no source).
 _CAPTION = re.compile(
     r"^(?=(?-i:[A-Z]))(?:(?:supplementary|extended data|online)\s+)?(?:table|fig\.?|figure|chart)"
     r"\s*[A-Z]?\d+[A-Za-z]?\b"
